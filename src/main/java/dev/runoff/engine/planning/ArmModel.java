@@ -1,0 +1,196 @@
+package dev.runoff.engine.planning;
+
+import dev.runoff.engine.Checks;
+import dev.runoff.engine.Metric;
+import java.util.Arrays;
+import java.util.Objects;
+
+/**
+ * Assumed true arm means for planning: Bernoulli rates in (0, 1), or Gaussian means with known variances.
+ * Exactly one arm must have the largest mean; near-ties need an indifference zone epsilon instead.
+ */
+public final class ArmModel {
+    private final Metric metric;
+    private final double[] means;
+    private final double[] variances;
+    private final int best;
+
+    private ArmModel(Metric metric, double[] means, double[] variances) {
+        this.metric = metric;
+        this.means = means;
+        this.variances = variances;
+        this.best = uniqueBest(means);
+    }
+
+    /**
+     * Bernoulli arms with the given rates.
+     *
+     * @param means at least two rates, each in (0, 1), with a unique largest one
+     */
+    public static ArmModel bernoulli(double... means) {
+        double[] m = copyAtLeastTwo(means);
+        double[] v = new double[m.length];
+        for (int a = 0; a < m.length; a++) {
+            Checks.inOpenRange("mean of arm " + a, m[a], 0, 1);
+            v[a] = m[a] * (1 - m[a]);
+        }
+        return new ArmModel(Metric.BERNOULLI, m, v);
+    }
+
+    /**
+     * Gaussian arms with known, possibly different, variances.
+     *
+     * @param means     at least two finite means with a unique largest one
+     * @param variances one variance per arm, each {@code > 0}
+     */
+    public static ArmModel gaussian(double[] means, double[] variances) {
+        double[] m = copyAtLeastTwo(means);
+        Objects.requireNonNull(variances, "variances");
+        if (variances.length != m.length) {
+            throw new IllegalArgumentException("variances must have one entry per arm (" + m.length
+                    + "), got " + variances.length);
+        }
+        double[] v = variances.clone();
+        for (int a = 0; a < m.length; a++) {
+            Checks.finite("mean of arm " + a, m[a]);
+            Checks.positive("variance of arm " + a, v[a]);
+        }
+        return new ArmModel(Metric.VALUE, m, v);
+    }
+
+    /** Gaussian arms sharing one known variance. */
+    public static ArmModel gaussianCommonVariance(double variance, double... means) {
+        double[] v = new double[copyAtLeastTwo(means).length];
+        Arrays.fill(v, variance);
+        return gaussian(means, v);
+    }
+
+    private static double[] copyAtLeastTwo(double[] means) {
+        Objects.requireNonNull(means, "means");
+        if (means.length < 2) {
+            throw new IllegalArgumentException("need at least 2 arms, got " + means.length);
+        }
+        return means.clone();
+    }
+
+    private static int uniqueBest(double[] means) {
+        int best = 0;
+        for (int a = 1; a < means.length; a++) {
+            if (means[a] > means[best]) {
+                best = a;
+            }
+        }
+        for (int a = 0; a < means.length; a++) {
+            if (a != best && means[a] == means[best]) {
+                throw new IllegalArgumentException("arms " + best + " and " + a + " share the best mean "
+                        + means[best] + ": the best arm is not unique, so the optimal allocation is undefined;"
+                        + " plan with an indifference zone epsilon > 0 instead");
+            }
+        }
+        return best;
+    }
+
+    /** {@link Metric#BERNOULLI} or {@link Metric#VALUE} (Gaussian). */
+    public Metric metric() {
+        return metric;
+    }
+
+    /** Number of arms. */
+    public int size() {
+        return means.length;
+    }
+
+    /** Index of the arm with the largest mean. */
+    public int best() {
+        return best;
+    }
+
+    /** Mean of arm {@code a}. */
+    public double mean(int a) {
+        return means[a];
+    }
+
+    /** Variance of one observation of arm {@code a} ({@code mu (1 - mu)} for Bernoulli arms). */
+    public double variance(int a) {
+        return variances[a];
+    }
+
+    /**
+     * Pairwise cost between the best arm and arm {@code a} under the given weights (Garivier &amp; Kaufmann
+     * 2016, Theorem 1): {@code inf_m [w_best d(mu_best, m) + w_a d(mu_a, m)]}.
+     *
+     * @param weights one non-negative weight per arm
+     * @param a       a suboptimal arm
+     */
+    public double pairwiseCost(double[] weights, int a) {
+        checkWeights(weights);
+        checkChallenger(a);
+        return pairCost(weights[best], a, weights[a]);
+    }
+
+    /**
+     * The expected number of trials per unit of {@code log(1/delta)} when sampling with these weights:
+     * {@code T_w = 1 / min_{a != best} pairwiseCost(w, a)} (Garivier &amp; Kaufmann 2016, Theorem 1, with the
+     * supremum over w replaced by the given w); infinite when some cost is 0.
+     *
+     * @param weights one non-negative weight per arm
+     */
+    public double characteristicTime(double[] weights) {
+        checkWeights(weights);
+        double min = Double.POSITIVE_INFINITY;
+        for (int a = 0; a < means.length; a++) {
+            if (a != best) {
+                min = Math.min(min, pairCost(weights[best], a, weights[a]));
+            }
+        }
+        return 1.0 / min;
+    }
+
+    private void checkWeights(double[] weights) {
+        Objects.requireNonNull(weights, "weights");
+        if (weights.length != means.length) {
+            throw new IllegalArgumentException("weights must have one entry per arm (" + means.length
+                    + "), got " + weights.length);
+        }
+        for (int a = 0; a < weights.length; a++) {
+            Checks.nonNegative("weight of arm " + a, weights[a]);
+        }
+    }
+
+    private void checkChallenger(int a) {
+        if (a < 0 || a >= means.length || a == best) {
+            throw new IllegalArgumentException("arm must be a suboptimal arm index in [0, " + means.length
+                    + ") other than the best arm " + best + ", got " + a);
+        }
+    }
+
+    /** Pairwise cost between the best arm (weight wBest) and arm a (weight wA). */
+    double pairCost(double wBest, int a, double wA) {
+        if (metric == Metric.BERNOULLI) {
+            return Divergence.bernoulliPairCost(means[best], wBest, means[a], wA);
+        }
+        return Divergence.gaussianPairCost(means[best], variances[best], wBest, means[a], variances[a], wA);
+    }
+
+    /** The common mean m minimising the pairwise cost of the best arm (weight 1) and arm a (weight x). */
+    double pairMean(int a, double x) {
+        if (metric == Metric.BERNOULLI) {
+            return Divergence.bernoulliPairMean(means[best], 1, means[a], x);
+        }
+        return Divergence.gaussianPairMean(means[best], variances[best], 1, means[a], variances[a], x);
+    }
+
+    /** KL divergence from arm {@code arm}'s distribution to the one of the same family with mean m. */
+    double divergence(int arm, double m) {
+        if (metric == Metric.BERNOULLI) {
+            return Divergence.bernoulli(means[arm], m);
+        }
+        return Divergence.gaussian(means[arm], m, variances[arm]);
+    }
+
+    @Override
+    public String toString() {
+        return "ArmModel[" + metric + ", means=" + Arrays.toString(means) + ", variances="
+                + Arrays.toString(variances) + "]";
+    }
+}

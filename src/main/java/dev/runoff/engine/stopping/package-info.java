@@ -1,0 +1,18 @@
+/**
+ * Stopping rules: when an experiment may end, and with which arm.
+ *
+ * <p>{@link dev.runoff.engine.stopping.StoppingRule#decide} turns arm statistics, the probability that each
+ * arm is best and the experiment's timing into a {@link dev.runoff.engine.stopping.Decision} (CONTINUE or
+ * STOP, with the statistic, threshold, leader's confidence and guard state behind it), under a validated
+ * {@link dev.runoff.engine.stopping.StoppingConfig}. Three rules:
+ * <ul>
+ *   <li>GLR (Chernoff) with a threshold proven delta-correct for a fixed truth, under any sampling rule and
+ *       continuous monitoring (Garivier &amp; Kaufmann 2016; Kaufmann &amp; Koolen 2021) — the default;</li>
+ *   <li>posterior probability: the Monte Carlo lower confidence bound of max alpha reaches 1 - delta;
+ *       calibrated only on average over the prior;</li>
+ *   <li>indifference zone: P(leader within epsilon of the best) reaches 1 - delta, so near-ties end.</li>
+ * </ul>
+ * Time is passed in as instants ({@link dev.runoff.engine.stopping.Timing}); nothing here reads a clock.
+ * Pure math, no Kafka imports.
+ */
+package dev.runoff.engine.stopping;

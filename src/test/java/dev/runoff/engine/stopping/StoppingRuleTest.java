@@ -1,0 +1,265 @@
+package dev.runoff.engine.stopping;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import dev.runoff.engine.Arm;
+import dev.runoff.engine.best.ProbabilityBest;
+import dev.runoff.engine.stats.BernoulliStats;
+import dev.runoff.engine.stats.ValueStats;
+import java.time.Duration;
+import java.time.Instant;
+import java.util.ArrayList;
+import java.util.List;
+import org.apache.commons.math3.analysis.integration.IterativeLegendreGaussIntegrator;
+import org.apache.commons.math3.distribution.BetaDistribution;
+import org.junit.jupiter.api.Test;
+
+class StoppingRuleTest {
+    private static final Instant START = Instant.parse("2026-03-02T09:00:00Z");
+    private static final Timing ONE_DAY = new Timing(START, START.plus(Duration.ofDays(1)));
+
+    private static Arm bernoulli(String name, long trials, long successes) {
+        return new Arm(name, new BernoulliStats(trials, successes));
+    }
+
+    private static ProbabilityBest exact(double... alpha) {
+        return new ProbabilityBest(alpha, new double[alpha.length], ProbabilityBest.Method.EXACT, 0);
+    }
+
+    private static ProbabilityBest monteCarlo(double[] alpha, double[] se) {
+        return new ProbabilityBest(alpha, se, ProbabilityBest.Method.MONTE_CARLO, 100_000);
+    }
+
+    /** A = 60%, B = 40% of 150 trials each: Z = 300 (0.6 ln 1.2 + 0.4 ln 0.8) = 6.04 (hand computation). */
+    private static List<Arm> moderateGap() {
+        return List.of(bernoulli("A", 150, 90), bernoulli("B", 150, 60));
+    }
+
+    /** A = 60%, B = 40% of 2000 trials each: Z = 80.5, far above any threshold used here. */
+    private static List<Arm> largeGap() {
+        return List.of(bernoulli("A", 2000, 1200), bernoulli("B", 2000, 800));
+    }
+
+    @Test
+    void glrStopsWhenTheStatisticExceedsTheProvenThreshold() {
+        Decision d = StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, StoppingConfig.glr(0.05));
+        assertEquals(Decision.Action.STOP, d.action());
+        assertEquals(Reason.GLR, d.reason());
+        assertEquals("glr", d.reason().label());
+        assertEquals(0, d.leader());
+        assertEquals("A", d.leaderName());
+        assertEquals(0.999, d.leaderConfidence());
+        // Garivier & Kaufmann (2016): statistic 4000 (0.6 ln 1.2 + 0.4 ln 0.8), threshold log(2 t (K-1)/delta).
+        assertEquals(4000 * (0.6 * Math.log(1.2) + 0.4 * Math.log(0.8)), d.statistic(), 1e-9);
+        assertEquals(Math.log(2.0 * 4000 / 0.05), d.threshold(), 1e-12);
+    }
+
+    @Test
+    void glrContinuesBelowTheProvenThresholdButTheLighterOneStops() {
+        // Z = 6.04 (hand computation); proven log(2 * 300 / 0.05) = 9.39; lighter log((1 + ln 300)/0.05) = 4.90.
+        Decision proven = StoppingRule.decide(moderateGap(), exact(0.99, 0.01), ONE_DAY, StoppingConfig.glr(0.05));
+        assertEquals(Decision.Action.CONTINUE, proven.action());
+        assertEquals(Reason.BELOW_THRESHOLD, proven.reason());
+        assertEquals(300 * (0.6 * Math.log(1.2) + 0.4 * Math.log(0.8)), proven.statistic(), 1e-9);
+        assertEquals(Math.log(2.0 * 300 / 0.05), proven.threshold(), 1e-12);
+
+        Decision lighter = StoppingRule.decide(moderateGap(), exact(0.99, 0.01), ONE_DAY,
+                StoppingConfig.glr(0.05).withGlrThreshold(GlrThreshold.LIGHTER_NOT_PROVEN));
+        assertEquals(Reason.GLR, lighter.reason());
+        assertEquals(Math.log((1 + Math.log(300)) / 0.05), lighter.threshold(), 1e-12);
+    }
+
+    @Test
+    void glrOnValueArmsUsesTheGaussianThreshold() {
+        // Gaussian GLR: 0.5^2 / (2 (4/100 + 9/150)) = 1.25, below 2 C_G(log(1/0.05)/2) + 4 log(4 + log 125).
+        List<Arm> arms = List.of(new Arm("A", ValueStats.ofSummary(100, 10.5, 2.0)),
+                new Arm("B", ValueStats.ofSummary(150, 10.0, 3.0)));
+        Decision d = StoppingRule.decide(arms, exact(0.9, 0.1), ONE_DAY, StoppingConfig.glr(0.05));
+        assertEquals(Reason.BELOW_THRESHOLD, d.reason());
+        assertEquals(1.25, d.statistic(), 1e-9);
+        double expected = 2 * GaussianCalibrationTest.cgByGrid(Math.log(1 / 0.05) / 2) + 4 * Math.log(4 + Math.log(125));
+        assertEquals(expected, d.threshold(), 1e-7);
+    }
+
+    @Test
+    void glrCannotStopBeforeEveryArmHasData() {
+        Decision d = StoppingRule.decide(List.of(bernoulli("A", 0, 0), bernoulli("B", 0, 0)), exact(0.5, 0.5),
+                ONE_DAY, StoppingConfig.glr(0.05).withGlrThreshold(GlrThreshold.LIGHTER_NOT_PROVEN));
+        assertEquals(Reason.BELOW_THRESHOLD, d.reason());
+        assertEquals(0.0, d.statistic());
+    }
+
+    @Test
+    void posteriorRuleJudgesTheLowerConfidenceBound() {
+        StoppingConfig config = StoppingConfig.posterior(0.05);
+        // 0.97 - 3 * 0.005 = 0.955 >= 0.95: STOP; the leader is the arm with the largest alpha.
+        Decision stop = StoppingRule.decide(moderateGap(), monteCarlo(new double[] {0.03, 0.97},
+                new double[] {0.005, 0.005}), ONE_DAY, config);
+        assertEquals(Reason.POSTERIOR, stop.reason());
+        assertEquals("B", stop.leaderName());
+        assertEquals(0.955, stop.statistic(), 1e-12);
+        assertEquals(0.95, stop.threshold(), 1e-15);
+        // 0.97 - 3 * 0.01 = 0.94 < 0.95: CONTINUE, although alpha itself is above 0.95.
+        Decision wait = StoppingRule.decide(moderateGap(), monteCarlo(new double[] {0.03, 0.97},
+                new double[] {0.01, 0.01}), ONE_DAY, config);
+        assertEquals(Reason.BELOW_THRESHOLD, wait.reason());
+        assertEquals(0.94, wait.statistic(), 1e-12);
+        // z = 1: 0.97 - 0.01 = 0.96: STOP.
+        assertEquals(Reason.POSTERIOR, StoppingRule.decide(moderateGap(), monteCarlo(new double[] {0.03, 0.97},
+                new double[] {0.01, 0.01}), ONE_DAY, config.withZ(1)).reason());
+        // Exact alpha has standard error 0: 0.951 >= 0.95.
+        assertEquals(Reason.POSTERIOR, StoppingRule.decide(moderateGap(), exact(0.049, 0.951), ONE_DAY, config)
+                .reason());
+    }
+
+    /**
+     * P(theta_leader >= max_{j != leader} theta_j - epsilon) for independent Beta posteriors, by Commons Math
+     * Legendre-Gauss integration of f_leader(x) prod_j F_j(x + epsilon) over [0, 1 - epsilon], plus
+     * P(theta_leader > 1 - epsilon) where every F_j(x + epsilon) is 1: the independent reference injected in
+     * place of the engine's exact integration.
+     */
+    private static LeaderConfidence integrated(List<BetaDistribution> posteriors) {
+        return (leader, epsilon) -> {
+            BetaDistribution l = posteriors.get(leader);
+            IterativeLegendreGaussIntegrator integrator = new IterativeLegendreGaussIntegrator(8, 1e-10, 1e-12);
+            double below = integrator.integrate(100_000, x -> {
+                double p = l.density(x);
+                for (int j = 0; j < posteriors.size(); j++) {
+                    if (j != leader) {
+                        p *= posteriors.get(j).cumulativeProbability(x + epsilon);
+                    }
+                }
+                return p;
+            }, 0, 1 - epsilon);
+            return below + (1 - l.cumulativeProbability(1 - epsilon));
+        };
+    }
+
+    @Test
+    void indifferenceRuleStopsNearTiesOnceTheLeaderIsWithinEpsilon() {
+        // Two arms tied at 500/1000: posteriors Beta(501, 501) under a uniform prior. The difference has
+        // standard deviation sqrt(2 * 0.25 / 1002) = 0.0223, so P(within 0.05) ~ Phi(2.24) ~ 0.987 (normal
+        // approximation, by hand) and P(within 0.01) ~ Phi(0.45) ~ 0.67.
+        List<Arm> arms = List.of(bernoulli("A", 1000, 500), bernoulli("B", 1000, 500));
+        List<BetaDistribution> posteriors = List.of(new BetaDistribution(null, 501, 501),
+                new BetaDistribution(null, 501, 501));
+        LeaderConfidence reference = integrated(posteriors);
+        Decision stop = StoppingRule.decide(arms, exact(0.5, 0.5), ONE_DAY, StoppingConfig.indifference(0.05, 0.05),
+                reference);
+        assertEquals(Reason.INDIFFERENCE, stop.reason());
+        assertEquals(reference.probabilityWithin(0, 0.05), stop.statistic());
+        assertEquals(0.987, stop.statistic(), 0.003);
+        Decision wait = StoppingRule.decide(arms, exact(0.5, 0.5), ONE_DAY, StoppingConfig.indifference(0.05, 0.01),
+                reference);
+        assertEquals(Reason.BELOW_THRESHOLD, wait.reason());
+        assertEquals(0.67, wait.statistic(), 0.01);
+        assertEquals(0.95, wait.threshold(), 1e-15);
+    }
+
+    @Test
+    void indifferenceRuleAsksAboutTheArmWithTheLargestAlpha() {
+        List<Arm> arms = List.of(bernoulli("A", 100, 40), bernoulli("B", 100, 55), bernoulli("C", 100, 50));
+        List<BetaDistribution> posteriors = List.of(new BetaDistribution(null, 41, 61),
+                new BetaDistribution(null, 56, 46), new BetaDistribution(null, 51, 51));
+        List<String> calls = new ArrayList<>();
+        LeaderConfidence recording = (leader, epsilon) -> {
+            calls.add(leader + "@" + epsilon);
+            return integrated(posteriors).probabilityWithin(leader, epsilon);
+        };
+        Decision d = StoppingRule.decide(arms, exact(0.02, 0.74, 0.24), ONE_DAY,
+                StoppingConfig.indifference(0.05, 0.1), recording);
+        assertEquals(List.of("1@0.1"), calls);
+        assertEquals("B", d.leaderName());
+        assertEquals(0.74, d.leaderConfidence());
+    }
+
+    @Test
+    void indifferenceRuleWithoutAConfidenceFunctionIsRejected() {
+        assertEquals("the indifference rule needs a LeaderConfidence", assertThrows(IllegalArgumentException.class,
+                () -> StoppingRule.decide(largeGap(), exact(0.9, 0.1), ONE_DAY,
+                        StoppingConfig.indifference(0.05, 0.01))).getMessage());
+    }
+
+    @Test
+    void minimumTrialsPerArmHoldsAFiringRuleBack() {
+        StoppingConfig config = StoppingConfig.glr(0.05).withMinTrialsPerArm(2001);
+        Decision d = StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config);
+        assertEquals(Decision.Action.CONTINUE, d.action());
+        assertEquals(Reason.MIN_TRIALS, d.reason());
+        assertEquals("min-trials", d.reason().label());
+        assertEquals(2000, d.guards().fewestTrials());
+        assertFalse(d.guards().minTrialsMet());
+        assertEquals(Reason.GLR, StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY,
+                config.withMinTrialsPerArm(2000)).reason());
+    }
+
+    @Test
+    void minimumDurationHoldsAFiringRuleBack() {
+        StoppingConfig config = StoppingConfig.glr(0.05).withMinDuration(Duration.ofDays(7));
+        Decision early = StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config);
+        assertEquals(Reason.MIN_DURATION, early.reason());
+        assertEquals(Duration.ofDays(1), early.guards().elapsed());
+        Timing week = new Timing(START, START.plus(Duration.ofDays(7)));
+        assertEquals(Reason.GLR, StoppingRule.decide(largeGap(), exact(0.999, 0.001), week, config).reason());
+    }
+
+    @Test
+    void spentTrialBudgetStopsWithTheBestArmByAlpha() {
+        // Rule does not fire (Z = 6.04 < 9.39); 300 trials reach the budget of 300.
+        StoppingConfig config = StoppingConfig.glr(0.05).withMaxTotalTrials(300);
+        Decision d = StoppingRule.decide(moderateGap(), exact(0.3, 0.7), ONE_DAY, config);
+        assertEquals(Decision.Action.STOP, d.action());
+        assertEquals(Reason.BUDGET, d.reason());
+        assertEquals("budget", d.reason().label());
+        assertEquals("B", d.leaderName());
+        assertEquals(0.7, d.leaderConfidence());
+        assertTrue(d.guards().trialBudgetSpent());
+        assertEquals(Math.log(2.0 * 300 / 0.05), d.threshold(), 1e-12);
+        assertEquals(Reason.BELOW_THRESHOLD, StoppingRule.decide(moderateGap(), exact(0.3, 0.7), ONE_DAY,
+                config.withMaxTotalTrials(301)).reason());
+    }
+
+    @Test
+    void passedDeadlineStopsForBudget() {
+        StoppingConfig config = StoppingConfig.glr(0.05).withDeadline(START.plus(Duration.ofHours(24)));
+        Decision d = StoppingRule.decide(moderateGap(), exact(0.8, 0.2), ONE_DAY, config);
+        assertEquals(Reason.BUDGET, d.reason());
+        assertTrue(d.guards().deadlinePassed());
+        Timing before = new Timing(START, START.plus(Duration.ofHours(23)));
+        assertEquals(Reason.BELOW_THRESHOLD, StoppingRule.decide(moderateGap(), exact(0.8, 0.2), before, config)
+                .reason());
+    }
+
+    @Test
+    void budgetOverridesGuardsButAFiringRuleKeepsItsOwnReason() {
+        StoppingConfig config = StoppingConfig.glr(0.05).withMaxTotalTrials(4000);
+        assertEquals(Reason.GLR, StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config).reason());
+        assertEquals(Reason.BUDGET, StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY,
+                config.withMinTrialsPerArm(10_000)).reason());
+    }
+
+    @Test
+    void sameInputsGiveEqualDecisions() {
+        StoppingConfig config = StoppingConfig.glr(0.05).withMinTrialsPerArm(10);
+        assertEquals(StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config),
+                StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config));
+    }
+
+    @Test
+    void rejectsInconsistentInputsNamingTheProblem() {
+        StoppingConfig config = StoppingConfig.posterior(0.05);
+        assertEquals("probability of being best has 3 entries but there are 2 arms",
+                assertThrows(IllegalArgumentException.class, () -> StoppingRule.decide(moderateGap(),
+                        exact(0.5, 0.3, 0.2), ONE_DAY, config)).getMessage());
+        assertEquals("alpha of arm 'B' must be in [0.0, 1.0], got 1.5",
+                assertThrows(IllegalArgumentException.class, () -> StoppingRule.decide(moderateGap(),
+                        exact(0.2, 1.5), ONE_DAY, config)).getMessage());
+        assertEquals("need at least 2 arms, got 1", assertThrows(IllegalArgumentException.class,
+                () -> StoppingRule.decide(List.of(bernoulli("A", 1, 1)), exact(1.0), ONE_DAY, config)).getMessage());
+        assertThrows(IllegalArgumentException.class, () -> StoppingRule.decide(moderateGap(), exact(0.5, 0.5),
+                ONE_DAY, StoppingConfig.indifference(0.05, 0.1), (leader, eps) -> 1.2));
+    }
+}
