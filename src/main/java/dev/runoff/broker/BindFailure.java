@@ -16,7 +16,7 @@ final class BindFailure extends Exception {
      * @param cause the underlying exception
      */
     BindFailure(String address, Throwable cause) {
-        super("could not bind " + address + ": " + cause.getMessage(), cause);
+        super("could not bind " + address + ": " + detail(cause), cause);
     }
 
     /**
@@ -24,11 +24,29 @@ final class BindFailure extends Exception {
      * listener on a port taken by another socket surfaces from the broker's socket server.
      */
     static boolean isCauseOf(Throwable failure) {
+        return bindException(failure) != null;
+    }
+
+    /**
+     * The most telling message: that of the exception wrapping the {@link BindException} (Kafka's
+     * "Socket server failed to bind to host:port: ..." names the port), else the failure's own.
+     */
+    private static String detail(Throwable failure) {
+        Throwable wrapper = failure;
         for (Throwable t = failure; t != null && t.getCause() != t; t = t.getCause()) {
-            if (t instanceof BindException) {
-                return true;
+            if (t.getCause() instanceof BindException) {
+                wrapper = t;
             }
         }
-        return false;
+        return wrapper.getMessage();
+    }
+
+    private static BindException bindException(Throwable failure) {
+        for (Throwable t = failure; t != null && t.getCause() != t; t = t.getCause()) {
+            if (t instanceof BindException bind) {
+                return bind;
+            }
+        }
+        return null;
     }
 }

@@ -27,6 +27,16 @@ class BindFailureTest {
     }
 
     @Test
+    void messageQuotesKafkaWrapperThatNamesThePort() {
+        Throwable failure = new RuntimeException("Unable to start acceptor for PLAINTEXT",
+                new KafkaException("Socket server failed to bind to 127.0.0.1:9092: Address already in use.",
+                        new BindException("Address already in use")));
+        assertEquals("could not bind PLAINTEXT 127.0.0.1:9092, CONTROLLER 127.0.0.1:9093: Socket server failed"
+                        + " to bind to 127.0.0.1:9092: Address already in use.",
+                new BindFailure("PLAINTEXT 127.0.0.1:9092, CONTROLLER 127.0.0.1:9093", failure).getMessage());
+    }
+
+    @Test
     void messageNamesTheAddressAndTheCause() {
         BindFailure failure = new BindFailure("CONTROLLER 127.0.0.1:9093", new BindException("Address already in use"));
         assertEquals("could not bind CONTROLLER 127.0.0.1:9093: Address already in use", failure.getMessage());

@@ -6,6 +6,8 @@ import static dev.runoff.broker.BrokerTestSupport.producer;
 import static dev.runoff.broker.BrokerTestSupport.reader;
 import static dev.runoff.broker.BrokerTestSupport.values;
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertNotEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.time.Duration;
@@ -26,23 +28,18 @@ import org.junit.jupiter.api.Test;
 
 /** Restarts, a second instance on a formatted directory, two brokers side by side, and clean shutdown. */
 class EmbeddedKafkaBrokerRestartTest {
-    private static ExitGuard exitGuard;
+    private static GuardedBroker guarded;
     private static EmbeddedKafkaBroker broker;
 
     @BeforeAll
     static void startBroker() {
-        exitGuard = ExitGuard.install();
-        broker = EmbeddedKafkaBroker.builder(BrokerTestSupport.freshDirectory("restart")).build().start();
+        guarded = GuardedBroker.start(EmbeddedKafkaBroker.builder(BrokerTestSupport.freshDirectory("restart")));
+        broker = guarded.broker();
     }
 
     @AfterAll
     static void stopBroker() {
-        try {
-            broker.close();
-            assertEquals(List.of(), exitGuard.calls(), "Kafka tried to end the JVM");
-        } finally {
-            exitGuard.close();
-        }
+        guarded.close();
     }
 
     @Test
@@ -70,7 +67,7 @@ class EmbeddedKafkaBrokerRestartTest {
             assertEquals(5, resumed.size(), "resumed at the committed offsets: " + resumed);
             assertTrue(resumed.stream().allMatch(v -> v.startsWith("second-")), resumed.toString());
         }
-        assertEquals(List.of(), exitGuard.calls(), "close during restart tried to end the JVM");
+        assertEquals(List.of(), guarded.exitCalls(), "close during restart tried to end the JVM");
     }
 
     @Test
@@ -79,8 +76,8 @@ class EmbeddedKafkaBrokerRestartTest {
         send("shared-name", "on-first-", 3);
         try (EmbeddedKafkaBroker second = EmbeddedKafkaBroker.builder(BrokerTestSupport.freshDirectory("second"))
                 .build().start()) {
-            assertTrue(!second.bootstrapServers().equals(broker.bootstrapServers()));
-            assertTrue(!second.clusterId().equals(broker.clusterId()));
+            assertNotEquals(broker.bootstrapServers(), second.bootstrapServers());
+            assertNotEquals(broker.clusterId(), second.clusterId());
             second.createTopic("shared-name", 3, Map.of());
             try (KafkaConsumer<String, String> onSecond = reader(second, "shared-name", "read_committed")) {
                 assertEquals(List.of(), values(pollAtLeast(onSecond, 1, Duration.ofSeconds(1))));
@@ -104,7 +101,7 @@ class EmbeddedKafkaBrokerRestartTest {
         }
         try (EmbeddedKafkaBroker reopened = EmbeddedKafkaBroker.builder(other.logDirectory()).build().start()) {
             assertEquals(clusterId, reopened.clusterId());
-            assertTrue(!reopened.createTopicIfAbsent("kept", 1, Map.of()), "topic 'kept' was lost");
+            assertFalse(reopened.createTopicIfAbsent("kept", 1, Map.of()), "topic 'kept' was lost");
         }
     }
 

@@ -34,27 +34,20 @@ import org.junit.jupiter.params.provider.ValueSource;
 
 /** One real broker for the class: transactions, compaction, topic creation and start failures. */
 class EmbeddedKafkaBrokerTest {
-    private static ExitGuard exitGuard;
+    private static GuardedBroker guarded;
     private static EmbeddedKafkaBroker broker;
 
     @BeforeAll
     static void startBroker() {
-        exitGuard = ExitGuard.install();
-        broker = EmbeddedKafkaBroker.builder(BrokerTestSupport.freshDirectory("main"))
+        guarded = GuardedBroker.start(EmbeddedKafkaBroker.builder(BrokerTestSupport.freshDirectory("main"))
                 // the cleaner otherwise sleeps 15 s between checks (Kafka docs, log.cleaner.backoff.ms)
-                .property("log.cleaner.backoff.ms", "200")
-                .build()
-                .start();
+                .property("log.cleaner.backoff.ms", "200"));
+        broker = guarded.broker();
     }
 
     @AfterAll
     static void stopBroker() {
-        try {
-            broker.close();
-            assertEquals(List.of(), exitGuard.calls(), "Kafka tried to end the JVM");
-        } finally {
-            exitGuard.close();
-        }
+        guarded.close();
     }
 
     @Test
@@ -133,7 +126,20 @@ class EmbeddedKafkaBrokerTest {
             assertTrue(e.getMessage().startsWith("could not bind " + listener + " 127.0.0.1:" + busy + ": "),
                     e.getMessage());
             assertFalse(blocked.isRunning());
+            // the probe kept the busy port away from Kafka, whose CONTROLLER bind failure halts the JVM
+            assertEquals(List.of(), guarded.exitCalls());
         }
+    }
+
+    @Test
+    void invalidBrokerPropertyFailsNamingIt() {
+        EmbeddedKafkaBroker misconfigured = EmbeddedKafkaBroker.builder(BrokerTestSupport.freshDirectory("misconfigured"))
+                .property("num.network.threads", "many")
+                .build();
+        EmbeddedBrokerException e = assertThrows(EmbeddedBrokerException.class, misconfigured::start);
+        assertTrue(e.getMessage().startsWith("could not start broker on "), e.getMessage());
+        assertTrue(e.getMessage().contains("num.network.threads"), e.getMessage());
+        assertFalse(misconfigured.isRunning());
     }
 
     private static void inTransaction(KafkaProducer<String, String> producer, boolean commit, String... values) {

@@ -35,25 +35,20 @@ class ExactlyOnceStreamsTest {
     private static final List<String> WORDS = List.of("alpha", "beta", "gamma", "delta", "epsilon");
     private static final int RECORDS = 2_000;
 
-    private static ExitGuard exitGuard;
+    private static GuardedBroker guarded;
     private static EmbeddedKafkaBroker broker;
 
     @BeforeAll
     static void startBroker() {
-        exitGuard = ExitGuard.install();
-        broker = EmbeddedKafkaBroker.builder(BrokerTestSupport.freshDirectory("streams")).build().start();
+        guarded = GuardedBroker.start(EmbeddedKafkaBroker.builder(BrokerTestSupport.freshDirectory("streams")));
+        broker = guarded.broker();
         broker.createTopic(INPUT, 2, Map.of());
         broker.createTopic(OUTPUT, 2, Map.of());
     }
 
     @AfterAll
     static void stopBroker() {
-        try {
-            broker.close();
-            assertEquals(List.of(), exitGuard.calls(), "Kafka tried to end the JVM");
-        } finally {
-            exitGuard.close();
-        }
+        guarded.close();
     }
 
     @Test
