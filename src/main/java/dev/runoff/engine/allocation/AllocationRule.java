@@ -1,0 +1,90 @@
+package dev.runoff.engine.allocation;
+
+import dev.runoff.engine.posterior.Posterior;
+import java.util.Arrays;
+import java.util.List;
+import java.util.Locale;
+import java.util.stream.Collectors;
+
+/** The allocation rules, each spelled on the command line as its {@link #cliName()}. */
+public enum AllocationRule {
+    /** Top-two Thompson sampling in closed form ({@link TopTwo#thompson}). */
+    TOP_TWO_THOMPSON {
+        @Override
+        public double[] weights(List<? extends Posterior> posteriors, double[] alpha, double beta) {
+            return TopTwo.thompson(alpha, beta);
+        }
+    },
+    /** Top-two probability sampling ({@link TopTwo#probability}). */
+    TOP_TWO_PROBABILITY {
+        @Override
+        public double[] weights(List<? extends Posterior> posteriors, double[] alpha, double beta) {
+            return TopTwo.probability(alpha, beta);
+        }
+    },
+    /** Top-two value sampling ({@link TopTwo#value}). */
+    TOP_TWO_VALUE {
+        @Override
+        public double[] weights(List<? extends Posterior> posteriors, double[] alpha, double beta) {
+            return TopTwo.value(posteriors, beta);
+        }
+
+        @Override
+        public boolean needsMeans() {
+            return true;
+        }
+    },
+    /** Top-two expected improvement ({@link TopTwo#expectedImprovement}). */
+    TOP_TWO_EI {
+        @Override
+        public double[] weights(List<? extends Posterior> posteriors, double[] alpha, double beta) {
+            return TopTwo.expectedImprovement(posteriors, beta);
+        }
+
+        @Override
+        public boolean needsMeans() {
+            return true;
+        }
+    },
+    /** Equal weights. */
+    UNIFORM {
+        @Override
+        public double[] weights(List<? extends Posterior> posteriors, double[] alpha, double beta) {
+            return TopTwo.uniform(posteriors.size());
+        }
+    };
+
+    /**
+     * The rule's weights, in arm order, non-negative and summing to 1.
+     *
+     * @param posteriors each arm's posterior
+     * @param alpha      probability that each arm is best, in the same order
+     * @param beta       share of the leader, in [0, 1] (ignored by {@link #UNIFORM})
+     */
+    public abstract double[] weights(List<? extends Posterior> posteriors, double[] alpha, double beta);
+
+    /** Whether the rule integrates over the posteriors and so needs every posterior to have a finite mean. */
+    public boolean needsMeans() {
+        return false;
+    }
+
+    /** The command-line spelling, e.g. {@code top-two-thompson}. */
+    public String cliName() {
+        return name().toLowerCase(Locale.ROOT).replace('_', '-');
+    }
+
+    /**
+     * The rule spelled {@code name} on the command line.
+     *
+     * @throws IllegalArgumentException naming the value and the valid spellings if there is none
+     */
+    public static AllocationRule fromCliName(String name) {
+        for (AllocationRule r : values()) {
+            if (r.cliName().equals(name)) {
+                return r;
+            }
+        }
+        throw new IllegalArgumentException("unknown rule '" + name + "', expected one of "
+                + Arrays.stream(values()).map(AllocationRule::cliName).collect(Collectors.joining(", ")));
+    }
+}
