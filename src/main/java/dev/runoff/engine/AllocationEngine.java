@@ -21,11 +21,15 @@ import java.util.Set;
  * bits.
  *
  * <p>With {@link EngineConfig.MethodChoice#AUTO}, the probability that each arm is best is integrated
- * exactly for up to {@link #EXACT_ARM_LIMIT} arms and estimated by Monte Carlo beyond. Exact integration
- * costs one integral per arm, each evaluating every other arm's distribution function at every node, so its
- * cost grows with the square of the number of arms while Monte Carlo's grows linearly; the limit keeps the
- * exact path for the arm counts of ordinary experiments, where it also resolves small probabilities that
- * Monte Carlo cannot.
+ * exactly for up to {@link #EXACT_ARM_LIMIT} arms and estimated by Monte Carlo beyond. The limit is a
+ * convention, not a measured crossover: it keeps the exact path, which also resolves probabilities far
+ * below {@code 1 / draws}, for the arm counts of ordinary experiments, and bounds the cost of the
+ * integrals, which all involve every arm.
+ *
+ * <p>With Monte Carlo, an arm that wins no draw has alpha 0: top-two Thompson sampling then gives it no
+ * weight, and when the leader wins every draw the challenger share is split equally among the other arms
+ * (the documented convention of {@link dev.runoff.engine.allocation.TopTwo#thompson}); top-two probability
+ * sampling breaks ties among zero alphas by the lowest index. Exact integration avoids both effects.
  */
 public final class AllocationEngine {
 
