@@ -1,0 +1,151 @@
+package dev.runoff.engine;
+
+import dev.runoff.engine.allocation.GuardedWeights;
+import dev.runoff.engine.best.ExactProbabilityBest;
+import dev.runoff.engine.best.MonteCarloProbabilityBest;
+import dev.runoff.engine.best.ProbabilityBest;
+import dev.runoff.engine.best.ProbabilityBestEstimator;
+import dev.runoff.engine.posterior.Posterior;
+import dev.runoff.engine.stats.ArmStats;
+import dev.runoff.engine.stats.BernoulliStats;
+import java.util.ArrayList;
+import java.util.HashSet;
+import java.util.List;
+import java.util.Objects;
+import java.util.Set;
+
+/**
+ * The engine facade: from arms, a configuration and a seed to posteriors, the probability that each arm is
+ * best, the rule's weights and the guarded serving weights. Stateless and thread-safe; every evaluation is
+ * a pure function of (statistics, configuration, seed, previous weights): the same input gives the same
+ * bits.
+ *
+ * <p>With {@link EngineConfig.MethodChoice#AUTO}, the probability that each arm is best is integrated
+ * exactly for up to {@link #EXACT_ARM_LIMIT} arms and estimated by Monte Carlo beyond. The limit is a
+ * convention, not a measured crossover: it keeps the exact path, which also resolves probabilities far
+ * below {@code 1 / draws}, for the arm counts of ordinary experiments, and bounds the cost of the
+ * integrals, which all involve every arm.
+ *
+ * <p>With Monte Carlo, an arm that wins no draw has alpha 0: top-two Thompson sampling then gives it no
+ * weight, and when the leader wins every draw the challenger share is split equally among the other arms
+ * (the documented convention of {@link dev.runoff.engine.allocation.TopTwo#thompson}); top-two probability
+ * sampling breaks ties among zero alphas by the lowest index. Exact integration avoids both effects.
+ */
+public final class AllocationEngine {
+
+    /**
+     * Version of the engine's arithmetic, recorded in every evaluation. It changes whenever a change to the
+     * engine can alter any output bit for the same input.
+     */
+    public static final String VERSION = "1.0";
+
+    /** Largest number of arms for which {@link EngineConfig.MethodChoice#AUTO} integrates exactly. */
+    public static final int EXACT_ARM_LIMIT = 12;
+
+    /** A stateless engine. */
+    public AllocationEngine() {
+        // no state
+    }
+
+    /**
+     * Evaluates the arms without previous weights (the per-period cap does not apply).
+     *
+     * @see #evaluate(List, EngineConfig, long, double[])
+     */
+    public Evaluation evaluate(List<Arm> arms, EngineConfig config, long seed) {
+        return evaluate(arms, config, seed, null);
+    }
+
+    /**
+     * Evaluates the arms.
+     *
+     * @param arms            at least two arms with unique names and statistics matching the prior's metric
+     * @param config          the configuration
+     * @param seed            seed of the Monte Carlo stream (recorded but unused by exact integration)
+     * @param previousWeights the previous period's serving weights in arm order, or {@code null}
+     * @throws IllegalArgumentException naming the arm or parameter and the value when the input is invalid
+     */
+    public Evaluation evaluate(List<Arm> arms, EngineConfig config, long seed, double[] previousWeights) {
+        Objects.requireNonNull(config, "config");
+        List<String> names = checkArms(arms, config.metric());
+        List<Posterior> posteriors = new ArrayList<>(arms.size());
+        for (Arm arm : arms) {
+            posteriors.add(config.prior().posterior(arm.stats()));
+        }
+        if (config.rule().needsMeans()) {
+            checkFiniteMeans(names, posteriors, config);
+        }
+        ProbabilityBest pb = estimator(config, arms.size()).estimate(posteriors, seed);
+        double[] ruleWeights = config.rule().weights(posteriors, pb.alpha(), config.beta());
+        GuardedWeights guarded = config.guards().apply(ruleWeights, names, trials(arms), previousWeights);
+        List<Evaluation.PosteriorSummary> summaries = new ArrayList<>(posteriors.size());
+        for (Posterior p : posteriors) {
+            summaries.add(Evaluation.PosteriorSummary.of(p));
+        }
+        return new Evaluation(names, summaries, pb, ruleWeights, guarded.weights(), guarded.flags(),
+                config.rule(), config.beta(), seed, VERSION);
+    }
+
+    /** The method {@code choice} resolves to for {@code arms} arms. */
+    public static ProbabilityBest.Method resolve(EngineConfig.MethodChoice choice, int arms) {
+        return switch (choice) {
+            case EXACT -> ProbabilityBest.Method.EXACT;
+            case MONTE_CARLO -> ProbabilityBest.Method.MONTE_CARLO;
+            case AUTO -> arms <= EXACT_ARM_LIMIT ? ProbabilityBest.Method.EXACT : ProbabilityBest.Method.MONTE_CARLO;
+        };
+    }
+
+    private static ProbabilityBestEstimator estimator(EngineConfig config, int arms) {
+        return resolve(config.method(), arms) == ProbabilityBest.Method.EXACT
+                ? new ExactProbabilityBest()
+                : new MonteCarloProbabilityBest(config.draws());
+    }
+
+    private static List<String> checkArms(List<Arm> arms, Metric metric) {
+        Objects.requireNonNull(arms, "arms");
+        if (arms.size() < 2) {
+            throw new IllegalArgumentException("at least two arms are needed, got " + arms.size());
+        }
+        Set<String> seen = new HashSet<>();
+        List<String> names = new ArrayList<>(arms.size());
+        for (int i = 0; i < arms.size(); i++) {
+            Arm arm = Objects.requireNonNull(arms.get(i), "arm " + i);
+            if (!seen.add(arm.name())) {
+                throw new IllegalArgumentException("duplicate arm name '" + arm.name() + "'");
+            }
+            Metric kind = metricOf(arm.stats());
+            if (kind != metric) {
+                throw new IllegalArgumentException("arm '" + arm.name() + "' has " + describe(kind)
+                        + " statistics but the prior is for the " + describe(metric) + " metric");
+            }
+            names.add(arm.name());
+        }
+        return names;
+    }
+
+    private static void checkFiniteMeans(List<String> names, List<Posterior> posteriors, EngineConfig config) {
+        for (int i = 0; i < names.size(); i++) {
+            double mean = posteriors.get(i).mean();
+            if (!Double.isFinite(mean)) {
+                throw new IllegalArgumentException("arm '" + names.get(i) + "': rule " + config.rule().cliName()
+                        + " needs a finite posterior mean, got " + mean + " for " + posteriors.get(i));
+            }
+        }
+    }
+
+    private static Metric metricOf(ArmStats stats) {
+        return stats instanceof BernoulliStats ? Metric.BERNOULLI : Metric.VALUE;
+    }
+
+    private static String describe(Metric metric) {
+        return metric == Metric.BERNOULLI ? "Bernoulli" : "value";
+    }
+
+    private static long[] trials(List<Arm> arms) {
+        long[] t = new long[arms.size()];
+        for (int i = 0; i < t.length; i++) {
+            t[i] = arms.get(i).stats().trials();
+        }
+        return t;
+    }
+}

@@ -1,0 +1,97 @@
+package dev.runoff.engine;
+
+import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.allocation.Guards;
+import dev.runoff.engine.posterior.BetaPrior;
+import dev.runoff.engine.posterior.NormalGammaPrior;
+import dev.runoff.engine.posterior.Prior;
+import java.util.Objects;
+
+/**
+ * Everything an evaluation needs besides the arms and the seed.
+ *
+ * @param prior  the prior of every arm; its kind fixes the metric ({@link BetaPrior}: Bernoulli,
+ *               {@link NormalGammaPrior}: value)
+ * @param rule   the allocation rule
+ * @param beta   the leader's share in the top-two rules, in [0, 1]
+ * @param method how the probability that each arm is best is computed
+ * @param draws  Monte Carlo joint draws, {@code >= 1} (used only when Monte Carlo is chosen)
+ * @param guards the guards applied to the rule's weights
+ */
+public record EngineConfig(Prior prior, AllocationRule rule, double beta, MethodChoice method, int draws,
+                           Guards guards) {
+
+    /** Default leader share: the beta = 1/2 of Russo (2020), within a factor 2 of the optimal rate. */
+    public static final double DEFAULT_BETA = 0.5;
+    /** Default number of Monte Carlo joint draws. */
+    public static final int DEFAULT_DRAWS = 10_000;
+
+    /** Validates every field; messages name the field and value. */
+    public EngineConfig {
+        Objects.requireNonNull(prior, "prior");
+        Objects.requireNonNull(rule, "rule");
+        Checks.inClosedRange("beta", beta, 0, 1);
+        Objects.requireNonNull(method, "method");
+        if (draws < 1) {
+            throw new IllegalArgumentException("draws must be >= 1, got " + draws);
+        }
+        Objects.requireNonNull(guards, "guards");
+    }
+
+    /**
+     * Defaults for a metric: uniform Beta(1, 1) prior for Bernoulli metrics or {@link NormalGammaPrior#WEAK}
+     * for value metrics, top-two Thompson sampling with beta 0.5, automatic method, 10,000 draws, no guards.
+     */
+    public static EngineConfig defaults(Metric metric) {
+        Prior prior = metric == Metric.BERNOULLI ? BetaPrior.UNIFORM : NormalGammaPrior.WEAK;
+        return new EngineConfig(prior, AllocationRule.TOP_TWO_THOMPSON, DEFAULT_BETA, MethodChoice.AUTO,
+                DEFAULT_DRAWS, Guards.NONE);
+    }
+
+    /** The metric this configuration's prior is for. */
+    public Metric metric() {
+        return prior instanceof BetaPrior ? Metric.BERNOULLI : Metric.VALUE;
+    }
+
+    /** This configuration with another prior. */
+    public EngineConfig withPrior(Prior newPrior) {
+        return new EngineConfig(newPrior, rule, beta, method, draws, guards);
+    }
+
+    /** This configuration with another rule. */
+    public EngineConfig withRule(AllocationRule newRule) {
+        return new EngineConfig(prior, newRule, beta, method, draws, guards);
+    }
+
+    /** This configuration with another beta. */
+    public EngineConfig withBeta(double newBeta) {
+        return new EngineConfig(prior, rule, newBeta, method, draws, guards);
+    }
+
+    /** This configuration with another method choice. */
+    public EngineConfig withMethod(MethodChoice newMethod) {
+        return new EngineConfig(prior, rule, beta, newMethod, draws, guards);
+    }
+
+    /** This configuration with another number of Monte Carlo draws. */
+    public EngineConfig withDraws(int newDraws) {
+        return new EngineConfig(prior, rule, beta, method, newDraws, guards);
+    }
+
+    /** This configuration with other guards. */
+    public EngineConfig withGuards(Guards newGuards) {
+        return new EngineConfig(prior, rule, beta, method, draws, newGuards);
+    }
+
+    /** How to compute the probability that each arm is best. */
+    public enum MethodChoice {
+        /**
+         * Exact integration for up to {@link AllocationEngine#EXACT_ARM_LIMIT} arms, Monte Carlo beyond.
+         */
+        AUTO,
+        /** Always exact numerical integration. */
+        EXACT,
+        /** Always Monte Carlo with the configured number of draws. */
+        MONTE_CARLO
+    }
+}

@@ -1,0 +1,71 @@
+package dev.runoff.engine.allocation;
+
+import dev.runoff.engine.posterior.Posterior;
+import java.util.Arrays;
+import java.util.List;
+import java.util.Locale;
+import java.util.stream.Collectors;
+
+/** The allocation rules, each spelled on the command line as its {@link #cliName()}. */
+public enum AllocationRule {
+    /** Top-two Thompson sampling in closed form ({@link TopTwo#thompson}). */
+    TOP_TWO_THOMPSON(false, (posteriors, alpha, beta) -> TopTwo.thompson(alpha, beta)),
+    /** Top-two probability sampling ({@link TopTwo#probability}). */
+    TOP_TWO_PROBABILITY(false, (posteriors, alpha, beta) -> TopTwo.probability(alpha, beta)),
+    /** Top-two value sampling ({@link TopTwo#value}). */
+    TOP_TWO_VALUE(true, (posteriors, alpha, beta) -> TopTwo.value(posteriors, beta)),
+    /** Top-two expected improvement ({@link TopTwo#expectedImprovement}). */
+    TOP_TWO_EI(true, (posteriors, alpha, beta) -> TopTwo.expectedImprovement(posteriors, beta)),
+    /** Equal weights. */
+    UNIFORM(false, (posteriors, alpha, beta) -> TopTwo.uniform(posteriors.size()));
+
+    private final boolean needsMeans;
+    private final Formula formula;
+
+    AllocationRule(boolean needsMeans, Formula formula) {
+        this.needsMeans = needsMeans;
+        this.formula = formula;
+    }
+
+    /**
+     * The rule's weights, in arm order, non-negative and summing to 1.
+     *
+     * @param posteriors each arm's posterior
+     * @param alpha      probability that each arm is best, in the same order
+     * @param beta       share of the leader, in [0, 1] (ignored by {@link #UNIFORM})
+     */
+    public double[] weights(List<? extends Posterior> posteriors, double[] alpha, double beta) {
+        return formula.weights(posteriors, alpha, beta);
+    }
+
+    /** Whether the rule integrates over the posteriors and so needs every posterior to have a finite mean. */
+    public boolean needsMeans() {
+        return needsMeans;
+    }
+
+    /** The command-line spelling, e.g. {@code top-two-thompson}. */
+    public String cliName() {
+        return name().toLowerCase(Locale.ROOT).replace('_', '-');
+    }
+
+    /**
+     * The rule spelled {@code name} on the command line.
+     *
+     * @throws IllegalArgumentException naming the value and the valid spellings if there is none
+     */
+    public static AllocationRule fromCliName(String name) {
+        for (AllocationRule r : values()) {
+            if (r.cliName().equals(name)) {
+                return r;
+            }
+        }
+        throw new IllegalArgumentException("unknown rule '" + name + "', expected one of "
+                + Arrays.stream(values()).map(AllocationRule::cliName).collect(Collectors.joining(", ")));
+    }
+
+    /** The function behind a rule. */
+    @FunctionalInterface
+    private interface Formula {
+        double[] weights(List<? extends Posterior> posteriors, double[] alpha, double beta);
+    }
+}
