@@ -10,9 +10,7 @@ final class AllocationUpdateRules implements RecordRules<AllocationUpdate> {
 
     @Override
     public void check(AllocationUpdate update, Limits limits, Problems problems) {
-        problems.notBlank("experimentId", update.getExperimentId());
-        problems.atLeast("definitionVersion", update.getDefinitionVersion(), 1);
-        problems.atLeast("sequence", update.getSequence(), 1);
+        checkNumbering(update.getExperimentId(), update.getDefinitionVersion(), update.getSequence(), problems);
         problems.atLeast("computedAt", update.getComputedAt(), 0);
         if (update.getValidUntil() <= update.getComputedAt()) {
             problems.add("validUntil", Reason.INCONSISTENT, update.getValidUntil() + " is not after computedAt "
@@ -30,6 +28,16 @@ final class AllocationUpdateRules implements RecordRules<AllocationUpdate> {
         }
         problems.sumsToOne("weights", sum);
         checkWinner(update.getStatus() == ExperimentStatus.STOPPED, update.getWinner(), arms, problems);
+    }
+
+    /**
+     * The experiment, definition version and sequence number that every output record carries. Shared with
+     * decision records.
+     */
+    static void checkNumbering(String experimentId, long definitionVersion, long sequence, Problems problems) {
+        problems.notBlank("experimentId", experimentId);
+        problems.atLeast("definitionVersion", definitionVersion, 1);
+        problems.atLeast("sequence", sequence, 1);
     }
 
     /**

@@ -24,9 +24,8 @@ final class DecisionRecordRules implements RecordRules<DecisionRecord> {
 
     @Override
     public void check(DecisionRecord record, Limits limits, Problems problems) {
-        problems.notBlank("experimentId", record.getExperimentId());
-        problems.atLeast("definitionVersion", record.getDefinitionVersion(), 1);
-        problems.atLeast("sequence", record.getSequence(), 1);
+        AllocationUpdateRules.checkNumbering(record.getExperimentId(), record.getDefinitionVersion(),
+                record.getSequence(), problems);
         problems.atLeast("streamTime", record.getStreamTime(), 0);
         ExperimentDefinition def = record.getDefinition();
         definitionRules.check(def, limits, problems.under("definition"));

@@ -110,11 +110,8 @@ class DefinitionValidationTest {
         ExperimentDefinition def = Samples.bernoulli();
         change.accept(def);
         Decoded<ExperimentDefinition> decoded = Definitions.validate(def, Samples.NOW);
+        Rejections.assertFirstProblem(decoded, field, reason, message);
         assertEquals(1, decoded.problems().size(), decoded.problems().toString());
-        Problem problem = decoded.problems().get(0);
-        assertEquals(field, problem.field());
-        assertEquals(reason, problem.reason());
-        assertTrue(problem.message().contains(message), problem.message());
     }
 
     @Test
