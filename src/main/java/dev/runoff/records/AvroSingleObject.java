@@ -5,7 +5,6 @@ import java.io.IOException;
 import java.io.UncheckedIOException;
 import java.nio.ByteBuffer;
 import java.util.List;
-import org.apache.avro.AvroRuntimeException;
 import org.apache.avro.Schema;
 import org.apache.avro.SchemaNormalization;
 import org.apache.avro.generic.GenericDatumReader;
@@ -83,7 +82,9 @@ final class AvroSingleObject<T extends IndexedRecord> {
                 return null;
             }
             return decoder.decode(bytes);
-        } catch (IOException | AvroRuntimeException e) {
+        } catch (IOException | RuntimeException e) {
+            // Corrupt bodies surface as EOF, Avro errors, and also as index errors (an enum or union index
+            // beyond the schema): all mean the same to the caller, and none may escape to crash the job.
             problems.add(Problem.WHOLE_RECORD, Reason.MALFORMED_AVRO, "avro: truncated or corrupt body ("
                     + describe(e) + ")");
         }

@@ -38,7 +38,7 @@ public final class Definitions {
      * The version policy: the definition to store after {@code submitted} arrives while {@code current}
      * (null for a new experiment) is in force. Whatever version the author sent is ignored: a new experiment
      * gets version 1; a submission with the same content keeps the current definition and version; any
-     * change gets the current version + 1.
+     * change gets the current version + 1. Call it with a submission {@link #validate} accepted.
      */
     public static ExperimentDefinition assignVersion(ExperimentDefinition current, ExperimentDefinition submitted) {
         if (current != null && sameContent(current, submitted)) {

@@ -65,9 +65,7 @@ final class JsonRecordReader {
             problems.add(Problem.WHOLE_RECORD, Reason.MALFORMED_JSON, "expected a JSON object, got " + root.getNodeType());
             return null;
         }
-        int before = problems.size();
-        Object record = new Walk(strict, problems).record(root, schema, "");
-        return problems.size() == before ? (IndexedRecord) record : null;
+        return (IndexedRecord) new Walk(strict, problems).record(root, schema, "");
     }
 
     private JsonNode parse(byte[] bytes, Problems problems) {

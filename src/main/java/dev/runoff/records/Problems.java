@@ -54,7 +54,7 @@ final class Problems {
         return value != null;
     }
 
-    /** Requires a finite {@code value > 0}. */
+    /** Requires {@code value > 0} (NaN fails; finiteness is checked for every double by SchemaChecks). */
     void positive(String field, double value) {
         if (!(value > 0)) {
             add(field, Reason.OUT_OF_RANGE, "must be > 0, got " + value);
@@ -82,7 +82,10 @@ final class Problems {
         }
     }
 
-    /** Requires a non-blank string (length and characters are checked for every string by SchemaChecks). */
+    /**
+     * Requires a string that is not blank, when present (null passes: presence is the schema's business;
+     * length and characters are checked for every string by SchemaChecks).
+     */
     void notBlank(String field, String value) {
         if (value != null && value.isBlank()) {
             add(field, Reason.INVALID_TEXT, "must not be blank");

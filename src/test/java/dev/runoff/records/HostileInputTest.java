@@ -103,7 +103,24 @@ class HostileInputTest {
                 event("Avro string claiming 1.5 GB", hostileAvroString(), "record", Reason.MALFORMED_AVRO,
                         "avro: truncated or corrupt body"),
                 event("Avro event with a NaN value", avroEventWithNaN(), "value", Reason.NOT_FINITE,
-                        "NaN is not a finite number"));
+                        "NaN is not a finite number"),
+                event("Avro enum index beyond the symbols", avroEvent(encoder -> {
+                    encoder.writeEnum(9);
+                    encoder.writeLong(5);
+                    encoder.writeIndex(0);
+                    encoder.writeIndex(0);
+                }), "record", Reason.MALFORMED_AVRO, "avro: truncated or corrupt body (ArrayIndexOutOfBoundsException"),
+                event("Avro union index beyond the branches", avroEvent(encoder -> {
+                    encoder.writeEnum(1);
+                    encoder.writeLong(5);
+                    encoder.writeIndex(7);
+                }), "record", Reason.MALFORMED_AVRO, "avro: truncated or corrupt body (IndexOutOfBoundsException"),
+                event("Avro negative string length", avroEvent(encoder -> {
+                    encoder.writeEnum(1);
+                    encoder.writeLong(5);
+                    encoder.writeIndex(1);
+                    encoder.writeLong(-5);
+                }), "record", Reason.MALFORMED_AVRO, "avro: truncated or corrupt body"));
     }
 
     @ParameterizedTest(name = "{0}")
@@ -185,13 +202,16 @@ class HostileInputTest {
         return Arrays.copyOf(bytes, bytes.length - drop);
     }
 
-    /** The 10-byte header of an OutcomeEvent, then an experimentId whose length prefix claims 1.5 GB. */
+    /** The 10-byte header of an OutcomeEvent, then an experimentId claiming 1.5 GB followed by 20 bytes. */
     private static byte[] hostileAvroString() {
         byte[] header = Arrays.copyOf(EVENTS.encode(Samples.click()), 10);
-        return withBody(header, encoder -> encoder.writeLong(1_500_000_000L));
+        return withBody(header, encoder -> {
+            encoder.writeLong(1_500_000_000L);
+            encoder.writeFixed(new byte[20]);
+        });
     }
 
-    /** An AllocationUpdate whose weights list claims 20 million items. */
+    /** An AllocationUpdate whose weights list claims 20 million items, followed by 20 bytes. */
     private static byte[] hostileAvroList() {
         byte[] header = Arrays.copyOf(RecordCodec.allocationUpdates().encode(Samples.update()), 10);
         return withBody(header, encoder -> {
@@ -199,6 +219,18 @@ class HostileInputTest {
             encoder.writeLong(1);
             encoder.writeLong(1);
             encoder.writeLong(20_000_000L);
+            encoder.writeFixed(new byte[20]);
+        });
+    }
+
+    /** An OutcomeEvent header and its three ids, then whatever {@code rest} writes. */
+    private static byte[] avroEvent(BodyWriter rest) {
+        byte[] header = Arrays.copyOf(EVENTS.encode(Samples.click()), 10);
+        return withBody(header, encoder -> {
+            encoder.writeString("e");
+            encoder.writeString("u");
+            encoder.writeString("x");
+            rest.write(encoder);
         });
     }
 
@@ -224,7 +256,6 @@ class HostileInputTest {
             BinaryEncoder encoder = EncoderFactory.get().directBinaryEncoder(out, null);
             body.write(encoder);
             encoder.flush();
-            out.writeBytes(new byte[20]);
             return out.toByteArray();
         } catch (IOException e) {
             throw new IllegalStateException(e);
