@@ -1,0 +1,272 @@
+package dev.runoff.records;
+
+import java.math.BigDecimal;
+import java.math.MathContext;
+import java.math.RoundingMode;
+import java.util.Comparator;
+import java.util.List;
+import org.apache.avro.Schema;
+import org.apache.avro.generic.IndexedRecord;
+import org.apache.avro.specific.SpecificData;
+
+/**
+ * Canonical JSON of a record: one exact text per value, so that a hash over it can be recomputed outside
+ * Java. It follows the JSON Canonicalization Scheme (RFC 8785, Rundgren, Jordan and Erdtman 2020) except for
+ * 64-bit integers, which are written in full:
+ * <ol>
+ *   <li>UTF-8, no whitespace between tokens.</li>
+ *   <li>A record is an object holding every field of its schema, none omitted, absent values as
+ *       {@code null}; keys sorted by their UTF-16 code units (all keys are ASCII field names, so this is
+ *       plain byte order). Nested records likewise.</li>
+ *   <li>A union holding a record is written as that record's object, without a type wrapper.</li>
+ *   <li>Arrays keep their order. Enum values are their symbol as a string.</li>
+ *   <li>{@code int} and {@code long} fields: decimal digits, {@code -} for negatives, no leading zeros, no
+ *       fraction or exponent, every digit kept even beyond 2^53 (seeds are full 64-bit values; this is the
+ *       one departure from RFC 8785).</li>
+ *   <li>{@code double} fields: ECMAScript {@code Number.prototype.toString} (RFC 8785 section 3.2.2.3), i.e.
+ *       the shortest decimal that reads back as the same double, closest to it on a tie of length; plain
+ *       notation for magnitudes in [1e-6, 1e21), otherwise {@code d.ddde+x} / {@code d.ddde-x}; {@code -0}
+ *       as {@code 0}. NaN and infinities cannot be written.</li>
+ *   <li>Strings (RFC 8785 section 3.2.2.2): {@code "} and {@code \} escaped as {@code \"} and {@code \\};
+ *       U+0008, U+0009, U+000A, U+000C, U+000D as {@code \b \t \n \f \r}; other characters below U+0020 as
+ *       {@code \}{@code u00xx} with lowercase hex; every other character as itself in UTF-8 ({@code /} and
+ *       non-ASCII are not escaped). Unpaired surrogates cannot be written.</li>
+ * </ol>
+ * In JavaScript, {@code JSON.stringify} of the same value with keys sorted produces the same text as long
+ * as no integer exceeds 2^53 in magnitude.
+ */
+public final class CanonicalJson {
+
+    private static final int MAX_SIGNIFICANT_DIGITS = 17;
+    private static final int PLAIN_UPPER_EXPONENT = 21;
+    private static final int PLAIN_LOWER_EXPONENT = -6;
+    private static final SpecificData DATA = SpecificData.get();
+
+    private CanonicalJson() {
+    }
+
+    /**
+     * The canonical JSON text of {@code record}.
+     *
+     * @throws IllegalArgumentException naming the field when a value cannot be written (NaN, an infinity,
+     *                                  an unpaired surrogate, a null in a field that is not nullable)
+     */
+    public static String of(IndexedRecord record) {
+        return without(record, null);
+    }
+
+    /**
+     * The canonical JSON text of {@code record} with the top-level field {@code excluded} left out entirely
+     * (not written as null); {@code null} leaves nothing out.
+     *
+     * @throws IllegalArgumentException as {@link #of(IndexedRecord)}
+     */
+    public static String without(IndexedRecord record, String excluded) {
+        StringBuilder out = new StringBuilder(256);
+        writeRecord(record, record.getSchema(), "", excluded, out);
+        return out.toString();
+    }
+
+    private static void writeRecord(IndexedRecord record, Schema schema, String path, String excluded,
+                                    StringBuilder out) {
+        List<Schema.Field> fields = schema.getFields().stream()
+                .filter(f -> !f.name().equals(excluded))
+                .sorted(Comparator.comparing(Schema.Field::name))
+                .toList();
+        out.append('{');
+        for (int i = 0; i < fields.size(); i++) {
+            Schema.Field field = fields.get(i);
+            if (i > 0) {
+                out.append(',');
+            }
+            string(field.name(), path, out);
+            out.append(':');
+            write(record.get(field.pos()), field.schema(), Problems.path(path, field.name()), out);
+        }
+        out.append('}');
+    }
+
+    private static void write(Object value, Schema schema, String path, StringBuilder out) {
+        if (value == null) {
+            if (!schema.isNullable()) {
+                throw new IllegalArgumentException(path + ": null in a field that is not nullable");
+            }
+            out.append("null");
+            return;
+        }
+        switch (schema.getType()) {
+            case UNION -> write(value, schema.getTypes().get(DATA.resolveUnion(schema, value)), path, out);
+            case RECORD -> writeRecord((IndexedRecord) value, schema, path, null, out);
+            case ARRAY -> writeArray((List<?>) value, schema.getElementType(), path, out);
+            case ENUM, STRING -> string(value.toString(), path, out);
+            case LONG, INT, BOOLEAN -> out.append(value);
+            case DOUBLE -> out.append(number(path, (Double) value));
+            default -> throw new IllegalStateException("schema type " + schema.getType() + " is not supported");
+        }
+    }
+
+    private static void writeArray(List<?> items, Schema itemSchema, String path, StringBuilder out) {
+        out.append('[');
+        for (int i = 0; i < items.size(); i++) {
+            if (i > 0) {
+                out.append(',');
+            }
+            write(items.get(i), itemSchema, path + "[" + i + "]", out);
+        }
+        out.append(']');
+    }
+
+    private static void string(String text, String path, StringBuilder out) {
+        out.append('"');
+        for (int i = 0; i < text.length(); i++) {
+            char c = text.charAt(i);
+            switch (c) {
+                case '"' -> out.append("\\\"");
+                case '\\' -> out.append("\\\\");
+                case '\b' -> out.append("\\b");
+                case '\t' -> out.append("\\t");
+                case '\n' -> out.append("\\n");
+                case '\f' -> out.append("\\f");
+                case '\r' -> out.append("\\r");
+                default -> {
+                    if (c < 0x20) {
+                        out.append(String.format("\\u%04x", (int) c));
+                    } else if (Character.isSurrogate(c) && !pairedAt(text, i)) {
+                        throw new IllegalArgumentException(path + ": unpaired surrogate at index " + i
+                                + " cannot be written as UTF-8");
+                    } else {
+                        out.append(c);
+                    }
+                }
+            }
+        }
+        out.append('"');
+    }
+
+    private static boolean pairedAt(String text, int i) {
+        char c = text.charAt(i);
+        if (Character.isHighSurrogate(c)) {
+            return i + 1 < text.length() && Character.isLowSurrogate(text.charAt(i + 1));
+        }
+        return i > 0 && Character.isHighSurrogate(text.charAt(i - 1));
+    }
+
+    /**
+     * ECMAScript {@code Number.prototype.toString} of a finite double, as used by RFC 8785: e.g. 1 for 1.0,
+     * 0.000001 for 1e-6, 1e-7 for 1e-7, 1e+21 for 1e21, 5e-324 for the smallest subnormal.
+     *
+     * @throws IllegalArgumentException for NaN and infinities
+     */
+    public static String number(double value) {
+        return number("number", value);
+    }
+
+    private static String number(String path, double value) {
+        if (!Double.isFinite(value)) {
+            throw new IllegalArgumentException(path + ": " + value + " cannot be written in JSON");
+        }
+        if (value == 0) {
+            return "0";
+        }
+        if (value < 0) {
+            return "-" + number(path, -value);
+        }
+        BigDecimal shortest = shortestDecimal(value).stripTrailingZeros();
+        String digits = shortest.unscaledValue().toString();
+        return layout(digits, digits.length() - shortest.scale());
+    }
+
+    /**
+     * Lays out digits {@code s} (k of them) with decimal exponent {@code n}, meaning s * 10^(n - k), following
+     * ECMAScript Number::toString steps 6 to 10.
+     */
+    private static String layout(String s, int n) {
+        int k = s.length();
+        if (k <= n && n <= PLAIN_UPPER_EXPONENT) {
+            return s + "0".repeat(n - k);
+        }
+        if (0 < n && n <= PLAIN_UPPER_EXPONENT) {
+            return s.substring(0, n) + "." + s.substring(n);
+        }
+        if (PLAIN_LOWER_EXPONENT < n && n <= 0) {
+            return "0." + "0".repeat(-n) + s;
+        }
+        int e = n - 1;
+        String exponent = "e" + (e < 0 ? "-" : "+") + Math.abs(e);
+        return k == 1 ? s + exponent : s.charAt(0) + "." + s.substring(1) + exponent;
+    }
+
+    /**
+     * The decimal with the fewest significant digits that rounds back to {@code value} (positive, finite),
+     * the closer one when two such decimals of that length exist, the even one on an exact tie: the choice
+     * ECMAScript Number::toString step 5 prescribes. Whether p digits suffice is monotone in p (every p-digit
+     * decimal is also a (p + 1)-digit one). {@link Double#toString(double)} gives a decimal that reads back
+     * exactly, usually (but on Java 17 not always) of the fewest digits: its length is tried first and one
+     * digit fewer; a binary search below it runs only when that shorter length suffices.
+     */
+    static BigDecimal shortestDecimal(double value) {
+        RoundingInterval interval = new RoundingInterval(value);
+        int hi = new BigDecimal(Double.toString(value)).stripTrailingZeros().precision();
+        BigDecimal best = interval.nearestReadingBack(hi);
+        if (hi == 1 || interval.nearestReadingBack(hi - 1) == null) {
+            return best;
+        }
+        int lo = 1;
+        hi--;
+        best = interval.nearestReadingBack(hi);
+        while (lo < hi) {
+            int mid = (lo + hi) >>> 1;
+            BigDecimal candidate = interval.nearestReadingBack(mid);
+            if (candidate != null) {
+                best = candidate;
+                hi = mid;
+            } else {
+                lo = mid + 1;
+            }
+        }
+        return best;
+    }
+
+    /**
+     * The exact value of a positive finite double and the bounds of the reals that round to it under IEEE 754
+     * round-half-even: half the gap to each neighbour (the gap above is {@link Math#ulp(double)}, also for
+     * the largest double, whose upper bound is where rounding overflows to infinity).
+     */
+    private static final class RoundingInterval {
+        private static final BigDecimal HALF = new BigDecimal("0.5");
+
+        private final BigDecimal exact;
+        private final BigDecimal low;
+        private final BigDecimal high;
+        private final boolean boundsReadBack;
+
+        RoundingInterval(double value) {
+            exact = new BigDecimal(value);
+            low = exact.subtract(new BigDecimal(value - Math.nextDown(value)).multiply(HALF));
+            high = exact.add(new BigDecimal(Math.ulp(value)).multiply(HALF));
+            boundsReadBack = (Double.doubleToRawLongBits(value) & 1) == 0;
+        }
+
+        /** The p-digit decimal nearest to the value among those that read back as it, or null if none does. */
+        BigDecimal nearestReadingBack(int p) {
+            BigDecimal down = exact.round(new MathContext(p, RoundingMode.FLOOR));
+            BigDecimal up = exact.round(new MathContext(p, RoundingMode.CEILING));
+            boolean downOk = readsBack(down);
+            boolean upOk = readsBack(up);
+            if (downOk && upOk) {
+                int cmp = exact.subtract(down).compareTo(up.subtract(exact));
+                if (cmp != 0) {
+                    return cmp < 0 ? down : up;
+                }
+                return exact.round(new MathContext(p, RoundingMode.HALF_EVEN));
+            }
+            return downOk ? down : upOk ? up : null;
+        }
+
+        private boolean readsBack(BigDecimal decimal) {
+            int vsLow = decimal.compareTo(low);
+            int vsHigh = decimal.compareTo(high);
+            return vsLow > 0 && vsHigh < 0 || boundsReadBack && (vsLow == 0 || vsHigh == 0);
+        }
+    }
+}

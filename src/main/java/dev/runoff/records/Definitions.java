@@ -1,0 +1,80 @@
+package dev.runoff.records;
+
+import dev.runoff.engine.Metric;
+import dev.runoff.engine.posterior.BetaPrior;
+import dev.runoff.engine.posterior.NormalGammaPrior;
+import dev.runoff.engine.posterior.Prior;
+import dev.runoff.records.avro.BetaParams;
+import dev.runoff.records.avro.ExperimentDefinition;
+import dev.runoff.records.avro.MetricKind;
+import dev.runoff.records.avro.NormalGammaPriorSpec;
+
+/** Validation, versioning and engine views of {@link ExperimentDefinition}. */
+public final class Definitions {
+
+    private static final RecordCodec<ExperimentDefinition> CODEC = RecordCodec.definitions();
+    private static final String VERSION_FIELD = "version";
+
+    private Definitions() {
+    }
+
+    /**
+     * Checks every field of {@code definition} with the default limits, the deadline against
+     * {@code nowMillis}: the definition when valid, else the full list of problems, each naming its field.
+     */
+    public static Decoded<ExperimentDefinition> validate(ExperimentDefinition definition, long nowMillis) {
+        return CODEC.validate(definition, nowMillis);
+    }
+
+    /**
+     * True when the two definitions are equal in everything but {@code version} (compared through their
+     * canonical JSON, so -0.0 equals 0.0).
+     */
+    public static boolean sameContent(ExperimentDefinition a, ExperimentDefinition b) {
+        return CanonicalJson.without(a, VERSION_FIELD).equals(CanonicalJson.without(b, VERSION_FIELD));
+    }
+
+    /**
+     * The version policy: the definition to store after {@code submitted} arrives while {@code current}
+     * (null for a new experiment) is in force. Whatever version the author sent is ignored: a new experiment
+     * gets version 1; a submission with the same content keeps the current definition and version; any
+     * change gets the current version + 1. Call it with a submission {@link #validate} accepted.
+     */
+    public static ExperimentDefinition assignVersion(ExperimentDefinition current, ExperimentDefinition submitted) {
+        if (current != null && sameContent(current, submitted)) {
+            return current;
+        }
+        long version = current == null ? 1 : Math.addExact(current.getVersion(), 1);
+        return ExperimentDefinition.newBuilder(submitted).setVersion(version).build();
+    }
+
+    /** The engine's metric kind. */
+    public static Metric metric(ExperimentDefinition definition) {
+        return definition.getMetric().getKind() == MetricKind.BERNOULLI ? Metric.BERNOULLI : Metric.VALUE;
+    }
+
+    /**
+     * The engine prior of every arm: the definition's, or the documented default when it has none
+     * ({@link BetaPrior#UNIFORM} for BERNOULLI, {@link NormalGammaPrior#WEAK} for VALUE).
+     *
+     * @throws IllegalArgumentException when the prior does not fit the metric kind or has invalid parameters
+     *                                  (never for a definition {@link #validate} accepted)
+     */
+    public static Prior prior(ExperimentDefinition definition) {
+        Object prior = definition.getMetric().getPrior();
+        Metric metric = metric(definition);
+        if (prior == null) {
+            return metric == Metric.BERNOULLI ? BetaPrior.UNIFORM : NormalGammaPrior.WEAK;
+        }
+        Prior result = prior instanceof BetaParams b ? new BetaPrior(b.getA(), b.getB()) : normalGamma(prior);
+        if ((result instanceof BetaPrior) != (metric == Metric.BERNOULLI)) {
+            throw new IllegalArgumentException("metric.prior: " + result + " does not fit metric.kind " + metric);
+        }
+        return result;
+    }
+
+    private static Prior normalGamma(Object prior) {
+        NormalGammaPriorSpec p = (NormalGammaPriorSpec) prior;
+        return new NormalGammaPrior(p.getMu0(), p.getKappa0(), p.getAlpha0(), p.getBeta0());
+    }
+}

@@ -1,0 +1,103 @@
+package dev.runoff.records;
+
+import dev.runoff.records.avro.DecisionRecord;
+import java.nio.charset.StandardCharsets;
+import java.security.MessageDigest;
+import java.security.NoSuchAlgorithmException;
+import java.util.ArrayList;
+import java.util.HexFormat;
+import java.util.List;
+import java.util.OptionalInt;
+import java.util.regex.Pattern;
+
+/**
+ * The per-experiment hash chain of decision records. The hash of a record is the SHA-256 (FIPS 180-4) of
+ * the UTF-8 bytes of its {@link CanonicalJson canonical JSON} with the {@code hash} field left out, as 64
+ * lowercase hex digits. {@code previousHash} of record n is the hash of record n - 1; that of the first
+ * record is {@link #GENESIS}. Changing any field of any record, or removing, inserting or reordering
+ * records, breaks the chain from that record on.
+ */
+public final class HashChain {
+
+    /** previousHash of the first record of an experiment: 64 zeros. */
+    public static final String GENESIS = "0".repeat(64);
+
+    /** Name of the field excluded from its own hash. */
+    public static final String HASH_FIELD = "hash";
+
+    private static final Pattern HEX_64 = Pattern.compile("[0-9a-f]{64}");
+
+    private HashChain() {
+    }
+
+    /** SHA-256 of {@code data} as 64 lowercase hex digits. */
+    public static String sha256Hex(byte[] data) {
+        try {
+            return HexFormat.of().formatHex(MessageDigest.getInstance("SHA-256").digest(data));
+        } catch (NoSuchAlgorithmException e) {
+            throw new IllegalStateException("every Java platform must provide SHA-256", e);
+        }
+    }
+
+    /**
+     * The hash {@code record} should carry: SHA-256 of its canonical JSON without the hash field (whatever
+     * the hash field holds now).
+     *
+     * @throws IllegalArgumentException when the record holds a value canonical JSON cannot represent
+     */
+    public static String hashOf(DecisionRecord record) {
+        return sha256Hex(CanonicalJson.without(record, HASH_FIELD).getBytes(StandardCharsets.UTF_8));
+    }
+
+    /**
+     * A copy of {@code record} linked to {@code previousHash} and carrying its own hash.
+     *
+     * @throws IllegalArgumentException when {@code previousHash} is not 64 lowercase hex digits
+     */
+    public static DecisionRecord seal(DecisionRecord record, String previousHash) {
+        if (previousHash == null || !isHash(previousHash)) {
+            throw new IllegalArgumentException("previousHash must be 64 lowercase hex digits, got " + previousHash);
+        }
+        DecisionRecord sealed = DecisionRecord.newBuilder(record).setPreviousHash(previousHash).setHash("").build();
+        sealed.setHash(hashOf(sealed));
+        return sealed;
+    }
+
+    /** Sealed copies of {@code records}, in order, the first linked to {@link #GENESIS}. */
+    public static List<DecisionRecord> chain(List<DecisionRecord> records) {
+        List<DecisionRecord> sealed = new ArrayList<>(records.size());
+        String previous = GENESIS;
+        for (DecisionRecord record : records) {
+            DecisionRecord next = seal(record, previous);
+            sealed.add(next);
+            previous = next.getHash();
+        }
+        return sealed;
+    }
+
+    /**
+     * Index of the first record whose hash does not match its content or whose previousHash is not the hash
+     * of the record before it ({@link #GENESIS} for the first), or empty when the whole chain holds.
+     */
+    public static OptionalInt firstBreak(List<DecisionRecord> records) {
+        return firstBreak(records, GENESIS);
+    }
+
+    /** As {@link #firstBreak(List)} for a slice of a chain whose first record follows {@code previousHash}. */
+    public static OptionalInt firstBreak(List<DecisionRecord> records, String previousHash) {
+        String previous = previousHash;
+        for (int i = 0; i < records.size(); i++) {
+            DecisionRecord record = records.get(i);
+            if (!previous.equals(record.getPreviousHash()) || !hashOf(record).equals(record.getHash())) {
+                return OptionalInt.of(i);
+            }
+            previous = record.getHash();
+        }
+        return OptionalInt.empty();
+    }
+
+    /** True for 64 lowercase hex digits. */
+    static boolean isHash(String text) {
+        return HEX_64.matcher(text).matches();
+    }
+}
