@@ -19,6 +19,7 @@ import dev.runoff.engine.special.TailRoot;
 final class ExactArm {
     private static final double ROUGH_TOLERANCE = 1e-6;
     private static final int WIDENING_ROUNDS = 2;
+    private static final double END_GAP = 1e-11;
 
     private final Posterior posterior;
     private final double shift;
@@ -63,8 +64,23 @@ final class ExactArm {
             hi = upperAt(logTail - Math.max(0, StrictMath.log(residualLength(hi))));
         }
         this.lower = lo;
-        this.upper = hi;
+        this.upper = Math.min(hi, upperCap(posterior) - shift);
         this.maxLogDensity = maxLogDensityOf(posterior);
+    }
+
+    /**
+     * The highest point a range may reach: {@code END_GAP} (relative) below a finite upper end of the
+     * support. Doubles just below 1 are spaced 1.1e-16 apart, so Gauss nodes on panels narrower than about
+     * 1e-12 there land off their places; a density singular at that end (Beta with {@code b < 1}) would
+     * lose up to 1e-8 of its mass to that rounding. The mass above the cap is added by
+     * {@code ExactIntegrator} as a closing term.
+     */
+    private static double upperCap(Posterior p) {
+        double top = p.supportUpper();
+        if (!Double.isFinite(top) || !Double.isFinite(p.supportLower())) {
+            return Double.POSITIVE_INFINITY;
+        }
+        return top - END_GAP * (top - p.supportLower());
     }
 
     /** An upper bound of the log density ({@code +infinity} when none is known cheaply). */

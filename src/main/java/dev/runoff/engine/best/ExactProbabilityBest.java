@@ -12,19 +12,31 @@ import java.util.List;
  *   alpha_i = P(theta_i > max_{j != i} theta_j) = integral f_i(x) prod_{j != i} F_j(x) dx
  * </pre>
  * for independent posteriors (the standard order-statistics identity; e.g. Miller 2015, "Formulas for
- * Bayesian A/B Testing", for the two-arm case). Deterministic: the seed is ignored, standard errors are 0.
+ * Bayesian A/B Testing", for two arms). Deterministic: the seed is ignored, standard errors are 0.
  *
- * <p>Design: each arm's range runs from where {@code log F = -60} to where {@code log S = -60} (solved in
- * log space); every integral starts at the largest lower end (left of it some {@code F_j < e^-60}, so every
- * term is below {@code e^-60}) and arm i's integral stops at its own upper end. The truncation error is
- * therefore below about {@code 2e-26} per alpha, i.e. relative error below {@code 1e-13} for alphas down to
- * {@code 1e-12}; alphas far below {@code 1e-20} are returned with that absolute accuracy only (possibly 0).
- * The quadrature is {@link ExactIntegrator}. The alphas are not normalised: their sum differs from 1 only
- * by the integration error.
+ * <p>Design:
+ * <ul>
+ *   <li>Range: each arm's range runs from where {@code log F = K} to where {@code log S = K} (solved in log
+ *       space), first with {@code K = -60}. All integrals start at a point {@code x0} with
+ *       {@code prod_j F_j(x0) <= e^K} and arm i's integral stops at its own upper end, so the truncation
+ *       error of each alpha is below {@code 2 e^K} (left of {@code x0} the integrand of arm i integrates to
+ *       at most {@code prod_j F_j(x0)}; right of the upper end to at most {@code S_i = e^K}).</li>
+ *   <li>Tiny alphas: if some alpha is not at least {@code e^30} times that bound, the integrals are redone
+ *       once with {@code K} lowered to 30 below the log of the smallest alpha (down to {@code -700}), so
+ *       alphas keep a relative accuracy near {@code 1e-13} far below {@code 1e-12}.</li>
+ *   <li>Quadrature: {@link ExactIntegrator} (shared Gauss-Legendre panels in log space).</li>
+ *   <li>The alphas are not normalised; their sum differs from 1 only by the integration error (about
+ *       {@code 1e-13}). A near-certain arm's alpha is capped at 1, which that error could exceed by a few
+ *       units in the last place.</li>
+ * </ul>
  */
 public final class ExactProbabilityBest implements ProbabilityBestEstimator {
-    /** Log-probability that defines each arm's range. */
+    /** First log-probability that defines each arm's range. */
     static final double LOG_TAIL = -60;
+    /** Deepest log-probability used for tiny alphas. */
+    private static final double DEEPEST_LOG_TAIL = -700;
+    /** Required log-ratio between an alpha and its truncation bound. */
+    private static final double MARGIN = 30;
     private static final int JOINT_STEPS = 4;
     private static final double JOINT_TOLERANCE = 1.0;
 
@@ -35,10 +47,10 @@ public final class ExactProbabilityBest implements ProbabilityBestEstimator {
 
     @Override
     public ProbabilityBest estimate(List<? extends Posterior> posteriors, long seed) {
-        List<ExactArm> arms = arms(posteriors, -1, 0);
-        boolean[] all = new boolean[arms.size()];
+        checkPosteriors(posteriors);
+        boolean[] all = new boolean[posteriors.size()];
         Arrays.fill(all, true);
-        double[] alpha = alphas(arms, all);
+        double[] alpha = alphas(posteriors, -1, 0, all);
         return new ProbabilityBest(alpha, new double[alpha.length], ProbabilityBest.Method.EXACT, 0);
     }
 
@@ -50,18 +62,39 @@ public final class ExactProbabilityBest implements ProbabilityBestEstimator {
      * @param posteriors at least two independent posteriors
      * @param leader     index of the arm in question
      * @param epsilon    the indifference margin, finite and {@code >= 0}
+     * @return the probability, in {@code [0, 1]}
      */
     public static double probabilityWithin(List<? extends Posterior> posteriors, int leader, double epsilon) {
+        checkPosteriors(posteriors);
         Checks.nonNegative("epsilon", epsilon);
-        List<ExactArm> arms = arms(posteriors, leader, epsilon);
-        boolean[] only = new boolean[arms.size()];
+        if (leader < 0 || leader >= posteriors.size()) {
+            throw new IllegalArgumentException("leader must be an arm index in [0, " + (posteriors.size() - 1)
+                    + "], got " + leader);
+        }
+        boolean[] only = new boolean[posteriors.size()];
         only[leader] = true;
-        return alphas(arms, only)[leader];
+        return alphas(posteriors, leader, epsilon, only)[leader];
     }
 
-    private static double[] alphas(List<ExactArm> arms, boolean[] which) {
+    /** The selected integrals, redone once with deeper tails if some alpha is too small for the first. */
+    private static double[] alphas(List<? extends Posterior> posteriors, int leader, double epsilon,
+                                   boolean[] which) {
+        List<ExactArm> arms = arms(posteriors, leader, epsilon, LOG_TAIL);
+        double start = jointLower(arms, LOG_TAIL);
+        double[] alpha = integrate(arms, start, which);
+        double deeper = deeperTail(arms, start, alpha, which);
+        if (deeper < LOG_TAIL) {
+            arms = arms(posteriors, leader, epsilon, deeper);
+            alpha = integrate(arms, jointLower(arms, deeper), which);
+        }
+        for (int i = 0; i < alpha.length; i++) {
+            alpha[i] = Math.min(1.0, alpha[i]);
+        }
+        return alpha;
+    }
+
+    private static double[] integrate(List<ExactArm> arms, double start, boolean[] which) {
         int n = arms.size();
-        double start = jointLower(arms);
         double[] from = new double[n];
         double[] to = new double[n];
         for (int i = 0; i < n; i++) {
@@ -72,13 +105,31 @@ public final class ExactProbabilityBest implements ProbabilityBestEstimator {
     }
 
     /**
-     * A point {@code x} with {@code P(max_j theta_j <= x) = prod_j F_j(x) <= e^LOG_TAIL}: left of it every
-     * integrand {@code f_i prod_{j != i} F_j} integrates to at most {@code prod_j F_j(x)}, since the
-     * {@code F_j} increase. Starts from the largest single-arm lower end (where one factor alone is small
-     * enough) and moves right by a few Newton steps on {@code sum_j log F_j(x) = LOG_TAIL}, keeping only
-     * points that still satisfy the bound; with many similar arms this trims several standard deviations.
+     * The log tail needed so that every selected alpha exceeds its truncation bound by {@code e^MARGIN}, or
+     * {@code LOG_TAIL} when the first pass suffices. An alpha computed as 0 (empty range) is bounded above
+     * by {@code S_i(x0) + prod_j F_j(x0)}, since arm i can only be best above {@code x0} or when all arms
+     * are below it.
      */
-    private static double jointLower(List<ExactArm> arms) {
+    private static double deeperTail(List<ExactArm> arms, double start, double[] alpha, boolean[] which) {
+        double needed = LOG_TAIL;
+        for (int i = 0; i < alpha.length; i++) {
+            if (!which[i]) {
+                continue;
+            }
+            double logAlpha = alpha[i] > 0 ? StrictMath.log(alpha[i])
+                    : Math.max(arms.get(i).logSurvival(start), LOG_TAIL) + StrictMath.log(2);
+            needed = Math.min(needed, logAlpha - MARGIN);
+        }
+        return needed < LOG_TAIL - StrictMath.log(2) ? Math.max(needed, DEEPEST_LOG_TAIL) : LOG_TAIL;
+    }
+
+    /**
+     * A point {@code x} with {@code P(max_j theta_j <= x) = prod_j F_j(x) <= e^logTail}. Starts from the
+     * largest single-arm lower end (where one factor alone is small enough) and moves right by a few Newton
+     * steps on {@code sum_j log F_j(x) = logTail}, keeping only points that still satisfy the bound; with
+     * many similar arms this trims several standard deviations.
+     */
+    private static double jointLower(List<ExactArm> arms, double logTail) {
         double x = Double.NEGATIVE_INFINITY;
         for (ExactArm arm : arms) {
             x = Math.max(x, arm.lower());
@@ -91,15 +142,15 @@ public final class ExactProbabilityBest implements ProbabilityBestEstimator {
                 logP += logF;
                 slope += StrictMath.exp(arm.logDensity(x) - logF);
             }
-            double next = x + (LOG_TAIL - logP) / slope;
-            if (!(logP < LOG_TAIL - JOINT_TOLERANCE) || !(next > x) || !Double.isFinite(next)) {
+            double next = x + (logTail - logP) / slope;
+            if (!(logP < logTail - JOINT_TOLERANCE) || !(next > x) || !Double.isFinite(next)) {
                 break;
             }
             double logNext = 0;
             for (ExactArm arm : arms) {
                 logNext += arm.logCdf(next);
             }
-            if (!(logNext <= LOG_TAIL)) {
+            if (!(logNext <= logTail)) {
                 break;
             }
             x = next;
@@ -107,20 +158,13 @@ public final class ExactProbabilityBest implements ProbabilityBestEstimator {
         return x;
     }
 
-    /**
-     * Validated arms; every arm except {@code leader} is shifted down by {@code epsilon} (with
-     * {@code leader = -1} nothing is shifted).
-     */
-    private static List<ExactArm> arms(List<? extends Posterior> posteriors, int leader, double epsilon) {
-        checkPosteriors(posteriors);
-        if (leader != -1 && (leader < 0 || leader >= posteriors.size())) {
-            throw new IllegalArgumentException("leader must be an arm index in [0, " + (posteriors.size() - 1)
-                    + "], got " + leader);
-        }
+    /** Arms seen by the integrals; every arm except {@code leader} is shifted down by {@code epsilon}. */
+    private static List<ExactArm> arms(List<? extends Posterior> posteriors, int leader, double epsilon,
+                                       double logTail) {
         List<ExactArm> arms = new ArrayList<>(posteriors.size());
         for (int i = 0; i < posteriors.size(); i++) {
             double shift = leader == -1 || i == leader ? 0 : epsilon;
-            arms.add(new ExactArm(posteriors.get(i), shift, LOG_TAIL));
+            arms.add(new ExactArm(posteriors.get(i), shift, logTail));
         }
         return arms;
     }

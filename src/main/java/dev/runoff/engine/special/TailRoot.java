@@ -137,7 +137,8 @@ public final class TailRoot {
         if (Double.isFinite(upperBound)) {
             return upperBound - spread * StrictMath.exp(-u);
         }
-        return center + spread * StrictMath.sinh(u);
+        double x = center + spread * StrictMath.sinh(u);
+        return Double.isInfinite(x) ? Math.copySign(Double.MAX_VALUE, x) : x;
     }
 
     private double toU(double x) {
