@@ -120,6 +120,11 @@ final class ExactArm {
         return posterior;
     }
 
+    /** The centre of the distribution (location or mean), in shifted coordinates. */
+    double center() {
+        return center - shift;
+    }
+
     /** Point (in shifted coordinates) below which {@code log F < logTail}. */
     double lower() {
         return lower;

@@ -16,17 +16,19 @@ import java.util.List;
  * <p>Design: composite Gauss-Legendre panels on one grid shared by all arms, so {@code log F_j} is computed
  * once per node and reused by every integral. The panel width at {@code x} is
  * {@code PANEL_FACTOR / sqrt(K(x))} where {@code K} adds the curvatures of the log factors that vary at x
- * (see {@link ExactArm#curvature}); with 12 points per panel the rule is exact for polynomials of degree
- * 23, which is far below double precision on a Gaussian-like factor a few local standard deviations wide
- * (the error bound of Davis and Rabinowitz 1984, "Methods of Numerical Integration", eq. 2.7.12).
+ * (see {@link ExactArm#curvature}); with 10 points per panel the rule is exact for polynomials of degree
+ * 19, and its error on a Gaussian-like factor 2.5 local standard deviations wide is near double precision
+ * (the Gauss error term, Davis and Rabinowitz 1984, "Methods of Numerical Integration", section 2.7).
+ * Measured against the same integrals on panels six times narrower over 60 random configurations of 2 to
+ * 20 Beta or Student-t arms: worst relative difference 2.5e-13, about 360 nodes per configuration.
  * {@code prod_{j != i}} is formed from prefix and suffix sums of the logs, never by subtracting
  * {@code log F_i} from the total.
  */
 final class ExactIntegrator {
-    static int POINTS = Integer.getInteger("gl.points", 10);
-    static double PANEL_FACTOR = Double.parseDouble(System.getProperty("gl.factor", "2.5"));
-    static GaussLegendre RULE = GaussLegendre.of(POINTS);
-    static long NODES;
+    private static final int POINTS = 10;
+    private static final double PANEL_FACTOR = 2.5;
+    private static final GaussLegendre RULE = GaussLegendre.of(POINTS);
+    private static final double[] LOG_WEIGHTS = logWeights();
     private static final int MAX_PANELS = 200_000;
     private static final double NEGLIGIBLE = 50;
     private static final int MAX_HALVINGS = 60;
@@ -40,6 +42,14 @@ final class ExactIntegrator {
     }
 
     private ExactIntegrator() {
+    }
+
+    private static double[] logWeights() {
+        double[] w = new double[RULE.size()];
+        for (int k = 0; k < w.length; k++) {
+            w[k] = StrictMath.log(RULE.weight(k));
+        }
+        return w;
     }
 
     /**
@@ -76,10 +86,10 @@ final class ExactIntegrator {
             }
             double half = 0.5 * (right - left);
             double mid = left + half;
+            double logHalf = StrictMath.log(half);
             for (int k = 0; k < POINTS; k++) {
                 double x = mid + half * RULE.node(k);
-                NODES++;
-                addNode(arms, from, to, own, which, x, half * RULE.weight(k), logCdf, prefix, acc);
+                addNode(arms, from, to, own, which, x, logHalf + LOG_WEIGHTS[k], logCdf, prefix, acc);
             }
             left = right;
         }
@@ -114,7 +124,8 @@ final class ExactIntegrator {
     }
 
     private static void addNode(List<ExactArm> arms, double[] from, double[] to, Own own, boolean[] which,
-                                double x, double weight, double[] logCdf, double[] prefix, Accumulator acc) {
+                                double x, double logWeight, double[] logCdf, double[] prefix,
+                                Accumulator acc) {
         int n = arms.size();
         for (int j = 0; j < n; j++) {
             ExactArm arm = arms.get(j);
@@ -133,9 +144,9 @@ final class ExactIntegrator {
                 double rest = prefix[i] + suffix;
                 ExactArm arm = arms.get(i);
                 double bound = own == Own.DENSITY ? arm.maxLogDensity() : 0;
-                if (rest + bound > acc.max(i) - NEGLIGIBLE) {
+                if (rest + bound + logWeight > acc.max(i) - NEGLIGIBLE) {
                     double g = own == Own.DENSITY ? arm.logDensity(x) : arm.logSurvival(x);
-                    acc.add(i, g + rest, weight);
+                    acc.add(i, g + rest + logWeight);
                 }
             }
             suffix += logCdf[i];
@@ -145,11 +156,19 @@ final class ExactIntegrator {
     /**
      * Right edge of the panel starting at {@code left}: the width {@code h} must satisfy
      * {@code h <= PANEL_FACTOR / sqrt(K)} at both ends, halved until it does (geometric panels towards a
-     * singular end of the support need one or two halvings).
+     * singular end of the support need one or two halvings). A panel never steps over an arm's centre,
+     * where that arm's curvature peaks: the wide geometric panels of a heavy tail would otherwise jump over
+     * the whole body of the distribution.
      */
     private static double nextEdge(List<ExactArm> arms, double[] from, double[] to, boolean[] which,
                                    double left, double end) {
         double h = Math.min(end - left, PANEL_FACTOR / Math.sqrt(curvature(arms, from, to, which, left)));
+        for (ExactArm arm : arms) {
+            double center = arm.center();
+            if (center > left && center < left + h) {
+                h = center - left;
+            }
+        }
         for (int halving = 0; halving < MAX_HALVINGS; halving++) {
             double limit = PANEL_FACTOR / Math.sqrt(curvature(arms, from, to, which, left + h));
             if (h <= limit) {
@@ -178,7 +197,10 @@ final class ExactIntegrator {
         return own + others;
     }
 
-    /** Per-arm log-sum-exp of weighted terms, rescaled to a running maximum. */
+    /**
+     * Per-arm log-sum-exp of weighted terms (weights included in the logs, since far in a heavy tail a
+     * tiny integrand on a huge panel still counts), rescaled to a running maximum.
+     */
     private static final class Accumulator {
         private final double[] max;
         private final double[] sum;
@@ -193,13 +215,13 @@ final class ExactIntegrator {
             return max[i];
         }
 
-        void add(int i, double logTerm, double weight) {
+        void add(int i, double logTerm) {
             if (logTerm <= max[i]) {
                 if (logTerm > max[i] - NEGLIGIBLE) {
-                    sum[i] += weight * StrictMath.exp(logTerm - max[i]);
+                    sum[i] += StrictMath.exp(logTerm - max[i]);
                 }
             } else if (logTerm > Double.NEGATIVE_INFINITY) {
-                sum[i] = sum[i] * StrictMath.exp(max[i] - logTerm) + weight;
+                sum[i] = sum[i] * StrictMath.exp(max[i] - logTerm) + 1;
                 max[i] = logTerm;
             }
         }
