@@ -11,10 +11,12 @@ import dev.runoff.engine.special.TailRoot;
  * scale that sizes the integration panels.
  *
  * <p>Design: the panel width near {@code x} follows the curvature of the log density, so that a Gauss-
- * Legendre panel always spans a bounded number of "local standard deviations": for Beta(a, b),
- * {@code max(1/variance, |a-1|/y^2 + |b-1|/(1-y)^2)} (which shrinks the panels geometrically towards an end
- * of the support where the density is singular or vanishes like a power); for Student-t,
- * {@code (nu+1) / ((nu + z^2) scale^2)} (geometric panels in heavy tails, one scale wide in the body).
+ * Legendre panel always spans a bounded number of "local standard deviations": for Beta(a, b) the larger
+ * of {@code 1/variance} and end terms {@code |a-1|/y^2 + |b-1|/(1-y)^2} for non-integer shapes (which
+ * shrink the panels geometrically towards an end where the density is singular or vanishes like a
+ * fractional power); for Student-t, {@code (nu+1) / ((nu + z^2) scale^2)} (geometric panels in heavy tails,
+ * about one scale wide in the body). Other posterior types fall back to a normal-like scale from their
+ * quartiles.
  */
 final class ExactArm {
     private static final double ROUGH_TOLERANCE = 1e-6;
@@ -115,11 +117,6 @@ final class ExactArm {
         return (p.quantile(0.75) - p.quantile(0.25)) / 1.349;
     }
 
-    /** The underlying posterior. */
-    Posterior posterior() {
-        return posterior;
-    }
-
     /** The centre of the distribution (location or mean), in shifted coordinates. */
     double center() {
         return center - shift;
@@ -207,10 +204,10 @@ final class ExactArm {
     }
 
     /**
-     * Curvature term of an end of the Beta support at {@code distance} from it, where the density behaves like
-     * {@code distance^(shape-1)}: none for an
-     * integer shape (the factor is a polynomial, which Gauss-Legendre integrates exactly), otherwise
-     * {@code max(|shape-1|, 1/4) / distance^2} so the panels shrink geometrically towards that end.
+     * Curvature term of an end of the Beta support at {@code distance} from it, where the density behaves
+     * like {@code distance^(shape-1)}: none for an integer shape (the factor is a polynomial, which
+     * Gauss-Legendre integrates exactly), otherwise {@code max(|shape-1|, 1/4) / distance^2} so the panels
+     * shrink geometrically towards that end.
      */
     private static double endTerm(double shape, double distance) {
         if (shape >= 1 && shape == Math.rint(shape)) {

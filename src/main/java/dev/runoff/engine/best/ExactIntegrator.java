@@ -53,6 +53,8 @@ final class ExactIntegrator {
     }
 
     /**
+     * The integrals {@code I_i} of the selected arms.
+     *
      * @param arms  all arms (their CDFs enter every product)
      * @param from  lower limit of each arm's integral
      * @param to    upper limit of each arm's integral ({@code <= from} gives 0)
@@ -108,7 +110,8 @@ final class ExactIntegrator {
      * returned. Normally {@code S_i(end) = e^-60} and this is negligible, but when the range of arm i is cut
      * just below the end of its support ({@link ExactArm}: a Beta density with {@code b < 1} is singular
      * there) the missing mass is about {@code 1e-11^b} while the error of the closing term is at most
-     * {@code S_i(end) (1 - prod_j F_j(end))}, of order {@code 1e-11} even when other arms crowd that end.
+     * {@code S_i(end) (1 - prod_j F_j(end))}: negligible unless another arm is singular at the same end,
+     * then about {@code 1e-11^(b_i + b_j)}.
      */
     private static double beyondEnd(List<ExactArm> arms, int i, double end, double integral) {
         double logTail = arms.get(i).logSurvival(end);

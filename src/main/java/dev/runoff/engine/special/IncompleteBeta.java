@@ -101,10 +101,7 @@ public final class IncompleteBeta {
         if (!(y > 0)) {
             return 0.0;
         }
-        if (x * (a + b + 2) < a + 1) {
-            return logKernel(x, y) - logOfA + StrictMath.log(continuedFraction(x, a, b));
-        }
-        return LogMath.log1mExp(logKernel(x, y) - logOfB + StrictMath.log(continuedFraction(y, b, a)));
+        return logTail(x, y, a, b, logOfA, logOfB, logKernel(x, y));
     }
 
     /**
@@ -121,10 +118,19 @@ public final class IncompleteBeta {
         if (!(x > 0)) {
             return 0.0;
         }
-        if (y * (a + b + 2) < b + 1) {
-            return logKernel(x, y) - logOfB + StrictMath.log(continuedFraction(y, b, a));
+        return logTail(y, x, b, a, logOfB, logOfA, logKernel(x, y));
+    }
+
+    /**
+     * {@code log I_u(p, q)} with {@code v = 1 - u} and {@code kernel = log(u^p v^q / B(p, q))} (the kernel is
+     * the same for both tails): the continued fraction where it converges fast, else the complement of the
+     * other tail.
+     */
+    private double logTail(double u, double v, double p, double q, double logP, double logQ, double kernel) {
+        if (u * (p + q + 2) < p + 1) {
+            return kernel - logP + StrictMath.log(continuedFraction(u, p, q));
         }
-        return LogMath.log1mExp(logKernel(x, y) - logOfA + StrictMath.log(continuedFraction(x, a, b)));
+        return LogMath.log1mExp(kernel - logQ + StrictMath.log(continuedFraction(v, q, p)));
     }
 
     /**
