@@ -20,6 +20,7 @@ import java.util.List;
  */
 public final class ExpectedGain {
     private static final double LOG_TAIL = -60;
+    private static final double DEEPEST_LOG_TAIL = -700;
 
     private ExpectedGain() {
     }
@@ -49,7 +50,9 @@ public final class ExpectedGain {
     }
 
     /**
-     * {@code E[(theta_x - c)^+] = integral_c^infinity S_x(t) dt}.
+     * {@code E[(theta_x - c)^+] = integral_c^infinity S_x(t) dt}. Below the range of x the integrand is 1 to
+     * within {@code e^-60} and that stretch is added as its length; a threshold far in the upper tail gets
+     * a range reaching 60 below {@code log S(c)}, so the small result keeps its relative accuracy.
      *
      * @param x posterior with a finite mean
      * @param c the threshold, finite
@@ -57,12 +60,13 @@ public final class ExpectedGain {
     public static double overThreshold(Posterior x, double c) {
         Checks.finite("threshold c", c);
         checked(List.of(requireNonNull(x, "posterior x")));
-        ExactArm arm = new ExactArm(x, 0, LOG_TAIL, true);
+        double logTail = Math.max(DEEPEST_LOG_TAIL, Math.min(LOG_TAIL, x.logSurvival(c) + LOG_TAIL));
+        ExactArm arm = new ExactArm(x, 0, logTail, true);
         double below = Math.max(0, arm.lower() - c);
         double from = Math.max(c, arm.lower());
         double to = arm.upper();
-        if (from >= to) {
-            to = arm.upperAt(Math.min(LOG_TAIL, x.logSurvival(from)) + LOG_TAIL);
+        if (!(to > from)) {
+            return below;
         }
         double[] integral = ExactIntegrator.integrate(List.of(arm), new double[] {from}, new double[] {to},
                 ExactIntegrator.Own.SURVIVAL, new boolean[] {true});

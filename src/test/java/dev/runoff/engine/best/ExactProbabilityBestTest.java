@@ -116,6 +116,16 @@ class ExactProbabilityBestTest {
         }
     }
 
+    @Test
+    void fiftyArmsOfEitherFamilySumToOne() {
+        SplittableRandom random = new SplittableRandom(50L);
+        for (boolean beta : new boolean[] {true, false}) {
+            List<Posterior> ps = randomConfiguration(random, 50, beta);
+            double sum = Arrays.stream(exact.estimate(ps, 0).alpha()).sum();
+            assertEquals(1.0, sum, 1e-9, ps.toString());
+        }
+    }
+
     static List<Posterior> randomConfiguration(SplittableRandom random, int arms, boolean beta) {
         int[] sizes = {0, 3, 20, 300, 1000, 30_000};
         int n = sizes[random.nextInt(sizes.length)];
@@ -142,6 +152,10 @@ class ExactProbabilityBestTest {
         double[] alpha = exact.estimate(List.of(p, p, p, p, p, p, p), 0).alpha();
         for (double a : alpha) {
             assertEquals(1.0 / 7, a, 1e-12);
+        }
+        Posterior uniform = new BetaPosterior(1, 1);
+        for (double a : exact.estimate(List.of(uniform, uniform, uniform, uniform, uniform), 0).alpha()) {
+            assertEquals(0.2, a, 1e-14);
         }
         Posterior t = new StudentTPosterior(1, 2, 3);
         assertArrayEquals(new double[] {0.5, 0.5}, exact.estimate(List.of(t, t), 0).alpha(), 1e-12);

@@ -54,6 +54,16 @@ class ExpectedGainTest {
     }
 
     @Test
+    void overThresholdFarInTheTailKeepsRelativeAccuracy() {
+        // Beta(1, n): S(x) = (1-x)^n, so E[(X - c)^+] = (1-c)^(n+1) / (n+1) exactly (integral of S).
+        BetaPosterior p = new BetaPosterior(1, 200);
+        for (double c : new double[] {0.01, 0.2, 0.5}) {
+            double expected = Math.exp(201 * Math.log1p(-c)) / 201;
+            assertEquals(expected, ExpectedGain.overThreshold(p, c), 1e-11 * expected, "c=" + c);
+        }
+    }
+
+    @Test
     void pairwiseOfNearNormalArmsMatchesTheRectifiedNormalMean() {
         // D = X - Y ~ Normal(m, s^2): E[D^+] = s phi(m/s) + m Phi(m/s) (mean of a rectified normal);
         // Student-t with 1e7 degrees of freedom is normal up to O(1/nu).
