@@ -2,6 +2,7 @@ package dev.runoff.engine.special;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import org.apache.commons.math3.special.Beta;
 import org.junit.jupiter.api.Test;
@@ -51,6 +52,25 @@ class IncompleteBetaTest {
                 assertEquals(lower, ib.logLower(x, 1 - x), 1e-12 * Math.max(1, Math.abs(lower)), what);
                 assertEquals(upper, ib.logUpper(x, 1 - x), 1e-12 * Math.max(1, Math.abs(upper)), what);
             }
+        }
+    }
+
+    @Test
+    void valuesFarBelowTheDoubleRangeKeepTheirLogs() {
+        // Same exact reference; here I_x and 1 - I_x are below 1e-308, where only the log can be returned.
+        int[][] shapes = {{400, 600}, {600, 400}, {50, 2000}};
+        double[][] points = {{0.02, 0.97}, {0.1, 0.98}, {1e-9, 0.4}};
+        for (int k = 0; k < shapes.length; k++) {
+            int a = shapes[k][0];
+            int b = shapes[k][1];
+            IncompleteBeta ib = new IncompleteBeta(a, b);
+            double low = points[k][0];
+            double high = points[k][1];
+            double lower = ExactBinomial.log(ExactBinomial.regularizedBeta(low, a, b));
+            double upper = ExactBinomial.log(ExactBinomial.regularizedBetaComplement(high, a, b));
+            assertTrue(lower < -709 && upper < -709, "not below the double range: " + lower + ", " + upper);
+            assertEquals(lower, ib.logLower(low, 1 - low), 1e-12 * Math.abs(lower), "lower a=" + a + " b=" + b);
+            assertEquals(upper, ib.logUpper(high, 1 - high), 1e-12 * Math.abs(upper), "upper a=" + a + " b=" + b);
         }
     }
 
