@@ -1,71 +1,186 @@
 package dev.runoff.engine.best;
 
+import dev.runoff.engine.Checks;
 import dev.runoff.engine.posterior.Posterior;
+import java.util.ArrayList;
+import java.util.Arrays;
 import java.util.List;
-import org.apache.commons.math3.analysis.integration.gauss.GaussIntegratorFactory;
 
 /**
- * Exact probability that each arm is best, by numerical integration of
- * {@code alpha_i = integral f_i(x) prod_{j != i} F_j(x) dx} over the central {@code 1 - 2e-12} of arm i's
- * posterior. The range is cut at quantiles of arm i (finely in the bulk, geometrically in the tails, so
- * heavy-tailed Student-t posteriors are resolved too) and each piece gets a 16-point Gauss-Legendre rule
- * (Commons Math). Standard errors are 0.
+ * The probability that each arm is best by one-dimensional numerical integration:
+ * <pre>
+ *   alpha_i = P(theta_i > max_{j != i} theta_j) = integral f_i(x) prod_{j != i} F_j(x) dx
+ * </pre>
+ * for independent posteriors (the standard order-statistics identity; e.g. Miller 2015, "Formulas for
+ * Bayesian A/B Testing", for two arms). Deterministic: the seed is ignored, standard errors are 0.
+ *
+ * <p>Design:
+ * <ul>
+ *   <li>Range: each arm's range runs from where {@code log F = K} to where {@code log S = K} (solved in log
+ *       space), first with {@code K = -60}. All integrals start at a point {@code x0} with
+ *       {@code prod_j F_j(x0) <= e^K} and arm i's integral stops at its own upper end, so the truncation
+ *       error of each alpha is below {@code 2 e^K} (left of {@code x0} the integrand of arm i integrates to
+ *       at most {@code prod_j F_j(x0)}; right of the upper end to at most {@code S_i = e^K}).</li>
+ *   <li>Tiny alphas: if some alpha is not at least {@code e^30} times that bound, the integrals are redone
+ *       once with {@code K} lowered to 30 below the log of the smallest alpha (down to {@code -700}), so
+ *       alphas keep a relative accuracy near {@code 1e-13} far below {@code 1e-12}.</li>
+ *   <li>Quadrature: {@link ExactIntegrator} (shared Gauss-Legendre panels in log space).</li>
+ *   <li>The alphas are not normalised; their sum differs from 1 only by the integration error (about
+ *       {@code 1e-13}). A near-certain arm's alpha is capped at 1, which that error could exceed by a few
+ *       units in the last place.</li>
+ * </ul>
  */
 public final class ExactProbabilityBest implements ProbabilityBestEstimator {
-    private static final int NODES = 16;
-    private static final GaussIntegratorFactory GAUSS = new GaussIntegratorFactory();
+    /** First log-probability that defines each arm's range. */
+    static final double LOG_TAIL = -60;
+    /** Deepest log-probability used for tiny alphas. */
+    private static final double DEEPEST_LOG_TAIL = -700;
+    /** Required log-ratio between an alpha and its truncation bound. */
+    private static final double MARGIN = 30;
+    private static final int JOINT_STEPS = 4;
+    private static final double JOINT_TOLERANCE = 1.0;
 
-    /** An exact estimator. */
+    /** Creates the (stateless) estimator. */
     public ExactProbabilityBest() {
         // stateless
     }
 
     @Override
     public ProbabilityBest estimate(List<? extends Posterior> posteriors, long seed) {
-        int k = posteriors.size();
-        if (k < 2) {
-            throw new IllegalArgumentException("at least two posteriors are needed, got " + k);
-        }
-        double[] alpha = new double[k];
-        for (int i = 0; i < k; i++) {
-            alpha[i] = alpha(posteriors, i);
-        }
-        return new ProbabilityBest(alpha, new double[k], ProbabilityBest.Method.EXACT, 0);
+        checkPosteriors(posteriors);
+        boolean[] all = new boolean[posteriors.size()];
+        Arrays.fill(all, true);
+        double[] alpha = alphas(posteriors, -1, 0, all);
+        return new ProbabilityBest(alpha, new double[alpha.length], ProbabilityBest.Method.EXACT, 0);
     }
 
-    private static double alpha(List<? extends Posterior> ps, int i) {
-        double[] cuts = cuts(ps.get(i));
-        double sum = 0;
-        for (int p = 0; p + 1 < cuts.length; p++) {
-            if (cuts[p + 1] > cuts[p]) {
-                sum += GAUSS.legendre(NODES, cuts[p], cuts[p + 1]).integrate(x -> integrand(ps, i, x));
+    /**
+     * {@code P(theta_leader >= max_{j != leader} theta_j - epsilon) = integral f_L(x) prod_{j != L}
+     * F_j(x + epsilon) dx}, the posterior probability that the leader is within {@code epsilon} of the best
+     * (the indifference-zone stopping statistic).
+     *
+     * @param posteriors at least two independent posteriors
+     * @param leader     index of the arm in question
+     * @param epsilon    the indifference margin, finite and {@code >= 0}
+     * @return the probability, in {@code [0, 1]}
+     */
+    public static double probabilityWithin(List<? extends Posterior> posteriors, int leader, double epsilon) {
+        checkPosteriors(posteriors);
+        Checks.nonNegative("epsilon", epsilon);
+        if (leader < 0 || leader >= posteriors.size()) {
+            throw new IllegalArgumentException("leader must be an arm index in [0, " + (posteriors.size() - 1)
+                    + "], got " + leader);
+        }
+        boolean[] only = new boolean[posteriors.size()];
+        only[leader] = true;
+        return alphas(posteriors, leader, epsilon, only)[leader];
+    }
+
+    /** The selected integrals, redone once with deeper tails if some alpha is too small for the first. */
+    private static double[] alphas(List<? extends Posterior> posteriors, int leader, double epsilon,
+                                   boolean[] which) {
+        List<ExactArm> arms = arms(posteriors, leader, epsilon, LOG_TAIL);
+        double start = jointLower(arms, LOG_TAIL);
+        double[] alpha = integrate(arms, start, which);
+        double deeper = deeperTail(arms, start, alpha, which);
+        if (deeper < LOG_TAIL) {
+            arms = arms(posteriors, leader, epsilon, deeper);
+            alpha = integrate(arms, jointLower(arms, deeper), which);
+        }
+        for (int i = 0; i < alpha.length; i++) {
+            alpha[i] = Math.min(1.0, alpha[i]);
+        }
+        return alpha;
+    }
+
+    private static double[] integrate(List<ExactArm> arms, double start, boolean[] which) {
+        int n = arms.size();
+        double[] from = new double[n];
+        double[] to = new double[n];
+        for (int i = 0; i < n; i++) {
+            from[i] = start;
+            to[i] = arms.get(i).upper();
+        }
+        return ExactIntegrator.integrate(arms, from, to, ExactIntegrator.Own.DENSITY, which);
+    }
+
+    /**
+     * The log tail needed so that every selected alpha exceeds its truncation bound by {@code e^MARGIN}, or
+     * {@code LOG_TAIL} when the first pass suffices. An alpha computed as 0 (empty range) is bounded above
+     * by {@code S_i(x0) + prod_j F_j(x0)}, since arm i can only be best above {@code x0} or when all arms
+     * are below it.
+     */
+    private static double deeperTail(List<ExactArm> arms, double start, double[] alpha, boolean[] which) {
+        double needed = LOG_TAIL;
+        for (int i = 0; i < alpha.length; i++) {
+            if (!which[i]) {
+                continue;
+            }
+            double logAlpha = alpha[i] > 0 ? StrictMath.log(alpha[i])
+                    : Math.max(arms.get(i).logSurvival(start), LOG_TAIL) + StrictMath.log(2);
+            needed = Math.min(needed, logAlpha - MARGIN);
+        }
+        return needed < LOG_TAIL - StrictMath.log(2) ? Math.max(needed, DEEPEST_LOG_TAIL) : LOG_TAIL;
+    }
+
+    /**
+     * A point {@code x} with {@code P(max_j theta_j <= x) = prod_j F_j(x) <= e^logTail}. Starts from the
+     * largest single-arm lower end (where one factor alone is small enough) and moves right by a few Newton
+     * steps on {@code sum_j log F_j(x) = logTail}, keeping only points that still satisfy the bound; with
+     * many similar arms this trims several standard deviations.
+     */
+    private static double jointLower(List<ExactArm> arms, double logTail) {
+        double x = Double.NEGATIVE_INFINITY;
+        for (ExactArm arm : arms) {
+            x = Math.max(x, arm.lower());
+        }
+        for (int step = 0; step < JOINT_STEPS; step++) {
+            double logP = 0;
+            double slope = 0;
+            for (ExactArm arm : arms) {
+                double logF = arm.logCdf(x);
+                logP += logF;
+                slope += StrictMath.exp(arm.logDensity(x) - logF);
+            }
+            double next = x + (logTail - logP) / slope;
+            if (!(logP < logTail - JOINT_TOLERANCE) || !(next > x) || !Double.isFinite(next)) {
+                break;
+            }
+            double logNext = 0;
+            for (ExactArm arm : arms) {
+                logNext += arm.logCdf(next);
+            }
+            if (!(logNext <= logTail)) {
+                break;
+            }
+            x = next;
+        }
+        return x;
+    }
+
+    /** Arms seen by the integrals; every arm except {@code leader} is shifted down by {@code epsilon}. */
+    private static List<ExactArm> arms(List<? extends Posterior> posteriors, int leader, double epsilon,
+                                       double logTail) {
+        List<ExactArm> arms = new ArrayList<>(posteriors.size());
+        for (int i = 0; i < posteriors.size(); i++) {
+            double shift = leader == -1 || i == leader ? 0 : epsilon;
+            arms.add(new ExactArm(posteriors.get(i), shift, logTail));
+        }
+        return arms;
+    }
+
+    /** Throws unless there are at least two posteriors, none null. */
+    static void checkPosteriors(List<? extends Posterior> posteriors) {
+        if (posteriors == null) {
+            throw new IllegalArgumentException("posteriors must not be null");
+        }
+        if (posteriors.size() < 2) {
+            throw new IllegalArgumentException("posteriors must hold at least two arms, got " + posteriors.size());
+        }
+        for (int i = 0; i < posteriors.size(); i++) {
+            if (posteriors.get(i) == null) {
+                throw new IllegalArgumentException("posterior of arm " + i + " must not be null");
             }
         }
-        return sum;
-    }
-
-    /** Quantiles of {@code p} at 1e-12, 1e-10, ..., 1e-3, then every 1/64, then symmetrically up to 1 - 1e-12. */
-    private static double[] cuts(Posterior p) {
-        double[] tails = {1e-12, 1e-10, 1e-8, 1e-6, 1e-5, 1e-4, 1e-3, 4e-3};
-        int bulk = 63;
-        double[] cuts = new double[2 * tails.length + bulk];
-        for (int t = 0; t < tails.length; t++) {
-            cuts[t] = p.quantile(tails[t]);
-            cuts[cuts.length - 1 - t] = p.quantile(1 - tails[t]);
-        }
-        for (int b = 1; b <= bulk; b++) {
-            cuts[tails.length + b - 1] = p.quantile(b / 64.0);
-        }
-        return cuts;
-    }
-
-    private static double integrand(List<? extends Posterior> ps, int i, double x) {
-        double log = ps.get(i).logDensity(x);
-        for (int j = 0; j < ps.size() && log > Double.NEGATIVE_INFINITY; j++) {
-            if (j != i) {
-                log += ps.get(j).logCdf(x);
-            }
-        }
-        return StrictMath.exp(log);
     }
 }

@@ -1,90 +1,118 @@
 package dev.runoff.engine.best;
 
+import dev.runoff.engine.Checks;
 import dev.runoff.engine.posterior.Posterior;
+import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;
-import java.util.function.DoubleUnaryOperator;
-import java.util.stream.DoubleStream;
-import org.apache.commons.math3.analysis.integration.gauss.GaussIntegratorFactory;
 
 /**
- * Expected gains of one arm over others under independent posteriors, by numerical integration of
- * survival and distribution functions: for independent X and Y, {@code E[(X - Y)^+] = integral
- * P(X > t) P(Y <= t) dt}, and {@code E[(X - c)^+] = integral_c^infinity P(X > t) dt}. Integrals run over
- * the central {@code 1 - 2e-12} of the posteriors involved, cut at their quantiles (finely in the bulk,
- * geometrically in the tails) with a 16-point Gauss-Legendre rule (Commons Math) on each piece.
+ * Expected gains (posterior expected improvements) of independent posteriors, by exact one-dimensional
+ * integration in log space.
+ *
+ * <p>Design: for independent X and Y, {@code E[(X - Y)^+] = integral P(X > t) P(Y < t) dt} (write
+ * {@code (X - Y)^+ = integral 1{Y < t < X} dt} and take expectations; Fubini). With several arms,
+ * {@code V_i = E[(theta_i - max_{j != i} theta_j)^+] = integral S_i(t) prod_{j != i} F_j(t) dt}, the
+ * quantity behind top-two value sampling. Each arm's range is widened until its integrated tails are below
+ * {@code e^-60} (heavy Student-t tails need much more room than for probabilities); the integral of arm i
+ * starts at the largest lower end among the other arms, since {@code S_i} does not decay to the left.
+ * All values need finite posterior means (Student-t with more than one degree of freedom).
  */
 public final class ExpectedGain {
-    private static final int NODES = 16;
-    private static final GaussIntegratorFactory GAUSS = new GaussIntegratorFactory();
+    private static final double LOG_TAIL = -60;
+    private static final double DEEPEST_LOG_TAIL = -700;
 
     private ExpectedGain() {
     }
 
     /**
-     * The value of being best, {@code V_i = E[(theta_i - max_{j != i} theta_j)^+]}, for each posterior.
+     * {@code V_i = E[(theta_i - max_{j != i} theta_j)^+]} for every arm.
      *
-     * @param ps at least two independent posteriors
+     * @param posteriors at least two independent posteriors with finite means
+     * @return the expected gain of each arm over the best of the others, in order
      */
-    public static double[] valueOfBeingBest(List<? extends Posterior> ps) {
-        if (ps.size() < 2) {
-            throw new IllegalArgumentException("at least two posteriors are needed, got " + ps.size());
-        }
-        double[] cuts = cuts(ps.toArray(Posterior[]::new));
-        double[] v = new double[ps.size()];
-        for (int i = 0; i < v.length; i++) {
-            int arm = i;
-            v[i] = integrate(t -> StrictMath.exp(ps.get(arm).logSurvival(t) + logCdfOfOthers(ps, arm, t)), cuts);
-        }
-        return v;
+    public static double[] valueOfBeingBest(List<? extends Posterior> posteriors) {
+        ExactProbabilityBest.checkPosteriors(posteriors);
+        boolean[] all = new boolean[checked(posteriors).size()];
+        Arrays.fill(all, true);
+        return values(posteriors, all);
     }
 
-    /** {@code E[(theta_x - theta_y)^+]} for independent posteriors x and y. */
+    /**
+     * {@code E[(theta_x - theta_y)^+]} for independent posteriors.
+     *
+     * @param x first posterior, finite mean
+     * @param y second posterior, finite mean
+     */
     public static double pairwise(Posterior x, Posterior y) {
-        return integrate(t -> StrictMath.exp(x.logSurvival(t) + y.logCdf(t)), cuts(x, y));
+        List<Posterior> pair = List.of(requireNonNull(x, "posterior x"), requireNonNull(y, "posterior y"));
+        return values(checked(pair), new boolean[] {true, false})[0];
     }
 
-    /** {@code E[(theta_x - c)^+]}. */
+    /**
+     * {@code E[(theta_x - c)^+] = integral_c^infinity S_x(t) dt}. Below the range of x the integrand is 1 to
+     * within {@code e^-60} and that stretch is added as its length; a threshold far in the upper tail gets
+     * a range reaching 60 below {@code log S(c)}, so the small result keeps its relative accuracy.
+     *
+     * @param x posterior with a finite mean
+     * @param c the threshold, finite
+     */
     public static double overThreshold(Posterior x, double c) {
-        double[] cuts = cuts(x);
-        double lo = cuts[0];
-        double[] above = DoubleStream.concat(DoubleStream.of(Math.max(c, lo)),
-                Arrays.stream(cuts).filter(t -> t > c)).toArray();
-        return Math.max(0.0, lo - c) + integrate(t -> StrictMath.exp(x.logSurvival(t)), above);
+        Checks.finite("threshold c", c);
+        checked(List.of(requireNonNull(x, "posterior x")));
+        double logTail = Math.max(DEEPEST_LOG_TAIL, Math.min(LOG_TAIL, x.logSurvival(c) + LOG_TAIL));
+        ExactArm arm = new ExactArm(x, 0, logTail, true);
+        double below = Math.max(0, arm.lower() - c);
+        double from = Math.max(c, arm.lower());
+        double to = arm.upper();
+        if (!(to > from)) {
+            return below;
+        }
+        double[] integral = ExactIntegrator.integrate(List.of(arm), new double[] {from}, new double[] {to},
+                ExactIntegrator.Own.SURVIVAL, new boolean[] {true});
+        return below + integral[0];
     }
 
-    private static double logCdfOfOthers(List<? extends Posterior> ps, int i, double t) {
-        double log = 0;
-        for (int j = 0; j < ps.size() && log > Double.NEGATIVE_INFINITY; j++) {
-            if (j != i) {
-                log += ps.get(j).logCdf(t);
-            }
+    private static double[] values(List<? extends Posterior> posteriors, boolean[] which) {
+        int n = posteriors.size();
+        List<ExactArm> arms = new ArrayList<>(n);
+        for (Posterior p : posteriors) {
+            arms.add(new ExactArm(p, 0, LOG_TAIL, true));
         }
-        return log;
+        double[] from = new double[n];
+        double[] to = new double[n];
+        for (int i = 0; i < n; i++) {
+            double start = Double.NEGATIVE_INFINITY;
+            for (int j = 0; j < n; j++) {
+                if (j != i) {
+                    start = Math.max(start, arms.get(j).lower());
+                }
+            }
+            from[i] = start;
+            to[i] = arms.get(i).upper();
+        }
+        return ExactIntegrator.integrate(arms, from, to, ExactIntegrator.Own.SURVIVAL, which);
     }
 
-    /** Sorted quantiles of every posterior at 1e-12, ..., 4e-3, every 1/64, ..., 1 - 1e-12. */
-    private static double[] cuts(Posterior... ps) {
-        double[] tails = {1e-12, 1e-10, 1e-8, 1e-6, 1e-5, 1e-4, 1e-3, 4e-3};
-        DoubleStream.Builder all = DoubleStream.builder();
-        for (Posterior p : ps) {
-            for (double t : tails) {
-                all.add(p.quantile(t)).add(p.quantile(1 - t));
-            }
-            for (int b = 1; b < 64; b++) {
-                all.add(p.quantile(b / 64.0));
+    /** Throws unless the posteriors are present and all have finite means. */
+    private static <P extends Posterior> List<P> checked(List<P> posteriors) {
+        if (posteriors == null) {
+            throw new IllegalArgumentException("posteriors must not be null");
+        }
+        for (int i = 0; i < posteriors.size(); i++) {
+            Posterior p = requireNonNull(posteriors.get(i), "posterior of arm " + i);
+            if (!Double.isFinite(p.mean())) {
+                throw new IllegalArgumentException("expected gain needs a finite posterior mean: arm " + i
+                        + " is " + p + " (a Student-t needs more than 1 degree of freedom)");
             }
         }
-        return all.build().sorted().distinct().toArray();
+        return posteriors;
     }
 
-    private static double integrate(DoubleUnaryOperator f, double[] cuts) {
-        double sum = 0;
-        for (int p = 0; p + 1 < cuts.length; p++) {
-            if (cuts[p + 1] > cuts[p]) {
-                sum += GAUSS.legendre(NODES, cuts[p], cuts[p + 1]).integrate(f::applyAsDouble);
-            }
+    private static Posterior requireNonNull(Posterior p, String name) {
+        if (p == null) {
+            throw new IllegalArgumentException(name + " must not be null");
         }
-        return sum;
+        return p;
     }
 }

@@ -1,0 +1,236 @@
+package dev.runoff.engine.best;
+
+import dev.runoff.engine.special.GaussLegendre;
+import java.util.Arrays;
+import java.util.List;
+
+/**
+ * The shared quadrature behind the exact probabilities and expected gains: for each selected arm i,
+ * <pre>
+ *   I_i = integral over [from_i, to_i] of g_i(x) * prod_{j != i} F_j(x) dx,   g_i = f_i (density) or S_i
+ * </pre>
+ * computed in log space: at each node the logs of the factors are summed and the node's term is scaled by a
+ * running maximum before exponentiation, so integrands far below the double range keep their relative
+ * accuracy.
+ *
+ * <p>Design: composite Gauss-Legendre panels on one grid shared by all arms, so {@code log F_j} is computed
+ * once per node and reused by every integral. The panel width at {@code x} is
+ * {@code PANEL_FACTOR / sqrt(K(x))} where {@code K} adds the curvatures of the log factors that vary at x
+ * (see {@link ExactArm#curvature}); with 10 points per panel the rule is exact for polynomials of degree
+ * 19, and its error on a Gaussian-like factor 2.5 local standard deviations wide is near double precision
+ * (the Gauss error term, Davis and Rabinowitz 1984, "Methods of Numerical Integration", section 2.7).
+ * Measured against the same integrals on panels six times narrower over 60 random configurations of 2 to
+ * 20 Beta or Student-t arms: worst relative difference 2.5e-13, about 360 nodes per configuration.
+ * {@code prod_{j != i}} is formed from prefix and suffix sums of the logs, never by subtracting
+ * {@code log F_i} from the total.
+ */
+final class ExactIntegrator {
+    private static final int POINTS = 10;
+    private static final double PANEL_FACTOR = 2.5;
+    private static final GaussLegendre RULE = GaussLegendre.of(POINTS);
+    private static final double[] LOG_WEIGHTS = logWeights();
+    private static final int MAX_PANELS = 200_000;
+    private static final double NEGLIGIBLE = 50;
+    private static final int MAX_HALVINGS = 60;
+
+    /** Which factor the integral of arm i carries for arm i itself. */
+    enum Own {
+        /** {@code f_i}: probabilities of being best. */
+        DENSITY,
+        /** {@code S_i}: expected gains. */
+        SURVIVAL
+    }
+
+    private ExactIntegrator() {
+    }
+
+    private static double[] logWeights() {
+        double[] w = new double[RULE.size()];
+        for (int k = 0; k < w.length; k++) {
+            w[k] = StrictMath.log(RULE.weight(k));
+        }
+        return w;
+    }
+
+    /**
+     * The integrals {@code I_i} of the selected arms.
+     *
+     * @param arms  all arms (their CDFs enter every product)
+     * @param from  lower limit of each arm's integral
+     * @param to    upper limit of each arm's integral ({@code <= from} gives 0)
+     * @param own   the arm's own factor
+     * @param which which integrals to compute (others are returned as 0)
+     */
+    static double[] integrate(List<ExactArm> arms, double[] from, double[] to, Own own, boolean[] which) {
+        int n = arms.size();
+        double start = Double.POSITIVE_INFINITY;
+        double end = Double.NEGATIVE_INFINITY;
+        for (int i = 0; i < n; i++) {
+            if (which[i] && to[i] > from[i]) {
+                start = Math.min(start, from[i]);
+                end = Math.max(end, to[i]);
+            }
+        }
+        double[] result = new double[n];
+        if (!(end > start)) {
+            return result;
+        }
+        Accumulator acc = new Accumulator(n);
+        double[] logCdf = new double[n];
+        double[] prefix = new double[n + 1];
+        double left = start;
+        int panels = 0;
+        while (left < end) {
+            double right = nextEdge(arms, from, to, which, left, end);
+            if (++panels > MAX_PANELS) {
+                throw new ArithmeticException("exact integration needs more than " + MAX_PANELS
+                        + " panels on [" + start + ", " + end + "]");
+            }
+            double half = 0.5 * (right - left);
+            double mid = left + half;
+            double logHalf = StrictMath.log(half);
+            for (int k = 0; k < POINTS; k++) {
+                double x = mid + half * RULE.node(k);
+                addNode(arms, from, to, own, which, x, logHalf + LOG_WEIGHTS[k], logCdf, prefix, acc);
+            }
+            left = right;
+        }
+        for (int i = 0; i < n; i++) {
+            result[i] = acc.value(i);
+            if (own == Own.DENSITY && which[i] && to[i] > from[i]) {
+                result[i] += beyondEnd(arms, i, to[i], result[i]);
+            }
+        }
+        return result;
+    }
+
+    /**
+     * The part of {@code integral f_i prod_{j != i} F_j} above {@code end}, which lies between
+     * {@code S_i(end) prod_{j != i} F_j(end)} and {@code S_i(end)} (the F_j increase); the lower value is
+     * returned. Normally {@code S_i(end) = e^-60} and this is negligible, but when the range of arm i is cut
+     * just below the end of its support ({@link ExactArm}: a Beta density with {@code b < 1} is singular
+     * there) the missing mass is about {@code 1e-11^b} while the error of the closing term is at most
+     * {@code S_i(end) (1 - prod_j F_j(end))}: negligible unless another arm is singular at the same end,
+     * then about {@code 1e-11^(b_i + b_j)}.
+     */
+    private static double beyondEnd(List<ExactArm> arms, int i, double end, double integral) {
+        double logTail = arms.get(i).logSurvival(end);
+        if (!(logTail > StrictMath.log(integral) - NEGLIGIBLE)) {
+            return 0;
+        }
+        for (int j = 0; j < arms.size(); j++) {
+            if (j != i) {
+                logTail += arms.get(j).logCdf(end);
+            }
+        }
+        return StrictMath.exp(logTail);
+    }
+
+    private static void addNode(List<ExactArm> arms, double[] from, double[] to, Own own, boolean[] which,
+                                double x, double logWeight, double[] logCdf, double[] prefix,
+                                Accumulator acc) {
+        int n = arms.size();
+        for (int j = 0; j < n; j++) {
+            ExactArm arm = arms.get(j);
+            if (x > arm.upper()) {
+                logCdf[j] = 0;
+            } else if (x < arm.lower()) {
+                logCdf[j] = Double.NEGATIVE_INFINITY;
+            } else {
+                logCdf[j] = arm.logCdf(x);
+            }
+            prefix[j + 1] = prefix[j] + logCdf[j];
+        }
+        double suffix = 0;
+        for (int i = n - 1; i >= 0; i--) {
+            if (which[i] && x >= from[i] && x <= to[i]) {
+                double rest = prefix[i] + suffix;
+                ExactArm arm = arms.get(i);
+                double bound = own == Own.DENSITY ? arm.maxLogDensity() : 0;
+                if (rest + bound + logWeight > acc.max(i) - NEGLIGIBLE) {
+                    double g = own == Own.DENSITY ? arm.logDensity(x) : arm.logSurvival(x);
+                    acc.add(i, g + rest + logWeight);
+                }
+            }
+            suffix += logCdf[i];
+        }
+    }
+
+    /**
+     * Right edge of the panel starting at {@code left}: the width {@code h} must satisfy
+     * {@code h <= PANEL_FACTOR / sqrt(K)} at both ends, halved until it does (geometric panels towards a
+     * singular end of the support need one or two halvings). A panel never steps over an arm's centre,
+     * where that arm's curvature peaks: the wide geometric panels of a heavy tail would otherwise jump over
+     * the whole body of the distribution.
+     */
+    private static double nextEdge(List<ExactArm> arms, double[] from, double[] to, boolean[] which,
+                                   double left, double end) {
+        double h = Math.min(end - left, PANEL_FACTOR / Math.sqrt(curvature(arms, from, to, which, left)));
+        for (ExactArm arm : arms) {
+            double center = arm.center();
+            if (center > left && center < left + h) {
+                h = center - left;
+            }
+        }
+        for (int halving = 0; halving < MAX_HALVINGS; halving++) {
+            double limit = PANEL_FACTOR / Math.sqrt(curvature(arms, from, to, which, left + h));
+            if (h <= limit) {
+                break;
+            }
+            h *= 0.5;
+        }
+        double right = left + Math.max(h, 16 * Math.ulp(left));
+        return right >= end || end - right < 1e-3 * h ? end : right;
+    }
+
+    /** Sum of the curvatures of the log factors that vary at {@code x}. */
+    private static double curvature(List<ExactArm> arms, double[] from, double[] to, boolean[] which,
+                                    double x) {
+        double own = 0;
+        double others = 0;
+        for (int j = 0; j < arms.size(); j++) {
+            ExactArm arm = arms.get(j);
+            if (arm.active(x)) {
+                others += arm.cdfCurvature(x);
+                if (which[j] && x >= from[j] && x <= to[j]) {
+                    own = Math.max(own, arm.curvature(x));
+                }
+            }
+        }
+        return own + others;
+    }
+
+    /**
+     * Per-arm log-sum-exp of weighted terms (weights included in the logs, since far in a heavy tail a
+     * tiny integrand on a huge panel still counts), rescaled to a running maximum.
+     */
+    private static final class Accumulator {
+        private final double[] max;
+        private final double[] sum;
+
+        Accumulator(int n) {
+            max = new double[n];
+            sum = new double[n];
+            Arrays.fill(max, Double.NEGATIVE_INFINITY);
+        }
+
+        double max(int i) {
+            return max[i];
+        }
+
+        void add(int i, double logTerm) {
+            if (logTerm <= max[i]) {
+                if (logTerm > max[i] - NEGLIGIBLE) {
+                    sum[i] += StrictMath.exp(logTerm - max[i]);
+                }
+            } else if (logTerm > Double.NEGATIVE_INFINITY) {
+                sum[i] = sum[i] * StrictMath.exp(max[i] - logTerm) + 1;
+                max[i] = logTerm;
+            }
+        }
+
+        double value(int i) {
+            return sum[i] == 0 ? 0 : StrictMath.exp(max[i]) * sum[i];
+        }
+    }
+}
