@@ -6,17 +6,29 @@ import org.apache.commons.rng.UniformRandomProvider;
 import org.apache.commons.rng.simple.RandomSource;
 
 /**
- * Monte Carlo probability that each arm is best: {@code draws} joint posterior draws from a seeded
- * xoshiro256++ stream; alpha_i is the share of draws in which arm i is largest (ties to the lowest index),
- * with the binomial standard error {@code sqrt(alpha_i (1 - alpha_i) / draws)}.
+ * Seeded Monte Carlo estimate of the probability that each arm is best.
+ *
+ * <p>Each of the {@code M} joint draws takes one value from every arm's posterior and credits the arm with
+ * the largest value; {@code alpha_i = count_i / M} with binomial standard error
+ * {@code sqrt(alpha_i (1 - alpha_i) / M)}. Ties (possible only through rounding, or for identical
+ * degenerate draws) go to the lowest arm index, so the result never depends on anything but the draws.
+ *
+ * <p>Reproducibility: the random stream is {@code RandomSource.XO_SHI_RO_256_PP.create(seed)}, shared by the
+ * arms' samplers. Draws are made in blocks of {@value #BLOCK}: within a block, arm 0 fills its values first,
+ * then arm 1, and so on. The result is a pure function of (posteriors, draws, seed) and bit-identical on
+ * repeat; changing the block size or the order would change the bits (not the distribution).
  */
 public final class MonteCarloProbabilityBest implements ProbabilityBestEstimator {
+    /** Joint draws per block; the running maximum of a block stays in the first-level cache. */
+    static final int BLOCK = 1024;
+
     private final int draws;
 
     /**
-     * An estimator using {@code draws} joint draws.
+     * An estimator using {@code draws} joint posterior draws.
      *
-     * @param draws number of joint draws, {@code >= 1}
+     * @param draws number of joint draws M, {@code >= 1}
+     * @throws IllegalArgumentException if {@code draws < 1}
      */
     public MonteCarloProbabilityBest(int draws) {
         if (draws < 1) {
@@ -25,40 +37,83 @@ public final class MonteCarloProbabilityBest implements ProbabilityBestEstimator
         this.draws = draws;
     }
 
-    @Override
-    public ProbabilityBest estimate(List<? extends Posterior> posteriors, long seed) {
-        int k = posteriors.size();
-        if (k < 2) {
-            throw new IllegalArgumentException("at least two posteriors are needed, got " + k);
-        }
-        UniformRandomProvider rng = RandomSource.XO_SHI_RO_256_PP.create(seed);
-        Posterior.Sampler[] samplers = new Posterior.Sampler[k];
-        for (int i = 0; i < k; i++) {
-            samplers[i] = posteriors.get(i).sampler(rng);
-        }
-        long[] wins = new long[k];
-        for (int d = 0; d < draws; d++) {
-            wins[argmaxDraw(samplers)]++;
-        }
-        double[] alpha = new double[k];
-        double[] se = new double[k];
-        for (int i = 0; i < k; i++) {
-            alpha[i] = (double) wins[i] / draws;
-            se[i] = Math.sqrt(alpha[i] * (1 - alpha[i]) / draws);
-        }
-        return new ProbabilityBest(alpha, se, ProbabilityBest.Method.MONTE_CARLO, draws);
+    /** Number of joint draws per estimate. */
+    public int draws() {
+        return draws;
     }
 
-    private static int argmaxDraw(Posterior.Sampler[] samplers) {
-        int best = 0;
-        double max = samplers[0].draw();
-        for (int i = 1; i < samplers.length; i++) {
-            double x = samplers[i].draw();
-            if (x > max) {
-                max = x;
-                best = i;
+    /**
+     * Alpha for each posterior, from {@link #draws()} joint draws seeded by {@code seed}.
+     *
+     * @throws IllegalArgumentException if fewer than two posteriors are given or one is null
+     */
+    @Override
+    public ProbabilityBest estimate(List<? extends Posterior> posteriors, long seed) {
+        Posterior.Sampler[] samplers = samplers(posteriors, RandomSource.XO_SHI_RO_256_PP.create(seed));
+        long[] wins = countWins(samplers);
+        double[] alpha = new double[wins.length];
+        double[] standardError = new double[wins.length];
+        for (int i = 0; i < wins.length; i++) {
+            alpha[i] = (double) wins[i] / draws;
+            standardError[i] = StrictMath.sqrt(alpha[i] * (1.0 - alpha[i]) / draws);
+        }
+        return new ProbabilityBest(alpha, standardError, ProbabilityBest.Method.MONTE_CARLO, draws);
+    }
+
+    private static Posterior.Sampler[] samplers(List<? extends Posterior> posteriors, UniformRandomProvider rng) {
+        if (posteriors == null || posteriors.size() < 2) {
+            throw new IllegalArgumentException("need at least 2 posteriors, got "
+                    + (posteriors == null ? "null" : posteriors.size()));
+        }
+        Posterior.Sampler[] samplers = new Posterior.Sampler[posteriors.size()];
+        for (int i = 0; i < samplers.length; i++) {
+            Posterior posterior = posteriors.get(i);
+            if (posterior == null) {
+                throw new IllegalArgumentException("posterior of arm " + i + " is null");
+            }
+            samplers[i] = posterior.sampler(rng);
+        }
+        return samplers;
+    }
+
+    /** Wins per arm over all draws; the only allocations are the buffers made before the loop. */
+    private long[] countWins(Posterior.Sampler[] samplers) {
+        long[] wins = new long[samplers.length];
+        double[] best = new double[BLOCK];
+        int[] winner = new int[BLOCK];
+        for (int start = 0; start < draws; start += BLOCK) {
+            int n = Math.min(BLOCK, draws - start);
+            fillFirst(samplers[0], best, winner, n);
+            for (int arm = 1; arm < samplers.length; arm++) {
+                challenge(samplers[arm], arm, best, winner, n);
+            }
+            for (int j = 0; j < n; j++) {
+                wins[winner[j]]++;
             }
         }
-        return best;
+        return wins;
+    }
+
+    private static void fillFirst(Posterior.Sampler sampler, double[] best, int[] winner, int n) {
+        for (int j = 0; j < n; j++) {
+            best[j] = sampler.draw();
+            winner[j] = 0;
+        }
+    }
+
+    /** Strictly greater wins, so a tie keeps the earlier (lower-index) arm. */
+    private static void challenge(Posterior.Sampler sampler, int arm, double[] best, int[] winner, int n) {
+        for (int j = 0; j < n; j++) {
+            double v = sampler.draw();
+            if (v > best[j]) {
+                best[j] = v;
+                winner[j] = arm;
+            }
+        }
+    }
+
+    @Override
+    public String toString() {
+        return "MonteCarloProbabilityBest[draws=" + draws + "]";
     }
 }
