@@ -1,0 +1,39 @@
+package dev.runoff.serving;
+
+import java.time.Clock;
+import java.time.Instant;
+import java.time.ZoneId;
+import java.time.ZoneOffset;
+
+/** A clock the test moves by hand. */
+final class MutableClock extends Clock {
+    private volatile long millis;
+
+    MutableClock(long millis) {
+        this.millis = millis;
+    }
+
+    void set(long newMillis) {
+        this.millis = newMillis;
+    }
+
+    @Override
+    public long millis() {
+        return millis;
+    }
+
+    @Override
+    public Instant instant() {
+        return Instant.ofEpochMilli(millis);
+    }
+
+    @Override
+    public ZoneId getZone() {
+        return ZoneOffset.UTC;
+    }
+
+    @Override
+    public Clock withZone(ZoneId zone) {
+        throw new UnsupportedOperationException("a test clock has one zone");
+    }
+}
