@@ -94,14 +94,8 @@ public final class AllocationTable {
     }
 
     private String weighted(CompiledAllocation allocation, String unitKey) {
-        if (uniformSource != null) {
-            return allocation.weighted(uniformSource.getAsDouble());
-        }
-        if (unitKey == null) {
-            counters.missingUnitKeyPicks.increment();
-            return defaultArm;
-        }
-        return allocation.weighted(allocation.positionOf(unitKey));
+        double u = position(allocation, unitKey);
+        return u >= 0 ? allocation.weighted(u) : defaultArm;
     }
 
     private String stale(CompiledAllocation allocation, String unitKey) {
@@ -109,17 +103,23 @@ public final class AllocationTable {
             case LAST_WEIGHTS:
                 return weighted(allocation, unitKey);
             case UNIFORM:
-                if (uniformSource != null) {
-                    return allocation.uniform(uniformSource.getAsDouble());
-                }
-                if (unitKey == null) {
-                    counters.missingUnitKeyPicks.increment();
-                    return defaultArm;
-                }
-                return allocation.uniform(allocation.positionOf(unitKey));
+                double u = position(allocation, unitKey);
+                return u >= 0 ? allocation.uniform(u) : defaultArm;
             default:
                 return defaultArm;
         }
+    }
+
+    /** The uniform draw in [0, 1) of this pick, or -1 (counted) for a hashed pick without unit key. */
+    private double position(CompiledAllocation allocation, String unitKey) {
+        if (uniformSource != null) {
+            return uniformSource.getAsDouble();
+        }
+        if (unitKey == null) {
+            counters.missingUnitKeyPicks.increment();
+            return -1;
+        }
+        return allocation.positionOf(unitKey);
     }
 
     /** True when the table holds a record of {@code experimentId}, stale or not. */

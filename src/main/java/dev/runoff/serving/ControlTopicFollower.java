@@ -53,11 +53,7 @@ public final class ControlTopicFollower implements AutoCloseable {
      * @throws IllegalArgumentException when {@code bootstrapServers} is blank
      */
     public static Builder builder(AllocationTable table, String bootstrapServers) {
-        if (bootstrapServers == null || bootstrapServers.isBlank()) {
-            throw new IllegalArgumentException("bootstrapServers must not be blank, got "
-                    + (bootstrapServers == null ? "null" : "'" + bootstrapServers + "'"));
-        }
-        return new Builder(Objects.requireNonNull(table, "table"), bootstrapServers);
+        return new Builder(Objects.requireNonNull(table, "table"), Args.notBlank("bootstrapServers", bootstrapServers));
     }
 
     /** The table this follower feeds. */
@@ -139,11 +135,7 @@ public final class ControlTopicFollower implements AutoCloseable {
 
         /** Sets the control topic (default {@value ControlTopicFollower#DEFAULT_TOPIC}). */
         public Builder topic(String name) {
-            if (name == null || name.isBlank()) {
-                throw new IllegalArgumentException("topic must not be blank, got "
-                        + (name == null ? "null" : "'" + name + "'"));
-            }
-            this.topic = name;
+            this.topic = Args.notBlank("topic", name);
             return this;
         }
 
@@ -154,9 +146,7 @@ public final class ControlTopicFollower implements AutoCloseable {
          * @throws IllegalArgumentException for {@code group.id} or a blank name
          */
         public Builder consumerProperty(String name, Object value) {
-            if (name == null || name.isBlank()) {
-                throw new IllegalArgumentException("consumer property name must not be blank, got '" + name + "'");
-            }
+            Args.notBlank("consumer property name", name);
             if (ConsumerConfig.GROUP_ID_CONFIG.equals(name)) {
                 throw new IllegalArgumentException("consumer property group.id is not allowed (the follower "
                         + "assigns every partition itself and commits nothing), got '" + value + "'");
@@ -167,19 +157,19 @@ public final class ControlTopicFollower implements AutoCloseable {
 
         /** Sets how long {@link #start()} waits to catch up (default 30 s). */
         public Builder startupTimeout(Duration timeout) {
-            this.startupTimeout = positive("startupTimeout", timeout);
+            this.startupTimeout = Args.positive("startupTimeout", timeout);
             return this;
         }
 
         /** Sets the longest wait of one poll (default 500 ms); also bounds how fast {@link #close()} is. */
         public Builder pollTimeout(Duration timeout) {
-            this.pollTimeout = positive("pollTimeout", timeout);
+            this.pollTimeout = Args.positive("pollTimeout", timeout);
             return this;
         }
 
         /** Sets the pause after a failed poll (default 1 s). */
         public Builder errorBackoff(Duration backoff) {
-            this.errorBackoff = positive("errorBackoff", backoff);
+            this.errorBackoff = Args.positive("errorBackoff", backoff);
             return this;
         }
 
@@ -188,7 +178,7 @@ public final class ControlTopicFollower implements AutoCloseable {
          * consumer's {@code metadata.max.age.ms} unless set as a consumer property.
          */
         public Builder partitionRefresh(Duration interval) {
-            this.partitionRefresh = positive("partitionRefresh", interval);
+            this.partitionRefresh = Args.positive("partitionRefresh", interval);
             return this;
         }
 
@@ -215,13 +205,6 @@ public final class ControlTopicFollower implements AutoCloseable {
             Consumer<String, byte[]> consumer = consumerFactory.apply(Map.copyOf(props));
             FollowLoop loop = new FollowLoop(consumer, topic, table, timings);
             return new ControlTopicFollower(table, topic, loop).startAndAwait(startupTimeout);
-        }
-
-        private static Duration positive(String name, Duration value) {
-            if (value == null || value.isNegative() || value.isZero()) {
-                throw new IllegalArgumentException(name + " must be a positive duration, got " + value);
-            }
-            return value;
         }
     }
 }

@@ -136,11 +136,7 @@ public final class OutcomeReporter {
 
         /** Sets the outcome topic (default {@value OutcomeReporter#DEFAULT_TOPIC}). */
         public Builder topic(String name) {
-            if (name == null || name.isBlank()) {
-                throw new IllegalArgumentException("topic must not be blank, got "
-                        + (name == null ? "null" : "'" + name + "'"));
-            }
-            this.topic = name;
+            this.topic = Args.notBlank("topic", name);
             return this;
         }
 

@@ -35,11 +35,7 @@ public final class PickPolicy {
      * @throws IllegalArgumentException when {@code defaultArm} is null or blank
      */
     public static Builder builder(String defaultArm) {
-        if (defaultArm == null || defaultArm.isBlank()) {
-            throw new IllegalArgumentException("defaultArm must not be blank, got "
-                    + (defaultArm == null ? "null" : "'" + defaultArm + "'"));
-        }
-        return new Builder(defaultArm);
+        return new Builder(Args.notBlank("defaultArm", defaultArm));
     }
 
     /** The arm for unknown experiments, null unit keys and the {@link StaleFallback#DEFAULT_ARM} fallback. */
