@@ -5,10 +5,12 @@ import dev.runoff.records.avro.AllocationUpdate;
 import dev.runoff.records.avro.ArmWeight;
 import dev.runoff.records.avro.ExperimentStatus;
 import dev.runoff.serving.AllocationTable;
+import dev.runoff.serving.CoarseClock;
 import dev.runoff.serving.ControlRecordOutcome;
 import dev.runoff.serving.PickPolicy;
 import dev.runoff.serving.SplitMixUniform;
 import java.time.Clock;
+import java.time.Duration;
 import java.util.List;
 import java.util.concurrent.TimeUnit;
 import org.openjdk.jmh.annotations.Benchmark;
@@ -20,13 +22,14 @@ import org.openjdk.jmh.annotations.OutputTimeUnit;
 import org.openjdk.jmh.annotations.Param;
 import org.openjdk.jmh.annotations.Scope;
 import org.openjdk.jmh.annotations.Setup;
+import org.openjdk.jmh.annotations.TearDown;
 import org.openjdk.jmh.annotations.State;
 import org.openjdk.jmh.annotations.Threads;
 import org.openjdk.jmh.annotations.Warmup;
 
 /**
  * {@link AllocationTable#pick} on the request path: a table of 50 experiments, picks in one of them (4 arms)
- * for 4096 distinct unit keys of 13 chars, on the system clock. Target: median under 100 ns per pick with
+ * for 4096 distinct unit keys of 13 chars, on the system clock or on a {@link CoarseClock}. Target: median under 100 ns per pick with
  * one thread and with 8 threads calling at once. SampleTime gives the median (p0.50; each sample includes
  * the timer's own cost), AverageTime the mean; add {@code -prof gc} to see the allocation per pick.
  *
@@ -46,6 +49,12 @@ public class PickBench {
     @Param({"HASHED", "RANDOM"})
     public String assignment;
 
+    /** Clock of the staleness check: the system clock, or a CoarseClock ticking every 10 ms over it. */
+    @Param({"SYSTEM", "COARSE"})
+    public String clock;
+
+    private CoarseClock coarse;
+
     private AllocationTable table;
     private String[] units;
 
@@ -56,7 +65,12 @@ public class PickBench {
         if ("RANDOM".equals(assignment)) {
             policy.random(SplitMixUniform.seeded(1));
         }
-        table = AllocationTable.create(policy.build(), Clock.systemUTC());
+        Clock time = Clock.systemUTC();
+        if ("COARSE".equals(clock)) {
+            coarse = CoarseClock.start(time, Duration.ofMillis(10));
+            time = coarse;
+        }
+        table = AllocationTable.create(policy.build(), time);
         RecordCodec<AllocationUpdate> codec = RecordCodec.allocationUpdates();
         for (int e = 0; e < 50; e++) {
             String id = "experiment-" + e;
@@ -67,6 +81,14 @@ public class PickBench {
         units = new String[UNITS];
         for (int i = 0; i < UNITS; i++) {
             units[i] = String.format("user-%08d", i * 7919);
+        }
+    }
+
+    /** Stops the coarse clock's thread. */
+    @TearDown
+    public void tearDown() {
+        if (coarse != null) {
+            coarse.close();
         }
     }
 
