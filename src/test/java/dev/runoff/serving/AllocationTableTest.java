@@ -271,6 +271,38 @@ class AllocationTableTest {
     }
 
     @Test
+    void picksAllocateNothing() {
+        AllocationTable table = table(p -> p.staleFallback(StaleFallback.UNIFORM));
+        table.apply("e", avro(running("e", 1, "a", 0.4, "b", 0.3, "c", 0.3)));
+        table.apply("s", avro(stopped("s", 1, "a", "a", 1.0, "b", 0.0)));
+        String[] keys = new String[1024];
+        for (int i = 0; i < keys.length; i++) {
+            keys[i] = "user-" + i;
+            keys[i].hashCode();
+        }
+        long sink = 0;
+        for (int i = 0; i < 20_000; i++) {
+            sink += pickAll(table, keys[i & 1023]);
+        }
+        com.sun.management.ThreadMXBean threads =
+                (com.sun.management.ThreadMXBean) java.lang.management.ManagementFactory.getThreadMXBean();
+        long before = threads.getCurrentThreadAllocatedBytes();
+        for (int i = 0; i < 100_000; i++) {
+            sink += pickAll(table, keys[i & 1023]);
+        }
+        long allocated = threads.getCurrentThreadAllocatedBytes() - before;
+        // one object per pick would be at least 16 bytes x 400,000 picks; allow a few stray bytes of the JVM
+        assertTrue(allocated < 10_000, allocated + " bytes allocated by 400,000 picks (" + sink + ")");
+    }
+
+    private int pickAll(AllocationTable table, String key) {
+        clock.set(NOW);
+        int length = table.pick("e", key).length() + table.pick("s", key).length() + table.pick("x", key).length();
+        clock.set(VALID_UNTIL + 1);
+        return length + table.pick("e", key).length();
+    }
+
+    @Test
     void policyRejectsBlankDefaultArm() {
         IllegalArgumentException e = assertThrows(IllegalArgumentException.class, () -> PickPolicy.builder(" "));
         assertTrue(e.getMessage().contains("defaultArm"), e.getMessage());
