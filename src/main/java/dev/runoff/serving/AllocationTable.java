@@ -68,7 +68,8 @@ public final class AllocationTable {
 
     /**
      * The arm to serve to {@code unitKey} in {@code experimentId} (see the class comment for the rules).
-     * Thread-safe, lock-free, allocation-free; never throws, whatever the arguments.
+     * Thread-safe, lock-free, allocation-free; never throws, whatever the arguments (only an injected clock
+     * or uniform source that throws could make it throw).
      *
      * @param experimentId the experiment; null or unknown gives the default arm
      * @param unitKey      the randomisation unit (user, device, session id); used in-process only, never

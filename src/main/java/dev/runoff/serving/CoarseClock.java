@@ -2,8 +2,6 @@ package dev.runoff.serving;
 
 import java.time.Clock;
 import java.time.Duration;
-import java.time.Instant;
-import java.time.ZoneId;
 import java.util.Objects;
 import java.util.concurrent.locks.LockSupport;
 
@@ -14,9 +12,9 @@ import java.util.concurrent.locks.LockSupport;
  * load, half the pick budget). It lags its source by at most about one tick plus scheduling delay and
  * never runs ahead of it; use it where staleness is judged against validity windows of seconds to minutes.
  *
- * <p>{@link #close()} stops the thread; the clock then keeps answering its last reading.
+ * <p>{@link #close()} stops the thread; the clock then keeps answering its last reading. Its zone is UTC.
  */
-public final class CoarseClock extends Clock implements AutoCloseable {
+public final class CoarseClock extends MillisClock implements AutoCloseable {
     private final Clock source;
     private final long tickNanos;
     private final Thread ticker;
@@ -54,22 +52,6 @@ public final class CoarseClock extends Clock implements AutoCloseable {
     @Override
     public long millis() {
         return millis;
-    }
-
-    @Override
-    public Instant instant() {
-        return Instant.ofEpochMilli(millis);
-    }
-
-    @Override
-    public ZoneId getZone() {
-        return source.getZone();
-    }
-
-    /** Not supported: a coarse clock owns a thread, so it is not copied. */
-    @Override
-    public Clock withZone(ZoneId zone) {
-        throw new UnsupportedOperationException("a CoarseClock keeps the zone of its source");
     }
 
     /** Stops the ticking thread and waits for it. Idempotent. */

@@ -1,12 +1,7 @@
 package dev.runoff.serving;
 
-import java.time.Clock;
-import java.time.Instant;
-import java.time.ZoneId;
-import java.time.ZoneOffset;
-
 /** A clock the test moves by hand. */
-final class MutableClock extends Clock {
+final class MutableClock extends MillisClock {
     private volatile long millis;
 
     MutableClock(long millis) {
@@ -20,20 +15,5 @@ final class MutableClock extends Clock {
     @Override
     public long millis() {
         return millis;
-    }
-
-    @Override
-    public Instant instant() {
-        return Instant.ofEpochMilli(millis);
-    }
-
-    @Override
-    public ZoneId getZone() {
-        return ZoneOffset.UTC;
-    }
-
-    @Override
-    public Clock withZone(ZoneId zone) {
-        throw new UnsupportedOperationException("a test clock has one zone");
     }
 }
