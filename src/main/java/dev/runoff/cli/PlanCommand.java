@@ -30,8 +30,10 @@ import picocli.CommandLine.Spec;
         description = "Predict how much traffic an experiment needs: optimal weights, T* and predicted trials,"
                 + " and a simulation of the allocation and stopping rules against uniform allocation.")
 final class PlanCommand implements Callable<Integer> {
-    /** Default trial budget of a simulated run, as a multiple of the predicted trials T* log(1/delta). */
+    /** Default trial budget of a simulated run, as a multiple of T* max(log(1/delta), 3). */
     static final int BUDGET_FACTOR = 20;
+    /** Smallest log factor of the default budget: log(1/delta) for delta &lt;= 0.05, 3 above. */
+    static final double MIN_LOG_FACTOR = 3;
 
     @Spec
     private CommandSpec spec;
@@ -86,7 +88,8 @@ final class PlanCommand implements Callable<Integer> {
 
     @Option(names = "--max-trials", paramLabel = "N",
             description = "Trial budget of each simulated experiment (default: " + BUDGET_FACTOR
-                    + " x the predicted trials T* log(1/delta)).")
+                    + " x T* x max(log(1/delta), 3), i.e. " + BUDGET_FACTOR + " x the predicted trials for"
+                    + " delta <= 0.05).")
     private Long maxTrials;
 
     @Option(names = "--threads", paramLabel = "N",
@@ -174,11 +177,21 @@ final class PlanCommand implements Callable<Integer> {
         return b.toString();
     }
 
+    /**
+     * The trial budget of a simulated run: {@code --max-trials}, or {@link #BUDGET_FACTOR} x
+     * round(T* max(log(1/delta), {@link #MIN_LOG_FACTOR})), which is {@link #BUDGET_FACTOR} x the predicted
+     * trials round(T* log(1/delta)) for delta up to 0.05. The floor keeps room for the GLR threshold's log t term, which
+     * dominates at large delta.
+     */
     private long budget(PlanFigures plan) {
         if (maxTrials != null) {
             return maxTrials;
         }
-        return plan.optimal() == null ? 0 : Math.max(1, BUDGET_FACTOR * plan.predictedTrials());
+        if (plan.optimal() == null) {
+            throw new IllegalStateException("no prediction to size the budget with");
+        }
+        double logFactor = Math.max(-StrictMath.log(delta), MIN_LOG_FACTOR);
+        return Math.max(1, BUDGET_FACTOR * Math.round(plan.optimal().characteristicTime() * logFactor));
     }
 
     private SimulationResult simulate(SimulationArms arms, PlanFigures plan) {

@@ -169,6 +169,8 @@ final class PlanReport {
             root.putNull("optimalWeights");
             root.putNull("characteristicTime");
             root.putNull("predictedTrials");
+            root.putNull("ruleTarget");
+            root.putNull("uniformTarget");
         } else {
             numbers(root.putArray("optimalWeights"), plan.optimal().weights());
             number(root, "characteristicTime", plan.optimal().characteristicTime());

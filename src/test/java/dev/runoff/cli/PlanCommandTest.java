@@ -73,7 +73,9 @@ class PlanCommandTest {
         assertEquals("top-two-thompson", sim.get("rule").asText());
         assertEquals("glr", sim.get("stopping").asText());
         assertEquals(4, sim.get("replications").asInt());
-        assertEquals(PlanCommand.BUDGET_FACTOR * root.get("predictedTrials").asLong(), sim.get("maxTrials").asLong());
+        // delta 0.1: log(1/delta) = 2.3 is below the floor 3 of the default budget
+        assertEquals(PlanCommand.BUDGET_FACTOR * Math.round(optimal.characteristicTime() * 3),
+                sim.get("maxTrials").asLong());
         JsonNode base = root.get("baseline");
         assertEquals("uniform", base.get("rule").asText());
         for (JsonNode s : List.of(sim, base)) {
@@ -106,7 +108,14 @@ class PlanCommandTest {
         assertEquals(989.8, root.get("characteristicTime").asDouble(), 0.05);
         assertEquals(4558, root.get("predictedTrials").asLong());
         assertFalse(root.has("simulation"), root.toString());
+        assertEquals("beta-optimal", root.get("ruleTarget").get("kind").asText());
         assertFalse(run("plan", "--rates", "0.5,0.45,0.43,0.4", "--simulate", "0").out().contains("Simulation"));
+    }
+
+    @Test
+    void defaultBudgetIsTwentyTimesThePredictedTrialsForSmallDelta() throws Exception {
+        JsonNode root = json(run("plan", "--rates", "0.7,0.4,0.3", "--delta", "0.01", "--simulate", "1", "--json"));
+        assertEquals(20 * root.get("predictedTrials").asLong(), root.get("simulation").get("maxTrials").asLong());
     }
 
     @Test
