@@ -1,0 +1,53 @@
+package dev.runoff.cli;
+
+import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.planning.ArmModel;
+import dev.runoff.engine.planning.OptimalAllocation;
+import dev.runoff.engine.planning.SimulationArms;
+import dev.runoff.engine.planning.TargetAllocation;
+
+/**
+ * The asymptotic planning figures of {@code plan}: the optimal allocation (Garivier &amp; Kaufmann 2016),
+ * the allocation the configured rule tends to, and the uniform one. The top-two rules tend to the
+ * beta-optimal allocation (Russo 2020; Qin, Klabjan &amp; Russo 2017 for top-two expected improvement); the
+ * uniform rule to the uniform one. All three are null when the best arm is not unique (T* is infinite), and
+ * the rule's target is null for beta 0 or 1, where it is not defined.
+ *
+ * @param arms       the assumed true arms
+ * @param delta      the error probability
+ * @param epsilon    the indifference zone for counting errors
+ * @param rule       the allocation rule
+ * @param beta       the leader's share of the top-two rules
+ * @param optimal    the optimal allocation, or null
+ * @param ruleTarget the allocation the rule tends to, or null
+ * @param uniform    the uniform allocation, or null
+ */
+record PlanFigures(SimulationArms arms, double delta, double epsilon, AllocationRule rule, double beta, TargetAllocation optimal,
+                   TargetAllocation ruleTarget, TargetAllocation uniform) {
+
+    static PlanFigures of(SimulationArms arms, double delta, double epsilon, AllocationRule rule, double beta) {
+        if (arms.bestIsTied()) {
+            return new PlanFigures(arms, delta, epsilon, rule, beta, null, null, null);
+        }
+        ArmModel model = arms.model();
+        TargetAllocation uniform = OptimalAllocation.uniform(model);
+        TargetAllocation target = rule == AllocationRule.UNIFORM ? uniform
+                : beta > 0 && beta < 1 ? OptimalAllocation.betaOptimal(model, beta) : null;
+        return new PlanFigures(arms, delta, epsilon, rule, beta, OptimalAllocation.optimal(model), target, uniform);
+    }
+
+    /** Predicted trials of the optimal allocation, {@code T* log(1/delta)} rounded to the nearest whole trial. */
+    long predictedTrials() {
+        return predicted(optimal);
+    }
+
+    /** {@code T_w log(1/delta)} of an allocation, rounded to the nearest whole trial. */
+    long predicted(TargetAllocation allocation) {
+        return Math.round(allocation.predictedTrials(delta));
+    }
+
+    /** {@code T_rule / T_uniform}, or NaN when the rule's target is not defined. */
+    double asymptoticRatio() {
+        return ruleTarget == null ? Double.NaN : ruleTarget.characteristicTime() / uniform.characteristicTime();
+    }
+}

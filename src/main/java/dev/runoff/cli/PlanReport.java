@@ -1,0 +1,254 @@
+package dev.runoff.cli;
+
+import com.fasterxml.jackson.core.JsonProcessingException;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.node.ArrayNode;
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import dev.runoff.engine.Metric;
+import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.planning.SimulationArms;
+import dev.runoff.engine.planning.SimulationConfig;
+import dev.runoff.engine.planning.SimulationResult;
+import dev.runoff.engine.planning.SimulationSummary;
+import dev.runoff.engine.planning.TargetAllocation;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.Locale;
+import java.util.function.Function;
+
+/**
+ * The output of {@code plan}: a planning table and, with a simulation, a table per rule; or one JSON object.
+ * Arrays and rows are in the order of the arms given. Non-finite numbers are written as null in JSON.
+ */
+final class PlanReport {
+    private static final ObjectMapper MAPPER = new ObjectMapper();
+    private static final String NL = System.lineSeparator();
+
+    private final PlanFigures plan;
+    private final SimulationResult simulation;
+
+    /**
+     * A report of the planning figures and, unless {@code simulation} is null, the simulation.
+     */
+    PlanReport(PlanFigures plan, SimulationResult simulation) {
+        this.plan = plan;
+        this.simulation = simulation;
+    }
+
+    /** The tables. */
+    String text() {
+        SimulationArms arms = plan.arms();
+        StringBuilder out = new StringBuilder();
+        out.append(String.format(Locale.ROOT, "Plan for %d %s arms, delta %s, epsilon %s%n%n", arms.size(),
+                arms.metric() == Metric.BERNOULLI ? "Bernoulli" : "value", Posteriors.number(plan.delta()),
+                Posteriors.number(plan.epsilon())));
+        out.append(plan.optimal() == null ? noPlanning() : planning());
+        if (simulation != null) {
+            out.append(NL).append(simulationText());
+        }
+        return out.toString();
+    }
+
+    private String noPlanning() {
+        return "Planning: the best arm is not unique, so the optimal allocation is undefined and T* is infinite;"
+                + NL + "the GLR rule cannot separate tied arms: expect runs to end on the budget." + NL;
+    }
+
+    private String planning() {
+        List<TargetAllocation> targets = targets();
+        Columns table = new Columns();
+        List<String> header = new ArrayList<>(List.of("arm", meanLabel(), "optimal"));
+        if (targets.size() == 3) {
+            header.add("beta-optimal");
+        }
+        header.add("uniform");
+        table.row(header.toArray(String[]::new));
+        for (int a = 0; a < plan.arms().size(); a++) {
+            int arm = a;
+            List<String> row = new ArrayList<>(List.of(SimulationArms.name(a), Posteriors.number(plan.arms().mean(a))));
+            targets.forEach(t -> row.add(fixed(t.weight(arm), 4)));
+            table.row(row.toArray(String[]::new));
+        }
+        table.row(figures("T_w", targets, t -> fixed(t.characteristicTime(), 1)));
+        table.row(figures("T_w log(1/delta)", targets, t -> Long.toString(plan.predicted(t))));
+        StringBuilder out = new StringBuilder("Planning (asymptotic)").append(NL).append(table.render());
+        out.append("optimal: the split w* of Garivier & Kaufmann (2016)");
+        if (targets.size() == 3) {
+            out.append("; beta-optimal: the long-run split of ").append(plan.rule().cliName()).append(" with beta ")
+                    .append(Posteriors.number(plan.beta())).append(" (Russo 2020)");
+        }
+        out.append(NL).append("T_w: trials per unit of log(1/delta) when sampling with the split w").append(NL);
+        out.append(String.format(Locale.ROOT, "T* = %s; predicted trials T* log(1/delta) = %d%n",
+                fixed(plan.optimal().characteristicTime(), 1), plan.predictedTrials()));
+        return out.toString();
+    }
+
+    /** Optimal, then the rule's target when it differs from uniform and is defined, then uniform. */
+    private List<TargetAllocation> targets() {
+        List<TargetAllocation> targets = new ArrayList<>(List.of(plan.optimal()));
+        if (plan.rule() != AllocationRule.UNIFORM && plan.ruleTarget() != null) {
+            targets.add(plan.ruleTarget());
+        }
+        targets.add(plan.uniform());
+        return targets;
+    }
+
+    private static String[] figures(String label, List<TargetAllocation> targets,
+                                    Function<TargetAllocation, String> cell) {
+        List<String> row = new ArrayList<>(List.of(label, ""));
+        targets.forEach(t -> row.add(cell.apply(t)));
+        return row.toArray(String[]::new);
+    }
+
+    private String simulationText() {
+        SimulationConfig c = simulation.config();
+        List<SimulationSummary> columns = summaries();
+        StringBuilder out = new StringBuilder(String.format(Locale.ROOT,
+                "Simulation: %d runs per rule, batch %d, %s stopping, budget %d trials per run, seed %d%n",
+                c.replications(), c.batch(), Spelling.of(c.stopping().rule()), c.maxTrials(), c.seed()));
+        Columns table = new Columns();
+        table.row(row("", columns, s -> s.rule().cliName()));
+        table.row(row("mean trials", columns, s -> fixed(s.meanTrials(), 1)));
+        table.row(row("median trials", columns, s -> fixed(s.medianTrials(), 1)));
+        table.row(row("90th percentile trials", columns, s -> Long.toString(s.p90Trials())));
+        table.row(row("wrong picks", columns, s -> s.errors() + "/" + s.replications()));
+        table.row(row("error rate", columns, s -> fixed(s.errorRate(), 4)));
+        table.row(row("95% interval (Clopper-Pearson)", columns, s -> "[" + fixed(s.errorInterval().lower(), 4)
+                + ", " + fixed(s.errorInterval().upper(), 4) + "]"));
+        table.row(row("budget stops", columns, s -> Integer.toString(s.budgetStops())));
+        for (int a = 0; a < plan.arms().size(); a++) {
+            int arm = a;
+            table.row(row("traffic share " + SimulationArms.name(a), columns, s -> fixed(s.armShares()[arm], 4)));
+        }
+        out.append(table.render());
+        if (columns.size() == 2) {
+            out.append(String.format(Locale.ROOT, "mean trials %s / uniform: %s (asymptotic T_rule / T_uniform: %s)%n",
+                    plan.rule().cliName(), fixed(simulation.trialRatio(), 3), fixed(plan.asymptoticRatio(), 3)));
+        }
+        return out.toString();
+    }
+
+    /** The rule's summary, then the baseline's unless the rule is uniform. */
+    private List<SimulationSummary> summaries() {
+        return plan.rule() == AllocationRule.UNIFORM ? List.of(simulation.rule())
+                : List.of(simulation.rule(), simulation.baseline());
+    }
+
+    private static String[] row(String label, List<SimulationSummary> columns,
+                                Function<SimulationSummary, String> cell) {
+        List<String> row = new ArrayList<>(List.of(label));
+        columns.forEach(s -> row.add(cell.apply(s)));
+        return row.toArray(String[]::new);
+    }
+
+    private String meanLabel() {
+        return plan.arms().metric() == Metric.BERNOULLI ? "rate" : "mean";
+    }
+
+    private static String fixed(double x, int decimals) {
+        return Double.isFinite(x) ? String.format(Locale.ROOT, "%." + decimals + "f", x) : "n/a";
+    }
+
+    /** One JSON object. */
+    String json() {
+        ObjectNode root = MAPPER.createObjectNode();
+        SimulationArms arms = plan.arms();
+        root.put("metric", Spelling.of(arms.metric()));
+        ArrayNode names = root.putArray("arms");
+        arms.names().forEach(names::add);
+        numbers(root.putArray("means"), arms.means());
+        if (arms.metric() == Metric.VALUE) {
+            ArrayNode sd = root.putArray("stddevs");
+            for (int a = 0; a < arms.size(); a++) {
+                number(sd, arms.stddev(a));
+            }
+        }
+        number(root, "delta", plan.delta());
+        number(root, "epsilon", plan.epsilon());
+        if (plan.optimal() == null) {
+            root.putNull("optimalWeights");
+            root.putNull("characteristicTime");
+            root.putNull("predictedTrials");
+            root.putNull("ruleTarget");
+            root.putNull("uniformTarget");
+        } else {
+            numbers(root.putArray("optimalWeights"), plan.optimal().weights());
+            number(root, "characteristicTime", plan.optimal().characteristicTime());
+            root.put("predictedTrials", plan.predictedTrials());
+            target(root, "ruleTarget", plan.ruleTarget());
+            target(root, "uniformTarget", plan.uniform());
+        }
+        if (simulation != null) {
+            root.set("simulation", summary(simulation.rule(), true));
+            root.set("baseline", summary(simulation.baseline(), false));
+            number(root, "trialRatio", simulation.trialRatio());
+            number(root, "asymptoticRatio", plan.asymptoticRatio());
+        }
+        try {
+            return MAPPER.writeValueAsString(root);
+        } catch (JsonProcessingException e) {
+            throw new IllegalStateException("cannot write the JSON report", e);
+        }
+    }
+
+    private void target(ObjectNode root, String field, TargetAllocation t) {
+        if (t == null) {
+            root.putNull(field);
+            return;
+        }
+        ObjectNode n = root.putObject(field);
+        n.put("kind", Spelling.of(t.kind()));
+        numbers(n.putArray("weights"), t.weights());
+        number(n, "characteristicTime", t.characteristicTime());
+        n.put("predictedTrials", plan.predicted(t));
+    }
+
+    private ObjectNode summary(SimulationSummary s, boolean configured) {
+        SimulationConfig c = simulation.config();
+        ObjectNode n = MAPPER.createObjectNode();
+        n.put("rule", s.rule().cliName());
+        if (configured && s.rule() != AllocationRule.UNIFORM) {
+            number(n, "beta", c.engine().beta());
+        }
+        n.put("stopping", Spelling.of(c.stopping().rule()));
+        n.put("replications", s.replications());
+        n.put("batch", c.batch());
+        n.put("seed", c.seed());
+        n.put("maxTrials", c.maxTrials());
+        number(n, "meanTrials", s.meanTrials());
+        number(n, "medianTrials", s.medianTrials());
+        n.put("p90Trials", s.p90Trials());
+        n.put("errors", s.errors());
+        number(n, "errorRate", s.errorRate());
+        ObjectNode interval = n.putObject("errorInterval");
+        interval.put("method", "clopper-pearson");
+        number(interval, "level", s.errorInterval().level());
+        number(interval, "lower", s.errorInterval().lower());
+        number(interval, "upper", s.errorInterval().upper());
+        n.put("budgetStops", s.budgetStops());
+        numbers(n.putArray("armShares"), s.armShares());
+        return n;
+    }
+
+    private static void numbers(ArrayNode array, double[] values) {
+        for (double v : values) {
+            number(array, v);
+        }
+    }
+
+    private static void number(ArrayNode array, double value) {
+        if (Double.isFinite(value)) {
+            array.add(value);
+        } else {
+            array.addNull();
+        }
+    }
+
+    private static void number(ObjectNode node, String field, double value) {
+        if (Double.isFinite(value)) {
+            node.put(field, value);
+        } else {
+            node.putNull(field);
+        }
+    }
+}
