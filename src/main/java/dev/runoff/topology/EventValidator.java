@@ -16,6 +16,8 @@ import org.apache.kafka.streams.processor.api.Record;
  */
 final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], Routed<UnitEvent>> {
 
+    private static final int MAX_QUOTED = 64;
+
     private final RecordCodec<OutcomeEvent> codec = RecordCodec.outcomeEvents();
     private final String definitionsStore;
     private final Rejections rejections;
@@ -81,9 +83,16 @@ final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], R
         context().forward(rejections.routed(record.key(), record.value(), record.timestamp(), reason, message, source));
     }
 
-    /** {@code text} in single quotes, cut to 64 chars, for messages. */
+    /**
+     * {@code text} in single quotes for a message: cut to 64 chars, control characters escaped, so that a
+     * hostile key cannot flood or forge a header or a log line.
+     */
     static String quote(String text) {
-        String cut = text.length() > 64 ? text.substring(0, 64) + "..." : text;
-        return "'" + cut + "'";
+        StringBuilder out = new StringBuilder("'");
+        for (int i = 0; i < Math.min(text.length(), MAX_QUOTED); i++) {
+            char c = text.charAt(i);
+            out.append(Character.isISOControl(c) ? String.format("\\u%04x", (int) c) : String.valueOf(c));
+        }
+        return out.append(text.length() > MAX_QUOTED ? "...'" : "'").toString();
     }
 }
