@@ -115,7 +115,7 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
             if (def.getControlArm() == null) {
                 problems.add("controlShare", Reason.INCONSISTENT, "needs a controlArm");
             }
-            if (controlShare < floor) {
+            if (controlShare < floor && floor * arms <= 1 + SHARE_SLACK) {
                 problems.add("controlShare", Reason.INCONSISTENT, controlShare + " is below the floor " + floor
                         + " (the control arm gets exactly its share)");
             }

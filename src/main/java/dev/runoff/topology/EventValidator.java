@@ -1,6 +1,7 @@
 package dev.runoff.topology;
 
 import dev.runoff.records.Decoded;
+import dev.runoff.records.Reason;
 import dev.runoff.records.RecordCodec;
 import dev.runoff.records.avro.OutcomeEvent;
 import org.apache.kafka.common.header.internals.RecordHeaders;
@@ -39,14 +40,14 @@ final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], R
         Source source = Source.of(context().recordMetadata());
         Decoded<OutcomeEvent> decoded = codec.decode(record.value(), Math.max(0L, context().currentSystemTimeMs()));
         if (!decoded.isValid()) {
-            reject(record, RejectReason.of(decoded.reason()), Rejections.describe(decoded.problems()), source);
+            reject(record, RejectReason.codeOf(decoded.reason()), Rejections.describe(decoded.problems()), source);
             return;
         }
         OutcomeEvent event = decoded.orThrow();
         DefinitionLookup.Lookup lookup = definitions.find(event.getExperimentId());
         if (lookup.status() != DefinitionLookup.Status.FOUND) {
             boolean ended = lookup.status() == DefinitionLookup.Status.ENDED;
-            reject(record, ended ? RejectReason.EXPERIMENT_ENDED : RejectReason.UNKNOWN_EXPERIMENT,
+            reject(record, ended ? RejectReason.EXPERIMENT_ENDED.code() : RejectReason.UNKNOWN_EXPERIMENT.code(),
                     "experimentId: experiment " + quote(event.getExperimentId())
                             + (ended ? " has ended (its definition was deleted)" : " has no accepted definition"),
                     source);
@@ -59,16 +60,17 @@ final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], R
         UnitEvent.Role role = view.role(event.getType());
         String arm = event.getArm();
         if (role == null) {
-            reject(record, RejectReason.EVENT_NOT_USED, "type: " + event.getType() + " is not used by the metric of "
-                    + "experiment " + quote(view.experimentId()) + " (" + view.describeEvents() + ")", source);
+            reject(record, RejectReason.EVENT_NOT_USED.code(), "type: " + event.getType()
+                    + " is not used by the metric of experiment " + quote(view.experimentId()) + " ("
+                    + view.describeEvents() + ")", source);
         } else if (arm != null && !view.arms().contains(arm)) {
-            reject(record, RejectReason.UNKNOWN_ARM, "arm: " + quote(arm) + " is not an arm of experiment "
+            reject(record, RejectReason.UNKNOWN_ARM.code(), "arm: " + quote(arm) + " is not an arm of experiment "
                     + quote(view.experimentId()) + " (version " + view.version() + ")", source);
         } else if (role == UnitEvent.Role.TRIAL && arm == null) {
-            reject(record, RejectReason.MISSING_ARM, "arm: missing (the trial event " + event.getType()
+            reject(record, RejectReason.MISSING_ARM.code(), "arm: missing (the trial event " + event.getType()
                     + " must name its arm)", source);
         } else if (role == UnitEvent.Role.VALUE && event.getValue() == null) {
-            reject(record, RejectReason.MISSING_VALUE, "value: missing (the value event " + event.getType()
+            reject(record, RejectReason.MISSING_VALUE.code(), "value: missing (the value event " + event.getType()
                     + " of experiment " + quote(view.experimentId()) + " must carry a value)", source);
         } else {
             UnitEvent valid = new UnitEvent(event.getExperimentId(), event.getUnitId(), event.getEventId(), role,
@@ -79,7 +81,7 @@ final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], R
         }
     }
 
-    private void reject(Record<byte[], byte[]> record, RejectReason reason, String message, Source source) {
+    private void reject(Record<byte[], byte[]> record, String reason, String message, Source source) {
         context().forward(rejections.routed(record.key(), record.value(), record.timestamp(), reason, message, source));
     }
 

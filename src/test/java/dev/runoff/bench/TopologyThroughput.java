@@ -207,7 +207,8 @@ public final class TopologyThroughput {
                 ? List.of(settings.outcomesTopic(), application + "-events-by-unit-repartition")
                 : List.of(settings.outcomesTopic());
         try (KafkaStreams streams = new KafkaStreams(topology, props);
-             Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers()))) {
+             Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG,
+                     broker.bootstrapServers()))) {
             CountDownLatch running = new CountDownLatch(1);
             streams.setStateListener((now, before) -> {
                 if (now == KafkaStreams.State.RUNNING) {
@@ -227,8 +228,8 @@ public final class TopologyThroughput {
             awaitNoLag(admin, application, perEvent);
             double seconds = (System.nanoTime() - began) / 1e9;
             double rate = events / seconds;
-            System.out.printf(Locale.ROOT, "%s: %d events in %.2f s = %.0f events/s, rejected %s%n", name, events, seconds,
-                    rate, counters.snapshot());
+            System.out.printf(Locale.ROOT, "%s: %d events in %.2f s = %.0f events/s, rejected %s%n", name, events,
+                    seconds, rate, counters.snapshot());
             return rate;
         }
     }
