@@ -26,10 +26,12 @@ import java.util.List;
  * randomness besides the seed derived by {@link Seeds#of} from the experiment id and the decision's sequence.
  *
  * <p>Inputs of the engine: the arms in definition order, {@link DefinitionConfigs#engine}, the seed, and the
- * previous weights (the weights of the previous decision record when it had the same arms, else none).
- * Inputs of the stopping rule: the same arms, the engine's probability of being best, {@link Timing} from
- * the time the first statistics were folded (this evaluation's time when none were) to now,
- * {@link DefinitionConfigs#stopping}, and {@link LeaderWithin} for the indifference rule.
+ * previous weights: the weights of the previous decision record when it had the same arms in the same order
+ * and the same metric kind, else none.
+ * Inputs of the stopping rule: the same arms, the engine's probability of being best (see {@link #bounded}),
+ * {@link Timing} from the time the first statistics were folded (this evaluation's time when none were) to
+ * now, {@link DefinitionConfigs#stopping}, and {@link LeaderWithin} for the indifference rule. The decision
+ * record holds everything but that start time, so a verifier cannot re-check a minimum-duration guard.
  *
  * <p>On STOP the published weights follow {@link AfterStop} and the record lists the {@code AFTER_STOP}
  * guard; the experiment then keeps its winner: {@link #heartbeat} re-publishes the stopped state without
@@ -70,13 +72,8 @@ public final class Evaluator {
         long seed = Seeds.of(state.experimentId(), sequence);
         List<Arm> arms = state.arms();
         Evaluation evaluation = engine.evaluate(arms, DefinitionConfigs.engine(def, draws), seed, state.lastWeights());
-        List<Posterior> posteriors = evaluation.posteriors().stream().map(Evaluation.PosteriorSummary::posterior)
-                .toList();
-        long start = state.startedAt() < 0 ? now : Math.min(state.startedAt(), now);
         ProbabilityBest best = bounded(evaluation.probabilityBest());
-        Decision decision = StoppingRule.decide(arms, best,
-                new Timing(Instant.ofEpochMilli(start), Instant.ofEpochMilli(now)), DefinitionConfigs.stopping(def),
-                LeaderWithin.of(posteriors));
+        Decision decision = decide(state, arms, evaluation, best, now);
         double[] weights = evaluation.weights();
         ExperimentState.Stop stop = null;
         List<Guard> guards = guards(evaluation);
@@ -92,6 +89,15 @@ public final class Evaluator {
                 ? Records.update(next, def.getVersion(), def.getArms(), weights, now, ExperimentStatus.RUNNING, null)
                 : heartbeatUpdate(next, now);
         return new Result(record, update, next);
+    }
+
+    private static Decision decide(ExperimentState state, List<Arm> arms, Evaluation evaluation,
+                                   ProbabilityBest best, long now) {
+        List<Posterior> posteriors = evaluation.posteriors().stream().map(Evaluation.PosteriorSummary::posterior)
+                .toList();
+        long start = state.startedAt() < 0 ? now : Math.min(state.startedAt(), now);
+        return StoppingRule.decide(arms, best, new Timing(Instant.ofEpochMilli(start), Instant.ofEpochMilli(now)),
+                DefinitionConfigs.stopping(state.definition()), LeaderWithin.of(posteriors));
     }
 
     /**
