@@ -15,6 +15,7 @@ import picocli.CommandLine.Spec;
         description = "Adaptive best-arm experiments: posteriors, top-two allocation, stopping and audit.",
         subcommands = {
             EvaluateCommand.class,
+            AuditCommand.class,
         })
 public final class Main implements Runnable {
 
