@@ -18,6 +18,7 @@ import java.util.Objects;
 public final class Verifier {
 
     private final SampleRatio sampleRatio;
+    private final Recomputation recomputation = new Recomputation();
 
     /** A verifier whose sample-ratio test runs at significance level {@code alpha}. */
     public Verifier(double alpha) {
@@ -41,6 +42,8 @@ public final class Verifier {
         List<Finding> findings = new ArrayList<>(recordProblems(entries));
         findings.addAll(ChainCheck.check(entries));
         findings.addAll(SequenceCheck.check(entries));
+        Recomputation.Result recomputed = recomputation.check(entries);
+        findings.addAll(recomputed.findings());
         List<SampleRatio.Period> periods = new ArrayList<>();
         for (int i = 1; i < entries.size(); i++) {
             SampleRatio.Period period = period(entries.get(i - 1), entries.get(i));
@@ -53,7 +56,8 @@ public final class Verifier {
             }
         }
         findings.sort(Finding.ORDER);
-        return new ExperimentAudit(experimentId, entries.size(), 0, findings, periods, List.of());
+        return new ExperimentAudit(experimentId, entries.size(), recomputed.reproduced(), findings, periods,
+                recomputed.notes());
     }
 
     /** The codec's problems; one about the hash is a chain failure, any other a record failure. */
