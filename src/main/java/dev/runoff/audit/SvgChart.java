@@ -72,10 +72,10 @@ public final class SvgChart {
             line(LEFT, y, PLOT_RIGHT, y, "#d9d9d9", "", 1);
             text(LEFT - 8, y + 4, "end", 12, "normal", String.format(Locale.ROOT, "%.1f", v));
         }
-        for (int t = 0; t <= TICKS; t++) {
-            double x = LEFT + (PLOT_RIGHT - LEFT) * (double) t / TICKS;
+        for (double tick : scale.ticks()) {
+            double x = scale.xOfUnits(tick);
             line(x, bottom, x, bottom + 5, "#000000", "", 1);
-            text(x, bottom + 20, "middle", 12, "normal", scale.label((double) t / TICKS));
+            text(x, bottom + 20, "middle", 12, "normal", scale.label(tick));
         }
         out.append(String.format(Locale.ROOT, "<rect x=\"%d\" y=\"%d\" width=\"%d\" height=\"%d\" fill=\"none\""
                 + " stroke=\"#000000\"/>%n", LEFT, top, PLOT_RIGHT - LEFT, PANEL_HEIGHT));
@@ -210,7 +210,7 @@ public final class SvgChart {
         return escaped.toString();
     }
 
-    /** Maps stream time to the x axis, in a unit chosen from the time span. */
+    /** Maps stream time to the x axis, in a unit chosen from the time span, with round tick steps. */
     private static final class TimeScale {
         private static final long SECOND = 1_000;
         private static final long MINUTE = 60 * SECOND;
@@ -221,12 +221,14 @@ public final class SvgChart {
         final long span;
         final String unit;
         final long unitMillis;
+        final double step;
 
         private TimeScale(long start, long span, String unit, long unitMillis) {
             this.start = start;
             this.span = span;
             this.unit = unit;
             this.unitMillis = unitMillis;
+            this.step = roundStep((double) span / unitMillis / TICKS);
         }
 
         static TimeScale of(Timeline timeline) {
@@ -242,14 +244,34 @@ public final class SvgChart {
             return span < 2 * DAY ? new TimeScale(start, span, "hours", HOUR) : new TimeScale(start, span, "days", DAY);
         }
 
+        /** 1, 2 or 5 times a power of ten, the smallest at least {@code raw}. */
+        private static double roundStep(double raw) {
+            double magnitude = Math.pow(10, Math.floor(Math.log10(raw)));
+            double fraction = raw / magnitude;
+            return (fraction <= 1 ? 1 : fraction <= 2 ? 2 : fraction <= 5 ? 5 : 10) * magnitude;
+        }
+
         double x(long time) {
             return LEFT + (PLOT_RIGHT - LEFT) * (double) (time - start) / span;
         }
 
-        String label(double fraction) {
-            double value = fraction * span / unitMillis;
-            return value >= 100 || value == Math.rint(value) ? String.format(Locale.ROOT, "%.0f", value)
-                    : String.format(Locale.ROOT, "%.1f", value);
+        double xOfUnits(double units) {
+            return LEFT + (PLOT_RIGHT - LEFT) * units * unitMillis / span;
+        }
+
+        /** Tick values in the axis unit: multiples of the step up to the span. */
+        List<Double> ticks() {
+            double units = (double) span / unitMillis;
+            List<Double> ticks = new ArrayList<>();
+            for (int i = 0; i * step <= units * (1 + 1e-9); i++) {
+                ticks.add(i * step);
+            }
+            return ticks;
+        }
+
+        String label(double value) {
+            int decimals = step >= 1 ? 0 : (int) Math.ceil(-Math.log10(step) - 1e-9);
+            return String.format(Locale.ROOT, "%." + decimals + "f", value);
         }
     }
 }
