@@ -1,24 +1,14 @@
 package dev.runoff.audit;
 
-import dev.runoff.records.CanonicalJson;
 import dev.runoff.records.HashChain;
 import dev.runoff.records.avro.AllocationRule;
-import dev.runoff.records.avro.AllocationSpec;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.BetaParams;
 import dev.runoff.records.avro.Decision;
 import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.EstimationMethod;
-import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.ExperimentDefinition;
-import dev.runoff.records.avro.MetricKind;
-import dev.runoff.records.avro.MetricSpec;
 import dev.runoff.records.avro.StoppingRule;
-import dev.runoff.records.avro.StoppingSpec;
-import java.io.IOException;
-import java.nio.charset.StandardCharsets;
-import java.nio.file.Files;
-import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.List;
 import org.apache.commons.rng.UniformRandomProvider;
@@ -39,16 +29,9 @@ final class Chains {
     private Chains() {
     }
 
+    /** The definition of {@link SimulatedJob#definition} without a minimum duration. */
     static ExperimentDefinition definition(String id, List<String> arms) {
-        return ExperimentDefinition.newBuilder()
-                .setExperimentId(id)
-                .setVersion(1)
-                .setArms(arms)
-                .setMetric(MetricSpec.newBuilder().setKind(MetricKind.BERNOULLI).setTrialEvent(EventType.EXPOSURE)
-                        .setSuccessEvent(EventType.CLICK).build())
-                .setAllocation(AllocationSpec.newBuilder().build())
-                .setStopping(StoppingSpec.newBuilder().build())
-                .build();
+        return SimulatedJob.definition(id, arms, 0);
     }
 
     /**
@@ -89,13 +72,6 @@ final class Chains {
             entries.add(Entry.valid(Position.line(i + 1), null, records.get(i)));
         }
         return entries;
-    }
-
-    /** Writes one canonical JSON record per line, as an export does. */
-    static Path export(List<DecisionRecord> records, Path file) throws IOException {
-        List<String> lines = records.stream().map(CanonicalJson::of).toList();
-        Files.write(file, lines, StandardCharsets.UTF_8);
-        return file;
     }
 
     private static void draw(UniformRandomProvider rng, double[] served, int n, long[] trials, long[] successes) {

@@ -89,7 +89,8 @@ final class SimulatedJob {
         return counts;
     }
 
-    private static int pick(double u, double[] weights) {
+    /** The arm that uniform draw {@code u} selects from {@code weights} (never an arm of weight 0). */
+    static int pick(double u, double[] weights) {
         double sum = 0;
         for (int i = 0; i < weights.length; i++) {
             sum += weights[i];

@@ -4,6 +4,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.engine.AllocationEngine;
+import dev.runoff.records.CanonicalJson;
 import dev.runoff.records.HashChain;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.Decision;
@@ -11,6 +12,7 @@ import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.MetricKind;
 import dev.runoff.topology.Evaluator;
 import dev.runoff.topology.ExperimentState;
+import java.nio.charset.StandardCharsets;
 import java.util.ArrayList;
 import java.util.Collections;
 import java.util.List;
@@ -47,16 +49,10 @@ class VerifierTest {
 
     @Test
     void alteredFieldFailsTheHashOfThatRecord() {
-        List<DecisionRecord> records = new ArrayList<>(chain);
-        DecisionRecord altered = DecisionRecord.newBuilder(records.get(3)).setAllocationBeta(0.6).build();
-        records.set(3, altered);
-        List<Entry> entries = Chains.entries(records.subList(0, 3));
-        entries = new ArrayList<>(entries);
-        entries.add(new EntryDecoder(Chains.T0).decode(dev.runoff.records.CanonicalJson.of(altered)
-                .getBytes(java.nio.charset.StandardCharsets.UTF_8), null, Position.line(4)));
-        entries.addAll(Chains.entries(records).subList(4, records.size()).stream()
-                .map(e -> new Entry(Position.line(e.position().offset()), e.experimentId(), e.sequence(), e.hash(),
-                        e.previousHash(), e.record(), e.problems())).toList());
+        DecisionRecord altered = DecisionRecord.newBuilder(chain.get(3)).setAllocationBeta(0.6).build();
+        List<Entry> entries = new ArrayList<>(Chains.entries(chain));
+        entries.set(3, new EntryDecoder(Chains.T0).decode(CanonicalJson.of(altered).getBytes(StandardCharsets.UTF_8),
+                null, Position.line(4)));
         ExperimentAudit audit = new Verifier(0.001).verifyExperiment("checkout", entries);
         Finding first = audit.firstFailure().orElseThrow();
         assertEquals(4L, first.sequence());
