@@ -46,7 +46,7 @@ class BadInputCorpusTest {
 
     private static final String ID = "corpus";
     private static final String EVENT = new String(Events.click(ID, "u-1", "ev-1", "a", T0), StandardCharsets.UTF_8);
-    private static final String DEFINITION = CanonicalJson.of(Definitions.bernoulli("other", "x", "y"));
+    private static final String DEFINITION = CanonicalJson.of(Defs.bernoulli("other", "x", "y"));
 
     private TopologyFixture job;
     private int goodEvents;
@@ -54,7 +54,7 @@ class BadInputCorpusTest {
     @BeforeAll
     void start() {
         job = new TopologyFixture();
-        job.define(Definitions.bernoulli(ID, "a", "b"));
+        job.define(Defs.bernoulli(ID, "a", "b"));
         job.accepted();
     }
 
@@ -113,7 +113,7 @@ class BadInputCorpusTest {
                         "stopping.deadline"),
                 definition("key differs from experimentId", "corpus", utf8(DEFINITION), "key-mismatch", "key"),
                 definition("definition redefining the running experiment with a NaN delta", ID,
-                        utf8(CanonicalJson.of(Definitions.bernoulli(ID, "a", "b")).replace("\"delta\":0.05",
+                        utf8(CanonicalJson.of(Defs.bernoulli(ID, "a", "b")).replace("\"delta\":0.05",
                                 "\"delta\":NaN")), "not-finite", "stopping.delta"),
                 definition("tombstone without a key", null, null, "missing", "key"));
     }
@@ -147,7 +147,7 @@ class BadInputCorpusTest {
     @Test
     @Order(2)
     void countsHoldExactlyTheValidEventsAndTheDefinitionIsUnchanged() {
-        job.advance(Definitions.RECOMPUTE_MS + 100);
+        job.advance(Defs.RECOMPUTE_MS + 100);
         ExperimentState state = job.state(ID);
         assertEquals(1, state.definition().getVersion());
         assertEquals(List.of(new BernoulliStats(goodEvents, 0), BernoulliStats.EMPTY), state.stats());

@@ -35,7 +35,7 @@ class TopologyDriverTest {
 
     @Test
     void newExperimentGetsUniformWarmUpWeightsAtTheNextAllocationPass() {
-        job.define(Definitions.bernoulli("layout", "a", "b", "c"));
+        job.define(Defs.bernoulli("layout", "a", "b", "c"));
         assertEquals(1, job.accepted().get(0).getVersion());
         job.advance(150);
         List<AllocationUpdate> updates = job.allocations();
@@ -54,12 +54,12 @@ class TopologyDriverTest {
 
     @Test
     void sequencesIncreaseByOneAndTheHashChainHolds() {
-        job.define(Definitions.bernoulli("layout", "a", "b", "c"));
+        job.define(Defs.bernoulli("layout", "a", "b", "c"));
         for (int round = 0; round < 4; round++) {
             feed("layout", "a", 30, 3, "r" + round);
             feed("layout", "b", 30, 6, "r" + round);
             feed("layout", "c", 30, 9, "r" + round);
-            job.advance(Definitions.RECOMPUTE_MS + 100);
+            job.advance(Defs.RECOMPUTE_MS + 100);
         }
         List<DecisionRecord> decisions = job.decisions();
         List<AllocationUpdate> updates = job.allocations();
@@ -78,11 +78,11 @@ class TopologyDriverTest {
 
     @Test
     void clearWinnerStopsAndTheDecisionStandsWhileLaterEventsAreFolded() {
-        job.define(Definitions.bernoulli("banner", "plain", "bold"));
+        job.define(Defs.bernoulli("banner", "plain", "bold"));
         job.advance(150);
         feed("banner", "plain", 200, 10, "x");
         feed("banner", "bold", 200, 100, "x");
-        job.advance(Definitions.RECOMPUTE_MS + 100);
+        job.advance(Defs.RECOMPUTE_MS + 100);
         List<DecisionRecord> decisions = job.decisions();
         DecisionRecord stop = decisions.get(decisions.size() - 1);
         assertEquals("STOP", stop.getDecision().name());
@@ -97,7 +97,7 @@ class TopologyDriverTest {
         Replay.assertChainReplays(decisions);
 
         feed("banner", "plain", 300, 290, "late");
-        job.advance(Definitions.HEARTBEAT_MS + 100);
+        job.advance(Defs.HEARTBEAT_MS + 100);
         assertEquals(List.of(), job.decisions(), "no evaluation after the stop");
         List<AllocationUpdate> heartbeats = job.allocations();
         assertEquals(1, heartbeats.size());
@@ -109,7 +109,7 @@ class TopologyDriverTest {
 
     @Test
     void duplicateEventIdsAreCountedOnce() {
-        job.define(Definitions.bernoulli("dup", "a", "b"));
+        job.define(Defs.bernoulli("dup", "a", "b"));
         byte[] exposure = Events.exposure("dup", "u1", "e-1", "a", T0);
         byte[] click = Events.click("dup", "u1", "e-2", null, T0 + 5);
         job.event("u1", exposure);
@@ -117,7 +117,7 @@ class TopologyDriverTest {
         job.event("other-key", exposure);
         job.event("u1", click);
         job.event("u1", click);
-        job.advance(Definitions.RECOMPUTE_MS + 100);
+        job.advance(Defs.RECOMPUTE_MS + 100);
         assertEquals(new BernoulliStats(1, 1), job.state("dup").stats().get(0));
         assertEquals(3, job.counters().count(JobCounters.DUPLICATE));
         assertEquals(List.of(), job.rejected(), "duplicates are dropped, not rejected");
@@ -125,7 +125,7 @@ class TopologyDriverTest {
 
     @Test
     void attributionUsesTheUnitsFirstArmWithinTheWindow() {
-        job.define(Definitions.bernoulli("attr", "a", "b"));
+        job.define(Defs.bernoulli("attr", "a", "b"));
         job.event("u1", Events.exposure("attr", "u1", "x1", "a", T0));
         job.event("u1", Events.click("attr", "u1", "c1", null, T0 + 1_000));
         job.event("u1", Events.exposure("attr", "u1", "x2", "a", T0 + 2_000));
@@ -134,9 +134,9 @@ class TopologyDriverTest {
         job.event("u1", Events.exposure("attr", "u1", "x3", "b", T0 + 5_000));
         job.event("u2", Events.exposure("attr", "u2", "y1", "b", T0));
         job.event("u2", Events.click("attr", "u2", "d1", "a", T0 + 10));
-        job.event("u2", Events.click("attr", "u2", "d2", null, T0 + Definitions.WINDOW_MS + 1));
+        job.event("u2", Events.click("attr", "u2", "d2", null, T0 + Defs.WINDOW_MS + 1));
         job.event("u3", Events.click("attr", "u3", "z1", null, T0));
-        job.advance(Definitions.RECOMPUTE_MS + 100);
+        job.advance(Defs.RECOMPUTE_MS + 100);
         assertEquals(List.of(new BernoulliStats(2, 2), new BernoulliStats(1, 0)), job.state("attr").stats());
         List<String> reasons = job.rejected().stream().map(r -> TopologyFixture.header(r, Rejections.REASON_HEADER))
                 .toList();
@@ -146,12 +146,12 @@ class TopologyDriverTest {
 
     @Test
     void changedDefinitionGetsTheNextVersionAndLaterRecordsCarryIt() {
-        ExperimentDefinition v1 = Definitions.bernoulli("copy", "a", "b");
+        ExperimentDefinition v1 = Defs.bernoulli("copy", "a", "b");
         job.define(v1);
         job.advance(150);
         job.define(v1);
         assertEquals(1, job.accepted().size(), "resubmitting the same content keeps version 1");
-        job.define(Definitions.withBeta(v1, 0.7));
+        job.define(Defs.withBeta(v1, 0.7));
         job.advance(150);
         assertEquals(2, last(job.accepted()).getVersion());
         List<DecisionRecord> decisions = job.decisions();
@@ -160,10 +160,10 @@ class TopologyDriverTest {
         assertEquals(2, last(job.allocations()).getDefinitionVersion());
 
         feed("copy", "a", 40, 4, "f");
-        ExperimentDefinition v3 = Definitions.bernoulli("copy", "a", "b", "c");
+        ExperimentDefinition v3 = Defs.bernoulli("copy", "a", "b", "c");
         job.define(v3);
         feed("copy", "c", 40, 4, "f");
-        job.advance(Definitions.RECOMPUTE_MS + 100);
+        job.advance(Defs.RECOMPUTE_MS + 100);
         DecisionRecord latest = last(job.decisions());
         assertEquals(3, latest.getDefinitionVersion());
         assertEquals(List.of(40L, 0L, 40L), latest.getArms().stream().map(ArmState::getTrials).toList(),
@@ -173,7 +173,7 @@ class TopologyDriverTest {
 
     @Test
     void tombstoneEndsTheExperiment() {
-        job.define(Definitions.bernoulli("gone", "a", "b"));
+        job.define(Defs.bernoulli("gone", "a", "b"));
         job.advance(150);
         job.allocations();
         job.end("gone");
@@ -184,19 +184,19 @@ class TopologyDriverTest {
         assertNull(job.state("gone"));
         job.event("u1", Events.exposure("gone", "u1", "x1", "a", T0));
         assertEquals("experiment-ended", TopologyFixture.header(job.rejected().get(0), Rejections.REASON_HEADER));
-        job.advance(Definitions.HEARTBEAT_MS + 100);
+        job.advance(Defs.HEARTBEAT_MS + 100);
         assertEquals(List.of(), job.allocationRecords(), "nothing more is published");
     }
 
     @Test
     void valueMetricCountsOneObservationPerValueEvent() {
-        job.define(Definitions.value("revenue", "x", "y"));
+        job.define(Defs.value("revenue", "x", "y"));
         double[] values = {12.5, 3.25, 40.0, -2.0, 7.75};
         for (int unit = 0; unit < 5; unit++) {
             job.event("u" + unit, Events.exposure("revenue", "u" + unit, "x" + unit, "y", T0));
             job.event("u" + unit, Events.value("revenue", "u" + unit, "v" + unit, null, T0 + 5, values[unit]));
         }
-        job.advance(Definitions.RECOMPUTE_MS + 100);
+        job.advance(Defs.RECOMPUTE_MS + 100);
         ValueStats stats = (ValueStats) job.state("revenue").stats().get(1);
         double mean = 61.5 / 5;
         double m2 = 0;

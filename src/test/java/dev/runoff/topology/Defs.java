@@ -12,7 +12,7 @@ import dev.runoff.records.avro.StoppingSpec;
 import java.util.List;
 
 /** Definitions for the topology tests: short periods so that a test advances the clock by seconds. */
-final class Definitions {
+final class Defs {
 
     /** Recompute period of the test definitions. */
     static final long RECOMPUTE_MS = 1_000;
@@ -21,7 +21,7 @@ final class Definitions {
     /** Attribution window of the test definitions. */
     static final long WINDOW_MS = 60_000;
 
-    private Definitions() {
+    private Defs() {
     }
 
     /** EXPOSURE trials, CLICK successes, uniform prior, top-two Thompson, GLR with delta 0.05. */
