@@ -16,6 +16,7 @@ import picocli.CommandLine.Spec;
         subcommands = {
             EvaluateCommand.class,
             PlanCommand.class,
+            AuditCommand.class,
         })
 public final class Main implements Runnable {
 

@@ -1,0 +1,277 @@
+package dev.runoff.audit;
+
+import java.util.ArrayList;
+import java.util.List;
+import java.util.Locale;
+import java.util.function.ToDoubleFunction;
+
+/**
+ * A {@link Timeline} as a standalone SVG 1.1 chart: two panels sharing the time axis, the weights published
+ * (a step line: a weight holds until the next decision) and the probability of being best (a line with a
+ * marker per decision), one series per arm, a legend, axis titles with units, and the STOP marked by a
+ * vertical line labelled with the winner. Black text on white; each arm has its own colour and dash pattern,
+ * so the series stay apart when printed in grey.
+ *
+ * <p>Colours: the Okabe-Ito palette for colour-blind readers (Okabe and Ito 2008, "Color Universal Design"),
+ * without its yellow, which is too light on white.
+ */
+public final class SvgChart {
+
+    private static final String[] COLOURS = {"#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9",
+        "#000000"};
+    private static final String[] DASHES = {"", "8 4", "2 3", "10 3 2 3", "4 4", "12 3 2 3 2 3"};
+    private static final int WIDTH = 960;
+    private static final int HEIGHT = 660;
+    private static final int LEFT = 80;
+    private static final int PLOT_RIGHT = 760;
+    private static final int PANEL_HEIGHT = 220;
+    private static final int[] PANEL_TOP = {70, 360};
+    private static final int TICKS = 5;
+
+    private final Timeline timeline;
+    private final TimeScale scale;
+    private final StringBuilder out = new StringBuilder(16 * 1024);
+
+    private SvgChart(Timeline timeline) {
+        this.timeline = timeline;
+        this.scale = TimeScale.of(timeline);
+    }
+
+    /** The SVG document of {@code timeline}. */
+    public static String of(Timeline timeline) {
+        return new SvgChart(timeline).render();
+    }
+
+    private String render() {
+        out.append("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n")
+                .append("<svg xmlns=\"http://www.w3.org/2000/svg\" version=\"1.1\" width=\"").append(WIDTH)
+                .append("\" height=\"").append(HEIGHT).append("\" viewBox=\"0 0 ").append(WIDTH).append(' ')
+                .append(HEIGHT).append("\" font-family=\"DejaVu Sans, Arial, Helvetica, sans-serif\" font-size=\"13\">\n");
+        String title = "Experiment " + timeline.experimentId() + ": weights and P(best) per decision";
+        out.append("<title>").append(escape(title)).append("</title>\n");
+        out.append("<rect width=\"100%\" height=\"100%\" fill=\"#ffffff\"/>\n");
+        text(LEFT, 28, "start", 17, "bold", title);
+        text(LEFT, 48, "start", 12, "normal", "First decision " + TimelineWriter.time(scale.start) + " (UTC); "
+                + timeline.rows().size() + " decisions");
+        panel(0, "weights", "Weight (share of traffic)", Timeline.Point::weight, true);
+        panel(1, "p-best", "P(best) (probability)", Timeline.Point::pBest, false);
+        text((LEFT + PLOT_RIGHT) / 2, HEIGHT - 18, "middle", 13, "normal", "Time since first decision ("
+                + scale.unit + ")");
+        legend();
+        out.append("</svg>\n");
+        return out.toString();
+    }
+
+    private void panel(int index, String id, String axisTitle, ToDoubleFunction<Timeline.Point> value, boolean step) {
+        int top = PANEL_TOP[index];
+        int bottom = top + PANEL_HEIGHT;
+        out.append("<g class=\"panel\" id=\"").append(id).append("\">\n");
+        for (int t = 0; t <= TICKS; t++) {
+            double v = (double) t / TICKS;
+            double y = y(top, v);
+            line(LEFT, y, PLOT_RIGHT, y, "#d9d9d9", "", 1);
+            text(LEFT - 8, y + 4, "end", 12, "normal", String.format(Locale.ROOT, "%.1f", v));
+        }
+        for (double tick : scale.ticks()) {
+            double x = scale.xOfUnits(tick);
+            line(x, bottom, x, bottom + 5, "#000000", "", 1);
+            text(x, bottom + 20, "middle", 12, "normal", scale.label(tick));
+        }
+        out.append(String.format(Locale.ROOT, "<rect x=\"%d\" y=\"%d\" width=\"%d\" height=\"%d\" fill=\"none\""
+                + " stroke=\"#000000\"/>%n", LEFT, top, PLOT_RIGHT - LEFT, PANEL_HEIGHT));
+        double mid = top + PANEL_HEIGHT / 2.0;
+        out.append(String.format(Locale.ROOT, "<text x=\"%d\" y=\"%.1f\" text-anchor=\"middle\" font-size=\"13\""
+                + " transform=\"rotate(-90 %d %.1f)\">%s</text>%n", LEFT - 50, mid, LEFT - 50, mid, escape(axisTitle)));
+        for (int a = 0; a < timeline.arms().size(); a++) {
+            series(a, id, top, value, step);
+        }
+        stopMarker(top, bottom, index == 0);
+        out.append("</g>\n");
+    }
+
+    private void series(int a, String panel, int top, ToDoubleFunction<Timeline.Point> value, boolean step) {
+        String arm = timeline.arms().get(a);
+        List<double[]> points = new ArrayList<>();
+        double lastX = Double.NaN;
+        for (Timeline.Row row : timeline.rows()) {
+            Timeline.Point p = row.points().get(arm);
+            if (p == null) {
+                continue;
+            }
+            double x = scale.x(row.streamTime());
+            double y = y(top, value.applyAsDouble(p));
+            if (step && !points.isEmpty()) {
+                points.add(new double[] {x, points.get(points.size() - 1)[1]});
+            }
+            points.add(new double[] {x, y});
+            lastX = x;
+        }
+        if (step && !points.isEmpty() && lastX < PLOT_RIGHT) {
+            points.add(new double[] {PLOT_RIGHT, points.get(points.size() - 1)[1]});
+        }
+        out.append("<g class=\"series\" data-panel=\"").append(panel).append("\" data-arm=\"").append(escape(arm))
+                .append("\">\n<polyline fill=\"none\" stroke=\"").append(colour(a)).append("\" stroke-width=\"2\"")
+                .append(dashAttribute(a)).append(" points=\"");
+        for (int i = 0; i < points.size(); i++) {
+            out.append(i == 0 ? "" : " ").append(String.format(Locale.ROOT, "%.1f,%.1f", points.get(i)[0],
+                    points.get(i)[1]));
+        }
+        out.append("\"/>\n");
+        if (!step) {
+            for (double[] p : points) {
+                out.append(String.format(Locale.ROOT, "<circle cx=\"%.1f\" cy=\"%.1f\" r=\"2.5\" fill=\"%s\"/>%n",
+                        p[0], p[1], colour(a)));
+            }
+        }
+        out.append("</g>\n");
+    }
+
+    private void stopMarker(int top, int bottom, boolean labelled) {
+        Timeline.Row stop = timeline.stop();
+        if (stop == null) {
+            return;
+        }
+        double x = scale.x(stop.streamTime());
+        out.append("<g class=\"stop\">\n");
+        line(x, top, x, bottom, "#000000", "5 3", 1.5);
+        if (labelled) {
+            text(Math.min(x, PLOT_RIGHT - 4), top - 6, "end", 12, "bold", "STOP at decision " + stop.sequence()
+                    + ": winner " + stop.winner() + " (" + stop.reason() + ")");
+        }
+        out.append("</g>\n");
+    }
+
+    private void legend() {
+        int x = PLOT_RIGHT + 24;
+        int y = PANEL_TOP[0] + 6;
+        out.append("<g class=\"legend\">\n");
+        text(x, y, "start", 13, "bold", "Arms");
+        for (int a = 0; a < timeline.arms().size(); a++) {
+            double ly = y + 22 + a * 22;
+            out.append("<line x1=\"").append(x).append("\" y1=\"").append(fmt(ly - 4)).append("\" x2=\"")
+                    .append(x + 36).append("\" y2=\"").append(fmt(ly - 4)).append("\" stroke=\"").append(colour(a))
+                    .append("\" stroke-width=\"2\"").append(dashAttribute(a)).append("/>\n");
+            text(x + 44, ly, "start", 13, "normal", truncate(timeline.arms().get(a)));
+        }
+        double ny = y + 44 + timeline.arms().size() * 22;
+        if (timeline.stop() != null) {
+            line(x, ny - 4, x + 36, ny - 4, "#000000", "5 3", 1.5);
+            text(x + 44, ny, "start", 13, "normal", "STOP");
+        }
+        out.append("</g>\n");
+    }
+
+    private static double y(int top, double value) {
+        return top + PANEL_HEIGHT * (1 - value);
+    }
+
+    private void line(double x1, double y1, double x2, double y2, String stroke, String dash, double width) {
+        out.append(String.format(Locale.ROOT, "<line x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\" stroke=\"%s\""
+                + " stroke-width=\"%s\"%s/>%n", x1, y1, x2, y2, stroke, fmt(width),
+                dash.isEmpty() ? "" : " stroke-dasharray=\"" + dash + "\""));
+    }
+
+    private void text(double x, double y, String anchor, int size, String weight, String content) {
+        out.append(String.format(Locale.ROOT, "<text x=\"%.1f\" y=\"%.1f\" text-anchor=\"%s\" font-size=\"%d\""
+                + " font-weight=\"%s\" fill=\"#000000\">%s</text>%n", x, y, anchor, size, weight, escape(content)));
+    }
+
+    private static String colour(int arm) {
+        return COLOURS[arm % COLOURS.length];
+    }
+
+    private static String dashAttribute(int arm) {
+        String dash = DASHES[(arm + arm / COLOURS.length) % DASHES.length];
+        return dash.isEmpty() ? "" : " stroke-dasharray=\"" + dash + "\"";
+    }
+
+    private static String truncate(String arm) {
+        return arm.length() <= 22 ? arm : arm.substring(0, 21) + "\u2026";
+    }
+
+    private static String fmt(double v) {
+        return String.format(Locale.ROOT, "%.1f", v);
+    }
+
+    /** XML character escaping for text and attribute values. */
+    static String escape(String text) {
+        StringBuilder escaped = new StringBuilder(text.length());
+        for (int i = 0; i < text.length(); i++) {
+            char c = text.charAt(i);
+            switch (c) {
+                case '&' -> escaped.append("&amp;");
+                case '<' -> escaped.append("&lt;");
+                case '>' -> escaped.append("&gt;");
+                case '"' -> escaped.append("&quot;");
+                case '\'' -> escaped.append("&apos;");
+                default -> escaped.append(c);
+            }
+        }
+        return escaped.toString();
+    }
+
+    /** Maps stream time to the x axis, in a unit chosen from the time span, with round tick steps. */
+    private static final class TimeScale {
+        private static final long SECOND = 1_000;
+        private static final long MINUTE = 60 * SECOND;
+        private static final long HOUR = 60 * MINUTE;
+        private static final long DAY = 24 * HOUR;
+
+        final long start;
+        final long span;
+        final String unit;
+        final long unitMillis;
+        final double step;
+
+        private TimeScale(long start, long span, String unit, long unitMillis) {
+            this.start = start;
+            this.span = span;
+            this.unit = unit;
+            this.unitMillis = unitMillis;
+            this.step = roundStep((double) span / unitMillis / TICKS);
+        }
+
+        static TimeScale of(Timeline timeline) {
+            long start = timeline.rows().stream().mapToLong(Timeline.Row::streamTime).min().orElse(0);
+            long end = timeline.rows().stream().mapToLong(Timeline.Row::streamTime).max().orElse(start);
+            long span = Math.max(1, end - start);
+            if (span < 2 * MINUTE) {
+                return new TimeScale(start, span, "seconds", SECOND);
+            }
+            if (span < 2 * HOUR) {
+                return new TimeScale(start, span, "minutes", MINUTE);
+            }
+            return span < 2 * DAY ? new TimeScale(start, span, "hours", HOUR) : new TimeScale(start, span, "days", DAY);
+        }
+
+        /** 1, 2 or 5 times a power of ten, the smallest at least {@code raw}. */
+        private static double roundStep(double raw) {
+            double magnitude = Math.pow(10, Math.floor(Math.log10(raw)));
+            double fraction = raw / magnitude;
+            return (fraction <= 1 ? 1 : fraction <= 2 ? 2 : fraction <= 5 ? 5 : 10) * magnitude;
+        }
+
+        double x(long time) {
+            return LEFT + (PLOT_RIGHT - LEFT) * (double) (time - start) / span;
+        }
+
+        double xOfUnits(double units) {
+            return LEFT + (PLOT_RIGHT - LEFT) * units * unitMillis / span;
+        }
+
+        /** Tick values in the axis unit: multiples of the step up to the span. */
+        List<Double> ticks() {
+            double units = (double) span / unitMillis;
+            List<Double> ticks = new ArrayList<>();
+            for (int i = 0; i * step <= units * (1 + 1e-9); i++) {
+                ticks.add(i * step);
+            }
+            return ticks;
+        }
+
+        String label(double value) {
+            int decimals = step >= 1 ? 0 : (int) Math.ceil(-Math.log10(step) - 1e-9);
+            return String.format(Locale.ROOT, "%." + decimals + "f", value);
+        }
+    }
+}

@@ -1,0 +1,114 @@
+package dev.runoff.audit;
+
+import dev.runoff.records.Problem;
+import dev.runoff.records.avro.DecisionRecord;
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+import java.util.Objects;
+
+/**
+ * Runs every check of {@code audit verify} on the records read, experiment by experiment, in the order read:
+ * the codec's rules (including that each hash matches its content), the chain links, the sequence numbers,
+ * the recomputation and the stopping decision, and the sample-ratio test of each period.
+ */
+public final class Verifier {
+
+    private final SampleRatio sampleRatio;
+    private final Recomputation recomputation = new Recomputation();
+
+    /** A verifier whose sample-ratio test runs at significance level {@code alpha}. */
+    public Verifier(double alpha) {
+        this.sampleRatio = new SampleRatio(alpha);
+    }
+
+    /** The audits of every experiment in {@code entries}, in the order each experiment first appears. */
+    public List<ExperimentAudit> verify(List<Entry> entries) {
+        Map<String, List<Entry>> groups = new LinkedHashMap<>();
+        for (Entry entry : entries) {
+            groups.computeIfAbsent(Objects.requireNonNullElse(entry.experimentId(), ""), k -> new ArrayList<>())
+                    .add(entry);
+        }
+        List<ExperimentAudit> audits = new ArrayList<>(groups.size());
+        groups.forEach((id, list) -> audits.add(verifyExperiment(id.isEmpty() ? null : id, list)));
+        return audits;
+    }
+
+    /** The audit of one experiment's records, given in the order read. */
+    public ExperimentAudit verifyExperiment(String experimentId, List<Entry> entries) {
+        List<Finding> findings = new ArrayList<>(recordProblems(entries));
+        findings.addAll(ChainCheck.check(entries));
+        findings.addAll(SequenceCheck.check(entries));
+        Recomputation.Result recomputed = recomputation.check(entries);
+        findings.addAll(recomputed.findings());
+        List<SampleRatio.Period> periods = new ArrayList<>();
+        for (int i = 1; i < entries.size(); i++) {
+            SampleRatio.Period period = period(entries.get(i - 1), entries.get(i));
+            if (period != null) {
+                periods.add(period);
+                if (period.outcome() == SampleRatio.Outcome.FLAGGED) {
+                    findings.add(Finding.of(i, entries.get(i), Check.SAMPLE_RATIO, "arms.trials",
+                            describe(entries.get(i).record(), period)));
+                }
+            }
+        }
+        findings.sort(Finding.ORDER);
+        return new ExperimentAudit(experimentId, entries.size(), recomputed.reproduced(), findings, periods,
+                recomputed.notes());
+    }
+
+    /** The codec's problems; one about the hash is a chain failure, any other a record failure. */
+    private static List<Finding> recordProblems(List<Entry> entries) {
+        List<Finding> findings = new ArrayList<>();
+        for (int i = 0; i < entries.size(); i++) {
+            for (Problem problem : entries.get(i).problems()) {
+                Check check = problem.field().equals("hash") ? Check.CHAIN : Check.RECORD;
+                findings.add(Finding.of(i, entries.get(i), check, problem.field(), problem.message()));
+            }
+        }
+        return findings;
+    }
+
+    /** The period between two records read one after the other, or null when either is invalid. */
+    private SampleRatio.Period period(Entry before, Entry after) {
+        if (!before.isValid() || !after.isValid()) {
+            return null;
+        }
+        DecisionRecord a = before.record();
+        DecisionRecord b = after.record();
+        if (b.getSequence() != a.getSequence() + 1) {
+            return new SampleRatio.Period(a.getSequence(), b.getSequence(), null, null, null, null,
+                    SampleRatio.Outcome.SKIPPED, "the records are not consecutive");
+        }
+        return sampleRatio.test(a, b);
+    }
+
+    private String describe(DecisionRecord after, SampleRatio.Period period) {
+        StringBuilder text = new StringBuilder(period.note()).append(": exposures since sequence ")
+                .append(period.fromSequence()).append(' ');
+        List<String> arms = after.getArms().stream().map(a -> a.getArm()).toList();
+        text.append(pairs(arms, Arrays.stream(period.observed()).mapToObj(Long::toString).toList()))
+                .append(" against weights ")
+                .append(pairs(arms, Arrays.stream(period.weights()).mapToObj(Verifier::number).toList()));
+        if (period.pValue() != null) {
+            text.append(String.format(Locale.ROOT, "; chi-square %.4g, p = %.3g < alpha %s", period.statistic(),
+                    period.pValue(), number(sampleRatio.alpha())));
+        }
+        return text.toString();
+    }
+
+    private static String pairs(List<String> arms, List<String> values) {
+        StringBuilder out = new StringBuilder("{");
+        for (int i = 0; i < arms.size(); i++) {
+            out.append(i == 0 ? "" : ", ").append(arms.get(i)).append('=').append(values.get(i));
+        }
+        return out.append('}').toString();
+    }
+
+    private static String number(double value) {
+        return String.format(Locale.ROOT, "%.4g", value);
+    }
+}

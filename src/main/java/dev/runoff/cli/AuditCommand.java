@@ -1,0 +1,243 @@
+package dev.runoff.cli;
+
+import dev.runoff.audit.DecisionSource;
+import dev.runoff.audit.Entry;
+import dev.runoff.audit.EntryDecoder;
+import dev.runoff.audit.ExperimentAudit;
+import dev.runoff.audit.FileSource;
+import dev.runoff.audit.SvgChart;
+import dev.runoff.audit.Timeline;
+import dev.runoff.audit.TimelineWriter;
+import dev.runoff.audit.TopicSource;
+import dev.runoff.audit.Verifier;
+import dev.runoff.audit.VerifyReport;
+import java.io.IOException;
+import java.io.InputStream;
+import java.io.PrintWriter;
+import java.io.UncheckedIOException;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.time.Clock;
+import java.time.Duration;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Properties;
+import java.util.concurrent.Callable;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Mixin;
+import picocli.CommandLine.Model.CommandSpec;
+import picocli.CommandLine.Option;
+import picocli.CommandLine.ParameterException;
+import picocli.CommandLine.Spec;
+
+/**
+ * {@code runoff audit}: {@code verify} checks decision records (hash chain, sequence, recomputation, stopping
+ * rule, sample ratio); {@code report} prints one experiment's timeline and draws its chart. Records come from
+ * the decisions topic or from an exported JSON-lines file. Exit codes of verify: 0 when everything verifies,
+ * 1 when something fails, 2 for bad arguments.
+ */
+@Command(name = "audit", mixinStandardHelpOptions = true, versionProvider = VersionInfo.class,
+        description = "Verify and report decision records from the decisions topic or an exported file.",
+        subcommands = {AuditCommand.Verify.class, AuditCommand.Report.class})
+final class AuditCommand implements Runnable {
+
+    @Spec
+    private CommandSpec spec;
+
+    /** Without a subcommand there is nothing to do: a usage error. */
+    @Override
+    public void run() {
+        throw new ParameterException(spec.commandLine(), "missing command: verify or report");
+    }
+
+    /** Where the records come from: {@code --file}, or {@code --bootstrap-server} and {@code --topic}. */
+    static final class SourceOptions {
+
+        @Spec(Spec.Target.MIXEE)
+        private CommandSpec spec;
+
+        @Option(names = "--file", paramLabel = "FILE",
+                description = "Exported JSON-lines file: one canonical JSON decision record per line.")
+        private Path file;
+
+        @Option(names = "--bootstrap-server", paramLabel = "HOST:PORT[,...]",
+                description = "Kafka bootstrap servers to read the decisions topic from.")
+        private String bootstrapServer;
+
+        @Option(names = "--topic", paramLabel = "TOPIC", defaultValue = "runoff.decisions",
+                description = "Decisions topic (default: ${DEFAULT-VALUE}).")
+        private String topic;
+
+        @Option(names = "--config", paramLabel = "FILE",
+                description = "Kafka client properties (security.protocol, sasl.*, ssl.*, ...).")
+        private Path config;
+
+        @Option(names = "--timeout", paramLabel = "SECONDS", defaultValue = "30",
+                description = "Give up reading the topic after this long without progress (default: ${DEFAULT-VALUE}).")
+        private long timeoutSeconds;
+
+        @Option(names = "--experiment", paramLabel = "ID", description = "Only this experiment's records.")
+        String experiment;
+
+        /** The records chosen by the options. */
+        List<Entry> read() {
+            EntryDecoder decoder = new EntryDecoder(Clock.systemUTC().millis());
+            return source(decoder).read(experiment);
+        }
+
+        private DecisionSource source(EntryDecoder decoder) {
+            Map<String, String> client = config == null ? new LinkedHashMap<>() : load(config);
+            if (bootstrapServer != null) {
+                client.put("bootstrap.servers", bootstrapServer);
+            }
+            boolean topicGiven = client.containsKey("bootstrap.servers");
+            if ((file == null) == !topicGiven) {
+                throw new ParameterException(spec.commandLine(), file == null
+                        ? "give --file FILE or --bootstrap-server HOST:PORT (or bootstrap.servers in --config)"
+                        : "give either --file or a bootstrap server, not both");
+            }
+            if (file != null) {
+                if (!Files.isRegularFile(file)) {
+                    throw new ParameterException(spec.commandLine(), "--file " + file + ": no such file");
+                }
+                return new FileSource(file, decoder);
+            }
+            if (timeoutSeconds <= 0) {
+                throw new ParameterException(spec.commandLine(), "--timeout must be > 0, got " + timeoutSeconds);
+            }
+            return new TopicSource(client, topic, Duration.ofSeconds(timeoutSeconds), decoder);
+        }
+
+        private Map<String, String> load(Path path) {
+            Properties properties = new Properties();
+            try (InputStream in = Files.newInputStream(path)) {
+                properties.load(in);
+            } catch (IOException e) {
+                throw new ParameterException(spec.commandLine(), "--config " + path + ": " + e.getMessage(), e);
+            }
+            Map<String, String> map = new LinkedHashMap<>();
+            properties.stringPropertyNames().forEach(k -> map.put(k, properties.getProperty(k)));
+            return map;
+        }
+    }
+
+    /** {@code runoff audit verify}. */
+    @Command(name = "verify", mixinStandardHelpOptions = true, versionProvider = VersionInfo.class,
+            description = {"Check decision records: hash chain, sequence numbers, recomputation by the engine,"
+                    + " the stopping rule, and that exposures followed the published weights (sample ratio).",
+                "Exit code 0 when everything verifies, 1 when something fails, 2 for bad arguments."})
+    static final class Verify implements Callable<Integer> {
+
+        @Spec
+        private CommandSpec spec;
+
+        @Mixin
+        private SourceOptions source;
+
+        @Option(names = "--alpha", paramLabel = "A", defaultValue = "0.001",
+                description = "Significance level of the sample-ratio test (default: ${DEFAULT-VALUE}).")
+        private double alpha;
+
+        @Option(names = "--json", description = "Print the result as JSON.")
+        private boolean json;
+
+        @Override
+        public Integer call() {
+            Verifier verifier;
+            try {
+                verifier = new Verifier(alpha);
+            } catch (IllegalArgumentException e) {
+                throw new ParameterException(spec.commandLine(), "--alpha: " + e.getMessage(), e);
+            }
+            List<ExperimentAudit> audits = verifier.verify(source.read());
+            PrintWriter out = spec.commandLine().getOut();
+            out.print(json ? VerifyReport.json(audits, alpha) : VerifyReport.text(audits, alpha));
+            out.flush();
+            return VerifyReport.passed(audits) ? 0 : 1;
+        }
+    }
+
+    /** {@code runoff audit report}. */
+    @Command(name = "report", mixinStandardHelpOptions = true, versionProvider = VersionInfo.class,
+            description = "Print one experiment's decisions over time as text, CSV or JSON, and draw them as SVG.")
+    static final class Report implements Callable<Integer> {
+
+        @Spec
+        private CommandSpec spec;
+
+        @Mixin
+        private SourceOptions source;
+
+        @Option(names = "--format", paramLabel = "FORMAT", defaultValue = "text",
+                description = "text, csv or json (default: ${DEFAULT-VALUE}).")
+        private String format;
+
+        @Option(names = "--output", paramLabel = "FILE", description = "Write the table here instead of stdout.")
+        private Path output;
+
+        @Option(names = "--svg", paramLabel = "FILE",
+                description = "Also write the chart (weights and P(best) over time) as an SVG file.")
+        private Path svg;
+
+        @Override
+        public Integer call() {
+            if (!List.of("text", "csv", "json").contains(format)) {
+                throw new ParameterException(spec.commandLine(), "--format must be text, csv or json, got " + format);
+            }
+            List<Entry> entries = source.read();
+            String experiment = experiment(entries);
+            List<Entry> mine = entries.stream().filter(e -> experiment.equals(e.experimentId())).toList();
+            long invalid = mine.stream().filter(e -> !e.isValid()).count();
+            Timeline timeline = Timeline.of(experiment, mine.stream().filter(Entry::isValid).map(Entry::record)
+                    .toList());
+            String table = switch (format) {
+                case "csv" -> TimelineWriter.csv(timeline);
+                case "json" -> TimelineWriter.json(timeline);
+                default -> TimelineWriter.text(timeline);
+            };
+            write(output, table);
+            if (svg != null) {
+                write(svg, SvgChart.of(timeline));
+            }
+            if (invalid > 0) {
+                PrintWriter err = spec.commandLine().getErr();
+                err.println("audit report: " + invalid + " invalid record(s) left out; run 'runoff audit verify'");
+                err.flush();
+            }
+            return 0;
+        }
+
+        /** The experiment asked for, or the only one present. */
+        private String experiment(List<Entry> entries) {
+            if (source.experiment != null) {
+                if (entries.stream().noneMatch(e -> source.experiment.equals(e.experimentId()) && e.isValid())) {
+                    throw new ParameterException(spec.commandLine(), "no valid decision records for experiment '"
+                            + source.experiment + "'");
+                }
+                return source.experiment;
+            }
+            List<String> ids = entries.stream().filter(Entry::isValid).map(Entry::experimentId).distinct().toList();
+            if (ids.size() != 1) {
+                throw new ParameterException(spec.commandLine(), ids.isEmpty() ? "no valid decision records found"
+                        : "the records hold " + ids.size() + " experiments: choose one with --experiment " + ids);
+            }
+            return ids.get(0);
+        }
+
+        private void write(Path path, String text) {
+            if (path == null) {
+                PrintWriter out = spec.commandLine().getOut();
+                out.print(text);
+                out.flush();
+                return;
+            }
+            try {
+                Files.writeString(path, text, StandardCharsets.UTF_8);
+            } catch (IOException e) {
+                throw new UncheckedIOException("cannot write " + path + ": " + e.getMessage(), e);
+            }
+        }
+    }
+}
