@@ -31,7 +31,7 @@ final class JobMetrics implements AutoCloseable {
     /** Binds the metrics of {@code streams} and the job's {@code counters}, tagged with the application id. */
     JobMetrics(KafkaStreams streams, JobCounters counters, String applicationId) {
         this.counters = counters;
-        registry.config().commonTags(Tags.of("application", applicationId));
+        registry.config().commonTags(Tags.of("application", applicationId)).meterFilter(new StateTagFilter());
         streamsMetrics = new KafkaStreamsMetrics(streams);
         streamsMetrics.bindTo(registry);
         new JvmMemoryMetrics().bindTo(registry);
