@@ -1,0 +1,47 @@
+package dev.runoff.topology;
+
+import dev.runoff.engine.Metric;
+import dev.runoff.records.Definitions;
+import dev.runoff.records.avro.EventType;
+import dev.runoff.records.avro.ExperimentDefinition;
+import java.util.Set;
+
+/**
+ * What event validation needs from an accepted definition.
+ *
+ * @param experimentId        the experiment
+ * @param version             its version
+ * @param arms                its arm names
+ * @param metric              its metric kind
+ * @param trialEvent          the event type that counts as a trial
+ * @param outcomeEvent        the success event (Bernoulli) or the value event (value metric)
+ * @param attributionWindowMs its attribution window
+ */
+record DefinitionView(String experimentId, long version, Set<String> arms, Metric metric, EventType trialEvent,
+                      EventType outcomeEvent, long attributionWindowMs) {
+
+    static DefinitionView of(ExperimentDefinition def) {
+        Metric metric = Definitions.metric(def);
+        EventType outcome = metric == Metric.BERNOULLI ? def.getMetric().getSuccessEvent()
+                : def.getMetric().getValueEvent();
+        return new DefinitionView(def.getExperimentId(), def.getVersion(), Set.copyOf(def.getArms()), metric,
+                def.getMetric().getTrialEvent(), outcome, def.getAttributionWindowMs());
+    }
+
+    /** The role of an event of type {@code type}, or {@code null} when the metric does not use it. */
+    UnitEvent.Role role(EventType type) {
+        if (type == trialEvent) {
+            return UnitEvent.Role.TRIAL;
+        }
+        if (type == outcomeEvent) {
+            return metric == Metric.BERNOULLI ? UnitEvent.Role.SUCCESS : UnitEvent.Role.VALUE;
+        }
+        return null;
+    }
+
+    /** How the metric uses event types, for messages: {@code trial event EXPOSURE, success event CLICK}. */
+    String describeEvents() {
+        return "trial event " + trialEvent + ", " + (metric == Metric.BERNOULLI ? "success" : "value") + " event "
+                + outcomeEvent;
+    }
+}

@@ -1,0 +1,89 @@
+package dev.runoff.topology;
+
+import dev.runoff.records.Decoded;
+import dev.runoff.records.RecordCodec;
+import dev.runoff.records.avro.OutcomeEvent;
+import org.apache.kafka.common.header.internals.RecordHeaders;
+import org.apache.kafka.streams.processor.api.ContextualProcessor;
+import org.apache.kafka.streams.processor.api.ProcessorContext;
+import org.apache.kafka.streams.processor.api.Record;
+
+/**
+ * Stage 1, step 1: decodes and checks each outcome event (records package rules, time rules at the
+ * injected wall clock), then checks it against the accepted definition of its experiment: known and not
+ * ended, a type the metric uses, a known arm, an arm on trial events and a value on value events. Valid
+ * events go on keyed by experiment and unit; the others to the rejected topic with their reason.
+ */
+final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], Routed<UnitEvent>> {
+
+    private final RecordCodec<OutcomeEvent> codec = RecordCodec.outcomeEvents();
+    private final String definitionsStore;
+    private final Rejections rejections;
+    private DefinitionLookup definitions;
+
+    EventValidator(String definitionsStore, Rejections rejections) {
+        this.definitionsStore = definitionsStore;
+        this.rejections = rejections;
+    }
+
+    @Override
+    public void init(ProcessorContext<byte[], Routed<UnitEvent>> context) {
+        super.init(context);
+        definitions = new DefinitionLookup(context.getStateStore(definitionsStore));
+    }
+
+    @Override
+    public void process(Record<byte[], byte[]> record) {
+        Source source = Source.of(context().recordMetadata());
+        Decoded<OutcomeEvent> decoded = codec.decode(record.value(), Math.max(0L, context().currentSystemTimeMs()));
+        if (!decoded.isValid()) {
+            reject(record, RejectReason.of(decoded.reason()), Rejections.describe(decoded.problems()), source);
+            return;
+        }
+        OutcomeEvent event = decoded.orThrow();
+        DefinitionLookup.Lookup lookup = definitions.find(event.getExperimentId());
+        if (lookup.status() != DefinitionLookup.Status.FOUND) {
+            boolean ended = lookup.status() == DefinitionLookup.Status.ENDED;
+            reject(record, ended ? RejectReason.EXPERIMENT_ENDED : RejectReason.UNKNOWN_EXPERIMENT,
+                    "experimentId: experiment " + quote(event.getExperimentId())
+                            + (ended ? " has ended (its definition was deleted)" : " has no accepted definition"),
+                    source);
+            return;
+        }
+        check(record, event, lookup.view(), source);
+    }
+
+    private void check(Record<byte[], byte[]> record, OutcomeEvent event, DefinitionView view, Source source) {
+        UnitEvent.Role role = view.role(event.getType());
+        String arm = event.getArm();
+        if (role == null) {
+            reject(record, RejectReason.EVENT_NOT_USED, "type: " + event.getType() + " is not used by the metric of "
+                    + "experiment " + quote(view.experimentId()) + " (" + view.describeEvents() + ")", source);
+        } else if (arm != null && !view.arms().contains(arm)) {
+            reject(record, RejectReason.UNKNOWN_ARM, "arm: " + quote(arm) + " is not an arm of experiment "
+                    + quote(view.experimentId()) + " (version " + view.version() + ")", source);
+        } else if (role == UnitEvent.Role.TRIAL && arm == null) {
+            reject(record, RejectReason.MISSING_ARM, "arm: missing (the trial event " + event.getType()
+                    + " must name its arm)", source);
+        } else if (role == UnitEvent.Role.VALUE && event.getValue() == null) {
+            reject(record, RejectReason.MISSING_VALUE, "value: missing (the value event " + event.getType()
+                    + " of experiment " + quote(view.experimentId()) + " must carry a value)", source);
+        } else {
+            UnitEvent valid = new UnitEvent(event.getExperimentId(), event.getUnitId(), event.getEventId(), role,
+                    view.metric(), arm, event.getValue() == null ? Double.NaN : event.getValue(),
+                    event.getTimestamp(), view.attributionWindowMs(), source, record.key(), record.value());
+            context().forward(new Record<>(valid.unitKeyBytes(), Routed.pass(valid), record.timestamp(),
+                    new RecordHeaders()));
+        }
+    }
+
+    private void reject(Record<byte[], byte[]> record, RejectReason reason, String message, Source source) {
+        context().forward(rejections.routed(record.key(), record.value(), record.timestamp(), reason, message, source));
+    }
+
+    /** {@code text} in single quotes, cut to 64 chars, for messages. */
+    static String quote(String text) {
+        String cut = text.length() > 64 ? text.substring(0, 64) + "..." : text;
+        return "'" + cut + "'";
+    }
+}

@@ -1,0 +1,60 @@
+package dev.runoff.topology;
+
+import dev.runoff.records.avro.AfterStopPolicy;
+import dev.runoff.records.avro.AllocationRule;
+import dev.runoff.records.avro.AllocationSpec;
+import dev.runoff.records.avro.EventType;
+import dev.runoff.records.avro.ExperimentDefinition;
+import dev.runoff.records.avro.MetricKind;
+import dev.runoff.records.avro.MetricSpec;
+import dev.runoff.records.avro.StoppingRule;
+import dev.runoff.records.avro.StoppingSpec;
+import java.util.List;
+
+/** Definitions for the topology tests: short periods so that a test advances the clock by seconds. */
+final class Defs {
+
+    /** Recompute period of the test definitions. */
+    static final long RECOMPUTE_MS = 1_000;
+    /** Heartbeat of the test definitions. */
+    static final long HEARTBEAT_MS = 10_000;
+    /** Attribution window of the test definitions. */
+    static final long WINDOW_MS = 60_000;
+
+    private Defs() {
+    }
+
+    /** EXPOSURE trials, CLICK successes, uniform prior, top-two Thompson, GLR with delta 0.05. */
+    static ExperimentDefinition bernoulli(String id, String... arms) {
+        return ExperimentDefinition.newBuilder()
+                .setExperimentId(id)
+                .setArms(List.of(arms))
+                .setMetric(MetricSpec.newBuilder().setKind(MetricKind.BERNOULLI).setTrialEvent(EventType.EXPOSURE)
+                        .setSuccessEvent(EventType.CLICK).build())
+                .setAllocation(AllocationSpec.newBuilder().setRule(AllocationRule.TOP_TWO_THOMPSON).setWarmUpTrials(20)
+                        .build())
+                .setStopping(StoppingSpec.newBuilder().setRule(StoppingRule.GLR).setDelta(0.05).setMinTrialsPerArm(50)
+                        .build())
+                .setAfterStop(AfterStopPolicy.ALL_TO_WINNER)
+                .setRecomputePeriodMs(RECOMPUTE_MS)
+                .setHeartbeatMs(HEARTBEAT_MS)
+                .setAttributionWindowMs(WINDOW_MS)
+                .setValidForMs(60_000)
+                .build();
+    }
+
+    /** EXPOSURE trials, VALUE observations, default Normal-Gamma prior, top-two Thompson, GLR. */
+    static ExperimentDefinition value(String id, String... arms) {
+        ExperimentDefinition def = bernoulli(id, arms);
+        def.setMetric(MetricSpec.newBuilder().setKind(MetricKind.VALUE).setTrialEvent(EventType.EXPOSURE)
+                .setValueEvent(EventType.VALUE).build());
+        return def;
+    }
+
+    /** {@code def} with a change nobody would make by accident: another beta. */
+    static ExperimentDefinition withBeta(ExperimentDefinition def, double beta) {
+        ExperimentDefinition copy = ExperimentDefinition.newBuilder(def).build();
+        copy.setAllocation(AllocationSpec.newBuilder(def.getAllocation()).setBeta(beta).build());
+        return copy;
+    }
+}

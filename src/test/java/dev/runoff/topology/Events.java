@@ -1,0 +1,36 @@
+package dev.runoff.topology;
+
+import java.nio.charset.StandardCharsets;
+
+/** Outcome events as the JSON a producer would send. */
+final class Events {
+
+    private Events() {
+    }
+
+    static byte[] exposure(String experiment, String unit, String eventId, String arm, long timestamp) {
+        return json(experiment, unit, eventId, "EXPOSURE", timestamp, arm, null);
+    }
+
+    static byte[] click(String experiment, String unit, String eventId, String arm, long timestamp) {
+        return json(experiment, unit, eventId, "CLICK", timestamp, arm, null);
+    }
+
+    static byte[] value(String experiment, String unit, String eventId, String arm, long timestamp, double value) {
+        return json(experiment, unit, eventId, "VALUE", timestamp, arm, value);
+    }
+
+    static byte[] json(String experiment, String unit, String eventId, String type, long timestamp, String arm,
+                       Double value) {
+        StringBuilder json = new StringBuilder(160).append("{\"experimentId\":\"").append(experiment)
+                .append("\",\"unitId\":\"").append(unit).append("\",\"eventId\":\"").append(eventId)
+                .append("\",\"type\":\"").append(type).append("\",\"timestamp\":").append(timestamp);
+        if (arm != null) {
+            json.append(",\"arm\":\"").append(arm).append('"');
+        }
+        if (value != null) {
+            json.append(",\"value\":").append(value);
+        }
+        return json.append('}').toString().getBytes(StandardCharsets.UTF_8);
+    }
+}
