@@ -82,6 +82,7 @@ public final class Demo {
         report.note("experiment " + DemoScenario.EXPERIMENT_ID + ": a ferry operator's booking page tests "
                 + scenario.layouts().size() + " fare-table layouts " + scenario.layouts()
                 + "; true booking rates hidden");
+        awaitAccepted(job);
         DemoFeed feed = closer.register(new DemoFeed(config, DemoScenario.EXPERIMENT_ID, clock));
         TrafficGenerator visitors = new TrafficGenerator(DemoScenario.EXPERIMENT_ID, scenario.layouts(),
                 scenario.rates(), options.seed());
@@ -128,6 +129,18 @@ public final class Demo {
             if (System.nanoTime() > deadline || job.failed()) {
                 throw new IllegalStateException("the job did not reach RUNNING within " + START_TIMEOUT.toSeconds()
                         + " s (state " + job.state() + ")");
+            }
+            Thread.sleep(50);
+        }
+    }
+
+    /** Waits until the job validates the experiment's events (else the first visitors would be rejected). */
+    private static void awaitAccepted(StreamsJob job) throws InterruptedException {
+        long deadline = System.nanoTime() + START_TIMEOUT.toNanos();
+        while (!job.accepts(DemoScenario.EXPERIMENT_ID)) {
+            if (System.nanoTime() > deadline) {
+                throw new IllegalStateException("the job did not accept the demo experiment within "
+                        + START_TIMEOUT.toSeconds() + " s (see its rejected topic)");
             }
             Thread.sleep(50);
         }

@@ -138,11 +138,6 @@ public final class JobConfig {
                 }
             }
         }
-        Setting server = settings.get(StreamsConfig.APPLICATION_SERVER_CONFIG);
-        if (server != null && !server.value().isEmpty() && !validHostPort(server.value())) {
-            problems.add(at(server, StreamsConfig.APPLICATION_SERVER_CONFIG + ": '" + server.value()
-                    + "' is not host:port (the address other instances use to reach this one's HTTP endpoint)"));
-        }
         Setting stateDir = settings.get(StreamsConfig.STATE_DIR_CONFIG);
         if (stateDir != null && !writableDirectory(Path.of(stateDir.value()))) {
             problems.add(at(stateDir, StreamsConfig.STATE_DIR_CONFIG + ": '" + stateDir.value()
@@ -199,11 +194,17 @@ public final class JobConfig {
 
     /**
      * The settings handed to {@code RunoffTopology.streamsConfig} as overrides: every Kafka key, the
-     * bounded RocksDB memory setter (unless {@code rocksdb.config.setter} is set) and its two sizes.
+     * bounded RocksDB memory setter (unless {@code rocksdb.config.setter} is set) and its two sizes, and the
+     * {@link DecisionLog} interceptor on the producers (after any configured ones).
      */
     public Map<String, Object> streamsOverrides() {
         Map<String, Object> out = new LinkedHashMap<>(kafka);
         out.putIfAbsent(StreamsConfig.ROCKSDB_CONFIG_SETTER_CLASS_CONFIG, BoundedRocksDbConfig.class.getName());
+        String interceptors = StreamsConfig.producerPrefix(ProducerConfig.INTERCEPTOR_CLASSES_CONFIG);
+        String configured = kafka.get(interceptors);
+        out.put(interceptors, configured == null || configured.isBlank() ? DecisionLog.class.getName()
+                : configured + "," + DecisionLog.class.getName());
+        out.put(StreamsConfig.producerPrefix(DecisionLog.TOPIC_KEY), topology.decisionsTopic());
         out.put(AppSettings.ROCKSDB_CACHE_KEY, app.rocksDbCacheBytes());
         out.put(AppSettings.MEMTABLE_KEY, app.memtableBytes());
         return out;

@@ -77,7 +77,7 @@ final class KafkaKeys {
 
     private static String describe(ConfigDef.ConfigKey k) {
         String type = k.type.toString().toLowerCase(Locale.ROOT);
-        return k.validator == null ? type : type + " " + k.validator;
+        return k.validator == null ? type : type + ": " + k.validator;
     }
 
     private static String reason(ConfigException e, String value, String key) {

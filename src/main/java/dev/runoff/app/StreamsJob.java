@@ -8,9 +8,13 @@ import java.util.concurrent.CountDownLatch;
 import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicBoolean;
 import org.apache.kafka.streams.KafkaStreams;
+import org.apache.kafka.streams.StoreQueryParameters;
 import org.apache.kafka.streams.StreamsConfig;
 import org.apache.kafka.streams.Topology;
+import org.apache.kafka.streams.errors.InvalidStateStoreException;
 import org.apache.kafka.streams.state.HostInfo;
+import org.apache.kafka.streams.state.QueryableStoreTypes;
+import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
@@ -113,6 +117,25 @@ public final class StreamsJob implements AutoCloseable {
     /** Port of the HTTP endpoint. */
     public int httpPort() {
         return http.port();
+    }
+
+    /**
+     * Whether this instance validates events of {@code experimentId} already: its definition has reached
+     * the instance's global store of accepted definitions. Until then the job rejects the experiment's events
+     * as unknown, so a producer that starts traffic right after publishing a definition should wait for this
+     * (or for the first control record plus the global store's lag).
+     */
+    public boolean accepts(String experimentId) {
+        if (streams.state() != KafkaStreams.State.RUNNING) {
+            return false;
+        }
+        try {
+            ReadOnlyKeyValueStore<String, byte[]> store = streams.store(StoreQueryParameters.fromNameAndType(
+                    RunoffTopology.DEFINITIONS_STORE, QueryableStoreTypes.<String, byte[]>keyValueStore()));
+            return store.get(experimentId) != null;
+        } catch (InvalidStateStoreException e) {
+            return false;
+        }
     }
 
     /** The counters the topology fills. */
