@@ -5,9 +5,12 @@ import dev.runoff.app.DemoOptions;
 import dev.runoff.app.DemoSummary;
 import java.nio.file.Path;
 import java.time.Clock;
+import java.util.HashMap;
+import java.util.Map;
 import java.util.Optional;
 import java.util.concurrent.Callable;
 import org.apache.logging.log4j.Level;
+import org.apache.logging.log4j.LogManager;
 import org.apache.logging.log4j.core.config.Configurator;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Model.CommandSpec;
@@ -77,12 +80,17 @@ final class DemoCommand implements Callable<Integer> {
     public Integer call() throws InterruptedException {
         DemoOptions options = new DemoOptions(seed, arms, visitors, periodMs, delta, budget, warmUp, maxSeconds,
                 httpPort, exportDecisions, json);
-        if (!verbose) {
-            Configurator.setLevel("dev.runoff", Level.WARN);
-            Configurator.setLevel("org.apache.kafka", Level.ERROR);
-            Configurator.setLevel("kafka", Level.ERROR);
+        Map<String, Level> quiet = verbose ? Map.of()
+                : Map.of("dev.runoff", Level.WARN, "org.apache.kafka", Level.ERROR, "kafka", Level.ERROR);
+        Map<String, Level> before = new HashMap<>();
+        quiet.keySet().forEach(name -> before.put(name, LogManager.getLogger(name).getLevel()));
+        Optional<DemoSummary> summary;
+        try {
+            Configurator.setLevel(quiet);
+            summary = new Demo(options, spec.commandLine().getOut(), clock).run();
+        } finally {
+            Configurator.setLevel(before);
         }
-        Optional<DemoSummary> summary = new Demo(options, spec.commandLine().getOut(), clock).run();
         if (summary.isEmpty()) {
             return INTERRUPTED;
         }

@@ -7,6 +7,7 @@ import java.nio.file.Path;
 import java.time.Duration;
 import java.util.Map;
 import java.util.concurrent.Callable;
+import org.apache.logging.log4j.LogManager;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
@@ -41,8 +42,15 @@ final class RunCommand implements Callable<Integer> {
         this.env = Map.copyOf(env);
     }
 
+    /**
+     * Log4j's own shutdown hook would stop logging while the job's hook still logs its shutdown; it is
+     * disabled before logging starts, and the job's hook stops logging last.
+     */
+    static final String LOG4J_SHUTDOWN_HOOK = "log4j2.shutdownHookEnabled";
+
     @Override
     public Integer call() throws InterruptedException {
+        System.setProperty(LOG4J_SHUTDOWN_HOOK, "false");
         JobConfig loaded;
         try {
             loaded = JobConfig.load(config, env, Map.of(), true);
@@ -50,7 +58,10 @@ final class RunCommand implements Callable<Integer> {
             return ConfigProblems.print(spec, e);
         }
         StreamsJob job = StreamsJob.start(loaded);
-        Thread hook = new Thread(job::close, "runoff-shutdown");
+        Thread hook = new Thread(() -> {
+            job.close();
+            LogManager.shutdown();
+        }, "runoff-shutdown");
         Runtime.getRuntime().addShutdownHook(hook);
         while (!job.awaitStop(Duration.ofSeconds(60))) {
             // the job runs until a shutdown hook closes it or the client fails
