@@ -115,6 +115,10 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
             if (def.getControlArm() == null) {
                 problems.add("controlShare", Reason.INCONSISTENT, "needs a controlArm");
             }
+            if (controlShare < floor && floor * arms <= 1 + SHARE_SLACK) {
+                problems.add("controlShare", Reason.INCONSISTENT, controlShare + " is below the floor " + floor
+                        + " (the control arm gets exactly its share)");
+            }
             if (controlShare + floor * (arms - 1) > 1 + SHARE_SLACK) {
                 problems.add("controlShare", Reason.INCONSISTENT, controlShare + " plus floor " + floor
                         + " for each of the other " + (arms - 1) + " arms exceeds 1");

@@ -1,6 +1,7 @@
 package dev.runoff.topology;
 
 import dev.runoff.engine.Evaluation;
+import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.posterior.BetaPosterior;
 import dev.runoff.engine.posterior.Posterior;
 import dev.runoff.engine.posterior.StudentTPosterior;
@@ -19,7 +20,7 @@ final class ArmStates {
     private ArmStates() {
     }
 
-    static List<ArmState> of(ExperimentState state, Evaluation evaluation, double[] weights) {
+    static List<ArmState> of(ExperimentState state, Evaluation evaluation, ProbabilityBest best, double[] weights) {
         List<String> names = state.definition().getArms();
         double[] ruleWeights = evaluation.ruleWeights();
         List<ArmState> out = new ArrayList<>(names.size());
@@ -27,8 +28,8 @@ final class ArmStates {
             ArmState.Builder arm = ArmState.newBuilder()
                     .setArm(names.get(i))
                     .setPosterior(posterior(evaluation.posteriors().get(i).posterior()))
-                    .setAlpha(evaluation.probabilityBest().alpha(i))
-                    .setAlphaStandardError(evaluation.probabilityBest().standardError(i))
+                    .setAlpha(best.alpha(i))
+                    .setAlphaStandardError(best.standardError(i))
                     .setWeightBeforeGuards(ruleWeights[i])
                     .setWeight(weights[i]);
             statistics(arm, state.stats().get(i));

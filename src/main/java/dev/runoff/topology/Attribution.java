@@ -73,7 +73,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         if (event.role() == UnitEvent.Role.VALUE) {
             pass(record, new ArmDelta(event.experimentId(), arm, ValueStats.EMPTY.add(event.value())));
         } else if (unit.successes() >= unit.trials()) {
-            reject(record, RejectReason.EXCESS_SUCCESS, "type: the unit already has " + unit.successes()
+            reject(record, RejectReason.EXCESS_SUCCESS.code(), "type: the unit already has " + unit.successes()
                     + " successes for " + unit.trials() + " trials; successes never exceed trials");
         } else {
             units.put(key, unit.success(now));
@@ -84,7 +84,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
     private void trial(Record<byte[], UnitEvent> record, String key, UnitState unit, long now) {
         UnitEvent event = record.value();
         if (unit != null && !unit.arm().equals(event.arm())) {
-            reject(record, RejectReason.ARM_CONFLICT, "arm: the unit was first counted on arm "
+            reject(record, RejectReason.ARM_CONFLICT.code(), "arm: the unit was first counted on arm "
                     + EventValidator.quote(unit.arm()) + ", not " + EventValidator.quote(event.arm())
                     + "; the first arm is kept");
             return;
@@ -100,14 +100,14 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
     private String resolveArm(Record<byte[], UnitEvent> record, UnitState unit) {
         UnitEvent event = record.value();
         if (unit == null) {
-            reject(record, RejectReason.UNATTRIBUTED, "unitId: the unit has no trial event in experiment "
+            reject(record, RejectReason.UNATTRIBUTED.code(), "unitId: the unit has no trial event in experiment "
                     + EventValidator.quote(event.experimentId()) + " to attribute this " + event.role().name()
                     .toLowerCase(Locale.ROOT) + " event to");
             return null;
         }
         if (event.arm() != null) {
             if (!event.arm().equals(unit.arm())) {
-                reject(record, RejectReason.ARM_MISMATCH, "arm: " + EventValidator.quote(event.arm())
+                reject(record, RejectReason.ARM_MISMATCH.code(), "arm: " + EventValidator.quote(event.arm())
                         + " differs from the unit's arm " + EventValidator.quote(unit.arm()));
                 return null;
             }
@@ -115,8 +115,9 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         }
         long gap = Math.abs(event.timestamp() - unit.lastTrialAt());
         if (gap > event.attributionWindowMs()) {
-            reject(record, RejectReason.UNATTRIBUTED, "timestamp: " + gap + " ms from the unit's latest trial event,"
-                    + " more than the attribution window of " + event.attributionWindowMs() + " ms");
+            reject(record, RejectReason.UNATTRIBUTED.code(), "timestamp: " + gap
+                    + " ms from the unit's latest trial event, more than the attribution window of "
+                    + event.attributionWindowMs() + " ms");
             return null;
         }
         return unit.arm();
@@ -126,7 +127,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         context().forward(new Record<>(record.key(), Routed.pass(delta), record.timestamp(), new RecordHeaders()));
     }
 
-    private void reject(Record<byte[], UnitEvent> record, RejectReason reason, String message) {
+    private void reject(Record<byte[], UnitEvent> record, String reason, String message) {
         UnitEvent event = record.value();
         context().forward(rejections.routed(event.originalKey(), event.originalValue(), record.timestamp(), reason,
                 message, event.source()));

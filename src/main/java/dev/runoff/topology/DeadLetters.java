@@ -36,7 +36,7 @@ final class DeadLetters {
     /** The records to dead-letter: none without a topic, else one. */
     List<ProducerRecord<byte[], byte[]>> of(ErrorHandlerContext context, byte[] key, byte[] value,
                                              RejectReason reason, Exception exception) {
-        counters.rejected(reason);
+        counters.rejected(reason.code());
         if (topic == null) {
             return List.of();
         }

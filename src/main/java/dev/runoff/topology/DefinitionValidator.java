@@ -1,6 +1,7 @@
 package dev.runoff.topology;
 
 import dev.runoff.records.Decoded;
+import dev.runoff.records.Reason;
 import dev.runoff.records.RecordCodec;
 import dev.runoff.records.avro.ExperimentDefinition;
 import java.nio.charset.StandardCharsets;
@@ -30,7 +31,8 @@ final class DefinitionValidator extends ContextualProcessor<byte[], byte[], byte
         String key = record.key() == null ? null : new String(record.key(), StandardCharsets.UTF_8);
         if (record.value() == null) {
             if (key == null || key.isBlank()) {
-                reject(record, RejectReason.MISSING, "key: a tombstone must be keyed by the experiment id", source);
+                reject(record, RejectReason.codeOf(Reason.MISSING),
+                        "key: a tombstone must be keyed by the experiment id", source);
             } else {
                 pass(record, StageTwo.ended(key));
             }
@@ -38,13 +40,14 @@ final class DefinitionValidator extends ContextualProcessor<byte[], byte[], byte
         }
         Decoded<ExperimentDefinition> decoded = codec.decode(record.value(), Math.max(0L, record.timestamp()));
         if (!decoded.isValid()) {
-            reject(record, RejectReason.of(decoded.reason()), Rejections.describe(decoded.problems()), source);
+            reject(record, RejectReason.codeOf(decoded.reason()), Rejections.describe(decoded.problems()), source);
             return;
         }
         ExperimentDefinition definition = decoded.orThrow();
         if (!definition.getExperimentId().equals(key)) {
-            reject(record, RejectReason.KEY_MISMATCH, "key: " + (key == null ? "missing" : EventValidator.quote(key))
-                    + " differs from experimentId " + EventValidator.quote(definition.getExperimentId()), source);
+            String shown = key == null ? "missing" : EventValidator.quote(key);
+            reject(record, RejectReason.KEY_MISMATCH.code(), "key: " + shown + " differs from experimentId "
+                    + EventValidator.quote(definition.getExperimentId()), source);
             return;
         }
         pass(record, StageTwo.definition(definition));
@@ -55,7 +58,7 @@ final class DefinitionValidator extends ContextualProcessor<byte[], byte[], byte
                 record.timestamp(), new RecordHeaders()));
     }
 
-    private void reject(Record<byte[], byte[]> record, RejectReason reason, String message, Source source) {
+    private void reject(Record<byte[], byte[]> record, String reason, String message, Source source) {
         context().forward(rejections.routed(record.key(), record.value(), record.timestamp(), reason, message, source));
     }
 }

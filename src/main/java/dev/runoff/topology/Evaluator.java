@@ -4,6 +4,7 @@ import dev.runoff.engine.AllocationEngine;
 import dev.runoff.engine.Arm;
 import dev.runoff.engine.Evaluation;
 import dev.runoff.engine.allocation.GuardFlag;
+import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.posterior.Posterior;
 import dev.runoff.engine.stopping.Decision;
 import dev.runoff.engine.stopping.StoppingRule;
@@ -35,6 +36,9 @@ import java.util.List;
  * evaluating again.
  */
 public final class Evaluator {
+
+    /** Largest rounding error of a probability of being best that {@link #bounded} absorbs. */
+    public static final double ROUNDING = 1e-9;
 
     private final AllocationEngine engine = new AllocationEngine();
     private final int draws;
@@ -69,7 +73,8 @@ public final class Evaluator {
         List<Posterior> posteriors = evaluation.posteriors().stream().map(Evaluation.PosteriorSummary::posterior)
                 .toList();
         long start = state.startedAt() < 0 ? now : Math.min(state.startedAt(), now);
-        Decision decision = StoppingRule.decide(arms, evaluation.probabilityBest(),
+        ProbabilityBest best = bounded(evaluation.probabilityBest());
+        Decision decision = StoppingRule.decide(arms, best,
                 new Timing(Instant.ofEpochMilli(start), Instant.ofEpochMilli(now)), DefinitionConfigs.stopping(def),
                 LeaderWithin.of(posteriors));
         double[] weights = evaluation.weights();
@@ -80,8 +85,8 @@ public final class Evaluator {
             stop = new ExperimentState.Stop(decision.leaderName(), def.getVersion(), def.getArms(), weights);
             guards.add(Guard.AFTER_STOP);
         }
-        DecisionRecord record = HashChain.seal(Records.decision(state, sequence, now, evaluation, decision, weights,
-                guards), state.lastHash());
+        DecisionRecord record = HashChain.seal(Records.decision(state, sequence, now, evaluation, best, decision,
+                weights, guards), state.lastHash());
         ExperimentState next = state.evaluated(now, record.getHash(), weights, stop);
         AllocationUpdate update = stop == null
                 ? Records.update(next, def.getVersion(), def.getArms(), weights, now, ExperimentStatus.RUNNING, null)
@@ -107,6 +112,24 @@ public final class Evaluator {
         ExperimentState.Stop stop = next.stop();
         return Records.update(next, stop.definitionVersion(), stop.arms(), stop.weights(), now,
                 ExperimentStatus.STOPPED, stop.winner());
+    }
+
+    /**
+     * The engine's probabilities of being best with values that numerical integration put at most
+     * {@value #ROUNDING} outside [0, 1] moved onto the bound (measured: 1 + 4.7e-11 for a dominant arm). The
+     * stopping rule and the decision record see these values; the engine's weights are computed from its
+     * own. Values further outside are left as they are, for the stopping rule to reject.
+     */
+    public static ProbabilityBest bounded(ProbabilityBest best) {
+        double[] alpha = best.alpha();
+        for (int i = 0; i < alpha.length; i++) {
+            if (alpha[i] > 1 && alpha[i] <= 1 + ROUNDING) {
+                alpha[i] = 1.0;
+            } else if (alpha[i] < 0 && alpha[i] >= -ROUNDING) {
+                alpha[i] = 0.0;
+            }
+        }
+        return new ProbabilityBest(alpha, best.standardError(), best.method(), best.draws());
     }
 
     /** The guards that changed the weights, in the order the engine applies them. */
@@ -145,7 +168,7 @@ public final class Evaluator {
         }
 
         static DecisionRecord decision(ExperimentState state, long sequence, long now, Evaluation evaluation,
-                                       Decision decision, double[] weights, List<Guard> guards) {
+                                       ProbabilityBest best, Decision decision, double[] weights, List<Guard> guards) {
             ExperimentDefinition def = state.definition();
             return DecisionRecord.newBuilder()
                     .setExperimentId(state.experimentId())
@@ -153,7 +176,7 @@ public final class Evaluator {
                     .setSequence(sequence)
                     .setStreamTime(now)
                     .setDefinition(def)
-                    .setArms(ArmStates.of(state, evaluation, weights))
+                    .setArms(ArmStates.of(state, evaluation, best, weights))
                     .setAllocationRule(dev.runoff.records.avro.AllocationRule.valueOf(evaluation.rule().name()))
                     .setAllocationBeta(evaluation.beta())
                     .setGuards(guards)
@@ -167,7 +190,7 @@ public final class Evaluator {
                     .setStatistic(decision.statistic())
                     .setThreshold(decision.threshold())
                     .setSeed(evaluation.seed())
-                    .setDraws(evaluation.probabilityBest().draws())
+                    .setDraws(best.draws())
                     .setMethod(dev.runoff.records.avro.EstimationMethod.valueOf(evaluation.method().name()))
                     .setEngineVersion(evaluation.engineVersion())
                     .setPreviousHash(state.lastHash())

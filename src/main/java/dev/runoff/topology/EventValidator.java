@@ -1,6 +1,7 @@
 package dev.runoff.topology;
 
 import dev.runoff.records.Decoded;
+import dev.runoff.records.Reason;
 import dev.runoff.records.RecordCodec;
 import dev.runoff.records.avro.OutcomeEvent;
 import org.apache.kafka.common.header.internals.RecordHeaders;
@@ -15,6 +16,8 @@ import org.apache.kafka.streams.processor.api.Record;
  * events go on keyed by experiment and unit; the others to the rejected topic with their reason.
  */
 final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], Routed<UnitEvent>> {
+
+    private static final int MAX_QUOTED = 64;
 
     private final RecordCodec<OutcomeEvent> codec = RecordCodec.outcomeEvents();
     private final String definitionsStore;
@@ -37,14 +40,14 @@ final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], R
         Source source = Source.of(context().recordMetadata());
         Decoded<OutcomeEvent> decoded = codec.decode(record.value(), Math.max(0L, context().currentSystemTimeMs()));
         if (!decoded.isValid()) {
-            reject(record, RejectReason.of(decoded.reason()), Rejections.describe(decoded.problems()), source);
+            reject(record, RejectReason.codeOf(decoded.reason()), Rejections.describe(decoded.problems()), source);
             return;
         }
         OutcomeEvent event = decoded.orThrow();
         DefinitionLookup.Lookup lookup = definitions.find(event.getExperimentId());
         if (lookup.status() != DefinitionLookup.Status.FOUND) {
             boolean ended = lookup.status() == DefinitionLookup.Status.ENDED;
-            reject(record, ended ? RejectReason.EXPERIMENT_ENDED : RejectReason.UNKNOWN_EXPERIMENT,
+            reject(record, ended ? RejectReason.EXPERIMENT_ENDED.code() : RejectReason.UNKNOWN_EXPERIMENT.code(),
                     "experimentId: experiment " + quote(event.getExperimentId())
                             + (ended ? " has ended (its definition was deleted)" : " has no accepted definition"),
                     source);
@@ -57,16 +60,17 @@ final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], R
         UnitEvent.Role role = view.role(event.getType());
         String arm = event.getArm();
         if (role == null) {
-            reject(record, RejectReason.EVENT_NOT_USED, "type: " + event.getType() + " is not used by the metric of "
-                    + "experiment " + quote(view.experimentId()) + " (" + view.describeEvents() + ")", source);
+            reject(record, RejectReason.EVENT_NOT_USED.code(), "type: " + event.getType()
+                    + " is not used by the metric of experiment " + quote(view.experimentId()) + " ("
+                    + view.describeEvents() + ")", source);
         } else if (arm != null && !view.arms().contains(arm)) {
-            reject(record, RejectReason.UNKNOWN_ARM, "arm: " + quote(arm) + " is not an arm of experiment "
+            reject(record, RejectReason.UNKNOWN_ARM.code(), "arm: " + quote(arm) + " is not an arm of experiment "
                     + quote(view.experimentId()) + " (version " + view.version() + ")", source);
         } else if (role == UnitEvent.Role.TRIAL && arm == null) {
-            reject(record, RejectReason.MISSING_ARM, "arm: missing (the trial event " + event.getType()
+            reject(record, RejectReason.MISSING_ARM.code(), "arm: missing (the trial event " + event.getType()
                     + " must name its arm)", source);
         } else if (role == UnitEvent.Role.VALUE && event.getValue() == null) {
-            reject(record, RejectReason.MISSING_VALUE, "value: missing (the value event " + event.getType()
+            reject(record, RejectReason.MISSING_VALUE.code(), "value: missing (the value event " + event.getType()
                     + " of experiment " + quote(view.experimentId()) + " must carry a value)", source);
         } else {
             UnitEvent valid = new UnitEvent(event.getExperimentId(), event.getUnitId(), event.getEventId(), role,
@@ -77,13 +81,20 @@ final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], R
         }
     }
 
-    private void reject(Record<byte[], byte[]> record, RejectReason reason, String message, Source source) {
+    private void reject(Record<byte[], byte[]> record, String reason, String message, Source source) {
         context().forward(rejections.routed(record.key(), record.value(), record.timestamp(), reason, message, source));
     }
 
-    /** {@code text} in single quotes, cut to 64 chars, for messages. */
+    /**
+     * {@code text} in single quotes for a message: cut to 64 chars, control characters escaped, so that a
+     * hostile key cannot flood or forge a header or a log line.
+     */
     static String quote(String text) {
-        String cut = text.length() > 64 ? text.substring(0, 64) + "..." : text;
-        return "'" + cut + "'";
+        StringBuilder out = new StringBuilder("'");
+        for (int i = 0; i < Math.min(text.length(), MAX_QUOTED); i++) {
+            char c = text.charAt(i);
+            out.append(Character.isISOControl(c) ? String.format("\\u%04x", (int) c) : String.valueOf(c));
+        }
+        return out.append(text.length() > MAX_QUOTED ? "...'" : "'").toString();
     }
 }

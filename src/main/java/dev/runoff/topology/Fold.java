@@ -113,18 +113,18 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
         StageTwo delta = record.value();
         ExperimentState current = experiments.get(delta.experimentId());
         if (current == null) {
-            rejectDelta(record, RejectReason.DELTA_UNKNOWN_EXPERIMENT, "experimentId: no experiment "
+            rejectDelta(record, RejectReason.DELTA_UNKNOWN_EXPERIMENT.code(), "experimentId: no experiment "
                     + EventValidator.quote(delta.experimentId()) + " is held (ended or never defined)");
             return;
         }
         if (Stats.metric(delta.stats()) != current.metric()) {
-            rejectDelta(record, RejectReason.DELTA_METRIC_MISMATCH, "stats: " + Stats.metric(delta.stats())
+            rejectDelta(record, RejectReason.DELTA_METRIC_MISMATCH.code(), "stats: " + Stats.metric(delta.stats())
                     + " statistics for an experiment whose metric is " + current.metric());
             return;
         }
         int index = current.definition().getArms().indexOf(delta.arm());
         if (index < 0) {
-            rejectDelta(record, RejectReason.DELTA_UNKNOWN_ARM, "arm: " + EventValidator.quote(delta.arm())
+            rejectDelta(record, RejectReason.DELTA_UNKNOWN_ARM.code(), "arm: " + EventValidator.quote(delta.arm())
                     + " is not an arm of version " + current.definition().getVersion());
             return;
         }
@@ -195,12 +195,12 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
             experiments.put(id, state.failed(now));
             ObjectNode body = JSON.createObjectNode().put("experimentId", id)
                     .put("definitionVersion", state.definition().getVersion()).put("error", String.valueOf(e));
-            context().forward(rejections.emit(utf8(id), utf8(body.toString()), now, RejectReason.EVALUATION_ERROR,
-                    "evaluation: " + e, Source.NONE));
+            context().forward(rejections.emit(utf8(id), utf8(body.toString()), now,
+                    RejectReason.EVALUATION_ERROR.code(), "evaluation: " + e, Source.NONE));
         }
     }
 
-    private void rejectDelta(Record<byte[], StageTwo> record, RejectReason reason, String message) {
+    private void rejectDelta(Record<byte[], StageTwo> record, String reason, String message) {
         StageTwo delta = record.value();
         ObjectNode body = JSON.createObjectNode().put("experimentId", delta.experimentId()).put("arm", delta.arm());
         ArmStats stats = delta.stats();

@@ -22,9 +22,9 @@ public final class JobCounters {
         // nothing counted yet
     }
 
-    /** Counts one rejection for {@code reason}. */
-    public void rejected(RejectReason reason) {
-        add(reason.code());
+    /** Counts one rejection with reason code {@code code}. */
+    public void rejected(String code) {
+        add(code);
     }
 
     /** Counts one dropped duplicate. */

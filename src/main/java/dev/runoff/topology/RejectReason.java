@@ -3,47 +3,12 @@ package dev.runoff.topology;
 import java.util.Locale;
 
 /**
- * Why the job set a record aside: the stable code in the {@code runoff.reason} header of the rejected topic
- * and the key of {@link JobCounters}. The code is the constant's name in lower case with hyphens, e.g.
- * {@code unknown-experiment}.
+ * Why the job set a record aside, beyond the problems the records package finds while reading a record
+ * (those keep their {@link dev.runoff.records.Reason}, see {@link #codeOf}). The code is the stable value of
+ * the {@code runoff.reason} header of the rejected topic and the key of {@link JobCounters}: the constant's
+ * name in lower case with hyphens, e.g. {@code unknown-experiment}, {@code malformed-json}.
  */
 public enum RejectReason {
-    /** A null or empty value where a record was expected (an outcome tombstone, say). */
-    EMPTY,
-    /** The record exceeds a size limit (bytes, JSON depth, token length). */
-    TOO_LARGE,
-    /** Not a single well-formed JSON object. */
-    MALFORMED_JSON,
-    /** Avro single-object bytes that are truncated, corrupt or followed by extra bytes. */
-    MALFORMED_AVRO,
-    /** Avro single-object bytes with a schema fingerprint the job does not know. */
-    UNKNOWN_SCHEMA,
-    /** A required field is absent or null. */
-    MISSING,
-    /** A field of the wrong type. */
-    WRONG_TYPE,
-    /** A JSON field the definition schema does not know. */
-    UNKNOWN_FIELD,
-    /** A value outside an enumeration, e.g. an unknown event type. */
-    UNKNOWN_VALUE,
-    /** A string longer than the limit. */
-    TOO_LONG,
-    /** A blank string, control characters or invalid Unicode. */
-    INVALID_TEXT,
-    /** NaN or an infinity. */
-    NOT_FINITE,
-    /** A number out of range (a negative timestamp, a probability above 1...). */
-    OUT_OF_RANGE,
-    /** A list with too few items. */
-    TOO_FEW,
-    /** A list with too many items. */
-    TOO_MANY,
-    /** A name that appears twice. */
-    DUPLICATE,
-    /** A time too far in the future, or a deadline already past. */
-    BAD_TIME,
-    /** Fields that contradict each other. */
-    INCONSISTENT,
     /** The event names an experiment that has no accepted definition. */
     UNKNOWN_EXPERIMENT,
     /** The event names an experiment whose definition was deleted (tombstone). */
@@ -83,11 +48,15 @@ public enum RejectReason {
 
     /** The stable code, e.g. {@code unknown-experiment}. */
     public String code() {
-        return name().toLowerCase(Locale.ROOT).replace('_', '-');
+        return code(name());
     }
 
-    /** The reason for a problem the records package found. */
-    public static RejectReason of(dev.runoff.records.Reason reason) {
-        return valueOf(reason.name());
+    /** The code of a problem the records package found, e.g. {@code malformed-json}, {@code bad-time}. */
+    public static String codeOf(dev.runoff.records.Reason reason) {
+        return code(reason.name());
+    }
+
+    private static String code(String name) {
+        return name.toLowerCase(Locale.ROOT).replace('_', '-');
     }
 }

@@ -10,8 +10,9 @@ import org.apache.kafka.streams.processor.api.Record;
 
 /**
  * Records for the rejected topic: the original bytes as the value, the original key, and three headers:
- * {@value #REASON_HEADER} (a {@link RejectReason} code), {@value #MESSAGE_HEADER} (what is wrong, naming the
- * field) and {@value #SOURCE_HEADER} ({@code topic/partition/offset} of the input). Each rejection is counted.
+ * {@value #REASON_HEADER} (a reason code, see {@link RejectReason}), {@value #MESSAGE_HEADER} (what is wrong,
+ * naming the field) and {@value #SOURCE_HEADER} ({@code topic/partition/offset} of the input). Each
+ * rejection is counted.
  */
 final class Rejections {
 
@@ -33,20 +34,20 @@ final class Rejections {
     }
 
     /** A rejection to forward from a processor whose output is {@link Routed}. */
-    <V> Record<byte[], Routed<V>> routed(byte[] key, byte[] value, long timestamp, RejectReason reason,
-                                          String message, Source source) {
+    <V> Record<byte[], Routed<V>> routed(byte[] key, byte[] value, long timestamp, String reason, String message,
+                                          Source source) {
         return new Record<>(key, Routed.emit(new Emit(topic, value)), timestamp, count(reason, message, source));
     }
 
     /** A rejection to forward from a processor whose output is {@link Emit}. */
-    Record<byte[], Emit> emit(byte[] key, byte[] value, long timestamp, RejectReason reason, String message,
+    Record<byte[], Emit> emit(byte[] key, byte[] value, long timestamp, String reason, String message,
                               Source source) {
         return new Record<>(key, new Emit(topic, value), timestamp, count(reason, message, source));
     }
 
-    private Headers count(RejectReason reason, String message, Source source) {
+    private Headers count(String reason, String message, Source source) {
         counters.rejected(reason);
-        return headers(reason.code(), message, source.describe());
+        return headers(reason, message, source.describe());
     }
 
     /** The three headers. */

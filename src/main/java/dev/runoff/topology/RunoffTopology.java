@@ -113,7 +113,8 @@ public final class RunoffTopology {
         KStream<byte[], byte[]> outcomes = builder.stream(settings.outcomesTopic(),
                 Consumed.with(Serdes.ByteArray(), Serdes.ByteArray()).withName("outcomes"));
         KStream<byte[], UnitEvent> events = divert(outcomes.process(
-                () -> new EventValidator(DEFINITIONS_STORE, rejections), Named.as("validate-events")), "validate-events");
+                () -> new EventValidator(DEFINITIONS_STORE, rejections), Named.as("validate-events")),
+                "validate-events");
         KStream<byte[], ArmDelta> attributed = divert(events
                 .repartition(Repartitioned.with(Serdes.ByteArray(), UnitEvent.SERDE).withName("events-by-unit"))
                 .process(() -> new Dedupe(DEDUPE_STORE, settings.dedupeWindowMs(), counters), Named.as("dedupe"),

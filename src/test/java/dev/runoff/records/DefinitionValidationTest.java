@@ -41,6 +41,8 @@ class DefinitionValidationTest {
                 broken("control share plus floors above 1", d -> d.getAllocation().setControlShare(0.97),
                         "allocation.controlShare", Reason.INCONSISTENT,
                         "0.97 plus floor 0.02 for each of the other 2 arms exceeds 1"),
+                broken("control share below the floor", d -> d.getAllocation().setControlShare(0.01),
+                        "allocation.controlShare", Reason.INCONSISTENT, "0.01 is below the floor 0.02"),
                 broken("control share without control arm", d -> d.setControlArm(null), "allocation.controlShare",
                         Reason.INCONSISTENT, "needs a controlArm"),
                 broken("control arm not among the arms", d -> d.setControlArm("red"), "controlArm",

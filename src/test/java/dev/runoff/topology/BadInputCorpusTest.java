@@ -112,6 +112,8 @@ class BadInputCorpusTest {
                         utf8(DEFINITION.replace("\"deadline\":null", "\"deadline\":1000")), "bad-time",
                         "stopping.deadline"),
                 definition("key differs from experimentId", "corpus", utf8(DEFINITION), "key-mismatch", "key"),
+                definition("key with a line break", "other\nFAKE LOG LINE", utf8(DEFINITION), "key-mismatch",
+                        "'other\\u000aFAKE LOG LINE'"),
                 definition("definition redefining the running experiment with a NaN delta", ID,
                         utf8(CanonicalJson.of(Defs.bernoulli(ID, "a", "b")).replace("\"delta\":0.05",
                                 "\"delta\":NaN")), "not-finite", "stopping.delta"),

@@ -58,7 +58,8 @@ final class BrokerFixture {
                 ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers(),
                 ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed",
                 ConsumerConfig.AUTO_OFFSET_RESET_CONFIG, "earliest",
-                ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, "false"), new StringDeserializer(), new ByteArrayDeserializer());
+                ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, "false"), new StringDeserializer(),
+                new ByteArrayDeserializer());
         List<TopicPartition> partitions = consumer.partitionsFor(topic).stream()
                 .map(p -> new TopicPartition(topic, p.partition())).toList();
         consumer.assign(partitions);

@@ -6,17 +6,13 @@ import static org.junit.jupiter.api.Assertions.assertNull;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.nio.charset.StandardCharsets;
-import java.nio.file.Path;
 import java.time.Duration;
 import java.time.Instant;
 import java.util.List;
-import java.util.Map;
 import java.util.Properties;
-import java.util.UUID;
 import java.util.concurrent.atomic.AtomicBoolean;
 import org.apache.kafka.common.serialization.Serdes;
 import org.apache.kafka.streams.StreamsBuilder;
-import org.apache.kafka.streams.StreamsConfig;
 import org.apache.kafka.streams.TestInputTopic;
 import org.apache.kafka.streams.TestOutputTopic;
 import org.apache.kafka.streams.Topology;
@@ -82,9 +78,7 @@ class DeadLetterHandlersTest {
     }
 
     private static TopologyTestDriver driver(JobCounters counters) {
-        Properties props = RunoffTopology.streamsConfig(TopologyFixture.SETTINGS, counters, Map.of(
-                StreamsConfig.APPLICATION_ID_CONFIG, "handlers", StreamsConfig.BOOTSTRAP_SERVERS_CONFIG, "ttd:9092",
-                StreamsConfig.STATE_DIR_CONFIG, Path.of("target", "ttd-state", UUID.randomUUID().toString()).toString()));
+        Properties props = TopologyFixture.driverConfig(TopologyFixture.SETTINGS, counters, "handlers");
         return new TopologyTestDriver(flakyTopology(), props, Instant.ofEpochMilli(TopologyFixture.T0));
     }
 

@@ -1,10 +1,12 @@
 package dev.runoff.topology;
 
+import static org.junit.jupiter.api.Assertions.assertArrayEquals;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertNull;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
 import dev.runoff.records.Decoded;
@@ -68,6 +70,27 @@ class ExperimentStateTest {
         assertEquals(stop.next().decisionSequence(), again.next().decisionSequence());
         assertEquals("experiment 'e' has stopped; use heartbeat", assertThrows(IllegalStateException.class,
                 () -> evaluator.evaluate(stop.next(), NOW + 2)).getMessage());
+    }
+
+    @Test
+    void dominantArmWhoseIntegratedAlphaRoundsAboveOneIsEvaluated() {
+        // Statistics for which the exact integration gave alpha 1.000000000047101 for arm c (measured).
+        long[][] arms = {{10_166, 473}, {17_765, 1_501}, {18_456, 2_032}, {14_672, 984}, {9_936, 339}};
+        ExperimentState state = ExperimentState.start(version(Defs.bernoulli("e", "a", "b", "c", "d", "e"), 1));
+        for (int i = 0; i < arms.length; i++) {
+            state = state.withDelta(i, new BernoulliStats(arms[i][0], arms[i][1]), NOW);
+        }
+        DecisionRecord record = new Evaluator(100).evaluate(state, NOW).decision();
+        assertEquals(1.0, record.getArms().get(2).getAlpha());
+        assertTrue(RecordCodec.decisionRecords().validate(record, NOW).isValid());
+        Replay.assertReplays(record, null);
+    }
+
+    @Test
+    void boundedMovesOnlyRoundingErrorsOntoTheUnitInterval() {
+        ProbabilityBest raw = new ProbabilityBest(new double[] {1 + 1e-10, -1e-10, 1 + 1e-6, 0.5}, new double[4],
+                ProbabilityBest.Method.EXACT, 0);
+        assertArrayEquals(new double[] {1.0, 0.0, 1 + 1e-6, 0.5}, Evaluator.bounded(raw).alpha());
     }
 
     private static ExperimentDefinition version(ExperimentDefinition def, long version) {

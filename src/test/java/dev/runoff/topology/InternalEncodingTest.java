@@ -39,7 +39,8 @@ class InternalEncodingTest {
         assertArrayEquals(event.originalValue(), back.originalValue());
         for (StageTwo s : List.of(StageTwo.delta(new ArmDelta("e", "a", new ValueStats(3, 1.5, 0.25))),
                 StageTwo.definition(Defs.value("e", "a", "b")), StageTwo.ended("e"))) {
-            assertEquals(s, StageTwo.SERDE.deserializer().deserialize("t", StageTwo.SERDE.serializer().serialize("t", s)));
+            byte[] bytes = StageTwo.SERDE.serializer().serialize("t", s);
+            assertEquals(s, StageTwo.SERDE.deserializer().deserialize("t", bytes));
         }
     }
 

@@ -110,7 +110,8 @@ class RecomputationTest {
                     long t = job.clock();
                     job.event(unit, Events.exposure(id, unit, unit + "x", name, t));
                     if (value) {
-                        job.event(unit, Events.value(id, unit, unit + "v", null, t, rates[arm] + random.nextGaussian()));
+                        double v = rates[arm] + random.nextGaussian();
+                        job.event(unit, Events.value(id, unit, unit + "v", null, t, v));
                     } else if (random.nextDouble() < rates[arm]) {
                         job.event(unit, Events.click(id, unit, unit + "c", null, t));
                     }

@@ -113,7 +113,8 @@ class RunoffTopologyBrokerTest {
 
     @Test
     void exceptionHandlersDeadLetterOnTheRealBroker() throws Exception {
-        TopologySettings flaky = TopologySettings.fromMap(Map.of(TopologySettings.REJECTED_TOPIC_KEY, "flaky.rejected"));
+        TopologySettings flaky = TopologySettings.fromMap(Map.of(TopologySettings.REJECTED_TOPIC_KEY,
+                "flaky.rejected"));
         broker.createTopic("in", 1, Map.of());
         broker.createTopic("out", 1, Map.of());
         broker.createTopic("flaky.rejected", 1, Map.of());
@@ -136,7 +137,8 @@ class RunoffTopologyBrokerTest {
                         && reasons(r).contains("punctuation-error"), TIMEOUT), "dead letters: " + reasons(dead));
             }
             ConsumerRecord<String, byte[]> boom = dead.stream()
-                    .filter(r -> "processing-error".equals(header(r, Rejections.REASON_HEADER))).findFirst().orElseThrow();
+                    .filter(r -> "processing-error".equals(header(r, Rejections.REASON_HEADER))).findFirst()
+                    .orElseThrow();
             assertEquals("boom", boom.key());
             assertEquals("boom", new String(boom.value(), StandardCharsets.UTF_8));
             List<ConsumerRecord<String, byte[]>> out = new ArrayList<>();

@@ -55,10 +55,7 @@ final class TopologyFixture implements AutoCloseable {
 
     TopologyFixture(TopologySettings settings) {
         this.settings = settings;
-        Properties props = RunoffTopology.streamsConfig(settings, counters, Map.of(
-                StreamsConfig.APPLICATION_ID_CONFIG, "runoff-ttd",
-                StreamsConfig.BOOTSTRAP_SERVERS_CONFIG, "ttd:9092",
-                StreamsConfig.STATE_DIR_CONFIG, Path.of("target", "ttd-state", UUID.randomUUID().toString()).toString()));
+        Properties props = driverConfig(settings, counters, "runoff-ttd");
         driver = new TopologyTestDriver(RunoffTopology.build(settings, props, counters), props,
                 Instant.ofEpochMilli(T0));
         ByteArraySerializer bytes = new ByteArraySerializer();
@@ -72,6 +69,15 @@ final class TopologyFixture implements AutoCloseable {
         decisions = driver.createOutputTopic(settings.decisionsTopic(), keys, values);
         rejected = driver.createOutputTopic(settings.rejectedTopic(), keys, values);
         accepted = driver.createOutputTopic(settings.acceptedDefinitionsTopic(), keys, values);
+    }
+
+    /** The job's streams settings for a test driver, with a fresh state directory under {@code target/}. */
+    static Properties driverConfig(TopologySettings settings, JobCounters counters, String application) {
+        return RunoffTopology.streamsConfig(settings, counters, Map.of(
+                StreamsConfig.APPLICATION_ID_CONFIG, application,
+                StreamsConfig.BOOTSTRAP_SERVERS_CONFIG, "ttd:9092",
+                StreamsConfig.STATE_DIR_CONFIG, Path.of("target", "ttd-state", UUID.randomUUID().toString())
+                        .toString()));
     }
 
     JobCounters counters() {

@@ -52,8 +52,10 @@ class TopologySettingsTest {
         assertMessage("runoff.allocate.max.visits must be at most 2147483647, got 3000000000",
                 Map.of(TopologySettings.ALLOCATE_MAX_VISITS_KEY, 3_000_000_000L));
         assertMessage("runoff.topic.decisions = 'runoff.allocations' is already used by another runoff.topic.* "
-                + "setting; every topic must differ", Map.of(TopologySettings.DECISIONS_TOPIC_KEY, "runoff.allocations"));
-        assertMessage("runoff.topic.rejected must name a topic, got ''", Map.of(TopologySettings.REJECTED_TOPIC_KEY, " "));
+                + "setting; every topic must differ",
+                Map.of(TopologySettings.DECISIONS_TOPIC_KEY, "runoff.allocations"));
+        assertMessage("runoff.topic.rejected must name a topic, got ''",
+                Map.of(TopologySettings.REJECTED_TOPIC_KEY, " "));
     }
 
     private static void assertMessage(String expected, Map<String, ?> config) {
