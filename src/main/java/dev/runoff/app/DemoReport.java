@@ -97,12 +97,18 @@ final class DemoReport {
             out.printf(Locale.ROOT, "no STOP within %d s (%d decisions); the hidden best layout is %s%n",
                     o.maxSeconds(), s.periods(), s.trueBest());
         }
-        out.printf(Locale.ROOT, "  traffic spent: %,d visitors counted at the last decision (%,d sent)%n", s.trials(),
-                s.visitorsSent());
-        out.printf(Locale.ROOT, "  planner predictions for these hidden rates at delta %s (leading term T*(w) log(1/delta),"
-                + " Garivier & Kaufmann 2016; predictions, not measurements):%n", o.delta());
-        out.printf(Locale.ROOT, "    uniform split %,.0f visitors, optimal split %,.0f, top-two target (beta 1/2) %,.0f%n",
+        out.printf(Locale.ROOT, "  traffic spent: %,d visitors counted at the last decision (%,d sent)%s%n", s.trials(),
+                s.visitorsSent(), s.stopped() ? String.format(Locale.ROOT, ", %,d (%.0f%%) of them on %s",
+                        s.winnerTrials(), 100.0 * s.winnerTrials() / Math.max(1, s.trials()), s.winner()) : "");
+        out.printf(Locale.ROOT, "  planner predictions for these hidden rates at delta %s (predictions, not measurements):%n",
+                o.delta());
+        out.printf(Locale.ROOT, "    uniform split %,.0f visitors; optimal split %,.0f; top-two target (beta 1/2) %,.0f%n",
                 s.predictedUniform(), s.predictedOptimal(), s.predictedTopTwo());
+        out.printf(Locale.ROOT, "    (leading term T*(w) log(1/delta), Garivier & Kaufmann 2016: the GLR threshold the job"
+                + " uses grows with t%s, so every split needs more; read the ratio: a uniform split needs about"
+                + " %.2fx the optimal traffic)%n", last == null || last.getThreshold() == null ? ""
+                        : String.format(Locale.ROOT, ", %.2f at the end against log(1/delta) = %.2f", last.getThreshold(),
+                                -Math.log(o.delta())), s.predictedUniform() / s.predictedOptimal());
         out.printf(Locale.ROOT, "  audit: %d decision records on topic %s (hash chain %s)%s%n", s.periods(),
                 s.decisionsTopic(), s.chainIntact() ? "verified" : "BROKEN", s.exported() == null
                         ? "; the demo broker is deleted at exit (--export-decisions FILE keeps them)"
@@ -118,6 +124,7 @@ final class DemoReport {
         line.put("winnerPBest", s.stopped() ? s.winnerProbability() : null);
         line.put("statistic", s.last() == null ? null : s.last().getStatistic());
         line.put("threshold", s.last() == null ? null : s.last().getThreshold());
+        line.put("winnerTrials", s.stopped() ? s.winnerTrials() : null);
         line.put("decisions", s.periods()).put("elapsedMs", s.elapsedMs()).put("trials", s.trials())
                 .put("visitorsSent", s.visitorsSent()).put("delta", o.delta()).put("seed", o.seed());
         ObjectNode predicted = line.putObject("predictedTrials");

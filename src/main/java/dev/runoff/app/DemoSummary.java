@@ -52,6 +52,12 @@ public record DemoSummary(DecisionRecord last, int periods, long elapsedMs, long
         return last == null ? 0 : last.getArms().stream().mapToLong(ArmState::getTrials).sum();
     }
 
+    /** Trials of the winner at the last decision (0 without a winner). */
+    public long winnerTrials() {
+        return !stopped() ? 0 : last.getArms().stream().filter(a -> a.getArm().equals(last.getWinner()))
+                .mapToLong(ArmState::getTrials).sum();
+    }
+
     /** Posterior probability that the winner is best, at the last decision ({@code NaN} without a winner). */
     public double winnerProbability() {
         if (!stopped()) {
