@@ -74,7 +74,12 @@ public final class Demo {
         DemoScenario scenario = new DemoScenario(options.arms());
         JobConfig config = startCluster();
         StreamsJob job = closer.register(StreamsJob.start(config));
-        awaitRunning(job);
+        Waiting.until("the job reaching RUNNING", START_TIMEOUT, () -> {
+            if (job.failed()) {
+                throw new IllegalStateException("the job failed while starting (state " + job.state() + ")");
+            }
+            return job.state() == KafkaStreams.State.RUNNING;
+        });
         report.note("job RUNNING; its HTTP endpoint: http://127.0.0.1:" + job.httpPort() + "/experiments/"
                 + DemoScenario.EXPERIMENT_ID + " (also /metrics, /health, /ready)");
         new DefinitionsClient(config, Duration.ofSeconds(30)).put(scenario.definition(options.periodMs(),
@@ -82,7 +87,9 @@ public final class Demo {
         report.note("experiment " + DemoScenario.EXPERIMENT_ID + ": a ferry operator's booking page tests "
                 + scenario.layouts().size() + " fare-table layouts " + scenario.layouts()
                 + "; true booking rates hidden");
-        awaitAccepted(job);
+        // until the job validates the experiment's events, it would reject the first visitors as unknown
+        Waiting.until("the job accepting the demo experiment", START_TIMEOUT,
+                () -> job.accepts(DemoScenario.EXPERIMENT_ID));
         DemoFeed feed = closer.register(new DemoFeed(config, DemoScenario.EXPERIMENT_ID, clock));
         TrafficGenerator visitors = new TrafficGenerator(DemoScenario.EXPERIMENT_ID, scenario.layouts(),
                 scenario.rates(), options.seed());
@@ -121,29 +128,6 @@ public final class Demo {
         s.put(AppSettings.ROCKSDB_CACHE_KEY, String.valueOf(16L << 20));
         s.put(AppSettings.MEMTABLE_KEY, String.valueOf(4L << 20));
         return s;
-    }
-
-    private static void awaitRunning(StreamsJob job) throws InterruptedException {
-        long deadline = System.nanoTime() + START_TIMEOUT.toNanos();
-        while (job.state() != KafkaStreams.State.RUNNING) {
-            if (System.nanoTime() > deadline || job.failed()) {
-                throw new IllegalStateException("the job did not reach RUNNING within " + START_TIMEOUT.toSeconds()
-                        + " s (state " + job.state() + ")");
-            }
-            Thread.sleep(50);
-        }
-    }
-
-    /** Waits until the job validates the experiment's events (else the first visitors would be rejected). */
-    private static void awaitAccepted(StreamsJob job) throws InterruptedException {
-        long deadline = System.nanoTime() + START_TIMEOUT.toNanos();
-        while (!job.accepts(DemoScenario.EXPERIMENT_ID)) {
-            if (System.nanoTime() > deadline) {
-                throw new IllegalStateException("the job did not accept the demo experiment within "
-                        + START_TIMEOUT.toSeconds() + " s (see its rejected topic)");
-            }
-            Thread.sleep(50);
-        }
     }
 
     private List<DecisionRecord> loop(DemoFeed feed, TrafficGenerator visitors, DemoScenario scenario)

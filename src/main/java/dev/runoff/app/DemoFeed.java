@@ -93,14 +93,8 @@ final class DemoFeed implements AutoCloseable {
 
     /** Waits up to {@code timeout} for a control record of the experiment. */
     AllocationUpdate awaitControl(Duration timeout) throws InterruptedException {
-        long deadline = System.nanoTime() + timeout.toNanos();
-        while (latestControl() == null) {
-            if (System.nanoTime() > deadline) {
-                throw new IllegalStateException("no weights for " + experimentId + " on the control topic within "
-                        + timeout.toSeconds() + " s");
-            }
-            Thread.sleep(POLL.toMillis());
-        }
+        Waiting.until("weights for " + experimentId + " on the control topic", timeout,
+                () -> latestControl() != null);
         return latest;
     }
 

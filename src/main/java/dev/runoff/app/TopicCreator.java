@@ -2,6 +2,7 @@ package dev.runoff.app;
 
 import java.util.ArrayList;
 import java.util.Collection;
+import java.util.HashSet;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
@@ -17,6 +18,7 @@ import org.apache.kafka.clients.admin.Config;
 import org.apache.kafka.clients.admin.ConfigEntry;
 import org.apache.kafka.clients.admin.NewTopic;
 import org.apache.kafka.clients.admin.TopicDescription;
+import org.apache.kafka.common.KafkaFuture;
 import org.apache.kafka.common.config.ConfigResource;
 import org.apache.kafka.common.errors.TopicExistsException;
 
@@ -107,22 +109,21 @@ public final class TopicCreator {
     }
 
     private Set<String> create(List<NewTopic> missing) {
+        Set<String> created = new HashSet<>();
         if (missing.isEmpty()) {
-            return Set.of();
+            return created;
         }
-        Set<String> created = new java.util.HashSet<>();
-        admin.createTopics(missing).values().forEach((name, future) -> {
+        for (Map.Entry<String, KafkaFuture<Void>> e : admin.createTopics(missing).values().entrySet()) {
             try {
-                future.get(timeoutMs, TimeUnit.MILLISECONDS);
-                created.add(name);
-            } catch (ExecutionException e) {
-                if (!(e.getCause() instanceof TopicExistsException)) {
-                    throw failure("create topic " + name, e.getCause());
+                await(e.getValue(), "create topic " + e.getKey());
+                created.add(e.getKey());
+            } catch (IllegalStateException failed) {
+                if (!(failed.getCause() instanceof TopicExistsException)) {
+                    throw failed;
                 }
-            } catch (InterruptedException | TimeoutException e) {
-                throw failure("create topic " + name, e);
+                // created meanwhile by someone else: reconciled like any existing topic
             }
-        });
+        }
         return created;
     }
 
@@ -144,7 +145,7 @@ public final class TopicCreator {
         return new Outcome(spec.name(), Status.UPDATED, count, note.isEmpty() ? changed : changed + "; " + note);
     }
 
-    private <T> T await(org.apache.kafka.common.KafkaFuture<T> future, String what) {
+    private <T> T await(KafkaFuture<T> future, String what) {
         try {
             return future.get(timeoutMs, TimeUnit.MILLISECONDS);
         } catch (ExecutionException e) {
