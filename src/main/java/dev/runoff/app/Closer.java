@@ -7,14 +7,16 @@ import org.slf4j.LoggerFactory;
 
 /**
  * Closes what was registered, last registered first, once: on {@link #close()} or, when a shutdown hook
- * was installed, when the JVM is asked to stop (Ctrl-C, SIGTERM). A failure to close one resource is logged
- * and does not keep the others open.
+ * was installed, when the JVM is asked to stop (Ctrl-C, SIGTERM); a second closer waits for the first to
+ * finish. A failure to close one resource is logged and does not keep the others open.
  */
 public final class Closer implements AutoCloseable {
 
     private static final Logger LOG = LoggerFactory.getLogger(Closer.class);
 
     private final Deque<AutoCloseable> resources = new ArrayDeque<>();
+    /** Held while closing, so that a hook and the main thread never close in parallel or out of order. */
+    private final Object closing = new Object();
     private Thread hook;
     private boolean closed;
 
@@ -68,16 +70,18 @@ public final class Closer implements AutoCloseable {
     }
 
     private void closeAll() {
-        while (true) {
-            AutoCloseable next;
-            synchronized (this) {
-                closed = true;
-                next = resources.poll();
+        synchronized (closing) {
+            while (true) {
+                AutoCloseable next;
+                synchronized (this) {
+                    closed = true;
+                    next = resources.poll();
+                }
+                if (next == null) {
+                    return;
+                }
+                closeQuietly(next);
             }
-            if (next == null) {
-                return;
-            }
-            closeQuietly(next);
         }
     }
 

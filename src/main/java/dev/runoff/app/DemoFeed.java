@@ -26,7 +26,9 @@ import org.apache.kafka.common.serialization.StringDeserializer;
 
 /**
  * The demo's side of the topics: sends outcome events, follows the control topic for the latest weights of
- * one experiment (as a serving tier does) and the decisions topic for its decision records.
+ * one experiment (as a serving tier does) and the decisions topic for its decision records. The consumers
+ * are used under this object's lock, so {@link #close()} from a shutdown hook waits for a poll in progress
+ * instead of failing.
  */
 final class DemoFeed implements AutoCloseable {
 
@@ -43,6 +45,7 @@ final class DemoFeed implements AutoCloseable {
     private final KafkaConsumer<String, byte[]> decisions;
     private final Deque<DecisionRecord> pending = new ArrayDeque<>();
     private AllocationUpdate latest;
+    private boolean closed;
 
     DemoFeed(JobConfig config, String experimentId, Clock clock) {
         this.experimentId = experimentId;
@@ -79,7 +82,8 @@ final class DemoFeed implements AutoCloseable {
     }
 
     /** The latest control record of the experiment seen so far (reads what arrived), or {@code null}. */
-    AllocationUpdate latestControl() {
+    synchronized AllocationUpdate latestControl() {
+        open();
         for (ConsumerRecord<String, byte[]> r : control.poll(Duration.ZERO)) {
             if (experimentId.equals(r.key()) && r.value() != null) {
                 Decoded<AllocationUpdate> d = CONTROL.decode(r.value(), clock.millis());
@@ -101,14 +105,34 @@ final class DemoFeed implements AutoCloseable {
     /** The next decision record of the experiment, waiting up to {@code timeout}; {@code null} if none came. */
     DecisionRecord nextDecision(Duration timeout) {
         long deadline = System.nanoTime() + timeout.toNanos();
-        while (pending.isEmpty() && System.nanoTime() < deadline) {
-            for (ConsumerRecord<String, byte[]> r : decisions.poll(POLL)) {
-                if (experimentId.equals(r.key()) && r.value() != null) {
-                    pending.add(DECISIONS.decode(r.value(), clock.millis()).orThrow());
-                }
+        while (pendingDecisions() == 0 && System.nanoTime() < deadline) {
+            pollDecisions();
+        }
+        return takeDecision();
+    }
+
+    private synchronized int pendingDecisions() {
+        return pending.size();
+    }
+
+    private synchronized DecisionRecord takeDecision() {
+        return pending.poll();
+    }
+
+    /** One short poll; synchronized so that a shutdown hook's close never overlaps a poll. */
+    private synchronized void pollDecisions() {
+        open();
+        for (ConsumerRecord<String, byte[]> r : decisions.poll(POLL)) {
+            if (experimentId.equals(r.key()) && r.value() != null) {
+                pending.add(DECISIONS.decode(r.value(), clock.millis()).orThrow());
             }
         }
-        return pending.poll();
+    }
+
+    private void open() {
+        if (closed) {
+            throw new IllegalStateException("the demo feed is closed");
+        }
     }
 
     /** The weights of {@code update} in the order of {@code arms}. */
@@ -126,7 +150,10 @@ final class DemoFeed implements AutoCloseable {
     @Override
     public void close() {
         producer.close(Duration.ofSeconds(5));
-        control.close();
-        decisions.close();
+        synchronized (this) {
+            closed = true;
+            control.close();
+            decisions.close();
+        }
     }
 }

@@ -17,7 +17,8 @@ import org.apache.kafka.streams.state.HostInfo;
 /**
  * Reads one experiment's state through interactive queries (IQv2): asks Kafka Streams which partition and
  * instance hold the key ({@code queryMetadataForKey}), queries this instance's active store for that
- * partition, and when another instance is active, names it by its {@code application.server}.
+ * partition, and when another instance is active, names it by its {@code application.server}. Without
+ * {@code application.server} (one instance, the demo) it queries every partition held here.
  */
 final class ExperimentLookup {
 
@@ -41,29 +42,45 @@ final class ExperimentLookup {
         KeyQueryMetadata metadata = streams.queryMetadataForKey(RunoffTopology.EXPERIMENTS_STORE, id,
                 Serdes.String().serializer());
         if (metadata == null || metadata.equals(KeyQueryMetadata.NOT_AVAILABLE)) {
-            return new Lookup.Unavailable("no instance holds the partition of this key yet (rebalancing)");
+            // without application.server Kafka Streams keeps no metadata: this instance answers for itself
+            return self == null ? local(id, null, null)
+                    : new Lookup.Unavailable("no instance holds the partition of this key yet (rebalancing)");
         }
         HostInfo active = metadata.activeHost();
         if (known(active) && self != null && !active.equals(self)) {
             return elsewhere(metadata);
         }
+        return local(id, metadata, Set.of(metadata.partition()));
+    }
+
+    /** Queries this instance's active stores (of {@code partitions}, or all when null). */
+    private Lookup local(String id, KeyQueryMetadata metadata, Set<Integer> partitions) {
         StateQueryRequest<ExperimentState> request = StateQueryRequest.inStore(RunoffTopology.EXPERIMENTS_STORE)
-                .withQuery(KeyQuery.<String, ExperimentState>withKey(id))
-                .withPartitions(Set.of(metadata.partition()))
+                .withQuery(KeyQuery.<String, ExperimentState>withKey(id));
+        request = (partitions == null ? request.withAllPartitions() : request.withPartitions(partitions))
                 .requireActive();
         StateQueryResult<ExperimentState> result = streams.query(request);
-        QueryResult<ExperimentState> partition = result.getPartitionResults().get(metadata.partition());
-        if (partition == null) {
-            return new Lookup.Unavailable("no answer for partition " + metadata.partition());
+        boolean answered = false;
+        QueryResult<ExperimentState> failure = null;
+        for (QueryResult<ExperimentState> partition : result.getPartitionResults().values()) {
+            if (partition.isSuccess()) {
+                answered = true;
+                if (partition.getResult() != null) {
+                    return new Lookup.Found(ExperimentJson.of(partition.getResult()));
+                }
+            } else {
+                failure = partition;
+            }
         }
-        if (partition.isSuccess()) {
-            ExperimentState state = partition.getResult();
-            return state == null ? new Lookup.NotFound() : new Lookup.Found(ExperimentJson.of(state));
+        if (answered) {
+            return new Lookup.NotFound();
         }
-        if (partition.getFailureReason() == FailureReason.NOT_ACTIVE && known(active)) {
+        if (failure != null && failure.getFailureReason() == FailureReason.NOT_ACTIVE && metadata != null
+                && known(metadata.activeHost())) {
             return elsewhere(metadata);
         }
-        return new Lookup.Unavailable(partition.getFailureReason() + ": " + partition.getFailureMessage());
+        return new Lookup.Unavailable(failure == null ? "no partition of the store is held here"
+                : failure.getFailureReason() + ": " + failure.getFailureMessage());
     }
 
     private static Lookup elsewhere(KeyQueryMetadata metadata) {

@@ -78,6 +78,9 @@ final class DemoCommand implements Callable<Integer> {
 
     @Override
     public Integer call() throws InterruptedException {
+        // the demo's own shutdown hook closes the job and the broker, which still log: Log4j's hook must not
+        // stop logging first (set before logging starts)
+        System.setProperty(RunCommand.LOG4J_SHUTDOWN_HOOK, "false");
         DemoOptions options = new DemoOptions(seed, arms, visitors, periodMs, delta, budget, warmUp, maxSeconds,
                 httpPort, exportDecisions, json);
         Map<String, Level> quiet = verbose ? Map.of()
