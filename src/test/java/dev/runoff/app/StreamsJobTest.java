@@ -126,7 +126,17 @@ class StreamsJobTest {
                     "topic=\"runoff.decisions\"") >= 1.0);
             assertEquals(1.0, sum(jobs, "runoff_experiments", "status=\"running\""));
             assertEquals(2.0, sum(jobs, "runoff_streams_running", "application=\"job-test\""));
+            // one shared cache for every RocksDB store (BoundedRocksDbConfig); without it each store reports
+            // Kafka Streams' default block cache of 50 MiB (RocksDBStore, from memory)
+            await("RocksDB metrics", TIMEOUT, () -> get(holder.httpPort(), "/metrics").body()
+                    .contains("kafka_stream_state_block_cache_capacity{"));
             String metrics = get(holder.httpPort(), "/metrics").body();
+            List<String> capacities = metrics.lines()
+                    .filter(l -> l.startsWith("kafka_stream_state_block_cache_capacity{")).toList();
+            for (String line : capacities) {
+                assertEquals((double) AppSettings.ROCKSDB_CACHE_BYTES,
+                        Double.parseDouble(line.substring(line.lastIndexOf(' ') + 1)), line);
+            }
             assertTrue(metrics.contains("kafka_stream_thread_punctuate_latency_avg{"), "punctuation time");
             assertTrue(metrics.contains("store_type=\"rocksdb.window\""), "window-store metrics kept");
             assertFalse(decisionLines.isEmpty(), "no decision log line");
