@@ -61,11 +61,6 @@ public final class BoundedRocksDbConfig implements RocksDBConfigSetter {
         // the cache and the write-buffer manager are shared by every store: never closed here
     }
 
-    /** The cache size in force, or -1 before the first store was configured. */
-    static synchronized long cacheBytesInForce() {
-        return shared == null ? -1 : shared.cacheBytes();
-    }
-
     private static synchronized Shared shared(long cacheBytes, long memtableBytes) {
         if (shared == null) {
             Cache cache = new LRUCache(cacheBytes, -1, false, INDEX_FILTER_RATIO);
