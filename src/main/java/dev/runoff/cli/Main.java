@@ -15,6 +15,10 @@ import picocli.CommandLine.Spec;
         description = "Adaptive best-arm experiments: posteriors, top-two allocation, stopping and audit.",
         subcommands = {
             EvaluateCommand.class,
+            DemoCommand.class,
+            RunCommand.class,
+            TopicsCommand.class,
+            ExperimentCommand.class,
             PlanCommand.class,
             AuditCommand.class,
         })

@@ -1,0 +1,80 @@
+package dev.runoff.cli;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import dev.runoff.engine.planning.ArmModel;
+import dev.runoff.engine.planning.OptimalAllocation;
+import dev.runoff.records.Decoded;
+import dev.runoff.records.HashChain;
+import dev.runoff.records.RecordCodec;
+import dev.runoff.records.avro.DecisionRecord;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.List;
+import org.junit.jupiter.api.Test;
+
+/** The demo, shortened (two layouts, short periods), end to end on its own embedded broker. */
+class DemoCommandTest {
+
+    private static final ObjectMapper JSON = new ObjectMapper();
+
+    @Test
+    void theShortenedDemoStopsOnTheTrueBestLayoutAndExportsAVerifiableAuditTrail() throws Exception {
+        Path export = Path.of("target", "cli-tests", "demo-decisions.jsonl").toAbsolutePath();
+        Files.createDirectories(export.getParent());
+        Files.deleteIfExists(export);
+        CliRun r = CliRun.of("demo", "--seed", "42", "--arms", "2", "--visitors", "1000", "--period-ms", "300",
+                "--warm-up", "50", "--json", "--export-decisions", export.toString());
+        assertEquals(0, r.exitCode(), r.err() + r.out());
+        List<JsonNode> lines = new ArrayList<>();
+        for (String line : r.out().lines().toList()) {
+            lines.add(JSON.readTree(line));
+        }
+        JsonNode summary = lines.get(lines.size() - 1);
+        assertEquals("summary", summary.get("type").asText());
+        assertTrue(summary.get("stopped").asBoolean(), summary.toString());
+        assertEquals("flexible-bundle", summary.get("winner").asText(), "the layout with the higher hidden rate");
+        assertEquals("threshold-reached", summary.get("reason").asText(), summary.toString());
+        assertTrue(summary.get("chainIntact").asBoolean());
+        assertTrue(summary.get("statistic").asDouble() >= summary.get("threshold").asDouble(), summary.toString());
+
+        int periods = summary.get("decisions").asInt();
+        assertEquals(periods + 1, lines.size(), "one line per decision and the summary");
+        JsonNode lastPeriod = lines.get(lines.size() - 2);
+        assertEquals("STOP", lastPeriod.get("decision").asText());
+        long trials = 0;
+        for (JsonNode arm : lastPeriod.get("arms")) {
+            trials += arm.get("trials").asLong();
+        }
+        assertEquals(trials, summary.get("trials").asLong());
+
+        List<DecisionRecord> exported = new ArrayList<>();
+        for (String line : Files.readAllLines(export, StandardCharsets.UTF_8)) {
+            Decoded<DecisionRecord> d = RecordCodec.decisionRecords().decode(line.getBytes(StandardCharsets.UTF_8), 0);
+            assertTrue(d.isValid(), d.toString());
+            exported.add(d.orThrow());
+        }
+        assertEquals(periods, exported.size());
+        assertTrue(HashChain.firstBreak(exported).isEmpty(), "hash chain of the exported records");
+        assertEquals("flexible-bundle", exported.get(exported.size() - 1).getWinner());
+
+        // the planner's figures for the hidden rates 3% and 5% at delta 0.05, computed here from the planner
+        ArmModel model = ArmModel.bernoulli(0.030, 0.050);
+        assertEquals(OptimalAllocation.uniform(model).predictedTrials(0.05),
+                summary.get("predictedTrials").get("uniform").asDouble());
+        assertEquals(OptimalAllocation.optimal(model).predictedTrials(0.05),
+                summary.get("predictedTrials").get("optimal").asDouble());
+    }
+
+    @Test
+    void badOptionsAreOneLineUsageErrors() {
+        CliRun r = CliRun.of("demo", "--arms", "9");
+        assertEquals(2, r.exitCode());
+        assertEquals("runoff demo: --arms must be in [2, 5], got 9", r.err().trim());
+    }
+}
