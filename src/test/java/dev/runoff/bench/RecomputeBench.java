@@ -37,12 +37,12 @@ import org.openjdk.jmh.annotations.Warmup;
  * and control records, the hash-chain seal, and the encoding of both records (Avro).
  *
  * <p>{@code recomputeOne} gives the average time of one experiment over a pool of distinct experiments;
- * {@code recomputeAll} times one pass over the whole pool (single shot), i.e. the time to recompute
- * {@code experiments} experiments on one thread.
+ * {@code recomputeAll} times passes over the whole pool (single shots after two warm-up passes, so the JIT
+ * has compiled the engine), i.e. the time to recompute {@code experiments} experiments on one thread.
  *
  * <p>Run: {@code mvn -B -q -o -Pbench test-compile exec:exec -Dbench=RecomputeBench.recomputeOne
  * -Dbench.args="-f 1 -wi 2 -i 3"}; the full pass: {@code -Dbench=RecomputeBench.recomputeAll
- * -Dbench.args="-f 1 -wi 0 -i 1"}.
+ * -Dbench.args="-f 1"}.
  */
 @State(Scope.Benchmark)
 @Fork(1)
@@ -84,8 +84,8 @@ public class RecomputeBench {
     @Benchmark
     @BenchmarkMode(Mode.SingleShotTime)
     @OutputTimeUnit(TimeUnit.SECONDS)
-    @Warmup(iterations = 0)
-    @Measurement(iterations = 1)
+    @Warmup(iterations = 2)
+    @Measurement(iterations = 3)
     public long recomputeAll() {
         long bytes = 0;
         for (ExperimentState state : states) {
