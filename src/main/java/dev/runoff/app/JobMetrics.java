@@ -2,6 +2,7 @@ package dev.runoff.app;
 
 import dev.runoff.topology.JobCounters;
 import io.micrometer.core.instrument.FunctionCounter;
+import io.micrometer.core.instrument.FunctionTimer;
 import io.micrometer.core.instrument.Gauge;
 import io.micrometer.core.instrument.Tags;
 import io.micrometer.core.instrument.binder.jvm.JvmMemoryMetrics;
@@ -13,6 +14,7 @@ import java.util.Set;
 import java.util.concurrent.ConcurrentHashMap;
 import java.util.concurrent.Executors;
 import java.util.concurrent.ScheduledExecutorService;
+import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.LongAdder;
 import org.apache.kafka.streams.KafkaStreams;
 
@@ -57,6 +59,15 @@ final class JobMetrics implements AutoCloseable {
         new JvmMemoryMetrics().bindTo(registry);
         FunctionCounter.builder("runoff.duplicates", counters, c -> c.count(JobCounters.DUPLICATE))
                 .description("Outcome events dropped as duplicates (same experiment and event id)")
+                .register(registry);
+        FunctionCounter.builder("runoff.events.folded", counters, JobCounters::foldedTrials)
+                .description("Trials folded into experiment statistics (exposures, or value events)")
+                .register(registry);
+        FunctionCounter.builder("runoff.decisions", counters, JobCounters::decisions)
+                .description("Decision records written").register(registry);
+        FunctionTimer.builder("runoff.allocation.pass", counters, JobCounters::allocationPasses,
+                        JobCounters::allocationPassNanos, TimeUnit.NANOSECONDS)
+                .description("Allocation passes (punctuations that recompute weights) and their duration")
                 .register(registry);
         FunctionCounter.builder("runoff.stream.thread.replacements", replacements, LongAdder::sum)
                 .description("Stream threads replaced after an uncaught exception").register(registry);

@@ -129,6 +129,7 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
             return;
         }
         experiments.put(delta.experimentId(), current.withDelta(index, delta.stats(), context().currentSystemTimeMs()));
+        rejections.counters().folded(delta.stats().trials());
     }
 
     /** The allocation pass. */
@@ -157,6 +158,7 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
             run(entry.key, entry.value, action, now);
         }
         resumeFrom = next;
+        rejections.counters().allocationPass(nanoTime.getAsLong() - began);
     }
 
     private Action action(ExperimentState state, long now) {
@@ -189,6 +191,7 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
             experiments.put(id, result.next());
             emit(settings.decisionsTopic(), id, decision, now);
             emit(settings.allocationsTopic(), id, update, now);
+            rejections.counters().decision();
         } catch (RuntimeException e) {
             LOG.warn("Evaluation of experiment {} (version {}) failed; retried after new data or the heartbeat", id,
                     state.definition().getVersion(), e);

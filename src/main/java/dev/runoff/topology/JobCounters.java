@@ -6,7 +6,8 @@ import java.util.concurrent.ConcurrentHashMap;
 import java.util.concurrent.atomic.LongAdder;
 
 /**
- * Counts of what the job set aside: rejected records per reason code, and dropped duplicates. Thread-safe;
+ * Counts of what the job did and set aside: trials folded into experiment statistics, decisions written,
+ * allocation passes and their duration, rejected records per reason code, and dropped duplicates. Thread-safe;
  * shared by every stream thread of one application instance. The counts are operational figures, not part
  * of the exactly-once state: a task that is retried after a failure counts its records again.
  */
@@ -16,6 +17,10 @@ public final class JobCounters {
     public static final String DUPLICATE = "duplicate-event";
 
     private final Map<String, LongAdder> counts = new ConcurrentHashMap<>();
+    private final LongAdder foldedTrials = new LongAdder();
+    private final LongAdder decisions = new LongAdder();
+    private final LongAdder allocationPasses = new LongAdder();
+    private final LongAdder allocationPassNanos = new LongAdder();
 
     /** Empty counters. */
     public JobCounters() {
@@ -30,6 +35,42 @@ public final class JobCounters {
     /** Counts one dropped duplicate. */
     public void duplicate() {
         add(DUPLICATE);
+    }
+
+    /** Counts {@code trials} trials folded into an experiment's statistics. */
+    public void folded(long trials) {
+        foldedTrials.add(trials);
+    }
+
+    /** Counts one decision record written. */
+    public void decision() {
+        decisions.increment();
+    }
+
+    /** Counts one allocation pass that took {@code nanos} nanoseconds. */
+    public void allocationPass(long nanos) {
+        allocationPasses.increment();
+        allocationPassNanos.add(nanos);
+    }
+
+    /** Trials folded into experiment statistics so far. */
+    public long foldedTrials() {
+        return foldedTrials.sum();
+    }
+
+    /** Decision records written so far. */
+    public long decisions() {
+        return decisions.sum();
+    }
+
+    /** Allocation passes run so far. */
+    public long allocationPasses() {
+        return allocationPasses.sum();
+    }
+
+    /** Total duration of the allocation passes so far, in nanoseconds. */
+    public long allocationPassNanos() {
+        return allocationPassNanos.sum();
     }
 
     /** The count under {@code key} (a reason code or {@link #DUPLICATE}), 0 if none. */

@@ -124,6 +124,12 @@ class StreamsJobTest {
                     "reason=\"unknown-experiment\"") == 1.0);
             await("one decision record sent", TIMEOUT, () -> sum(jobs, "kafka_producer_topic_record_send_total",
                     "topic=\"runoff.decisions\"") >= 1.0);
+            await("the 400 folded trials counted", TIMEOUT, () -> sum(jobs, "runoff_events_folded_total",
+                    "application=\"job-test\"") == 400.0);
+            await("a decision counted", TIMEOUT, () -> sum(jobs, "runoff_decisions_total",
+                    "application=\"job-test\"") >= 1.0);
+            assertTrue(get(holder.httpPort(), "/metrics").body().contains("runoff_allocation_pass_seconds_count{"),
+                    "allocation pass timer");
             assertEquals(1.0, sum(jobs, "runoff_experiments", "status=\"running\""));
             assertEquals(2.0, sum(jobs, "runoff_streams_running", "application=\"job-test\""));
             // one shared cache for every RocksDB store (BoundedRocksDbConfig); without it each store reports

@@ -108,6 +108,19 @@ class TopologyDriverTest {
     }
 
     @Test
+    void jobCountersCountFoldedTrialsDecisionsAndAllocationPasses() {
+        job.define(Defs.bernoulli("counted", "a", "b"));
+        job.advance(150);
+        feed("counted", "a", 40, 4, "c");
+        feed("counted", "b", 25, 5, "c");
+        job.advance(Defs.RECOMPUTE_MS + 100);
+        assertEquals(65, job.counters().foldedTrials(), "every exposure folded once");
+        assertEquals(job.decisions().size(), job.counters().decisions());
+        assertTrue(job.counters().allocationPasses() >= job.decisions().size());
+        assertTrue(job.counters().allocationPassNanos() > 0);
+    }
+
+    @Test
     void duplicateEventIdsAreCountedOnce() {
         job.define(Defs.bernoulli("dup", "a", "b"));
         byte[] exposure = Events.exposure("dup", "u1", "e-1", "a", T0);
