@@ -101,10 +101,8 @@ class SampleRatioTest {
         // is 7.5^2/37.5 + 10^2/50 + 2.5^2/12.5 = 1.5 + 2 + 0.5 = 4.0. Three cells, one fitted parameter: 1
         // degree of freedom (Cramér 1946), P(chi-square_1 > 4.0) = 0.0455 (from memory); with the 2 degrees of
         // freedom of a fixed-weight test it would be exp(-4/2) = 0.1353 (chi-square_2 survival, exact).
-        SampleRatio.Period p = new SampleRatio(0.001).test(
-                record(1, new long[] {0, 0, 0}, new double[] {0.5, 0.5, 0.0}),
-                record(2, new long[] {0, 0, 0}, new double[] {0.0, 0.5, 0.5}),
-                record(3, new long[] {30, 60, 10}, new double[] {0.0, 0.5, 0.5}));
+        SampleRatio.Period p = afterChange(new double[] {0.5, 0.5, 0.0}, new double[] {0.0, 0.5, 0.5},
+                new long[] {30, 60, 10});
         assertEquals(0.75, p.lagShare(), 1e-8);
         assertEquals(4.0, p.statistic(), 1e-12);
         assertEquals(0.0455, p.pValue(), 5e-5);
@@ -114,10 +112,8 @@ class SampleRatioTest {
 
     @Test
     void exposureOfAnArmAtWeightZeroInBothPeriodsIsFlagged() {
-        SampleRatio.Period p = new SampleRatio(0.001).test(
-                record(1, new long[] {0, 0, 0}, new double[] {0.6, 0.4, 0.0}),
-                record(2, new long[] {0, 0, 0}, new double[] {0.4, 0.6, 0.0}),
-                record(3, new long[] {50, 45, 2}, new double[] {0.4, 0.6, 0.0}));
+        SampleRatio.Period p = afterChange(new double[] {0.6, 0.4, 0.0}, new double[] {0.4, 0.6, 0.0},
+                new long[] {50, 45, 2});
         assertEquals(SampleRatio.Outcome.FLAGGED, p.outcome());
         assertTrue(p.note().contains("arm 'c' received 2 exposures at weight 0"), p.note());
     }
@@ -166,6 +162,13 @@ class SampleRatioTest {
             periods.add(test.test(chain.get(i - 1), chain.get(i)));
         }
         return periods;
+    }
+
+    /** The period under {@code current} weights, after one under {@code previous}, with these exposures. */
+    private static SampleRatio.Period afterChange(double[] previous, double[] current, long[] exposures) {
+        long[] none = new long[exposures.length];
+        return new SampleRatio(0.001).test(record(1, none, previous), record(2, none, current),
+                record(3, exposures, current));
     }
 
     /** Weights that change every period, cycling through three vectors. */
