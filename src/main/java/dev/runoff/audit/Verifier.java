@@ -46,7 +46,7 @@ public final class Verifier {
         findings.addAll(recomputed.findings());
         List<SampleRatio.Period> periods = new ArrayList<>();
         for (int i = 1; i < entries.size(); i++) {
-            SampleRatio.Period period = period(entries.get(i - 1), entries.get(i));
+            SampleRatio.Period period = period(i < 2 ? null : entries.get(i - 2), entries.get(i - 1), entries.get(i));
             if (period != null) {
                 periods.add(period);
                 if (period.outcome() == SampleRatio.Outcome.FLAGGED) {
@@ -72,18 +72,23 @@ public final class Verifier {
         return findings;
     }
 
-    /** The period between two records read one after the other, or null when either is invalid. */
-    private SampleRatio.Period period(Entry before, Entry after) {
+    /**
+     * The period between two records read one after the other, or null when either is invalid; the record read
+     * before them ({@code previous}, may be null) lends its weights when it is valid and consecutive.
+     */
+    private SampleRatio.Period period(Entry previous, Entry before, Entry after) {
         if (!before.isValid() || !after.isValid()) {
             return null;
         }
         DecisionRecord a = before.record();
         DecisionRecord b = after.record();
         if (b.getSequence() != a.getSequence() + 1) {
-            return new SampleRatio.Period(a.getSequence(), b.getSequence(), null, null, null, null,
+            return new SampleRatio.Period(a.getSequence(), b.getSequence(), null, null, null, null, null, null,
                     SampleRatio.Outcome.SKIPPED, "the records are not consecutive");
         }
-        return sampleRatio.test(a, b);
+        boolean lagKnown = previous != null && previous.isValid()
+                && previous.record().getSequence() + 1 == a.getSequence();
+        return sampleRatio.test(lagKnown ? previous.record() : null, a, b);
     }
 
     private String describe(DecisionRecord after, SampleRatio.Period period) {
@@ -93,6 +98,10 @@ public final class Verifier {
         text.append(pairs(arms, Arrays.stream(period.observed()).mapToObj(Long::toString).toList()))
                 .append(" against weights ")
                 .append(pairs(arms, Arrays.stream(period.weights()).mapToObj(Verifier::number).toList()));
+        if (period.previousWeights() != null) {
+            text.append(" and previous weights ")
+                    .append(pairs(arms, Arrays.stream(period.previousWeights()).mapToObj(Verifier::number).toList()));
+        }
         if (period.pValue() != null) {
             text.append(String.format(Locale.ROOT, "; chi-square %.4g, p = %.3g < alpha %s", period.statistic(),
                     period.pValue(), number(sampleRatio.alpha())));

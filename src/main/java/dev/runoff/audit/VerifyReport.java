@@ -95,6 +95,8 @@ public final class VerifyReport {
         map.put("outcome", p.outcome().name());
         map.put("observed", p.observed());
         map.put("weights", p.weights());
+        map.put("previousWeights", p.previousWeights());
+        map.put("lagShare", p.lagShare());
         map.put("chiSquare", p.statistic());
         map.put("pValue", p.pValue());
         map.put("note", p.note());

@@ -42,13 +42,26 @@ final class Chains {
      */
     static List<DecisionRecord> chain(String id, List<String> arms, double[][] weights, double[][] served,
                                       int exposures, long seed, boolean stopAtEnd) {
+        return lagged(id, arms, weights, served, 0.0, exposures, seed, stopAtEnd);
+    }
+
+    /**
+     * As {@link #chain}, but before record k (k >= 3) a share {@code lag} of the {@code exposures} trials (rounded)
+     * is drawn from {@code served[k - 2]}, the period before: a pipeline that folds exposures one period late.
+     */
+    static List<DecisionRecord> lagged(String id, List<String> arms, double[][] weights, double[][] served,
+                                       double lag, int exposures, long seed, boolean stopAtEnd) {
+        int late = (int) Math.round(lag * exposures);
         UniformRandomProvider rng = RandomSource.SPLIT_MIX_64.create(seed);
         ExperimentDefinition def = definition(id, arms);
         long[] trials = new long[arms.size()];
         long[] successes = new long[arms.size()];
         List<DecisionRecord> records = new ArrayList<>();
         for (int k = 0; k < weights.length; k++) {
-            if (k > 0) {
+            if (k > 1) {
+                draw(rng, served[k - 2], late, trials, successes);
+                draw(rng, served[k - 1], exposures - late, trials, successes);
+            } else if (k > 0) {
                 draw(rng, served[k - 1], exposures, trials, successes);
             }
             boolean stop = stopAtEnd && k == weights.length - 1;

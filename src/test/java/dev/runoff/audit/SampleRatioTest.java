@@ -65,6 +65,60 @@ class SampleRatioTest {
     }
 
     @Test
+    void feedServedPartlyUnderThePreviousWeightsPasses() {
+        // 40% of each period's exposures were served under the weights of the period before.
+        double[][] weights = cycle(PERIODS);
+        List<DecisionRecord> chain = Chains.lagged("srm", ARMS, weights, weights, 0.4, 1_000, 9, false);
+        ExperimentAudit audit = new Verifier(0.001).verifyExperiment("srm", Chains.entries(chain));
+        // Seeded; alpha 0.001 per period (a little more where the fitted share sits at 0 or 1).
+        assertEquals(PERIODS - 1, audit.count(SampleRatio.Outcome.PASSED), audit.periods().toString());
+        for (SampleRatio.Period p : audit.periods().subList(1, PERIODS - 1)) {
+            // The fitted share estimates the 40% lag; binomial noise on 1,000 exposures is a few percent.
+            assertEquals(0.4, p.lagShare(), 0.1, p.toString());
+        }
+        // Without the previous weights the same periods fail: the lag is what the mixture allows for.
+        assertTrue(periods(chain).stream().skip(1).allMatch(p -> p.outcome() == SampleRatio.Outcome.FLAGGED));
+    }
+
+    @Test
+    void feedThatFollowsNeitherTheNewNorThePreviousWeightsIsFlagged() {
+        double[][] weights = cycle(PERIODS);
+        double[][] served = Chains.repeat(new double[] {0.1, 0.45, 0.45}, PERIODS);
+        List<DecisionRecord> chain = Chains.lagged("srm", ARMS, weights, served, 0.4, 1_000, 10, false);
+        ExperimentAudit audit = new Verifier(0.001).verifyExperiment("srm", Chains.entries(chain));
+        assertEquals(PERIODS - 1, audit.count(SampleRatio.Outcome.FLAGGED), audit.periods().toString());
+        Finding last = audit.findings().stream().filter(f -> f.check() == Check.SAMPLE_RATIO)
+                .reduce((a, b) -> b).orElseThrow();
+        assertTrue(last.message().contains("best lag share") && last.message().contains("previous weights"),
+                last.message());
+    }
+
+    @Test
+    void fittedLagShareCostsOneDegreeOfFreedom() {
+        // Worked by hand: previous weights (1/2, 1/2, 0), current (0, 1/2, 1/2), observed (30, 60, 10). The
+        // mixture is (l/2, 1/2, (1-l)/2); Pearson's statistic 2*30^2/(100 l) + 2*10^2/(100 (1-l)) + const is
+        // least at l = 30 / (30 + 10) = 0.75, where the expected counts are (37.5, 50, 12.5) and the statistic
+        // is 7.5^2/37.5 + 10^2/50 + 2.5^2/12.5 = 1.5 + 2 + 0.5 = 4.0. Three cells, one fitted parameter: 1
+        // degree of freedom (Cramér 1946), P(chi-square_1 > 4.0) = 0.0455 (from memory); with the 2 degrees of
+        // freedom of a fixed-weight test it would be exp(-4/2) = 0.1353 (chi-square_2 survival, exact).
+        SampleRatio.Period p = afterChange(new double[] {0.5, 0.5, 0.0}, new double[] {0.0, 0.5, 0.5},
+                new long[] {30, 60, 10});
+        assertEquals(0.75, p.lagShare(), 1e-8);
+        assertEquals(4.0, p.statistic(), 1e-12);
+        assertEquals(0.0455, p.pValue(), 5e-5);
+        assertEquals(1, SampleRatio.degreesOfFreedom(3, true));
+        assertEquals(2, SampleRatio.degreesOfFreedom(3, false));
+    }
+
+    @Test
+    void exposureOfAnArmAtWeightZeroInBothPeriodsIsFlagged() {
+        SampleRatio.Period p = afterChange(new double[] {0.6, 0.4, 0.0}, new double[] {0.4, 0.6, 0.0},
+                new long[] {50, 45, 2});
+        assertEquals(SampleRatio.Outcome.FLAGGED, p.outcome());
+        assertTrue(p.note().contains("arm 'c' received 2 exposures at weight 0"), p.note());
+    }
+
+    @Test
     void periodWithTooFewExposuresIsSkippedAndSaysWhy() {
         SampleRatio.Period p = new SampleRatio(0.001).test(record(1, new long[] {0, 0}, new double[] {0.9, 0.1}),
                 record(2, new long[] {30, 10}, new double[] {0.9, 0.1}));
@@ -110,9 +164,26 @@ class SampleRatioTest {
         return periods;
     }
 
-    /** A two-arm record with the given trials and weights. */
+    /** The period under {@code current} weights, after one under {@code previous}, with these exposures. */
+    private static SampleRatio.Period afterChange(double[] previous, double[] current, long[] exposures) {
+        long[] none = new long[exposures.length];
+        return new SampleRatio(0.001).test(record(1, none, previous), record(2, none, current),
+                record(3, exposures, current));
+    }
+
+    /** Weights that change every period, cycling through three vectors. */
+    private static double[][] cycle(int n) {
+        double[][] choices = {SKEWED, UNIFORM, {0.1, 0.2, 0.7}};
+        double[][] out = new double[n][];
+        for (int i = 0; i < n; i++) {
+            out[i] = choices[i % choices.length].clone();
+        }
+        return out;
+    }
+
+    /** A record of the first {@code trials.length} arms of {@link #ARMS} with the given trials and weights. */
     private static DecisionRecord record(long sequence, long[] trials, double[] weights) {
-        DecisionRecord base = Chains.chain("srm", List.of("a", "b"), Chains.repeat(weights, 1),
+        DecisionRecord base = Chains.chain("srm", ARMS.subList(0, trials.length), Chains.repeat(weights, 1),
                 Chains.repeat(weights, 1), 0, 1, false).get(0);
         List<ArmState> arms = new ArrayList<>();
         for (int i = 0; i < trials.length; i++) {
