@@ -1,11 +1,13 @@
 package dev.runoff.app;
 
 import dev.runoff.broker.EmbeddedKafkaBroker;
+import dev.runoff.engine.planning.SimulationResult;
 import dev.runoff.records.CanonicalJson;
 import dev.runoff.records.Format;
 import dev.runoff.records.HashChain;
 import dev.runoff.records.avro.AllocationUpdate;
 import dev.runoff.records.avro.DecisionRecord;
+import dev.runoff.records.avro.ExperimentDefinition;
 import java.io.IOException;
 import java.io.PrintWriter;
 import java.io.UncheckedIOException;
@@ -36,6 +38,8 @@ public final class Demo {
     /** Partitions of the demo's topics (two, so the job's repartitioning is exercised). */
     static final int PARTITIONS = 2;
     private static final Duration START_TIMEOUT = Duration.ofSeconds(90);
+    /** How long the summary waits for an unfinished planner simulation after the STOP. */
+    static final Duration SIMULATION_PATIENCE = Duration.ofSeconds(5);
 
     private final DemoOptions options;
     private final DemoReport report;
@@ -72,6 +76,10 @@ public final class Demo {
 
     private DemoSummary runOpen() throws InterruptedException {
         DemoScenario scenario = new DemoScenario(options.arms());
+        ExperimentDefinition definition = scenario.definition(options.periodMs(), options.budget(), options.delta(),
+                options.warmUp());
+        DemoSimulation simulation = closer.register(DemoSimulation.start(definition, scenario.rates(),
+                options.visitorsPerPeriod(), options.seed()));
         JobConfig config = startCluster();
         StreamsJob job = closer.register(StreamsJob.start(config));
         Waiting.until("the job reaching RUNNING", START_TIMEOUT, () -> {
@@ -82,8 +90,7 @@ public final class Demo {
         });
         report.note("job RUNNING; its HTTP endpoint: http://127.0.0.1:" + job.httpPort() + "/experiments/"
                 + DemoScenario.EXPERIMENT_ID + " (also /metrics, /health, /ready)");
-        new DefinitionsClient(config, Duration.ofSeconds(30)).put(scenario.definition(options.periodMs(),
-                options.budget(), options.delta(), options.warmUp()), Format.AVRO);
+        new DefinitionsClient(config, Duration.ofSeconds(30)).put(definition, Format.AVRO);
         report.note("experiment " + DemoScenario.EXPERIMENT_ID + ": a ferry operator's booking page tests "
                 + scenario.layouts().size() + " fare-table layouts " + scenario.layouts()
                 + "; true booking rates hidden");
@@ -94,7 +101,7 @@ public final class Demo {
         TrafficGenerator visitors = new TrafficGenerator(DemoScenario.EXPERIMENT_ID, scenario.layouts(),
                 scenario.rates(), options.seed());
         List<DecisionRecord> records = loop(feed, visitors, scenario);
-        return finish(records, visitors, scenario, config);
+        return finish(records, visitors, scenario, config, simulation.await(SIMULATION_PATIENCE).orElse(null));
     }
 
     private JobConfig startCluster() {
@@ -163,7 +170,7 @@ public final class Demo {
     }
 
     private DemoSummary finish(List<DecisionRecord> records, TrafficGenerator visitors, DemoScenario scenario,
-                               JobConfig config) {
+                               JobConfig config, SimulationResult simulated) {
         DecisionRecord last = records.isEmpty() ? null : records.get(records.size() - 1);
         long elapsed = last == null ? 0 : last.getStreamTime() - records.get(0).getStreamTime();
         boolean intact = HashChain.firstBreak(records).isEmpty();
@@ -173,7 +180,7 @@ public final class Demo {
         }
         double[] predicted = DemoSummary.predictions(scenario.rates(), options.delta());
         DemoSummary summary = new DemoSummary(last, records.size(), elapsed, visitors.visitors(), scenario.trueBest(),
-                scenario.rates(), predicted[0], predicted[1], predicted[2], intact, config.topology().decisionsTopic(),
+                scenario.rates(), predicted[0], predicted[1], predicted[2], simulated, intact, config.topology().decisionsTopic(),
                 exported);
         report.summary(summary, options);
         report.note("shutting down: job, broker, temporary directory ...");

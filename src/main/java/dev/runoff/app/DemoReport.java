@@ -4,6 +4,8 @@ import com.fasterxml.jackson.core.JsonProcessingException;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
+import dev.runoff.engine.planning.SimulationResult;
+import dev.runoff.engine.planning.SimulationSummary;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
 import java.io.PrintWriter;
@@ -100,20 +102,40 @@ final class DemoReport {
         out.printf(Locale.ROOT, "  traffic spent: %,d visitors counted at the last decision (%,d sent)%s%n", s.trials(),
                 s.visitorsSent(), s.stopped() ? String.format(Locale.ROOT, ", %,d (%.0f%%) of them on %s",
                         s.winnerTrials(), 100.0 * s.winnerTrials() / Math.max(1, s.trials()), s.winner()) : "");
-        out.printf(Locale.ROOT, "  planner predictions for these hidden rates at delta %s (predictions, not measurements):%n",
-                o.delta());
-        out.printf(Locale.ROOT, "    uniform split %,.0f visitors; optimal split %,.0f; top-two target (beta 1/2) %,.0f%n",
+        simulated(s, o);
+        out.printf(Locale.ROOT, "  asymptotic leading term T*(w) log(1/delta) (Garivier & Kaufmann 2016; below what a"
+                + " finite delta needs): uniform %,.0f; optimal %,.0f; top-two target (beta 1/2) %,.0f%n",
                 s.predictedUniform(), s.predictedOptimal(), s.predictedTopTwo());
-        out.printf(Locale.ROOT, "    (leading term T*(w) log(1/delta), Garivier & Kaufmann 2016: the GLR threshold the job"
-                + " uses grows with t%s, so every split needs more; read the ratio: a uniform split needs about"
-                + " %.2fx the optimal traffic)%n", last == null || last.getThreshold() == null ? ""
-                        : String.format(Locale.ROOT, ", %.2f at the end against log(1/delta) = %.2f", last.getThreshold(),
-                                -Math.log(o.delta())), s.predictedUniform() / s.predictedOptimal());
         out.printf(Locale.ROOT, "  audit: %d decision records on topic %s (hash chain %s)%s%n", s.periods(),
                 s.decisionsTopic(), s.chainIntact() ? "verified" : "BROKEN", s.exported() == null
                         ? "; the demo broker is deleted at exit (--export-decisions FILE keeps them)"
                         : ", exported to " + s.exported());
         out.flush();
+    }
+
+    /** The planner simulation's visitors to STOP, beside this run's. */
+    private void simulated(DemoSummary s, DemoOptions o) {
+        SimulationResult sim = s.simulated();
+        if (sim == null) {
+            out.printf(Locale.ROOT, "  planner simulation: not ready %d s after the end; no simulated comparison%n",
+                    Demo.SIMULATION_PATIENCE.toSeconds());
+            return;
+        }
+        SimulationSummary rule = sim.rule();
+        SimulationSummary uniform = sim.baseline();
+        out.printf(Locale.ROOT, "  simulated visitors to STOP for these hidden rates at delta %s (planner simulation, %d"
+                + " runs; same rule, GLR threshold, warm-up, %,d visitors per evaluation):%n", o.delta(),
+                rule.replications(), o.visitorsPerPeriod());
+        out.printf(Locale.ROOT, "    %s: median %,.0f (mean %,.0f); uniform split: median %,.0f (mean %,.0f);"
+                + " uniform / %s = %.2fx (medians)%n", rule.rule(), rule.medianTrials(), rule.meanTrials(),
+                uniform.medianTrials(), uniform.meanTrials(), rule.rule(), medianRatio(sim));
+        out.printf(Locale.ROOT, "    this run: %,d visitors; simulated runs ended on the budget: %d (%s), %d (uniform)%n",
+                s.trials(), rule.budgetStops(), rule.rule(), uniform.budgetStops());
+    }
+
+    /** Median trials to STOP of the uniform split over those of the demo's rule. */
+    private static double medianRatio(SimulationResult sim) {
+        return sim.baseline().medianTrials() / sim.rule().medianTrials();
     }
 
     private ObjectNode summaryJson(DemoSummary s, DemoOptions o) {
@@ -130,6 +152,7 @@ final class DemoReport {
         ObjectNode predicted = line.putObject("predictedTrials");
         predicted.put("uniform", s.predictedUniform()).put("optimal", s.predictedOptimal())
                 .put("topTwoBetaHalf", s.predictedTopTwo());
+        simulatedJson(line, s.simulated());
         ArrayNode rates = line.putArray("hiddenRates");
         List<String> arms = s.arms();
         double[] r = s.rates();
@@ -139,6 +162,21 @@ final class DemoReport {
         line.put("decisionsTopic", s.decisionsTopic()).put("chainIntact", s.chainIntact());
         line.put("exported", s.exported() == null ? null : s.exported().toString());
         return line;
+    }
+
+    private static void simulatedJson(ObjectNode line, SimulationResult sim) {
+        if (sim == null) {
+            line.putNull("simulated");
+            return;
+        }
+        ObjectNode simulated = line.putObject("simulated");
+        simulated.put("replications", sim.rule().replications()).put("rule", sim.rule().rule().name());
+        for (SimulationSummary summary : List.of(sim.rule(), sim.baseline())) {
+            simulated.putObject(summary == sim.rule() ? "ruleTrials" : "uniformTrials")
+                    .put("median", summary.medianTrials()).put("mean", summary.meanTrials())
+                    .put("budgetStops", summary.budgetStops()).put("errors", summary.errors());
+        }
+        simulated.put("uniformOverRuleMedian", medianRatio(sim));
     }
 
     private static String decision(DecisionRecord d) {

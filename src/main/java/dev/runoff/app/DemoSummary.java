@@ -2,6 +2,7 @@ package dev.runoff.app;
 
 import dev.runoff.engine.planning.ArmModel;
 import dev.runoff.engine.planning.OptimalAllocation;
+import dev.runoff.engine.planning.SimulationResult;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
 import java.nio.file.Path;
@@ -19,13 +20,15 @@ import java.util.List;
  * @param predictedUniform  planner prediction of the trials a uniform split needs at the run's delta
  * @param predictedOptimal  the same for the optimal allocation
  * @param predictedTopTwo   the same for the beta-optimal allocation with beta 1/2 (the top-two target)
+ * @param simulated         the planner's simulation of the same experiment (the demo's rule and a uniform
+ *                          split, same rates, delta and threshold), or {@code null} when it was not ready
  * @param chainIntact       whether the hash chain of the decision records verified
  * @param decisionsTopic    where the job wrote the decision records
  * @param exported          file the records were exported to, or {@code null}
  */
 public record DemoSummary(DecisionRecord last, int periods, long elapsedMs, long visitorsSent, String trueBest,
                           double[] rates, double predictedUniform, double predictedOptimal, double predictedTopTwo,
-                          boolean chainIntact, String decisionsTopic, Path exported) {
+                          SimulationResult simulated, boolean chainIntact, String decisionsTopic, Path exported) {
 
     /** Copies the rates. */
     public DemoSummary {

@@ -53,6 +53,22 @@ class DemoCommandTest {
         }
         assertEquals(trials, summary.get("trials").asLong());
 
+        // the planner simulation of the same experiment: present, with 40 runs per rule; every simulated run
+        // stops at or after the minimum trials per arm (50 x 2 layouts) and at or before the budget (300,000)
+        JsonNode simulated = summary.get("simulated");
+        assertTrue(simulated != null && simulated.isObject(), summary.toString());
+        assertEquals(40, simulated.get("replications").asInt());
+        assertEquals("TOP_TWO_THOMPSON", simulated.get("rule").asText());
+        for (String rule : List.of("ruleTrials", "uniformTrials")) {
+            for (String stat : List.of("median", "mean")) {
+                double v = simulated.get(rule).get(stat).asDouble();
+                assertTrue(v >= 100 && v <= 300_000, rule + " " + stat + " = " + v);
+            }
+        }
+        assertEquals(simulated.get("uniformTrials").get("median").asDouble()
+                / simulated.get("ruleTrials").get("median").asDouble(),
+                simulated.get("uniformOverRuleMedian").asDouble(), 1e-12);
+
         List<DecisionRecord> exported = new ArrayList<>();
         for (String line : Files.readAllLines(export, StandardCharsets.UTF_8)) {
             Decoded<DecisionRecord> d = RecordCodec.decisionRecords().decode(line.getBytes(StandardCharsets.UTF_8), 0);
