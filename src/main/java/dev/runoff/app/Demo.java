@@ -6,6 +6,7 @@ import dev.runoff.records.CanonicalJson;
 import dev.runoff.records.Format;
 import dev.runoff.records.HashChain;
 import dev.runoff.records.avro.AllocationUpdate;
+import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.ExperimentDefinition;
 import java.io.IOException;
@@ -137,6 +138,11 @@ public final class Demo {
         return s;
     }
 
+    /**
+     * Sends one batch of visitors drawn from the weights of the latest decision, then reads decisions until the
+     * job has counted every visitor sent, so that each batch follows the weights in force when it was served
+     * and is folded before the next one is drawn (the audit's sample-ratio check relies on it).
+     */
     private List<DecisionRecord> loop(DemoFeed feed, TrafficGenerator visitors, DemoScenario scenario)
             throws InterruptedException {
         AllocationUpdate control = feed.awaitControl(START_TIMEOUT);
@@ -145,28 +151,30 @@ public final class Demo {
         Duration wait = Duration.ofMillis(options.periodMs() * 3 + 5_000);
         List<DecisionRecord> records = new ArrayList<>();
         while (clock.millis() < deadline) {
-            DecisionRecord d = feed.nextDecision(records.isEmpty() ? wait : Duration.ZERO);
-            while (d != null) {
+            long decided = records.isEmpty() ? 0 : records.get(records.size() - 1).getSequence();
+            control = Optional.ofNullable(feed.awaitControl(decided, wait)).orElse(control);
+            feed.send(visitors.next(options.visitorsPerPeriod(), DemoFeed.weights(control, scenario.layouts()),
+                    clock.millis()));
+            while (clock.millis() < deadline) {
+                DecisionRecord d = feed.nextDecision(wait);
+                if (d == null) {
+                    break;
+                }
                 records.add(d);
                 report.period(records.size(), clock.millis() - began, d);
                 if ("STOP".equals(d.getDecision().name())) {
                     return records;
                 }
-                d = feed.nextDecision(Duration.ZERO);
-            }
-            control = Optional.ofNullable(feed.latestControl()).orElse(control);
-            feed.send(visitors.next(options.visitorsPerPeriod(), DemoFeed.weights(control, scenario.layouts()),
-                    clock.millis()));
-            d = feed.nextDecision(wait);
-            if (d != null) {
-                records.add(d);
-                report.period(records.size(), clock.millis() - began, d);
-                if ("STOP".equals(d.getDecision().name())) {
-                    return records;
+                if (counted(d) >= visitors.visitors()) {
+                    break;
                 }
             }
         }
         return records;
+    }
+
+    private static long counted(DecisionRecord d) {
+        return d.getArms().stream().mapToLong(ArmState::getTrials).sum();
     }
 
     private DemoSummary finish(List<DecisionRecord> records, TrafficGenerator visitors, DemoScenario scenario,

@@ -44,6 +44,8 @@ final class DemoFeed implements AutoCloseable {
     private final KafkaConsumer<String, byte[]> control;
     private final KafkaConsumer<String, byte[]> decisions;
     private final Deque<DecisionRecord> pending = new ArrayDeque<>();
+    private static final long CONTROL_RETRY_MS = 10;
+
     private AllocationUpdate latest;
     private boolean closed;
 
@@ -100,6 +102,23 @@ final class DemoFeed implements AutoCloseable {
         Waiting.until("weights for " + experimentId + " on the control topic", timeout,
                 () -> latestControl() != null);
         return latest;
+    }
+
+    /**
+     * Waits up to {@code timeout} until the control record with sequence {@code sequence} (or a later one) has
+     * arrived, and returns the latest control record seen (an older one, or {@code null}, if it did not come).
+     * The job writes a decision and its control record in one transaction, so once decision {@code sequence}
+     * has been read, its weights follow at once; drawing visitors from anything older would not follow the
+     * weights in force.
+     */
+    AllocationUpdate awaitControl(long sequence, Duration timeout) throws InterruptedException {
+        long deadline = System.nanoTime() + timeout.toNanos();
+        AllocationUpdate seen = latestControl();
+        while ((seen == null || seen.getSequence() < sequence) && System.nanoTime() < deadline) {
+            Thread.sleep(CONTROL_RETRY_MS);
+            seen = latestControl();
+        }
+        return seen;
     }
 
     /** The next decision record of the experiment, waiting up to {@code timeout}; {@code null} if none came. */
