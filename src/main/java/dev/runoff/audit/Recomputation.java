@@ -21,11 +21,13 @@ import java.util.Set;
  * layout) from the record's statistics, definition and sequence, and the weights of the record before it;
  * the result must equal the record in every field, bit for bit.
  *
- * <p>What the record does not hold: the time the experiment's first statistics were folded, which the
- * minimum-duration guard measures from. The record is first recomputed as if that guard were met; when that
- * differs and the definition has a minimum duration, as if it were not. The second reading is accepted only
- * if no earlier record shows statistics from long enough before (the job's start time is at or before the
- * first record with any trials), else the record's reason contradicts the guard.
+ * <p>The minimum-duration guard measures from the time the experiment's first statistics were folded. A
+ * record holds it as {@code startedAt}, and is recomputed from it: the guard is checked exactly. Records
+ * written before that field existed ({@code startedAt} null) are first recomputed as if the guard were met;
+ * when that differs and the definition has a minimum duration, as if it were not. The second reading is
+ * accepted only if no earlier record shows statistics from long enough before (the job's start time is at or
+ * before the first record with any trials), else the record's reason contradicts the guard. A recorded
+ * {@code startedAt} after an earlier record with trials is likewise a stopping failure.
  */
 public final class Recomputation {
 
@@ -34,6 +36,8 @@ public final class Recomputation {
             "threshold");
     /** Fields checked by the chain, not here. */
     private static final List<String> CHAIN_FIELDS = List.of("previousHash", "hash");
+    /** Fields left out when recomputing a record without {@code startedAt}: the chain's, and the start assumed. */
+    private static final List<String> WITHOUT_START = List.of("previousHash", "hash", "startedAt");
 
     /** Outcome over one experiment: findings, the number reproduced, notes. */
     record Result(List<Finding> findings, int reproduced, List<String> notes) {
@@ -94,13 +98,17 @@ public final class Recomputation {
                     + " version " + AllocationEngine.VERSION + " and cannot reproduce it bit for bit"));
         }
         try {
-            Optional<RecordDiff.Difference> met = RecordDiff.first(record, evaluate(record, previous, 0), CHAIN_FIELDS);
+            if (record.getStartedAt() != null) {
+                return recomputeFromStart(index, entry, previous, firstTrialsAt);
+            }
+            Optional<RecordDiff.Difference> met = RecordDiff.first(record, evaluate(record, previous, 0),
+                    WITHOUT_START);
             if (met.isEmpty()) {
                 return Optional.empty();
             }
             long minDuration = record.getDefinition().getStopping().getMinDurationMs();
             if (minDuration > 0 && RecordDiff.first(record, evaluate(record, previous, record.getStreamTime()),
-                    CHAIN_FIELDS).isEmpty()) {
+                    WITHOUT_START).isEmpty()) {
                 return minDurationContradiction(index, entry, minDuration, firstTrialsAt);
             }
             return Optional.of(finding(index, entry, met.get()));
@@ -108,6 +116,31 @@ public final class Recomputation {
             return Optional.of(Finding.of(index, entry, Check.RECOMPUTATION, "record", "engine version "
                     + AllocationEngine.VERSION + " rejected the record's input: " + e.getMessage()));
         }
+    }
+
+    /** The exact check of a record holding {@code startedAt}: recomputed with the Timing it states. */
+    private static Optional<Finding> recomputeFromStart(int index, Entry entry, double[] previous,
+                                                        Long firstTrialsAt) {
+        Optional<Finding> late = startAfterTrials(index, entry, firstTrialsAt);
+        if (late.isPresent()) {
+            return late;
+        }
+        DecisionRecord record = entry.record();
+        return RecordDiff.first(record, evaluate(record, previous, record.getStartedAt()), CHAIN_FIELDS)
+                .map(d -> finding(index, entry, d));
+    }
+
+    /**
+     * A recorded start later than an earlier record with trials: the job's start is when the first statistics
+     * were folded, so at or before that record's stream time.
+     */
+    private static Optional<Finding> startAfterTrials(int index, Entry entry, Long firstTrialsAt) {
+        long startedAt = entry.record().getStartedAt();
+        if (firstTrialsAt == null || startedAt <= firstTrialsAt) {
+            return Optional.empty();
+        }
+        return Optional.of(Finding.of(index, entry, Check.STOPPING, "startedAt", "is " + startedAt + ", after "
+                + firstTrialsAt + ", the stream time of an earlier record that already had trials"));
     }
 
     /** A record whose reading needs the guard unmet, although statistics have existed for long enough. */
@@ -124,11 +157,16 @@ public final class Recomputation {
 
     private static Finding finding(int index, Entry entry, RecordDiff.Difference d) {
         Check check = STOPPING_FIELDS.contains(d.topLevel()) ? Check.STOPPING : Check.RECOMPUTATION;
+        Long startedAt = entry.record().getStartedAt();
+        String timing = startedAt == null ? "" : " (timing from the record's startedAt " + startedAt + ")";
         return Finding.of(index, entry, check, d.field(), "recorded " + d.recorded() + ", engine version "
-                + AllocationEngine.VERSION + " (the record's) recomputes " + d.recomputed());
+                + AllocationEngine.VERSION + " (the record's) recomputes " + d.recomputed() + timing);
     }
 
-    /** The job's evaluation of the record's input, with the experiment's statistics dating from {@code startedAt}. */
+    /**
+     * The job's evaluation of the record's input, with the experiment's statistics dating from
+     * {@code startedAt}; the result holds {@code startedAt} as the job would have written it.
+     */
     private static DecisionRecord evaluate(DecisionRecord record, double[] previous, long startedAt) {
         List<ArmStats> stats = record.getArms().stream().map(a -> stats(a, kind(record))).toList();
         ExperimentState state = new ExperimentState(record.getDefinition(), stats, null, record.getSequence() - 1, 0,

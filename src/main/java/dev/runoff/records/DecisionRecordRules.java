@@ -27,6 +27,7 @@ final class DecisionRecordRules implements RecordRules<DecisionRecord> {
         AllocationUpdateRules.checkNumbering(record.getExperimentId(), record.getDefinitionVersion(),
                 record.getSequence(), problems);
         problems.atLeast("streamTime", record.getStreamTime(), 0);
+        checkStartedAt(record.getStartedAt(), record.getStreamTime(), problems);
         ExperimentDefinition def = record.getDefinition();
         definitionRules.check(def, limits, problems.under("definition"));
         checkAgreement(record, def, problems);
@@ -45,6 +46,14 @@ final class DecisionRecordRules implements RecordRules<DecisionRecord> {
         checkDraws(record, problems);
         problems.notBlank("engineVersion", record.getEngineVersion());
         checkHashes(record, problems);
+    }
+
+    /** A recorded start lies in [0, streamTime]; null (records from before the field existed) is allowed. */
+    private static void checkStartedAt(Long startedAt, long streamTime, Problems problems) {
+        if (startedAt != null && (startedAt < 0 || startedAt > streamTime)) {
+            problems.add("startedAt", Reason.OUT_OF_RANGE, "must be in [0, streamTime = " + streamTime + "], got "
+                    + startedAt);
+        }
     }
 
     /** Fields copied from the definition must equal it, so the record cannot contradict what it embeds. */

@@ -31,7 +31,8 @@ import java.util.List;
  * Inputs of the stopping rule: the same arms, the engine's probability of being best (see {@link #bounded}),
  * {@link Timing} from the time the first statistics were folded (this evaluation's time when none were) to
  * now, {@link DefinitionConfigs#stopping}, and {@link LeaderWithin} for the indifference rule. The decision
- * record holds everything but that start time, so a verifier cannot re-check a minimum-duration guard.
+ * record holds all of them, that start time as {@code startedAt}, so a verifier can re-check the
+ * minimum-duration guard exactly.
  *
  * <p>On STOP the published weights follow {@link AfterStop} and the record lists the {@code AFTER_STOP}
  * guard; the experiment then keeps its winner: {@link #heartbeat} re-publishes the stopped state without
@@ -73,7 +74,8 @@ public final class Evaluator {
         List<Arm> arms = state.arms();
         Evaluation evaluation = engine.evaluate(arms, DefinitionConfigs.engine(def, draws), seed, state.lastWeights());
         ProbabilityBest best = bounded(evaluation.probabilityBest());
-        Decision decision = decide(state, arms, evaluation, best, now);
+        long start = start(state, now);
+        Decision decision = decide(state, arms, evaluation, best, start, now);
         double[] weights = evaluation.weights();
         ExperimentState.Stop stop = null;
         List<Guard> guards = guards(evaluation);
@@ -82,8 +84,8 @@ public final class Evaluator {
             stop = new ExperimentState.Stop(decision.leaderName(), def.getVersion(), def.getArms(), weights);
             guards.add(Guard.AFTER_STOP);
         }
-        DecisionRecord record = HashChain.seal(Records.decision(state, sequence, now, evaluation, best, decision,
-                weights, guards), state.lastHash());
+        DecisionRecord record = HashChain.seal(Records.decision(state, sequence, start, now, evaluation, best,
+                decision, weights, guards), state.lastHash());
         ExperimentState next = state.evaluated(now, record.getHash(), weights, stop);
         AllocationUpdate update = stop == null
                 ? Records.update(next, def.getVersion(), def.getArms(), weights, now, ExperimentStatus.RUNNING, null)
@@ -91,11 +93,15 @@ public final class Evaluator {
         return new Result(record, update, next);
     }
 
+    /** The start of the stopping rule's {@link Timing}: when the first statistics were folded, at most now. */
+    private static long start(ExperimentState state, long now) {
+        return state.startedAt() < 0 ? now : Math.min(state.startedAt(), now);
+    }
+
     private static Decision decide(ExperimentState state, List<Arm> arms, Evaluation evaluation,
-                                   ProbabilityBest best, long now) {
+                                   ProbabilityBest best, long start, long now) {
         List<Posterior> posteriors = evaluation.posteriors().stream().map(Evaluation.PosteriorSummary::posterior)
                 .toList();
-        long start = state.startedAt() < 0 ? now : Math.min(state.startedAt(), now);
         return StoppingRule.decide(arms, best, new Timing(Instant.ofEpochMilli(start), Instant.ofEpochMilli(now)),
                 DefinitionConfigs.stopping(state.definition()), LeaderWithin.of(posteriors));
     }
@@ -173,14 +179,16 @@ public final class Evaluator {
         private Records() {
         }
 
-        static DecisionRecord decision(ExperimentState state, long sequence, long now, Evaluation evaluation,
-                                       ProbabilityBest best, Decision decision, double[] weights, List<Guard> guards) {
+        static DecisionRecord decision(ExperimentState state, long sequence, long start, long now,
+                                       Evaluation evaluation, ProbabilityBest best, Decision decision,
+                                       double[] weights, List<Guard> guards) {
             ExperimentDefinition def = state.definition();
             return DecisionRecord.newBuilder()
                     .setExperimentId(state.experimentId())
                     .setDefinitionVersion(def.getVersion())
                     .setSequence(sequence)
                     .setStreamTime(now)
+                    .setStartedAt(start)
                     .setDefinition(def)
                     .setArms(ArmStates.of(state, evaluation, best, weights))
                     .setAllocationRule(dev.runoff.records.avro.AllocationRule.valueOf(evaluation.rule().name()))

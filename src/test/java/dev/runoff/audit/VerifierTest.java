@@ -155,6 +155,60 @@ class VerifierTest {
         Finding first = verify(forged).firstFailure().orElseThrow();
         assertEquals((long) stop + 1, first.sequence());
         assertEquals(Check.STOPPING, first.check(), first.toString());
+        assertEquals("startedAt", first.field(), first.toString());
+    }
+
+    @Test
+    void jobRecordsHoldTheStartTheGuardMeasuredFrom() {
+        long minDuration = 6 * SimulatedJob.PERIOD_MS;
+        List<DecisionRecord> records = SimulatedJob.run(SimulatedJob.definition("slow", ARMS, minDuration),
+                new double[] {0.02, 0.02, 0.2}, 12, 600, 5);
+        DecisionRecord last = records.get(records.size() - 1);
+        long firstTrialsAt = records.stream().filter(r -> r.getArms().stream().anyMatch(a -> a.getTrials() > 0))
+                .findFirst().orElseThrow().getStreamTime();
+        assertTrue(last.getStartedAt() != null && last.getStartedAt() <= firstTrialsAt, last.toString());
+        assertTrue(last.getStreamTime() - last.getStartedAt() >= minDuration, "the stop came after the guard");
+    }
+
+    @Test
+    void startedAtMovedEarlierWithARebuiltChainFailsRecomputation() {
+        long minDuration = 6 * SimulatedJob.PERIOD_MS;
+        List<DecisionRecord> records = new ArrayList<>(SimulatedJob.run(SimulatedJob.definition("slow", ARMS,
+                minDuration), new double[] {0.02, 0.02, 0.2}, 12, 600, 5));
+        int held = firstHeldBack(records);
+        DecisionRecord original = records.get(held);
+        records.set(held, DecisionRecord.newBuilder(original).setStartedAt(original.getStartedAt() - minDuration)
+                .build());
+        Finding first = verify(HashChain.chain(records)).firstFailure().orElseThrow();
+        assertEquals(original.getSequence(), first.sequence());
+        // The earlier start meets the guard, so the job would have stopped: the weights after the stop differ
+        // first (the fields are compared in schema order), and the finding names the start it used.
+        assertEquals(Check.RECOMPUTATION, first.check(), first.toString());
+        assertTrue(first.field().startsWith("arms["), first.toString());
+        assertTrue(first.message().contains("startedAt " + (original.getStartedAt() - minDuration)), first.message());
+    }
+
+    @Test
+    void recordsWithoutStartedAtStillVerifyFromEarlierRecords() {
+        long minDuration = 6 * SimulatedJob.PERIOD_MS;
+        List<DecisionRecord> records = SimulatedJob.run(SimulatedJob.definition("slow", ARMS, minDuration),
+                new double[] {0.02, 0.02, 0.2}, 12, 600, 5);
+        List<DecisionRecord> oldStyle = HashChain.chain(records.stream()
+                .map(r -> DecisionRecord.newBuilder(r).setStartedAt(null).build()).toList());
+        firstHeldBack(oldStyle);
+        ExperimentAudit audit = verify(oldStyle);
+        assertTrue(audit.passed(), audit.findings().toString());
+        assertEquals(oldStyle.size(), audit.reproduced());
+    }
+
+    /** Index of the first record whose stop the minimum-duration guard held back. */
+    private static int firstHeldBack(List<DecisionRecord> records) {
+        for (int i = 0; i < records.size(); i++) {
+            if (records.get(i).getReason().equals("min-duration")) {
+                return i;
+            }
+        }
+        throw new AssertionError("the guard held no stop back");
     }
 
     /** The chain with {@code change} applied to record index {@code k} and every record resealed. */

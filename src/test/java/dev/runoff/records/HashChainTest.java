@@ -33,12 +33,13 @@ class HashChainTest {
 
     @Test
     void hashesMatchAnIndependentImplementation() {
-        // Computed outside Java from the records' JSON output, by the Python auditor script proposed for the
-        // README (standard library json + hashlib, ECMAScript number formatting) and, separately, by Node.js
-        // v20 (JSON.stringify with sorted keys + crypto SHA-256); both gave these digests.
-        assertEquals("830b6e62792d8f0b094a5cd2780c0992400a2aa1fca87d6d0a773a27fa221d7e",
+        // Computed outside Java from the records' JSON output by the README's Python script ("Checking the hash
+        // chain without Java": standard library json + hashlib, ECMAScript number formatting). Confirmed
+        // separately by Node.js (JSON.stringify with sorted keys + crypto SHA-256, the seed kept as text since
+        // it exceeds 2^53). The first sample holds a startedAt, the second a null one.
+        assertEquals("5a49ef7b537fb6faefc8bca0f7a0cb5e743f24b29763b6d93a2321fa59a18472",
                 HashChain.hashOf(Samples.decision()));
-        assertEquals("0548055543a2e87c7b4dec0db7750d1678c34968693107b6c49e1874908c4672",
+        assertEquals("dcee4a000154fce6d29c4262ecf20a652e687b4edda49203c700b26cbd186554",
                 HashChain.hashOf(Samples.valueDecision()));
     }
 

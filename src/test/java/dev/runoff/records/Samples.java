@@ -102,6 +102,7 @@ final class Samples {
                 .setDefinitionVersion(def.getVersion())
                 .setSequence(1)
                 .setStreamTime(NOW)
+                .setStartedAt(NOW - 259_200_000L)
                 .setDefinition(def)
                 .setArms(List.of(
                         arm("control", 10_000, 1_012, 1_013.0, 8_997.0, 0.031, 0.2, 0.2),
@@ -140,6 +141,7 @@ final class Samples {
                 .setAllocationRule(AllocationRule.TOP_TWO_EI)
                 .setGuards(List.of())
                 .setStoppingRule(StoppingRule.GLR)
+                .setStartedAt(null)
                 .setEpsilon(null)
                 .setDecision(Decision.STOP)
                 .setWinner("urgent")
