@@ -52,6 +52,7 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
     private final String storeName;
     private final TopologySettings settings;
     private final Rejections rejections;
+    private final JobCounters counters;
     private final LongSupplier nanoTime;
     private final Evaluator evaluator;
     private final RecordCodec<DecisionRecord> decisions = RecordCodec.decisionRecords();
@@ -60,10 +61,12 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
     private KeyValueStore<String, ExperimentState> experiments;
     private String resumeFrom;
 
-    Fold(String storeName, TopologySettings settings, Rejections rejections, LongSupplier nanoTime) {
+    Fold(String storeName, TopologySettings settings, Rejections rejections, JobCounters counters,
+         LongSupplier nanoTime) {
         this.storeName = storeName;
         this.settings = settings;
         this.rejections = rejections;
+        this.counters = counters;
         this.nanoTime = nanoTime;
         this.evaluator = new Evaluator(settings.monteCarloDraws());
     }
@@ -129,7 +132,7 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
             return;
         }
         experiments.put(delta.experimentId(), current.withDelta(index, delta.stats(), context().currentSystemTimeMs()));
-        rejections.counters().folded(delta.stats().trials());
+        counters.folded(delta.stats().trials());
     }
 
     /** The allocation pass. */
@@ -158,7 +161,7 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
             run(entry.key, entry.value, action, now);
         }
         resumeFrom = next;
-        rejections.counters().allocationPass(nanoTime.getAsLong() - began);
+        counters.allocationPass(nanoTime.getAsLong() - began);
     }
 
     private Action action(ExperimentState state, long now) {
@@ -191,7 +194,7 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
             experiments.put(id, result.next());
             emit(settings.decisionsTopic(), id, decision, now);
             emit(settings.allocationsTopic(), id, update, now);
-            rejections.counters().decision();
+            counters.decision();
         } catch (RuntimeException e) {
             LOG.warn("Evaluation of experiment {} (version {}) failed; retried after new data or the heartbeat", id,
                     state.definition().getVersion(), e);

@@ -33,11 +33,6 @@ final class Rejections {
         this.counters = counters;
     }
 
-    /** The counters these rejections are counted in (the job counts its other figures there too). */
-    JobCounters counters() {
-        return counters;
-    }
-
     /** A rejection to forward from a processor whose output is {@link Routed}. */
     <V> Record<byte[], Routed<V>> routed(byte[] key, byte[] value, long timestamp, String reason, String message,
                                           Source source) {

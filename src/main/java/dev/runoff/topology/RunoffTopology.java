@@ -131,7 +131,7 @@ public final class RunoffTopology {
 
         deltas.merge(definitions, Named.as("stage-two"))
                 .repartition(Repartitioned.with(Serdes.ByteArray(), StageTwo.SERDE).withName("by-experiment"))
-                .process(() -> new Fold(EXPERIMENTS_STORE, settings, rejections, nanoTime), Named.as("fold"),
+                .process(() -> new Fold(EXPERIMENTS_STORE, settings, rejections, counters, nanoTime), Named.as("fold"),
                         EXPERIMENTS_STORE)
                 .to(DESTINATION, Produced.with(Serdes.ByteArray(), EMIT_SERDE).withName("fold-outputs"));
         return builder.build(streamsConfig);
