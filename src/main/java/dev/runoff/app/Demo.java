@@ -65,13 +65,16 @@ public final class Demo {
      */
     public Optional<DemoSummary> run() throws InterruptedException {
         closer.closeOnShutdown("runoff-demo-shutdown");
-        try (closer) {
+        try {
             return Optional.of(runOpen());
         } catch (RuntimeException | InterruptedException e) {
+            // only a shutdown (Ctrl-C) closes the closer before this point: any other failure is reported
             if (closer.isClosed()) {
                 return Optional.empty();
             }
             throw e;
+        } finally {
+            closer.close();
         }
     }
 
