@@ -1,0 +1,119 @@
+package dev.runoff.bench;
+
+import dev.runoff.engine.stats.BernoulliStats;
+import dev.runoff.records.Format;
+import dev.runoff.records.RecordCodec;
+import dev.runoff.records.avro.AllocationSpec;
+import dev.runoff.records.avro.AllocationUpdate;
+import dev.runoff.records.avro.DecisionRecord;
+import dev.runoff.records.avro.EventType;
+import dev.runoff.records.avro.ExperimentDefinition;
+import dev.runoff.records.avro.MetricKind;
+import dev.runoff.records.avro.MetricSpec;
+import dev.runoff.records.avro.StoppingSpec;
+import dev.runoff.decision.Evaluator;
+import dev.runoff.decision.ExperimentState;
+import dev.runoff.topology.TopologySettings;
+import java.util.List;
+import java.util.SplittableRandom;
+import java.util.concurrent.TimeUnit;
+import java.util.stream.IntStream;
+import org.openjdk.jmh.annotations.Benchmark;
+import org.openjdk.jmh.annotations.BenchmarkMode;
+import org.openjdk.jmh.annotations.Fork;
+import org.openjdk.jmh.annotations.Level;
+import org.openjdk.jmh.annotations.Measurement;
+import org.openjdk.jmh.annotations.Mode;
+import org.openjdk.jmh.annotations.OutputTimeUnit;
+import org.openjdk.jmh.annotations.Param;
+import org.openjdk.jmh.annotations.Scope;
+import org.openjdk.jmh.annotations.Setup;
+import org.openjdk.jmh.annotations.State;
+import org.openjdk.jmh.annotations.Warmup;
+
+/**
+ * Recomputation of many active experiments of 5 Bernoulli arms, as the allocation pass does it: the engine
+ * (exact probability of being best, top-two Thompson weights, guards), the GLR stopping rule, the decision
+ * and control records, the hash-chain seal, and the encoding of both records (Avro).
+ *
+ * <p>{@code recomputeOne} gives the average time of one experiment over a pool of distinct experiments;
+ * {@code recomputeAll} times passes over the whole pool (single shots after two warm-up passes, so the JIT
+ * has compiled the engine), i.e. the time to recompute {@code experiments} experiments on one thread.
+ *
+ * <p>Run: {@code mvn -B -q -o -Pbench test-compile exec:exec -Dbench=RecomputeBench.recomputeOne
+ * -Dbench.args="-f 1 -wi 2 -i 3"}; the full pass: {@code -Dbench=RecomputeBench.recomputeAll
+ * -Dbench.args="-f 1"}.
+ */
+@State(Scope.Benchmark)
+@Fork(1)
+public class RecomputeBench {
+
+    private static final long NOW = 1_700_000_000_000L;
+
+    /** Number of distinct active experiments. */
+    @Param("10000")
+    public int experiments;
+
+    private ExperimentState[] states;
+    private final Evaluator evaluator = new Evaluator(TopologySettings.MONTE_CARLO_DRAWS);
+    private final RecordCodec<DecisionRecord> decisions = RecordCodec.decisionRecords();
+    private final RecordCodec<AllocationUpdate> updates = RecordCodec.allocationUpdates();
+    private int next;
+
+    /** Builds the experiments: five arms with 2,000 to 20,000 trials and rates between 2% and 12% each. */
+    @Setup(Level.Trial)
+    public void setUp() {
+        SplittableRandom random = new SplittableRandom(10_000);
+        states = IntStream.range(0, experiments).mapToObj(i -> state("exp-" + i, random))
+                .toArray(ExperimentState[]::new);
+    }
+
+    /** One experiment's recomputation. */
+    @Benchmark
+    @BenchmarkMode(Mode.AverageTime)
+    @OutputTimeUnit(TimeUnit.MILLISECONDS)
+    @Warmup(iterations = 2, time = 5)
+    @Measurement(iterations = 3, time = 10)
+    public int recomputeOne() {
+        ExperimentState state = states[next];
+        next = (next + 1) % states.length;
+        return recompute(state);
+    }
+
+    /** A pass over every experiment of the pool. */
+    @Benchmark
+    @BenchmarkMode(Mode.SingleShotTime)
+    @OutputTimeUnit(TimeUnit.SECONDS)
+    @Warmup(iterations = 2)
+    @Measurement(iterations = 3)
+    public long recomputeAll() {
+        long bytes = 0;
+        for (ExperimentState state : states) {
+            bytes += recompute(state);
+        }
+        return bytes;
+    }
+
+    private int recompute(ExperimentState state) {
+        Evaluator.Result result = evaluator.evaluate(state, NOW);
+        return decisions.encode(result.decision(), Format.AVRO).length
+                + updates.encode(result.update(), Format.AVRO).length;
+    }
+
+    private static ExperimentState state(String id, SplittableRandom random) {
+        List<String> arms = List.of("a", "b", "c", "d", "e");
+        ExperimentDefinition def = ExperimentDefinition.newBuilder().setExperimentId(id).setVersion(1).setArms(arms)
+                .setMetric(MetricSpec.newBuilder().setKind(MetricKind.BERNOULLI).setSuccessEvent(EventType.CLICK)
+                        .build())
+                .setAllocation(AllocationSpec.newBuilder().build())
+                .setStopping(StoppingSpec.newBuilder().setMinTrialsPerArm(1_000_000).build())
+                .build();
+        ExperimentState state = ExperimentState.start(def);
+        for (int arm = 0; arm < arms.size(); arm++) {
+            long trials = 2_000 + random.nextInt(18_000);
+            long successes = Math.round(trials * (0.02 + 0.1 * random.nextDouble()));
+            state = state.withDelta(arm, new BernoulliStats(trials, successes), NOW - 60_000);
+        }
+        return state;
+    }
+}

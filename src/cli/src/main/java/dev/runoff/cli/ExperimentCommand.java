@@ -1,0 +1,194 @@
+package dev.runoff.cli;
+
+import dev.runoff.job.DefinitionsClient;
+import dev.runoff.job.InvalidConfigException;
+import dev.runoff.job.JobConfig;
+import dev.runoff.records.Decoded;
+import dev.runoff.records.Definitions;
+import dev.runoff.records.Format;
+import dev.runoff.records.RecordCodec;
+import dev.runoff.records.avro.ExperimentDefinition;
+import java.io.IOException;
+import java.io.PrintWriter;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.time.Clock;
+import java.time.Duration;
+import java.util.List;
+import java.util.Map;
+import java.util.concurrent.Callable;
+import org.apache.kafka.clients.producer.RecordMetadata;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Mixin;
+import picocli.CommandLine.Model.CommandSpec;
+import picocli.CommandLine.Option;
+import picocli.CommandLine.Parameters;
+import picocli.CommandLine.ParameterException;
+import picocli.CommandLine.Spec;
+
+/** {@code runoff experiment validate|put|list|end}: experiment definitions. */
+@Command(name = "experiment", mixinStandardHelpOptions = true, description = "Manage experiment definitions.",
+        subcommands = {ExperimentCommand.Validate.class, ExperimentCommand.Put.class, ExperimentCommand.ListAll.class,
+            ExperimentCommand.End.class})
+final class ExperimentCommand implements Runnable {
+
+    @Spec
+    private CommandSpec spec;
+
+    /** Without a subcommand there is nothing to do. */
+    @Override
+    public void run() {
+        throw new ParameterException(spec.commandLine(), "missing subcommand: validate, put, list or end");
+    }
+
+    /**
+     * Reads and checks a definition file (JSON, or Avro single-object bytes); prints every problem, each
+     * naming its field, and returns {@code null} when there is any.
+     */
+    static ExperimentDefinition read(CommandSpec spec, Path file, Clock clock) {
+        byte[] bytes;
+        try {
+            bytes = Files.readAllBytes(file);
+        } catch (IOException e) {
+            throw new ParameterException(spec.commandLine(), "cannot read " + file + ": " + e.getMessage());
+        }
+        Decoded<ExperimentDefinition> decoded = RecordCodec.definitions().decode(bytes, clock.millis());
+        if (decoded.isValid()) {
+            return decoded.orThrow();
+        }
+        PrintWriter err = spec.commandLine().getErr();
+        decoded.problems().forEach(p -> err.println(file.getFileName() + ": " + p));
+        err.println(file.getFileName() + ": invalid definition (" + decoded.problems().size() + " problem"
+                + (decoded.problems().size() == 1 ? ")" : "s)"));
+        err.flush();
+        return null;
+    }
+
+    static String summary(ExperimentDefinition d) {
+        return d.getExperimentId() + ": " + d.getArms().size() + " arms " + d.getArms() + ", "
+                + d.getMetric().getKind() + " metric, " + d.getAllocation().getRule() + ", stopping "
+                + d.getStopping().getRule() + " delta " + d.getStopping().getDelta();
+    }
+
+    /** Checks a definition file locally; talks to no cluster. */
+    @Command(name = "validate", mixinStandardHelpOptions = true,
+            description = "Check a definition file (JSON) locally; every problem names its field.")
+    static final class Validate implements Callable<Integer> {
+        @Spec
+        private CommandSpec spec;
+
+        @Parameters(paramLabel = "FILE", description = "Definition file (JSON).")
+        private Path file;
+
+        Clock clock = Clock.systemUTC();
+
+        @Override
+        public Integer call() {
+            ExperimentDefinition d = read(spec, file, clock);
+            if (d == null) {
+                return OneLineErrors.USAGE;
+            }
+            spec.commandLine().getOut().println("valid: " + summary(d));
+            spec.commandLine().getOut().flush();
+            return 0;
+        }
+    }
+
+    /** The options every cluster command shares. */
+    abstract static class ClusterCommand implements Callable<Integer> {
+        @Spec
+        CommandSpec spec;
+
+        @Mixin
+        ClusterOptions cluster;
+
+        @Option(names = "--timeout-ms", defaultValue = "30000", paramLabel = "MS",
+                description = "How long to wait for the cluster (default: ${DEFAULT-VALUE}).")
+        long timeoutMs;
+
+        Map<String, String> env = System.getenv();
+
+        @Override
+        public Integer call() {
+            DefinitionsClient client;
+            try {
+                client = new DefinitionsClient(cluster.load(env), Duration.ofMillis(timeoutMs));
+            } catch (InvalidConfigException e) {
+                return ConfigProblems.print(spec, e);
+            }
+            try {
+                int code = run(client, spec.commandLine().getOut());
+                spec.commandLine().getOut().flush();
+                return code;
+            } catch (IllegalStateException e) {
+                return ConfigProblems.failure(spec, e);
+            }
+        }
+
+        abstract int run(DefinitionsClient client, PrintWriter out);
+    }
+
+    /** Validates, then publishes a definition keyed by its experiment id. */
+    @Command(name = "put", mixinStandardHelpOptions = true,
+            description = "Validate a definition file, then publish it (key = experimentId).")
+    static final class Put extends ClusterCommand {
+        @Parameters(paramLabel = "FILE", description = "Definition file (JSON).")
+        private Path file;
+
+        @Option(names = "--format", defaultValue = "AVRO", paramLabel = "AVRO|JSON",
+                description = "Encoding on the topic (default: ${DEFAULT-VALUE}).")
+        private Format format;
+
+        Clock clock = Clock.systemUTC();
+
+        @Override
+        int run(DefinitionsClient client, PrintWriter out) {
+            ExperimentDefinition d = read(spec, file, clock);
+            if (d == null) {
+                return OneLineErrors.USAGE;
+            }
+            RecordMetadata written = client.put(d, format);
+            out.println("published " + summary(d));
+            out.println("  on " + written.topic() + " partition " + written.partition() + " offset "
+                    + written.offset() + "; the job assigns the version");
+            return 0;
+        }
+    }
+
+    /** Lists the current definitions. */
+    @Command(name = "list", mixinStandardHelpOptions = true,
+            description = {"List the current definitions (the compacted topic read to its end) with the version",
+                "the job accepted: 'pending' before it accepted one, '+new' when a newer submission waits."})
+    static final class ListAll extends ClusterCommand {
+        @Override
+        int run(DefinitionsClient client, PrintWriter out) {
+            List<DefinitionsClient.Listed> all = client.list();
+            out.printf("%-32s %-9s %-10s %-9s %s%n", "EXPERIMENT", "VERSION", "METRIC", "STOPPING", "ARMS");
+            for (DefinitionsClient.Listed l : all) {
+                ExperimentDefinition d = l.accepted() != null ? l.accepted() : l.submitted();
+                String version = l.accepted() == null ? "pending" : l.accepted().getVersion()
+                        + (Definitions.sameContent(l.submitted(), l.accepted()) ? "" : "+new");
+                out.printf("%-32s %-9s %-10s %-9s %s%n", d.getExperimentId(), version, d.getMetric().getKind(),
+                        d.getStopping().getRule(), String.join(",", d.getArms()));
+            }
+            out.println(all.size() + (all.size() == 1 ? " experiment" : " experiments"));
+            return 0;
+        }
+    }
+
+    /** Ends an experiment with a tombstone. */
+    @Command(name = "end", mixinStandardHelpOptions = true,
+            description = "End an experiment: a tombstone on the definitions topic.")
+    static final class End extends ClusterCommand {
+        @Parameters(paramLabel = "ID", description = "Experiment id.")
+        private String id;
+
+        @Override
+        int run(DefinitionsClient client, PrintWriter out) {
+            RecordMetadata written = client.end(id);
+            out.println("ended " + id + ": tombstone on " + written.topic() + " partition " + written.partition()
+                    + " offset " + written.offset() + "; the job deletes its state and its control record");
+            return 0;
+        }
+    }
+}

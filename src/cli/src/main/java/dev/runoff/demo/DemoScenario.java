@@ -1,0 +1,97 @@
+package dev.runoff.demo;
+
+import dev.runoff.records.avro.AfterStopPolicy;
+import dev.runoff.records.avro.AllocationRule;
+import dev.runoff.records.avro.AllocationSpec;
+import dev.runoff.records.avro.EventType;
+import dev.runoff.records.avro.ExperimentDefinition;
+import dev.runoff.records.avro.MetricKind;
+import dev.runoff.records.avro.MetricSpec;
+import dev.runoff.records.avro.StoppingRule;
+import dev.runoff.records.avro.StoppingSpec;
+import java.util.List;
+
+/**
+ * The demo's invented scenario: a ferry operator's booking page tests fare-table layouts. Each visitor sees
+ * one layout (an EXPOSURE) and books a crossing (a CONVERSION) with the layout's true booking rate, which
+ * only the traffic generator knows. The arms are listed so that any prefix of them contains the best one,
+ * with a clear gap, so a shortened demo still has a winner to find.
+ */
+public final class DemoScenario {
+
+    /** The demo experiment's id. */
+    public static final String EXPERIMENT_ID = "ferry-fare-tables";
+
+    /** Layout names, in definition order. */
+    static final List<String> LAYOUTS = List.of("classic-grid", "flexible-bundle", "compact-list",
+            "price-calendar", "cheapest-first");
+    /** Hidden true booking rate of each layout, same order. */
+    static final double[] RATES = {0.030, 0.050, 0.041, 0.034, 0.036};
+    /** Most arms the scenario has. */
+    public static final int MAX_ARMS = LAYOUTS.size();
+
+    private final int arms;
+
+    /**
+     * The scenario with the first {@code arms} layouts.
+     *
+     * @throws IllegalArgumentException unless 2 <= arms <= {@link #MAX_ARMS}
+     */
+    public DemoScenario(int arms) {
+        if (arms < 2 || arms > MAX_ARMS) {
+            throw new IllegalArgumentException("arms must be in [2, " + MAX_ARMS + "], got " + arms);
+        }
+        this.arms = arms;
+    }
+
+    /** The layout names in play. */
+    public List<String> layouts() {
+        return LAYOUTS.subList(0, arms);
+    }
+
+    /** The hidden booking rates of the layouts in play. */
+    public double[] rates() {
+        double[] r = new double[arms];
+        System.arraycopy(RATES, 0, r, 0, arms);
+        return r;
+    }
+
+    /** The layout with the highest hidden rate. */
+    public String trueBest() {
+        double[] r = rates();
+        int best = 0;
+        for (int i = 1; i < r.length; i++) {
+            if (r[i] > r[best]) {
+                best = i;
+            }
+        }
+        return layouts().get(best);
+    }
+
+    /**
+     * The definition the demo registers: bookings per exposure (Beta(1, 1) prior), top-two Thompson
+     * sampling with beta 1/2 after a warm-up, the GLR stopping rule at {@code delta}, a trial budget.
+     *
+     * @param recomputeMs how often the job recomputes the weights
+     * @param budget      trial budget (the experiment stops with reason budget when reached)
+     * @param delta       error probability of the stopping rule
+     * @param warmUp      trials per arm before the weights leave uniform, also the minimum before a STOP
+     */
+    public ExperimentDefinition definition(long recomputeMs, long budget, double delta, long warmUp) {
+        return ExperimentDefinition.newBuilder()
+                .setExperimentId(EXPERIMENT_ID)
+                .setArms(layouts())
+                .setMetric(MetricSpec.newBuilder().setKind(MetricKind.BERNOULLI).setTrialEvent(EventType.EXPOSURE)
+                        .setSuccessEvent(EventType.CONVERSION).build())
+                .setAllocation(AllocationSpec.newBuilder().setRule(AllocationRule.TOP_TWO_THOMPSON).setBeta(0.5)
+                        .setWarmUpTrials(warmUp).build())
+                .setStopping(StoppingSpec.newBuilder().setRule(StoppingRule.GLR).setDelta(delta)
+                        .setMinTrialsPerArm(warmUp).setBudgetTrials(budget).build())
+                .setAfterStop(AfterStopPolicy.ALL_TO_WINNER)
+                .setRecomputePeriodMs(recomputeMs)
+                .setHeartbeatMs(recomputeMs * 10)
+                .setAttributionWindowMs(3_600_000L)
+                .setValidForMs(recomputeMs * 60)
+                .build();
+    }
+}

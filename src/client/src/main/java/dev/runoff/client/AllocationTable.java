@@ -1,0 +1,239 @@
+package dev.runoff.client;
+
+import dev.runoff.records.Decoded;
+import dev.runoff.records.RecordCodec;
+import dev.runoff.records.avro.AllocationUpdate;
+import java.time.Clock;
+import java.util.HashMap;
+import java.util.Objects;
+import java.util.Optional;
+import java.util.Set;
+import java.util.function.DoubleSupplier;
+import java.util.function.Function;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+/**
+ * The latest control record of every experiment, held in memory, and the arm picks made from it.
+ *
+ * <p>Reading: {@link #pick} never throws for any experiment id or unit key and allocates nothing. It reads
+ * one immutable snapshot (a map from experiment id to precomputed arm names, cumulative weights and hash
+ * salt) through a volatile field, so any number of request threads can call it without locks.
+ *
+ * <p>Writing: {@link #apply} (or a {@link ControlTopicFollower}) decodes a control record, builds a new
+ * snapshot and swaps it in; writers are serialised. A record is applied only if it is valid (as
+ * {@code RecordCodec.allocationUpdates()} judges it), its key equals its experiment id, and its
+ * (definitionVersion, sequence) is later than the one held; a null value (tombstone) removes the experiment.
+ * Anything else is skipped and counted, never thrown.
+ *
+ * <p>Picks, in order: an experiment the table does not hold gets the policy's default arm; a STOPPED
+ * experiment gets its winner or a draw from the record's weights ({@link AfterStop}), whatever its
+ * {@code validUntil} (a stop is final); a running experiment past {@code validUntil} on the injected clock
+ * gets the {@link StaleFallback}; otherwise a draw from the current weights, {@link Assignment#HASHED}
+ * (same unit, same weights, same arm) or {@link Assignment#RANDOM}.
+ */
+public final class AllocationTable {
+    private static final Logger LOG = LoggerFactory.getLogger(AllocationTable.class);
+    private static final int LOGGED_KEY_CHARS = 256;
+
+    private final PickPolicy policy;
+    private final Clock clock;
+    private final String defaultArm;
+    private final DoubleSupplier uniformSource;
+    private final StaleFallback staleFallback;
+    private final boolean winnerAfterStop;
+    private final RecordCodec<AllocationUpdate> codec = RecordCodec.allocationUpdates();
+    private final Counters counters = new Counters();
+    private final Object writeLock = new Object();
+    private volatile HashMap<String, CompiledAllocation> snapshot = new HashMap<>();
+
+    private AllocationTable(PickPolicy policy, Clock clock) {
+        this.policy = policy;
+        this.clock = clock;
+        this.defaultArm = policy.defaultArm();
+        this.uniformSource = policy.uniformSource();
+        this.staleFallback = policy.staleFallback();
+        this.winnerAfterStop = policy.afterStop() == AfterStop.WINNER;
+    }
+
+    /**
+     * An empty table.
+     *
+     * @param policy how to pick
+     * @param clock  the time against which {@code validUntil} is judged (for example {@code Clock.systemUTC()})
+     */
+    public static AllocationTable create(PickPolicy policy, Clock clock) {
+        return new AllocationTable(Objects.requireNonNull(policy, "policy"), Objects.requireNonNull(clock, "clock"));
+    }
+
+    /**
+     * The arm to serve to {@code unitKey} in {@code experimentId} (see the class comment for the rules).
+     * Thread-safe, lock-free, allocation-free; never throws, whatever the arguments (only an injected clock
+     * or uniform source that throws could make it throw).
+     *
+     * @param experimentId the experiment; null or unknown gives the default arm
+     * @param unitKey      the randomisation unit (user, device, session id); used in-process only, never
+     *                     stored or sent. Null gives the default arm under {@link Assignment#HASHED}
+     * @return an arm name, never null
+     */
+    public String pick(String experimentId, String unitKey) {
+        counters.picks.increment();
+        CompiledAllocation allocation = experimentId == null ? null : snapshot.get(experimentId);
+        if (allocation == null) {
+            counters.unknownExperimentPicks.increment();
+            return defaultArm;
+        }
+        if (allocation.stopped()) {
+            counters.stoppedPicks.increment();
+            return winnerAfterStop ? allocation.winner() : weighted(allocation, unitKey);
+        }
+        if (clock.millis() > allocation.validUntil()) {
+            counters.stalePicks.increment();
+            return stale(allocation, unitKey);
+        }
+        return weighted(allocation, unitKey);
+    }
+
+    private String weighted(CompiledAllocation allocation, String unitKey) {
+        double u = position(allocation, unitKey);
+        return u >= 0 ? allocation.weighted(u) : defaultArm;
+    }
+
+    private String stale(CompiledAllocation allocation, String unitKey) {
+        switch (staleFallback) {
+            case LAST_WEIGHTS:
+                return weighted(allocation, unitKey);
+            case UNIFORM:
+                double u = position(allocation, unitKey);
+                return u >= 0 ? allocation.uniform(u) : defaultArm;
+            default:
+                return defaultArm;
+        }
+    }
+
+    /** The uniform draw in [0, 1) of this pick, or -1 (counted) for a hashed pick without unit key. */
+    private double position(CompiledAllocation allocation, String unitKey) {
+        if (uniformSource != null) {
+            return uniformSource.getAsDouble();
+        }
+        if (unitKey == null) {
+            counters.missingUnitKeyPicks.increment();
+            return -1;
+        }
+        return allocation.positionOf(unitKey);
+    }
+
+    /** True when the table holds a record of {@code experimentId}, stale or not. */
+    public boolean contains(String experimentId) {
+        return experimentId != null && snapshot.containsKey(experimentId);
+    }
+
+    /** A copy of the control record held for {@code experimentId}, if any. */
+    public Optional<AllocationUpdate> current(String experimentId) {
+        CompiledAllocation allocation = experimentId == null ? null : snapshot.get(experimentId);
+        return allocation == null ? Optional.empty()
+                : Optional.of(AllocationUpdate.newBuilder(allocation.record()).build());
+    }
+
+    /** The experiments held now. */
+    public Set<String> experimentIds() {
+        return Set.copyOf(snapshot.keySet());
+    }
+
+    /** The counters now. */
+    public ServingMetrics metrics() {
+        return counters.read(snapshot.size());
+    }
+
+    /** The policy picks follow. */
+    public PickPolicy policy() {
+        return policy;
+    }
+
+    /**
+     * Applies one control record as read from the control topic. Never throws for bad input: it is
+     * skipped, counted in {@link ServingMetrics#malformedRecords()} and logged.
+     *
+     * @param key   the record key (experiment id)
+     * @param value the record value (Avro single-object encoding or JSON), null for a tombstone
+     * @return what was done
+     */
+    public ControlRecordOutcome apply(String key, byte[] value) {
+        return write(next -> applyOne(next, key, value));
+    }
+
+    /**
+     * Applies records in order and publishes one new snapshot at the end, so a batch costs one map copy.
+     * Package-private: the follower's path.
+     *
+     * @return how many records were read
+     */
+    <R> int applyAll(Iterable<R> records, Function<R, String> key, Function<R, byte[]> value) {
+        return write(next -> {
+            int count = 0;
+            for (R record : records) {
+                applyOne(next, key.apply(record), value.apply(record));
+                count++;
+            }
+            return count;
+        });
+    }
+
+    private <T> T write(Function<HashMap<String, CompiledAllocation>, T> change) {
+        synchronized (writeLock) {
+            HashMap<String, CompiledAllocation> next = new HashMap<>(snapshot);
+            T result = change.apply(next);
+            snapshot = next;
+            return result;
+        }
+    }
+
+    private ControlRecordOutcome applyOne(HashMap<String, CompiledAllocation> next, String key, byte[] value) {
+        if (key == null) {
+            return malformed("(null key)", "a control record needs the experiment id as key");
+        }
+        if (value == null) {
+            next.remove(key);
+            counters.tombstones.increment();
+            return ControlRecordOutcome.REMOVED;
+        }
+        Decoded<AllocationUpdate> decoded;
+        try {
+            decoded = codec.decode(value, Math.max(0, clock.millis()));
+        } catch (RuntimeException e) {
+            return malformed(key, "decoding failed: " + e);
+        }
+        if (!decoded.isValid()) {
+            return malformed(key, decoded.problems().toString());
+        }
+        AllocationUpdate update = decoded.orThrow();
+        if (!key.equals(update.getExperimentId())) {
+            return malformed(key, "experimentId '" + update.getExperimentId() + "' differs from the key");
+        }
+        CompiledAllocation held = next.get(key);
+        if (held != null && !held.isSupersededBy(update)) {
+            counters.outdatedRecords.increment();
+            return ControlRecordOutcome.OUTDATED;
+        }
+        next.put(key, CompiledAllocation.of(update));
+        counters.recordsApplied.increment();
+        return ControlRecordOutcome.APPLIED;
+    }
+
+    private ControlRecordOutcome malformed(String key, String why) {
+        counters.malformedRecords.increment();
+        String shownKey = key.length() > LOGGED_KEY_CHARS ? key.substring(0, LOGGED_KEY_CHARS) + "..." : key;
+        LOG.warn("Skipped control record with key '{}': {}", shownKey, why);
+        return ControlRecordOutcome.MALFORMED;
+    }
+
+    /** The live counters, for the follower's poll errors. */
+    Counters counters() {
+        return counters;
+    }
+
+    /** The injected clock, which the follower shares. */
+    Clock clock() {
+        return clock;
+    }
+}

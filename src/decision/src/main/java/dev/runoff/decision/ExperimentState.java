@@ -1,0 +1,215 @@
+package dev.runoff.decision;
+
+import dev.runoff.engine.Arm;
+import dev.runoff.engine.Metric;
+import dev.runoff.engine.stats.ArmStats;
+import dev.runoff.engine.stats.BernoulliStats;
+import dev.runoff.engine.stats.ValueStats;
+import dev.runoff.records.Definitions;
+import dev.runoff.records.HashChain;
+import dev.runoff.records.avro.ExperimentDefinition;
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.Collections;
+import java.util.List;
+import java.util.Objects;
+
+/**
+ * What the job keeps per experiment: the definition in force (with its version), each arm's sufficient
+ * statistics, the numbering and hash chain of its outputs, and when it was last evaluated and published.
+ * Immutable; every change returns a new state.
+ *
+ * @param definition         the definition in force, with its assigned version
+ * @param stats              each arm's statistics, in the definition's arm order
+ * @param stop               the STOP that ended learning, or {@code null} while running
+ * @param decisionSequence   sequence number of the last decision record (0 before the first)
+ * @param allocationSequence sequence number of the last control record (0 before the first)
+ * @param lastHash           hash of the last decision record ({@link HashChain#GENESIS} before the first)
+ * @param lastWeights        the weights of the last evaluation, in arm order, or {@code null} when there is
+ *                           none for the current arms
+ * @param startedAt          when the first statistics were folded (ms since the epoch), or -1
+ * @param lastComputedAt     time of the last evaluation, or -1
+ * @param lastPublishedAt    time of the last control record, or -1
+ * @param dirty              whether statistics changed since the last evaluation
+ * @param due                whether the next allocation pass must evaluate (new experiment, new version)
+ */
+public record ExperimentState(ExperimentDefinition definition, List<ArmStats> stats, Stop stop,
+                              long decisionSequence, long allocationSequence, String lastHash,
+                              double[] lastWeights, long startedAt, long lastComputedAt, long lastPublishedAt,
+                              boolean dirty, boolean due) {
+
+    /** Validates the shape: one statistics entry per arm, weights of the same length. */
+    public ExperimentState {
+        Objects.requireNonNull(definition, "definition");
+        stats = List.copyOf(stats);
+        if (stats.size() != definition.getArms().size()) {
+            throw new IllegalArgumentException("stats has " + stats.size() + " entries but experiment '"
+                    + definition.getExperimentId() + "' has " + definition.getArms().size() + " arms");
+        }
+        Objects.requireNonNull(lastHash, "lastHash");
+        if (lastWeights != null) {
+            if (lastWeights.length != stats.size()) {
+                throw new IllegalArgumentException("lastWeights has " + lastWeights.length + " entries for "
+                        + stats.size() + " arms");
+            }
+            lastWeights = lastWeights.clone();
+        }
+    }
+
+    /** A new experiment: empty statistics, nothing published, due for its first evaluation. */
+    public static ExperimentState start(ExperimentDefinition definition) {
+        return new ExperimentState(definition, empty(definition, definition.getArms().size()), null, 0, 0,
+                HashChain.GENESIS, null, -1, -1, -1, false, true);
+    }
+
+    /** The experiment id. */
+    public String experimentId() {
+        return definition.getExperimentId();
+    }
+
+    /** Whether a STOP decision ended learning. */
+    public boolean stopped() {
+        return stop != null;
+    }
+
+    /** The arms with their statistics, in definition order. */
+    public List<Arm> arms() {
+        List<String> names = definition.getArms();
+        List<Arm> arms = new ArrayList<>(names.size());
+        for (int i = 0; i < names.size(); i++) {
+            arms.add(new Arm(names.get(i), stats.get(i)));
+        }
+        return arms;
+    }
+
+    /** The engine metric of the definition in force. */
+    public Metric metric() {
+        return Definitions.metric(definition);
+    }
+
+    @Override
+    public double[] lastWeights() {
+        return lastWeights == null ? null : lastWeights.clone();
+    }
+
+    /**
+     * This state with {@code delta} merged into arm {@code index}'s statistics, marked dirty, started at
+     * {@code now} if it had not started.
+     */
+    public ExperimentState withDelta(int index, ArmStats delta, long now) {
+        List<ArmStats> merged = new ArrayList<>(stats);
+        merged.set(index, ArmStats.merge(stats.get(index), delta));
+        return new ExperimentState(definition, merged, stop, decisionSequence, allocationSequence, lastHash,
+                lastWeights, startedAt < 0 ? now : startedAt, lastComputedAt, lastPublishedAt, true, due);
+    }
+
+    /**
+     * This state under a new definition version. Only the configuration changes, except: arms that are new
+     * start with empty statistics, removed arms are dropped, and the last weights are forgotten when the
+     * arm list changed; a change of metric kind empties every arm. A running experiment is due for
+     * evaluation; a stopped one keeps its stop.
+     */
+    public ExperimentState withDefinition(ExperimentDefinition next) {
+        boolean sameKind = Definitions.metric(next) == metric();
+        List<String> before = definition.getArms();
+        List<ArmStats> kept = new ArrayList<>(next.getArms().size());
+        for (String arm : next.getArms()) {
+            int old = before.indexOf(arm);
+            kept.add(sameKind && old >= 0 ? stats.get(old) : empty(next, 1).get(0));
+        }
+        boolean sameArms = before.equals(next.getArms()) && sameKind;
+        return new ExperimentState(next, kept, stop, decisionSequence, allocationSequence, lastHash,
+                sameArms ? lastWeights : null, startedAt, lastComputedAt, lastPublishedAt, dirty, !stopped());
+    }
+
+    /** This state after an evaluation published decision {@code sequence} with {@code hash}. */
+    ExperimentState evaluated(long now, String hash, double[] weights, Stop newStop) {
+        return new ExperimentState(definition, stats, newStop, decisionSequence + 1, allocationSequence + 1, hash,
+                weights, startedAt, now, now, false, false);
+    }
+
+    /** This state after a heartbeat of a stopped experiment (a control record only). */
+    ExperimentState republished(long now) {
+        return new ExperimentState(definition, stats, stop, decisionSequence, allocationSequence + 1, lastHash,
+                lastWeights, startedAt, lastComputedAt, now, dirty, false);
+    }
+
+    /** This state after an evaluation failed at {@code now}: not retried before new data or a heartbeat. */
+    public ExperimentState failed(long now) {
+        return new ExperimentState(definition, stats, stop, decisionSequence, allocationSequence, lastHash,
+                lastWeights, startedAt, now, now, false, false);
+    }
+
+    private static List<ArmStats> empty(ExperimentDefinition definition, int count) {
+        ArmStats zero = Definitions.metric(definition) == Metric.BERNOULLI ? BernoulliStats.EMPTY : ValueStats.EMPTY;
+        return new ArrayList<>(Collections.nCopies(count, zero));
+    }
+
+    @Override
+    public boolean equals(Object o) {
+        return o instanceof ExperimentState s && definition.equals(s.definition) && stats.equals(s.stats)
+                && Objects.equals(stop, s.stop) && decisionSequence == s.decisionSequence
+                && allocationSequence == s.allocationSequence && lastHash.equals(s.lastHash)
+                && Arrays.equals(lastWeights, s.lastWeights) && startedAt == s.startedAt
+                && lastComputedAt == s.lastComputedAt && lastPublishedAt == s.lastPublishedAt && dirty == s.dirty
+                && due == s.due;
+    }
+
+    @Override
+    public int hashCode() {
+        return Objects.hash(definition, stats, stop, decisionSequence, allocationSequence, lastHash,
+                Arrays.hashCode(lastWeights), startedAt, lastComputedAt, lastPublishedAt, dirty, due);
+    }
+
+    @Override
+    public String toString() {
+        return "ExperimentState[" + experimentId() + " v" + definition.getVersion() + ", stats=" + stats
+                + ", stop=" + stop + ", decision=" + decisionSequence + ", allocation=" + allocationSequence
+                + ", lastWeights=" + Arrays.toString(lastWeights) + ", startedAt=" + startedAt
+                + ", lastComputedAt=" + lastComputedAt + ", lastPublishedAt=" + lastPublishedAt + ", dirty=" + dirty
+                + ", due=" + due + "]";
+    }
+
+    /**
+     * The STOP that ended learning, and what the control records carry from then on.
+     *
+     * @param winner            the arm the STOP named
+     * @param definitionVersion the definition version in force at the stop
+     * @param arms              the arms at the stop, in order
+     * @param weights           the after-stop weights, in the same order
+     */
+    public record Stop(String winner, long definitionVersion, List<String> arms, double[] weights) {
+
+        /** Copies the lists and checks their lengths agree. */
+        public Stop {
+            Objects.requireNonNull(winner, "winner");
+            arms = List.copyOf(arms);
+            weights = weights.clone();
+            if (weights.length != arms.size()) {
+                throw new IllegalArgumentException(weights.length + " weights for " + arms.size() + " arms");
+            }
+        }
+
+        @Override
+        public double[] weights() {
+            return weights.clone();
+        }
+
+        @Override
+        public boolean equals(Object o) {
+            return o instanceof Stop s && winner.equals(s.winner) && definitionVersion == s.definitionVersion
+                    && arms.equals(s.arms) && Arrays.equals(weights, s.weights);
+        }
+
+        @Override
+        public int hashCode() {
+            return Objects.hash(winner, definitionVersion, arms, Arrays.hashCode(weights));
+        }
+
+        @Override
+        public String toString() {
+            return "Stop[winner=" + winner + ", v" + definitionVersion + ", arms=" + arms + ", weights="
+                    + Arrays.toString(weights) + "]";
+        }
+    }
+}

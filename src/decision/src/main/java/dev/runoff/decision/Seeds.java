@@ -1,0 +1,40 @@
+package dev.runoff.decision;
+
+import java.nio.ByteBuffer;
+import java.nio.charset.StandardCharsets;
+import java.security.MessageDigest;
+import java.security.NoSuchAlgorithmException;
+import java.util.Objects;
+
+/**
+ * Seeds of the evaluations: the first 8 bytes, read as a big-endian long, of the SHA-256 (FIPS 180-4) of the
+ * UTF-8 text {@code experimentId + ":" + sequence}. An auditor recomputes the seed of any decision from its
+ * experiment id and sequence number alone.
+ */
+public final class Seeds {
+
+    private Seeds() {
+    }
+
+    /**
+     * The seed of decision {@code sequence} of experiment {@code experimentId}.
+     *
+     * @throws IllegalArgumentException when {@code sequence < 1}
+     */
+    public static long of(String experimentId, long sequence) {
+        Objects.requireNonNull(experimentId, "experimentId");
+        if (sequence < 1) {
+            throw new IllegalArgumentException("sequence must be >= 1, got " + sequence);
+        }
+        byte[] text = (experimentId + ":" + sequence).getBytes(StandardCharsets.UTF_8);
+        return ByteBuffer.wrap(sha256(text)).getLong();
+    }
+
+    private static byte[] sha256(byte[] data) {
+        try {
+            return MessageDigest.getInstance("SHA-256").digest(data);
+        } catch (NoSuchAlgorithmException e) {
+            throw new IllegalStateException("every Java platform must provide SHA-256", e);
+        }
+    }
+}

@@ -1,0 +1,77 @@
+package dev.runoff.job;
+
+import dev.runoff.decision.ExperimentState;
+import dev.runoff.topology.RunoffTopology;
+import java.util.function.LongSupplier;
+import org.apache.kafka.streams.KafkaStreams;
+import org.apache.kafka.streams.KeyValue;
+import org.apache.kafka.streams.StoreQueryParameters;
+import org.apache.kafka.streams.errors.InvalidStateStoreException;
+import org.apache.kafka.streams.state.KeyValueIterator;
+import org.apache.kafka.streams.state.QueryableStoreTypes;
+import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
+
+/**
+ * Counts the experiments this instance holds (its active partitions of the experiments store), running and
+ * stopped, for the {@code runoff_experiments} gauge. A count is at most {@link #MAX_AGE_NANOS} old: the
+ * store is scanned at most once per interval, whatever the scrape rate. While the store cannot be read
+ * (rebalance, restore) the last counts stay.
+ */
+final class ExperimentCensus {
+
+    /** Longest a count is reused: 5 s. */
+    static final long MAX_AGE_NANOS = 5_000_000_000L;
+
+    private final KafkaStreams streams;
+    private final LongSupplier nanoTime;
+    private long takenAt;
+    private boolean taken;
+    private long running;
+    private long stopped;
+
+    ExperimentCensus(KafkaStreams streams, LongSupplier nanoTime) {
+        this.streams = streams;
+        this.nanoTime = nanoTime;
+    }
+
+    /** Experiments held here that have not stopped. */
+    synchronized long running() {
+        refresh();
+        return running;
+    }
+
+    /** Experiments held here that stopped (still published until their definition is ended). */
+    synchronized long stopped() {
+        refresh();
+        return stopped;
+    }
+
+    private void refresh() {
+        long now = nanoTime.getAsLong();
+        if (taken && now - takenAt < MAX_AGE_NANOS || streams.state() != KafkaStreams.State.RUNNING) {
+            return;
+        }
+        try {
+            ReadOnlyKeyValueStore<String, ExperimentState> store = streams.store(StoreQueryParameters.fromNameAndType(
+                    RunoffTopology.EXPERIMENTS_STORE, QueryableStoreTypes.<String, ExperimentState>keyValueStore()));
+            long run = 0;
+            long stop = 0;
+            try (KeyValueIterator<String, ExperimentState> all = store.all()) {
+                while (all.hasNext()) {
+                    KeyValue<String, ExperimentState> next = all.next();
+                    if (next.value.stopped()) {
+                        stop++;
+                    } else {
+                        run++;
+                    }
+                }
+            }
+            running = run;
+            stopped = stop;
+            takenAt = now;
+            taken = true;
+        } catch (InvalidStateStoreException e) {
+            // rebalancing or restoring: keep the last counts
+        }
+    }
+}

@@ -1,0 +1,177 @@
+package dev.runoff.job;
+
+import dev.runoff.topology.JobCounters;
+import dev.runoff.topology.RunoffTopology;
+import java.time.Duration;
+import java.util.Properties;
+import java.util.concurrent.CountDownLatch;
+import java.util.concurrent.TimeUnit;
+import java.util.concurrent.atomic.AtomicBoolean;
+import org.apache.kafka.streams.KafkaStreams;
+import org.apache.kafka.streams.StoreQueryParameters;
+import org.apache.kafka.streams.StreamsConfig;
+import org.apache.kafka.streams.Topology;
+import org.apache.kafka.streams.errors.InvalidStateStoreException;
+import org.apache.kafka.streams.state.HostInfo;
+import org.apache.kafka.streams.state.QueryableStoreTypes;
+import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+/**
+ * The running job: the topology in a Kafka Streams client, the HTTP endpoint and the metrics. A stream
+ * thread that dies of an uncaught exception is logged and replaced; {@link #close()} (from a shutdown hook
+ * on SIGTERM, say) stops the client within the configured timeout, then the endpoint.
+ */
+public final class StreamsJob implements AutoCloseable {
+
+    private static final Logger LOG = LoggerFactory.getLogger(StreamsJob.class);
+
+    private final JobConfig config;
+    private final JobCounters counters;
+    private final KafkaStreams streams;
+    private final JobMetrics metrics;
+    private final StatusServer http;
+    private final CountDownLatch ended = new CountDownLatch(1);
+    private final AtomicBoolean closed = new AtomicBoolean();
+    private volatile boolean failed;
+
+    private StreamsJob(JobConfig config, JobCounters counters, KafkaStreams streams, JobMetrics metrics,
+                       StatusServer http) {
+        this.config = config;
+        this.counters = counters;
+        this.streams = streams;
+        this.metrics = metrics;
+        this.http = http;
+    }
+
+    /**
+     * Builds the topology for {@code config}, starts the HTTP endpoint, then the Kafka Streams client (which
+     * connects in the background: see {@code /ready}).
+     */
+    public static StreamsJob start(JobConfig config) {
+        JobCounters counters = new JobCounters();
+        Properties props = RunoffTopology.streamsConfig(config.topology(), counters, config.streamsOverrides());
+        Topology topology = RunoffTopology.build(config.topology(), props, counters);
+        KafkaStreams streams = new KafkaStreams(topology, props);
+        JobMetrics metrics = new JobMetrics(streams, counters, config.applicationId());
+        StatusServer http;
+        try {
+            http = StatusServer.start(config.app().httpPort(), backend(streams, metrics, self(config)));
+        } catch (RuntimeException e) {
+            metrics.close();
+            streams.close(Duration.ZERO);
+            throw e;
+        }
+        StreamsJob job = new StreamsJob(config, counters, streams, metrics, http);
+        streams.setUncaughtExceptionHandler(new ReplaceThreadHandler(metrics::threadReplaced));
+        streams.setStateListener(job::stateChanged);
+        LOG.info("event=job-starting application.id={} bootstrap.servers={} http.port={} topics={}",
+                config.applicationId(), config.bootstrapServers(), http.port(), config.topology());
+        config.ignored().forEach(v -> LOG.warn("event=env-ignored variable={}", v));
+        streams.start();
+        return job;
+    }
+
+    private static HostInfo self(JobConfig config) {
+        String server = config.kafka().get(StreamsConfig.APPLICATION_SERVER_CONFIG);
+        return server == null || server.isEmpty() ? null : HostInfo.buildFromEndpoint(server);
+    }
+
+    private static StatusServer.Backend backend(KafkaStreams streams, JobMetrics metrics, HostInfo self) {
+        ExperimentLookup lookup = new ExperimentLookup(streams, self);
+        return new StatusServer.Backend() {
+            @Override
+            public KafkaStreams.State state() {
+                return streams.state();
+            }
+
+            @Override
+            public String metrics() {
+                return metrics.scrape();
+            }
+
+            @Override
+            public Lookup experiment(String id) {
+                return lookup.find(id);
+            }
+        };
+    }
+
+    private void stateChanged(KafkaStreams.State now, KafkaStreams.State before) {
+        LOG.info("event=streams-state from={} to={}", before, now);
+        if (now == KafkaStreams.State.ERROR) {
+            failed = true;
+            LOG.error("event=streams-failed state=ERROR: the Kafka Streams client stopped; the job ends");
+            ended.countDown();
+        } else if (now == KafkaStreams.State.NOT_RUNNING) {
+            ended.countDown();
+        }
+    }
+
+    /** State of the Kafka Streams client. */
+    public KafkaStreams.State state() {
+        return streams.state();
+    }
+
+    /** Port of the HTTP endpoint. */
+    public int httpPort() {
+        return http.port();
+    }
+
+    /**
+     * Whether this instance validates events of {@code experimentId} already: its definition has reached
+     * the instance's global store of accepted definitions. Until then the job rejects the experiment's events
+     * as unknown, so a producer that starts traffic right after publishing a definition should wait for this
+     * (or for the first control record plus the global store's lag).
+     */
+    public boolean accepts(String experimentId) {
+        if (streams.state() != KafkaStreams.State.RUNNING) {
+            return false;
+        }
+        try {
+            ReadOnlyKeyValueStore<String, byte[]> store = streams.store(StoreQueryParameters.fromNameAndType(
+                    RunoffTopology.DEFINITIONS_STORE, QueryableStoreTypes.<String, byte[]>keyValueStore()));
+            return store.get(experimentId) != null;
+        } catch (InvalidStateStoreException e) {
+            return false;
+        }
+    }
+
+    /** The counters the topology fills. */
+    public JobCounters counters() {
+        return counters;
+    }
+
+    /** The configuration the job runs with. */
+    public JobConfig config() {
+        return config;
+    }
+
+    /** Whether the Kafka Streams client ended in ERROR. */
+    public boolean failed() {
+        return failed;
+    }
+
+    /** Waits until the client stops (closed, or failed) or {@code timeout} passes; true if it stopped. */
+    public boolean awaitStop(Duration timeout) throws InterruptedException {
+        return ended.await(timeout.toMillis(), TimeUnit.MILLISECONDS);
+    }
+
+    /**
+     * Stops the job: the Kafka Streams client (committing and closing its tasks, at most the configured
+     * shutdown timeout), the metrics, then the HTTP endpoint. Only the first call does anything.
+     */
+    @Override
+    public void close() {
+        if (!closed.compareAndSet(false, true)) {
+            return;
+        }
+        long began = System.nanoTime();
+        boolean clean = streams.close(Duration.ofMillis(config.app().shutdownTimeoutMs()));
+        metrics.close();
+        http.close();
+        ended.countDown();
+        LOG.info("event=job-stopped clean={} millis={}", clean, (System.nanoTime() - began) / 1_000_000);
+    }
+}

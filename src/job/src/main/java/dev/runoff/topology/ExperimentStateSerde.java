@@ -1,0 +1,88 @@
+package dev.runoff.topology;
+
+import dev.runoff.decision.ExperimentState;
+
+import dev.runoff.engine.stats.ArmStats;
+import java.util.ArrayList;
+import java.util.List;
+
+/** Internal encoding of {@link ExperimentState} for the experiments store. */
+final class ExperimentStateSerde {
+
+    /** Serde of the experiments store. */
+    static final InternalSerde<ExperimentState> SERDE =
+            new InternalSerde<>(ExperimentStateSerde::encode, ExperimentStateSerde::decode);
+
+    private static final int FORMAT = 1;
+
+    private ExperimentStateSerde() {
+    }
+
+    static byte[] encode(ExperimentState s) {
+        BinaryOut out = new BinaryOut().writeByte(FORMAT).writeBytes(StageTwo.DefinitionBytes.encode(s.definition()))
+                .writeInt(s.stats().size());
+        s.stats().forEach(stats -> Stats.write(out, stats));
+        out.writeBoolean(s.stop() != null);
+        if (s.stop() != null) {
+            ExperimentState.Stop stop = s.stop();
+            out.writeString(stop.winner()).writeLong(stop.definitionVersion()).writeInt(stop.arms().size());
+            stop.arms().forEach(out::writeString);
+            writeDoubles(out, stop.weights());
+        }
+        out.writeLong(s.decisionSequence()).writeLong(s.allocationSequence()).writeString(s.lastHash())
+                .writeBoolean(s.lastWeights() != null);
+        if (s.lastWeights() != null) {
+            writeDoubles(out, s.lastWeights());
+        }
+        return out.writeLong(s.startedAt()).writeLong(s.lastComputedAt()).writeLong(s.lastPublishedAt())
+                .writeBoolean(s.dirty()).writeBoolean(s.due()).toByteArray();
+    }
+
+    static ExperimentState decode(byte[] bytes) {
+        BinaryIn in = new BinaryIn(bytes);
+        int format = in.readByte();
+        if (format != FORMAT) {
+            throw new IllegalArgumentException("experiment state format " + format + " is not " + FORMAT);
+        }
+        var definition = StageTwo.DefinitionBytes.decode(in.readBytes());
+        int arms = in.readInt();
+        List<ArmStats> stats = new ArrayList<>(Math.min(arms, 1024));
+        for (int i = 0; i < arms; i++) {
+            stats.add(Stats.read(in));
+        }
+        ExperimentState.Stop stop = in.readBoolean() ? readStop(in) : null;
+        long decisionSequence = in.readLong();
+        long allocationSequence = in.readLong();
+        String lastHash = in.readString();
+        double[] lastWeights = in.readBoolean() ? readDoubles(in, arms) : null;
+        ExperimentState state = new ExperimentState(definition, stats, stop, decisionSequence, allocationSequence,
+                lastHash, lastWeights, in.readLong(), in.readLong(), in.readLong(), in.readBoolean(), in.readBoolean());
+        in.end();
+        return state;
+    }
+
+    private static ExperimentState.Stop readStop(BinaryIn in) {
+        String winner = in.readString();
+        long version = in.readLong();
+        int count = in.readInt();
+        List<String> arms = new ArrayList<>(Math.min(count, 1024));
+        for (int i = 0; i < count; i++) {
+            arms.add(in.readString());
+        }
+        return new ExperimentState.Stop(winner, version, arms, readDoubles(in, count));
+    }
+
+    private static void writeDoubles(BinaryOut out, double[] values) {
+        for (double v : values) {
+            out.writeDouble(v);
+        }
+    }
+
+    private static double[] readDoubles(BinaryIn in, int count) {
+        double[] values = new double[count];
+        for (int i = 0; i < count; i++) {
+            values[i] = in.readDouble();
+        }
+        return values;
+    }
+}

@@ -1,0 +1,120 @@
+package dev.runoff.topology;
+
+
+import dev.runoff.engine.stats.ArmStats;
+import dev.runoff.records.avro.ExperimentDefinition;
+import java.io.IOException;
+import java.io.UncheckedIOException;
+import java.nio.ByteBuffer;
+import java.util.Objects;
+
+/**
+ * The envelope of the repartition topic keyed by experiment id: pre-aggregated statistics of one arm, a
+ * validated definition, or the end of an experiment. Definitions and statistics share the topic so that
+ * they reach the same task by construction.
+ *
+ * @param kind         which of the three
+ * @param experimentId the experiment (also the record key)
+ * @param arm          DELTA: the arm; otherwise {@code null}
+ * @param stats        DELTA: the statistics to merge; otherwise {@code null}
+ * @param definition   DEFINITION: the validated definition as submitted; otherwise {@code null}
+ */
+record StageTwo(Kind kind, String experimentId, String arm, ArmStats stats, ExperimentDefinition definition) {
+
+    /** Serde of the repartition topic. */
+    static final InternalSerde<StageTwo> SERDE = new InternalSerde<>(StageTwo::encode, StageTwo::decode);
+
+    private static final int FORMAT = 1;
+
+    /** Checks that the fields of the kind are present. */
+    StageTwo {
+        Objects.requireNonNull(kind, "kind");
+        Objects.requireNonNull(experimentId, "experimentId");
+        if (kind == Kind.DELTA) {
+            Objects.requireNonNull(arm, "arm");
+            Objects.requireNonNull(stats, "stats");
+        }
+        if (kind == Kind.DEFINITION) {
+            Objects.requireNonNull(definition, "definition");
+        }
+    }
+
+    /** What the envelope carries. */
+    enum Kind {
+        /** Statistics to merge into one arm. */
+        DELTA,
+        /** A validated definition; the fold assigns its version. */
+        DEFINITION,
+        /** The definition was deleted: the experiment ends. */
+        ENDED
+    }
+
+    static StageTwo delta(ArmDelta delta) {
+        return new StageTwo(Kind.DELTA, delta.experimentId(), delta.arm(), delta.stats(), null);
+    }
+
+    static StageTwo definition(ExperimentDefinition definition) {
+        return new StageTwo(Kind.DEFINITION, definition.getExperimentId(), null, null, definition);
+    }
+
+    static StageTwo ended(String experimentId) {
+        return new StageTwo(Kind.ENDED, experimentId, null, null, null);
+    }
+
+    private static byte[] encode(StageTwo s) {
+        BinaryOut out = new BinaryOut().writeByte(FORMAT).writeByte(s.kind.ordinal()).writeString(s.experimentId);
+        switch (s.kind) {
+            case DELTA -> {
+                out.writeString(s.arm);
+                Stats.write(out, s.stats);
+            }
+            case DEFINITION -> out.writeBytes(DefinitionBytes.encode(s.definition));
+            case ENDED -> {
+                // nothing more
+            }
+        }
+        return out.toByteArray();
+    }
+
+    private static StageTwo decode(byte[] bytes) {
+        BinaryIn in = new BinaryIn(bytes);
+        int format = in.readByte();
+        if (format != FORMAT) {
+            throw new IllegalArgumentException("stage-two format " + format + " is not " + FORMAT);
+        }
+        Kind kind = Kind.values()[in.readByte()];
+        String experimentId = in.readString();
+        StageTwo result = switch (kind) {
+            case DELTA -> new StageTwo(kind, experimentId, in.readString(), Stats.read(in), null);
+            case DEFINITION -> new StageTwo(kind, experimentId, null, null, DefinitionBytes.decode(in.readBytes()));
+            case ENDED -> new StageTwo(kind, experimentId, null, null, null);
+        };
+        in.end();
+        return result;
+    }
+
+    /** Internal encoding of definitions: Avro single-object bytes of the current schema, unchecked. */
+    static final class DefinitionBytes {
+        private DefinitionBytes() {
+        }
+
+        static byte[] encode(ExperimentDefinition definition) {
+            try {
+                ByteBuffer buffer = definition.toByteBuffer();
+                byte[] bytes = new byte[buffer.remaining()];
+                buffer.get(bytes);
+                return bytes;
+            } catch (IOException e) {
+                throw new UncheckedIOException("encoding a definition in memory failed", e);
+            }
+        }
+
+        static ExperimentDefinition decode(byte[] bytes) {
+            try {
+                return ExperimentDefinition.fromByteBuffer(ByteBuffer.wrap(bytes));
+            } catch (IOException e) {
+                throw new UncheckedIOException("corrupt internal definition", e);
+            }
+        }
+    }
+}

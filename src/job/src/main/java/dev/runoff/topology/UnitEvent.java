@@ -1,0 +1,93 @@
+package dev.runoff.topology;
+
+
+import dev.runoff.engine.Metric;
+import java.nio.charset.StandardCharsets;
+import java.util.Objects;
+
+/**
+ * A valid outcome event on its way to deduplication and attribution, keyed by {@link #unitKey()}: the
+ * fields the later steps need, what the definition says about it, and the original record for a later
+ * rejection.
+ *
+ * @param experimentId        the experiment
+ * @param unitId              the unit
+ * @param eventId             the producer's event id
+ * @param role                what the event is for the experiment's metric
+ * @param metric              the metric kind of the experiment
+ * @param arm                 the arm named by the event, or {@code null}
+ * @param value               the event's value, or NaN when it has none
+ * @param timestamp           the event's timestamp field (ms since the epoch)
+ * @param attributionWindowMs the experiment's attribution window
+ * @param source              where the record was read
+ * @param originalKey         the original record key, or {@code null}
+ * @param originalValue       the original record value
+ */
+record UnitEvent(String experimentId, String unitId, String eventId, Role role, Metric metric, String arm,
+                 double value, long timestamp, long attributionWindowMs, Source source, byte[] originalKey,
+                 byte[] originalValue) {
+
+    /** Serde of the repartition topic. */
+    static final InternalSerde<UnitEvent> SERDE = new InternalSerde<>(UnitEvent::encode, UnitEvent::decode);
+
+    private static final int FORMAT = 1;
+
+    /** Checks the fields every step relies on. */
+    UnitEvent {
+        Objects.requireNonNull(experimentId, "experimentId");
+        Objects.requireNonNull(unitId, "unitId");
+        Objects.requireNonNull(eventId, "eventId");
+        Objects.requireNonNull(role, "role");
+        Objects.requireNonNull(metric, "metric");
+        Objects.requireNonNull(source, "source");
+        Objects.requireNonNull(originalValue, "originalValue");
+    }
+
+    /** What an event is for the metric of its experiment. */
+    enum Role {
+        /** The metric's trial event: it fixes the unit's arm and counts one trial (Bernoulli). */
+        TRIAL,
+        /** The Bernoulli metric's success event. */
+        SUCCESS,
+        /** The value metric's value event: one observation. */
+        VALUE
+    }
+
+    /** {@code experimentId NUL unitId}: ids hold no control characters, so the key is unambiguous. */
+    static String unitKey(String experimentId, String unitId) {
+        return experimentId + '\u0000' + unitId;
+    }
+
+    /** {@link #unitKey(String, String)} of this event as UTF-8 bytes (the repartition key). */
+    byte[] unitKeyBytes() {
+        return unitKey(experimentId, unitId).getBytes(StandardCharsets.UTF_8);
+    }
+
+    /** {@code experimentId NUL eventId}, the deduplication key. */
+    String eventKey() {
+        return experimentId + '\u0000' + eventId;
+    }
+
+    private static byte[] encode(UnitEvent e) {
+        BinaryOut out = new BinaryOut().writeByte(FORMAT).writeString(e.experimentId).writeString(e.unitId)
+                .writeString(e.eventId).writeByte(e.role.ordinal()).writeByte(e.metric.ordinal())
+                .writeNullableString(e.arm).writeDouble(e.value).writeLong(e.timestamp)
+                .writeLong(e.attributionWindowMs);
+        e.source.write(out);
+        return out.writeNullableBytes(e.originalKey).writeBytes(e.originalValue).toByteArray();
+    }
+
+    private static UnitEvent decode(byte[] bytes) {
+        BinaryIn in = new BinaryIn(bytes);
+        int format = in.readByte();
+        if (format != FORMAT) {
+            throw new IllegalArgumentException("unit event format " + format + " is not " + FORMAT);
+        }
+        UnitEvent event = new UnitEvent(in.readString(), in.readString(), in.readString(),
+                Role.values()[in.readByte()], Metric.values()[in.readByte()], in.readNullableString(),
+                in.readDouble(), in.readLong(), in.readLong(), Source.read(in), in.readNullableBytes(),
+                in.readBytes());
+        in.end();
+        return event;
+    }
+}

@@ -1,0 +1,163 @@
+package dev.runoff.job;
+
+import dev.runoff.testkit.RepositoryFiles;
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertNotNull;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.MappingIterator;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.dataformat.yaml.YAMLFactory;
+import java.io.IOException;
+import java.io.StringReader;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Properties;
+import java.util.stream.Stream;
+import org.junit.jupiter.api.BeforeAll;
+import org.junit.jupiter.api.Test;
+
+/**
+ * The Kubernetes manifests, the container image and its start script agree with each other and with the
+ * job: every manifest parses as YAML; probes, ports and the state volume line up with the job configuration
+ * in the ConfigMap; the topics Job runs {@code topics create}; the image runs the start script as a non-root
+ * user.
+ */
+class DeployTest {
+
+    private static final Path DEPLOY = RepositoryFiles.resolve("deploy");
+    private static final ObjectMapper YAML = new ObjectMapper(new YAMLFactory());
+    private static final Map<String, JsonNode> BY_KIND_AND_NAME = new HashMap<>();
+    private static Properties config;
+
+    @BeforeAll
+    static void parseEveryManifest() throws IOException {
+        List<Path> files;
+        try (Stream<Path> s = Files.list(DEPLOY.resolve("k8s"))) {
+            files = s.filter(p -> p.toString().endsWith(".yaml")).sorted().toList();
+        }
+        assertFalse(files.isEmpty());
+        for (Path f : files) {
+            try (MappingIterator<JsonNode> docs = YAML.readerFor(JsonNode.class).readValues(f.toFile())) {
+                for (JsonNode doc : docs.readAll()) {
+                    assertNotNull(doc.get("apiVersion"), f + ": apiVersion");
+                    String key = doc.get("kind").asText() + "/" + doc.get("metadata").get("name").asText();
+                    assertEquals(null, BY_KIND_AND_NAME.put(key, doc), "duplicate " + key);
+                }
+            }
+        }
+        config = new Properties();
+        config.load(new StringReader(manifest("ConfigMap/runoff-config").get("data").get("runoff.properties").asText()));
+    }
+
+    private static JsonNode manifest(String kindAndName) {
+        JsonNode doc = BY_KIND_AND_NAME.get(kindAndName);
+        assertNotNull(doc, kindAndName + " not found in deploy/k8s; have " + BY_KIND_AND_NAME.keySet());
+        return doc;
+    }
+
+    private static JsonNode container(JsonNode workload) {
+        return workload.get("spec").get("template").get("spec").get("containers").get(0);
+    }
+
+    @Test
+    void theConfigMapCarriesTheShippedConfigurationAndItIsValid() throws IOException {
+        Properties shipped = new Properties();
+        shipped.load(Files.newBufferedReader(DEPLOY.resolve("runoff.properties"), StandardCharsets.UTF_8));
+        assertEquals(shipped, config, "deploy/k8s/configmap.yaml and deploy/runoff.properties differ");
+        Map<String, String> values = new HashMap<>();
+        config.stringPropertyNames().forEach(k -> values.put(k, config.getProperty(k)));
+        values.put("state.dir", Path.of("target").toAbsolutePath().toString());
+        JobConfig.of(values);
+    }
+
+    @Test
+    void probesHitHealthAndReadyOnTheConfiguredHttpPort() {
+        JsonNode c = container(manifest("StatefulSet/runoff"));
+        int httpPort = Integer.parseInt(config.getProperty(AppSettings.HTTP_PORT_KEY));
+        JsonNode port = c.get("ports").get(0);
+        assertEquals("http", port.get("name").asText());
+        assertEquals(httpPort, port.get("containerPort").asInt());
+        assertEquals("/health", c.get("livenessProbe").get("httpGet").get("path").asText());
+        assertEquals("/ready", c.get("readinessProbe").get("httpGet").get("path").asText());
+        assertEquals("/health", c.get("startupProbe").get("httpGet").get("path").asText());
+        for (String probe : List.of("livenessProbe", "readinessProbe", "startupProbe")) {
+            assertEquals("http", c.get(probe).get("httpGet").get("port").asText(), probe);
+        }
+        for (String service : List.of("Service/runoff", "Service/runoff-headless")) {
+            JsonNode p = manifest(service).get("spec").get("ports").get(0);
+            assertEquals(httpPort, p.get("port").asInt(), service);
+            assertEquals("http", p.get("targetPort").asText(), service);
+        }
+        String server = env(c).get("KAFKA_APPLICATION_SERVER");
+        assertTrue(server.endsWith(".runoff-headless:" + httpPort), server);
+        assertEquals("runoff-headless", manifest("StatefulSet/runoff").get("spec").get("serviceName").asText());
+        assertEquals("None", manifest("Service/runoff-headless").get("spec").get("clusterIP").asText());
+    }
+
+    @Test
+    void stateStoresLiveOnAPersistentVolumeAtTheConfiguredStateDir() {
+        JsonNode set = manifest("StatefulSet/runoff");
+        JsonNode claim = set.get("spec").get("volumeClaimTemplates").get(0);
+        String claimName = claim.get("metadata").get("name").asText();
+        assertEquals("ReadWriteOnce", claim.get("spec").get("accessModes").get(0).asText());
+        String mount = null;
+        for (JsonNode m : container(set).get("volumeMounts")) {
+            if (m.get("name").asText().equals(claimName)) {
+                mount = m.get("mountPath").asText();
+            }
+        }
+        assertEquals(config.getProperty("state.dir"), mount);
+        JsonNode pod = set.get("spec").get("template").get("spec");
+        assertTrue(pod.get("securityContext").get("runAsNonRoot").asBoolean());
+        assertFalse(pod.get("enableServiceLinks").asBoolean(), "service links would inject KAFKA_* variables");
+        long grace = pod.get("terminationGracePeriodSeconds").asLong();
+        assertTrue(grace * 1000 > Long.parseLong(config.getProperty(AppSettings.SHUTDOWN_TIMEOUT_KEY)),
+                "the grace period must outlast the job's shutdown timeout");
+        assertEquals(List.of("run", "--config", "/etc/runoff/runoff.properties"), strings(container(set).get("args")));
+    }
+
+    @Test
+    void theTopicsJobRunsTopicsCreateWithTheSameConfiguration() {
+        JsonNode job = manifest("Job/runoff-topics");
+        List<String> args = strings(container(job).get("args"));
+        assertEquals(List.of("topics", "create", "--config", "/etc/runoff/runoff.properties"), args.subList(0, 4));
+        assertEquals("OnFailure", job.get("spec").get("template").get("spec").get("restartPolicy").asText());
+        assertEquals("runoff-config", job.get("spec").get("template").get("spec").get("volumes").get(0)
+                .get("configMap").get("name").asText());
+    }
+
+    @Test
+    void theImageRunsTheStartScriptAsANonRootUser() throws IOException {
+        List<String> lines = Files.readAllLines(DEPLOY.resolve("Dockerfile"));
+        String user = lines.stream().filter(l -> l.startsWith("USER ")).findFirst().orElseThrow();
+        assertFalse(user.contains("root") || user.equals("USER 0") || user.startsWith("USER 0:"), user);
+        assertTrue(lines.contains("ENTRYPOINT [\"/opt/runoff/runoff.sh\"]"), "entry point");
+        assertTrue(lines.contains("CMD [\"run\", \"--config\", \"/etc/runoff/runoff.properties\"]"), "default command");
+        assertTrue(lines.contains("COPY deploy/runoff.sh /opt/runoff/runoff.sh"));
+        assertTrue(lines.contains("COPY target/runoff.jar /opt/runoff/runoff.jar"));
+    }
+
+    private static Map<String, String> env(JsonNode container) {
+        Map<String, String> env = new HashMap<>();
+        for (JsonNode e : container.get("env")) {
+            if (e.has("value")) {
+                env.put(e.get("name").asText(), e.get("value").asText());
+            }
+        }
+        return env;
+    }
+
+    private static List<String> strings(JsonNode array) {
+        List<String> out = new ArrayList<>();
+        array.forEach(n -> out.add(n.asText()));
+        return out;
+    }
+}

@@ -1,0 +1,60 @@
+package dev.runoff.topology;
+
+import dev.runoff.decision.ExperimentState;
+
+import static org.junit.jupiter.api.Assertions.assertArrayEquals;
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+
+import dev.runoff.engine.Metric;
+import dev.runoff.engine.stats.BernoulliStats;
+import dev.runoff.engine.stats.ValueStats;
+import java.util.Arrays;
+import java.util.List;
+import org.junit.jupiter.api.Test;
+
+/** The internal values survive their encodings, and corrupt bytes fail with a clear exception. */
+class InternalEncodingTest {
+
+    @Test
+    void experimentStateRoundTrips() {
+        ExperimentState state = ExperimentState.start(Defs.bernoulli("e", "a", "b"))
+                .withDelta(1, new BernoulliStats(10, 3), 5L);
+        ExperimentState stopped = new ExperimentState(state.definition(), state.stats(),
+                new ExperimentState.Stop("b", 1, List.of("a", "b"), new double[] {0, 1}), 4, 6, "ab".repeat(32),
+                new double[] {0.25, 0.75}, 5, 9, 9, true, false);
+        for (ExperimentState s : List.of(state, stopped)) {
+            assertEquals(s, ExperimentStateSerde.decode(ExperimentStateSerde.encode(s)));
+        }
+    }
+
+    @Test
+    void envelopesRoundTrip() {
+        UnitEvent event = new UnitEvent("e", "u", "ev", UnitEvent.Role.VALUE, Metric.VALUE, null, -2.5, 7L, 60_000L,
+                new Source("in", 3, 99L), null, new byte[] {1, 2, 3});
+        UnitEvent back = UnitEvent.SERDE.deserializer().deserialize("t", UnitEvent.SERDE.serializer().serialize("t",
+                event));
+        assertEquals(List.of(event.experimentId(), event.unitId(), event.eventId(), event.role(), event.metric(),
+                        event.value(), event.timestamp(), event.attributionWindowMs(), event.source()),
+                List.of(back.experimentId(), back.unitId(), back.eventId(), back.role(), back.metric(), back.value(),
+                        back.timestamp(), back.attributionWindowMs(), back.source()));
+        assertArrayEquals(event.originalValue(), back.originalValue());
+        for (StageTwo s : List.of(StageTwo.delta(new ArmDelta("e", "a", new ValueStats(3, 1.5, 0.25))),
+                StageTwo.definition(Defs.value("e", "a", "b")), StageTwo.ended("e"))) {
+            byte[] bytes = StageTwo.SERDE.serializer().serialize("t", s);
+            assertEquals(s, StageTwo.SERDE.deserializer().deserialize("t", bytes));
+        }
+    }
+
+    @Test
+    void corruptBytesFailNamingTheProblem() {
+        byte[] bytes = ExperimentStateSerde.encode(ExperimentState.start(Defs.bernoulli("e", "a", "b")));
+        IllegalArgumentException truncated = assertThrows(IllegalArgumentException.class,
+                () -> ExperimentStateSerde.decode(Arrays.copyOf(bytes, bytes.length - 3)));
+        assertEquals("corrupt internal value: truncated", truncated.getMessage());
+        byte[] hugeLength = {1, 0x7f, 0x7f, 0x7f, 0x7f};
+        assertEquals("corrupt internal value: length 2139062143 with 0 bytes left",
+                assertThrows(IllegalArgumentException.class, () -> ExperimentStateSerde.decode(hugeLength))
+                        .getMessage());
+    }
+}
