@@ -1,5 +1,7 @@
 package dev.runoff.audit;
 
+import dev.runoff.engine.core.Names;
+
 /** The checks of {@code audit verify}, in the order their findings are listed for one record. */
 public enum Check {
     /** The record decodes and obeys every rule of the records package. */
@@ -17,6 +19,6 @@ public enum Check {
 
     /** Lowercase name with dashes, as printed: {@code sample-ratio}. */
     public String label() {
-        return name().toLowerCase(java.util.Locale.ROOT).replace('_', '-');
+        return Names.kebab(this);
     }
 }

@@ -1,7 +1,7 @@
 package dev.runoff.bench;
 
 import dev.runoff.engine.EngineConfig;
-import dev.runoff.engine.Metric;
+import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.planning.Simulation;
 import dev.runoff.engine.planning.SimulationArms;
 import dev.runoff.engine.planning.SimulationConfig;

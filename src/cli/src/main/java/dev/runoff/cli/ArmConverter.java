@@ -1,6 +1,6 @@
 package dev.runoff.cli;
 
-import dev.runoff.engine.Arm;
+import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.stats.ArmStats;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;

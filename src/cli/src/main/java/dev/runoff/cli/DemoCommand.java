@@ -49,7 +49,7 @@ final class DemoCommand implements Callable<Integer> {
     @Option(names = "--delta", defaultValue = "0.05", description = "Error probability of the stopping rule (default: ${DEFAULT-VALUE}).")
     private double delta;
 
-    @Option(names = "--budget", defaultValue = "300000", paramLabel = "TRIALS",
+    @Option(names = "--budget-trials", defaultValue = "300000", paramLabel = "TRIALS",
             description = "Trial budget: the experiment stops with reason budget there (default: ${DEFAULT-VALUE}).")
     private long budget;
 

@@ -1,11 +1,11 @@
 package dev.runoff.cli;
 
 import dev.runoff.engine.AllocationEngine;
-import dev.runoff.engine.Arm;
+import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.Evaluation;
-import dev.runoff.engine.Metric;
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.core.Metric;
+import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.allocation.Guards;
 import dev.runoff.engine.posterior.BetaPrior;
 import dev.runoff.engine.posterior.NormalGammaPrior;
@@ -57,7 +57,7 @@ final class EvaluateCommand implements Callable<Integer> {
     @Option(names = "--rule", converter = Spelling.Rules.class, completionCandidates = Spelling.Rules.class,
             paramLabel = "RULE",
             description = "Allocation rule: ${COMPLETION-CANDIDATES} (default: top-two-thompson).")
-    private AllocationRule rule;
+    private AllocationMethod rule;
 
     @Option(names = "--beta", paramLabel = "B", description = "Leader's share in the top-two rules, in [0, 1]"
             + " (default: " + EngineConfig.DEFAULT_BETA + ").")

@@ -3,7 +3,7 @@ package dev.runoff.cli;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
-import dev.runoff.engine.Arm;
+import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.Evaluation;
 import dev.runoff.engine.allocation.GuardFlag;

@@ -1,9 +1,9 @@
 package dev.runoff.cli;
 
-import dev.runoff.engine.Checks;
+import dev.runoff.engine.core.Checks;
 import dev.runoff.engine.EngineConfig;
-import dev.runoff.engine.Metric;
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.core.Metric;
+import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.planning.Simulation;
 import dev.runoff.engine.planning.SimulationArms;
 import dev.runoff.engine.planning.SimulationConfig;
@@ -62,7 +62,7 @@ final class PlanCommand implements Callable<Integer> {
     @Option(names = "--rule", converter = Spelling.Rules.class, completionCandidates = Spelling.Rules.class,
             paramLabel = "RULE", defaultValue = "top-two-thompson",
             description = "Allocation rule: ${COMPLETION-CANDIDATES} (default: ${DEFAULT-VALUE}).")
-    private AllocationRule rule;
+    private AllocationMethod rule;
 
     @Option(names = "--beta", paramLabel = "B", defaultValue = "0.5",
             description = "Leader's share in the top-two rules, in [0, 1] (default: ${DEFAULT-VALUE}).")
@@ -86,11 +86,11 @@ final class PlanCommand implements Callable<Integer> {
             description = "Master seed of the simulation (default: ${DEFAULT-VALUE}).")
     private long seed;
 
-    @Option(names = "--max-trials", paramLabel = "N",
+    @Option(names = "--budget-trials", paramLabel = "N",
             description = "Trial budget of each simulated experiment (default: " + BUDGET_FACTOR
                     + " x T* x max(log(1/delta), 3), i.e. " + BUDGET_FACTOR + " x the predicted trials for"
                     + " delta <= 0.05).")
-    private Long maxTrials;
+    private Long budgetTrials;
 
     @Option(names = "--threads", paramLabel = "N",
             description = "Threads for the simulation (default: the number of processors); results do not"
@@ -144,8 +144,8 @@ final class PlanCommand implements Callable<Integer> {
         if (replications < 0) {
             throw usage("--simulate must be >= 0, got " + replications);
         }
-        if (maxTrials != null && maxTrials < 1) {
-            throw usage("--max-trials must be >= 1, got " + maxTrials);
+        if (budgetTrials != null && budgetTrials < 1) {
+            throw usage("--budget-trials must be >= 1, got " + budgetTrials);
         }
         if (threads != null && threads < 1) {
             throw usage("--threads must be >= 1, got " + threads);
@@ -161,9 +161,9 @@ final class PlanCommand implements Callable<Integer> {
             throw usage(option + ": " + tiedNames(arms) + " share the best mean " + arms.bestMean()
                     + "; the best arm is not unique: give an indifference zone --epsilon > 0");
         }
-        if (replications > 0 && maxTrials == null) {
+        if (replications > 0 && budgetTrials == null) {
             throw usage(option + ": with tied best arms there is no finite prediction to size the budget:"
-                    + " give --max-trials");
+                    + " give --budget-trials");
         }
     }
 
@@ -178,14 +178,14 @@ final class PlanCommand implements Callable<Integer> {
     }
 
     /**
-     * The trial budget of a simulated run: {@code --max-trials}, or {@link #BUDGET_FACTOR} x
+     * The trial budget of a simulated run: {@code --budget-trials}, or {@link #BUDGET_FACTOR} x
      * round(T* max(log(1/delta), {@link #MIN_LOG_FACTOR})), which is {@link #BUDGET_FACTOR} x the predicted
      * trials round(T* log(1/delta)) for delta up to 0.05. The floor keeps room for the GLR threshold's log t term, which
      * dominates at large delta.
      */
     private long budget(PlanFigures plan) {
-        if (maxTrials != null) {
-            return maxTrials;
+        if (budgetTrials != null) {
+            return budgetTrials;
         }
         if (plan.optimal() == null) {
             throw new IllegalStateException("no prediction to size the budget with");

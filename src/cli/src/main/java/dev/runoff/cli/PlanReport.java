@@ -4,8 +4,8 @@ import com.fasterxml.jackson.core.JsonProcessingException;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
-import dev.runoff.engine.Metric;
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.core.Metric;
+import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.planning.SimulationArms;
 import dev.runoff.engine.planning.SimulationConfig;
 import dev.runoff.engine.planning.SimulationResult;
@@ -86,7 +86,7 @@ final class PlanReport {
     /** Optimal, then the rule's target when it differs from uniform and is defined, then uniform. */
     private List<TargetAllocation> targets() {
         List<TargetAllocation> targets = new ArrayList<>(List.of(plan.optimal()));
-        if (plan.rule() != AllocationRule.UNIFORM && plan.ruleTarget() != null) {
+        if (plan.rule() != AllocationMethod.UNIFORM && plan.ruleTarget() != null) {
             targets.add(plan.ruleTarget());
         }
         targets.add(plan.uniform());
@@ -105,7 +105,7 @@ final class PlanReport {
         List<SimulationSummary> columns = summaries();
         StringBuilder out = new StringBuilder(String.format(Locale.ROOT,
                 "Simulation: %d runs per rule, batch %d, %s stopping, budget %d trials per run, seed %d%n",
-                c.replications(), c.batch(), Spelling.of(c.stopping().rule()), c.maxTrials(), c.seed()));
+                c.replications(), c.batch(), Spelling.of(c.stopping().rule()), c.budgetTrials(), c.seed()));
         Columns table = new Columns();
         table.row(row("", columns, s -> s.rule().cliName()));
         table.row(row("mean trials", columns, s -> fixed(s.meanTrials(), 1)));
@@ -130,7 +130,7 @@ final class PlanReport {
 
     /** The rule's summary, then the baseline's unless the rule is uniform. */
     private List<SimulationSummary> summaries() {
-        return plan.rule() == AllocationRule.UNIFORM ? List.of(simulation.rule())
+        return plan.rule() == AllocationMethod.UNIFORM ? List.of(simulation.rule())
                 : List.of(simulation.rule(), simulation.baseline());
     }
 
@@ -207,14 +207,14 @@ final class PlanReport {
         SimulationConfig c = simulation.config();
         ObjectNode n = MAPPER.createObjectNode();
         n.put("rule", s.rule().cliName());
-        if (configured && s.rule() != AllocationRule.UNIFORM) {
+        if (configured && s.rule() != AllocationMethod.UNIFORM) {
             number(n, "beta", c.engine().beta());
         }
         n.put("stopping", Spelling.of(c.stopping().rule()));
         n.put("replications", s.replications());
         n.put("batch", c.batch());
         n.put("seed", c.seed());
-        n.put("maxTrials", c.maxTrials());
+        n.put("budgetTrials", c.budgetTrials());
         number(n, "meanTrials", s.meanTrials());
         number(n, "medianTrials", s.medianTrials());
         n.put("p90Trials", s.p90Trials());

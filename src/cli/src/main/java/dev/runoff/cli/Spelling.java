@@ -1,12 +1,13 @@
 package dev.runoff.cli;
 
+import dev.runoff.engine.core.Names;
+
 import dev.runoff.engine.EngineConfig;
-import dev.runoff.engine.Metric;
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.core.Metric;
+import dev.runoff.engine.allocation.AllocationMethod;
 import java.util.ArrayList;
 import java.util.Iterator;
 import java.util.List;
-import java.util.Locale;
 import picocli.CommandLine.ITypeConverter;
 import picocli.CommandLine.TypeConversionException;
 
@@ -25,7 +26,7 @@ abstract class Spelling<E extends Enum<E>> implements ITypeConverter<E>, Iterabl
 
     /** The spelling of {@code value}. */
     static String of(Enum<?> value) {
-        return value.name().toLowerCase(Locale.ROOT).replace('_', '-');
+        return Names.kebab(value);
     }
 
     @Override
@@ -47,10 +48,10 @@ abstract class Spelling<E extends Enum<E>> implements ITypeConverter<E>, Iterabl
         return names.iterator();
     }
 
-    /** Spellings of {@link AllocationRule}. */
-    static final class Rules extends Spelling<AllocationRule> {
+    /** Spellings of {@link AllocationMethod}. */
+    static final class Rules extends Spelling<AllocationMethod> {
         Rules() {
-            super(AllocationRule.class);
+            super(AllocationMethod.class);
         }
     }
 

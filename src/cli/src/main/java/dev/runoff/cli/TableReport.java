@@ -1,9 +1,9 @@
 package dev.runoff.cli;
 
-import dev.runoff.engine.Arm;
+import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.Evaluation;
-import dev.runoff.engine.Metric;
+import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.allocation.GuardFlag;
 import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.stats.BernoulliStats;

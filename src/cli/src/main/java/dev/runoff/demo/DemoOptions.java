@@ -34,7 +34,7 @@ public record DemoOptions(long seed, int arms, int visitorsPerPeriod, long perio
         }
         positive("--warm-up", warmUp);
         if (budget < warmUp * arms) {
-            throw new IllegalArgumentException("--budget must be at least --warm-up x --arms = " + warmUp * arms
+            throw new IllegalArgumentException("--budget-trials must be at least --warm-up x --arms = " + warmUp * arms
                     + ", got " + budget);
         }
         positive("--max-seconds", maxSeconds);

@@ -75,7 +75,7 @@ class PlanCommandTest {
         assertEquals(4, sim.get("replications").asInt());
         // delta 0.1: log(1/delta) = 2.3 is below the floor 3 of the default budget
         assertEquals(PlanCommand.BUDGET_FACTOR * Math.round(optimal.characteristicTime() * 3),
-                sim.get("maxTrials").asLong());
+                sim.get("budgetTrials").asLong());
         JsonNode base = root.get("baseline");
         assertEquals("uniform", base.get("rule").asText());
         for (JsonNode s : List.of(sim, base)) {
@@ -115,7 +115,7 @@ class PlanCommandTest {
     @Test
     void defaultBudgetIsTwentyTimesThePredictedTrialsForSmallDelta() throws Exception {
         JsonNode root = json(run("plan", "--rates", "0.7,0.4,0.3", "--delta", "0.01", "--simulate", "1", "--json"));
-        assertEquals(20 * root.get("predictedTrials").asLong(), root.get("simulation").get("maxTrials").asLong());
+        assertEquals(20 * root.get("predictedTrials").asLong(), root.get("simulation").get("budgetTrials").asLong());
     }
 
     @Test
@@ -139,11 +139,11 @@ class PlanCommandTest {
     @Test
     void tiedBestArmsWithAnIndifferenceZoneSimulateWithoutAPrediction() throws Exception {
         JsonNode root = json(run("plan", "--rates", "0.6,0.6,0.2", "--epsilon", "0.01", "--delta", "0.1",
-                "--max-trials", "300", "--simulate", "2", "--batch", "100", "--rule", "uniform", "--json"));
+                "--budget-trials", "300", "--simulate", "2", "--batch", "100", "--rule", "uniform", "--json"));
         assertTrue(root.get("optimalWeights").isNull(), root.toString());
         assertTrue(root.get("predictedTrials").isNull(), root.toString());
         assertEquals(0, root.get("simulation").get("errors").asInt(), "either tied arm is a right pick");
-        assertEquals(300, root.get("simulation").get("maxTrials").asLong());
+        assertEquals(300, root.get("simulation").get("budgetTrials").asLong());
     }
 
     @Test
@@ -152,7 +152,7 @@ class PlanCommandTest {
         EvaluateCommandTest.Run r = run("plan", "--help");
         assertEquals(0, r.exitCode());
         for (String option : List.of("--rates", "--means", "--stddev", "--delta", "--epsilon", "--rule", "--beta",
-                "--stopping", "--batch", "--simulate", "--seed", "--max-trials", "--threads", "--json")) {
+                "--stopping", "--batch", "--simulate", "--seed", "--budget-trials", "--threads", "--json")) {
             assertTrue(r.out().contains(option), option);
         }
     }
@@ -163,7 +163,7 @@ class PlanCommandTest {
         "--rates 0,0.5|--rates 0,0.5: rate of arm1 must be in (0.0, 1.0), got 0.0",
         "--rates 0.5,0.3,0.5|--rates: arm1 and arm3 share the best mean 0.5; the best arm is not unique: give an"
             + " indifference zone --epsilon > 0",
-        "--rates 0.5,0.5 --epsilon 0.01|give --max-trials",
+        "--rates 0.5,0.5 --epsilon 0.01|give --budget-trials",
         "--rates 0.5,0.4 --delta 1.5|--delta 1.5: delta must be in (0.0, 1.0), got 1.5",
         "--rates 0.5,0.4 --delta 0|--delta 0.0: delta must be in (0.0, 1.0), got 0.0",
         "--rates 0.5,0.4 --epsilon -1|--epsilon -1.0: epsilon must be a finite number >= 0, got -1.0",

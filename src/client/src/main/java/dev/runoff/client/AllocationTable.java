@@ -27,7 +27,7 @@ import org.slf4j.LoggerFactory;
  * Anything else is skipped and counted, never thrown.
  *
  * <p>Picks, in order: an experiment the table does not hold gets the policy's default arm; a STOPPED
- * experiment gets its winner or a draw from the record's weights ({@link AfterStop}), whatever its
+ * experiment gets its winner or a draw from the record's weights ({@link StoppedPick}), whatever its
  * {@code validUntil} (a stop is final); a running experiment past {@code validUntil} on the injected clock
  * gets the {@link StaleFallback}; otherwise a draw from the current weights, {@link Assignment#HASHED}
  * (same unit, same weights, same arm) or {@link Assignment#RANDOM}.
@@ -53,7 +53,7 @@ public final class AllocationTable {
         this.defaultArm = policy.defaultArm();
         this.uniformSource = policy.uniformSource();
         this.staleFallback = policy.staleFallback();
-        this.winnerAfterStop = policy.afterStop() == AfterStop.WINNER;
+        this.winnerAfterStop = policy.afterStop() == StoppedPick.WINNER;
     }
 
     /**

@@ -8,7 +8,7 @@ import java.util.function.DoubleSupplier;
  * and what to do for stale and stopped experiments. Immutable.
  *
  * <p>Defaults: {@link Assignment#HASHED}, {@link StaleFallback#UNIFORM} (the control record's own rule is
- * that weights past {@code validUntil} must no longer be used), {@link AfterStop#RECORD_WEIGHTS}.
+ * that weights past {@code validUntil} must no longer be used), {@link StoppedPick#RECORD_WEIGHTS}.
  */
 public final class PickPolicy {
 
@@ -16,7 +16,7 @@ public final class PickPolicy {
     private final Assignment assignment;
     private final DoubleSupplier uniformSource;
     private final StaleFallback staleFallback;
-    private final AfterStop afterStop;
+    private final StoppedPick afterStop;
 
     private PickPolicy(Builder builder) {
         this.defaultArm = builder.defaultArm;
@@ -59,7 +59,7 @@ public final class PickPolicy {
     }
 
     /** The behaviour after STOP. */
-    public AfterStop afterStop() {
+    public StoppedPick afterStop() {
         return afterStop;
     }
 
@@ -75,7 +75,7 @@ public final class PickPolicy {
         private Assignment assignment = Assignment.HASHED;
         private DoubleSupplier uniformSource;
         private StaleFallback staleFallback = StaleFallback.UNIFORM;
-        private AfterStop afterStop = AfterStop.RECORD_WEIGHTS;
+        private StoppedPick afterStop = StoppedPick.RECORD_WEIGHTS;
 
         private Builder(String defaultArm) {
             this.defaultArm = defaultArm;
@@ -107,7 +107,7 @@ public final class PickPolicy {
         }
 
         /** Sets the behaviour after STOP. */
-        public Builder afterStop(AfterStop policy) {
+        public Builder afterStop(StoppedPick policy) {
             this.afterStop = Objects.requireNonNull(policy, "afterStop");
             return this;
         }

@@ -10,7 +10,7 @@
  *       it on a background thread.</li>
  *   <li>{@link dev.runoff.client.PickPolicy}: default arm, hashed or random assignment, the fallback for
  *       stale weights ({@link dev.runoff.client.StaleFallback}) and the behaviour after STOP
- *       ({@link dev.runoff.client.AfterStop}).</li>
+ *       ({@link dev.runoff.client.StoppedPick}).</li>
  *   <li>{@link dev.runoff.client.OutcomeReporter}: writes exposure (and click, conversion, value) events
  *       in the job's schema, with the unit id replaced by a keyed hash
  *       ({@link dev.runoff.client.UnitPseudonymizer}).</li>

@@ -207,7 +207,7 @@ class AllocationTableTest {
 
     @Test
     void stoppedExperimentServesWinnerEvenPastValidUntil() {
-        AllocationTable table = table(p -> p.afterStop(AfterStop.WINNER).staleFallback(StaleFallback.DEFAULT_ARM));
+        AllocationTable table = table(p -> p.afterStop(StoppedPick.WINNER).staleFallback(StaleFallback.DEFAULT_ARM));
         table.apply("e", avro(stopped("e", 9, "b", "a", 0.5, "b", 0.5)));
         clock.set(VALID_UNTIL + 86_400_000L);
         for (int i = 0; i < 1_000; i++) {

@@ -83,7 +83,7 @@ class ServingBrokerTest {
         send("ctl-follow", "e3", null);
         MutableClock clock = new MutableClock(NOW);
         AllocationTable table = AllocationTable.create(PickPolicy.builder("fallback")
-                .staleFallback(StaleFallback.DEFAULT_ARM).afterStop(AfterStop.WINNER).build(), clock);
+                .staleFallback(StaleFallback.DEFAULT_ARM).afterStop(StoppedPick.WINNER).build(), clock);
         try (ControlTopicFollower follower = follow(table, "ctl-follow")) {
             // caught up before start returned: no waiting here
             assertEquals("a", table.pick("e1", "u"));

@@ -1,9 +1,9 @@
 package dev.runoff.decision;
 
-import dev.runoff.engine.stopping.Decision;
+import dev.runoff.engine.stopping.Verdict;
 
 /**
- * The one place where the stopping rule's {@link dev.runoff.engine.stopping.Reason} becomes the
+ * The one place where the stopping rule's {@link dev.runoff.engine.stopping.VerdictReason} becomes the
  * {@code reason} string of a decision record.
  *
  * <table>
@@ -37,7 +37,7 @@ public final class DecisionReasons {
     }
 
     /** The record reason of {@code decision}. */
-    public static String of(Decision decision) {
+    public static String of(Verdict decision) {
         return switch (decision.reason()) {
             case GLR, POSTERIOR, INDIFFERENCE -> THRESHOLD_REACHED;
             case BUDGET -> decision.guards().trialBudgetSpent() ? BUDGET : DEADLINE;

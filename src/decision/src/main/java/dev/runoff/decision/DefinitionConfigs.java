@@ -1,7 +1,7 @@
 package dev.runoff.decision;
 
 import dev.runoff.engine.EngineConfig;
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.allocation.Guards;
 import dev.runoff.engine.stopping.GlrThreshold;
 import dev.runoff.engine.stopping.Rule;
@@ -34,7 +34,7 @@ public final class DefinitionConfigs {
         if (allocation.getControlShare() != null) {
             guards = guards.withControl(definition.getControlArm(), allocation.getControlShare());
         }
-        return new EngineConfig(Definitions.prior(definition), AllocationRule.valueOf(allocation.getRule().name()),
+        return new EngineConfig(Definitions.prior(definition), AllocationMethod.valueOf(allocation.getRule().name()),
                 allocation.getBeta(), EngineConfig.MethodChoice.AUTO, draws, guards);
     }
 

@@ -3,13 +3,13 @@ package dev.runoff.decision;
 import dev.runoff.engine.stopping.LeaderWithin;
 
 import dev.runoff.engine.AllocationEngine;
-import dev.runoff.engine.Arm;
+import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.Evaluation;
 import dev.runoff.engine.allocation.GuardFlag;
 import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.posterior.Posterior;
-import dev.runoff.engine.stopping.Decision;
-import dev.runoff.engine.stopping.StoppingRule;
+import dev.runoff.engine.stopping.Verdict;
+import dev.runoff.engine.stopping.StoppingCheck;
 import dev.runoff.engine.stopping.Timing;
 import dev.runoff.records.HashChain;
 import dev.runoff.records.avro.AllocationUpdate;
@@ -36,7 +36,7 @@ import java.util.List;
  * record holds all of them, that start time as {@code startedAt}, so a verifier can re-check the
  * minimum-duration guard exactly.
  *
- * <p>On STOP the published weights follow {@link AfterStop} and the record lists the {@code AFTER_STOP}
+ * <p>On STOP the published weights follow {@link AfterStopWeights} and the record lists the {@code AFTER_STOP}
  * guard; the experiment then keeps its winner: {@link #heartbeat} re-publishes the stopped state without
  * evaluating again.
  */
@@ -77,12 +77,12 @@ public final class Evaluator {
         Evaluation evaluation = engine.evaluate(arms, DefinitionConfigs.engine(def, draws), seed, state.lastWeights());
         ProbabilityBest best = bounded(evaluation.probabilityBest());
         long start = start(state, now);
-        Decision decision = decide(state, arms, evaluation, best, start, now);
+        Verdict decision = decide(state, arms, evaluation, best, start, now);
         double[] weights = evaluation.weights();
         ExperimentState.Stop stop = null;
         List<Guard> guards = guards(evaluation);
         if (decision.isStop()) {
-            weights = AfterStop.weights(def, decision.leaderName(), state.lastWeights(), weights);
+            weights = AfterStopWeights.weights(def, decision.leaderName(), state.lastWeights(), weights);
             stop = new ExperimentState.Stop(decision.leaderName(), def.getVersion(), def.getArms(), weights);
             guards.add(Guard.AFTER_STOP);
         }
@@ -100,11 +100,11 @@ public final class Evaluator {
         return state.startedAt() < 0 ? now : Math.min(state.startedAt(), now);
     }
 
-    private static Decision decide(ExperimentState state, List<Arm> arms, Evaluation evaluation,
+    private static Verdict decide(ExperimentState state, List<Arm> arms, Evaluation evaluation,
                                    ProbabilityBest best, long start, long now) {
         List<Posterior> posteriors = evaluation.posteriors().stream().map(Evaluation.PosteriorSummary::posterior)
                 .toList();
-        return StoppingRule.decide(arms, best, new Timing(Instant.ofEpochMilli(start), Instant.ofEpochMilli(now)),
+        return StoppingCheck.decide(arms, best, new Timing(Instant.ofEpochMilli(start), Instant.ofEpochMilli(now)),
                 DefinitionConfigs.stopping(state.definition()), LeaderWithin.of(posteriors));
     }
 
@@ -182,7 +182,7 @@ public final class Evaluator {
         }
 
         static DecisionRecord decision(ExperimentState state, long sequence, long start, long now,
-                                       Evaluation evaluation, ProbabilityBest best, Decision decision,
+                                       Evaluation evaluation, ProbabilityBest best, Verdict decision,
                                        double[] weights, List<Guard> guards) {
             ExperimentDefinition def = state.definition();
             return DecisionRecord.newBuilder()

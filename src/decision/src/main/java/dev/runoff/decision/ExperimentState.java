@@ -1,7 +1,7 @@
 package dev.runoff.decision;
 
-import dev.runoff.engine.Arm;
-import dev.runoff.engine.Metric;
+import dev.runoff.engine.core.Arm;
+import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.stats.ArmStats;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;

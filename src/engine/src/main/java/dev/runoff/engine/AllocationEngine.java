@@ -1,5 +1,9 @@
 package dev.runoff.engine;
 
+import dev.runoff.engine.core.Arm;
+
+import dev.runoff.engine.core.Metric;
+
 import dev.runoff.engine.allocation.GuardedWeights;
 import dev.runoff.engine.best.ExactProbabilityBest;
 import dev.runoff.engine.best.MonteCarloProbabilityBest;

@@ -1,6 +1,10 @@
 package dev.runoff.engine;
 
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.core.Metric;
+
+import dev.runoff.engine.core.Checks;
+
+import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.allocation.Guards;
 import dev.runoff.engine.posterior.BetaPrior;
 import dev.runoff.engine.posterior.NormalGammaPrior;
@@ -18,7 +22,7 @@ import java.util.Objects;
  * @param draws  Monte Carlo joint draws, {@code >= 1} (used only when Monte Carlo is chosen)
  * @param guards the guards applied to the rule's weights
  */
-public record EngineConfig(Prior prior, AllocationRule rule, double beta, MethodChoice method, int draws,
+public record EngineConfig(Prior prior, AllocationMethod rule, double beta, MethodChoice method, int draws,
                            Guards guards) {
 
     /** Default leader share: the beta = 1/2 of Russo (2020), within a factor 2 of the optimal rate. */
@@ -44,7 +48,7 @@ public record EngineConfig(Prior prior, AllocationRule rule, double beta, Method
      */
     public static EngineConfig defaults(Metric metric) {
         Prior prior = metric == Metric.BERNOULLI ? BetaPrior.UNIFORM : NormalGammaPrior.WEAK;
-        return new EngineConfig(prior, AllocationRule.TOP_TWO_THOMPSON, DEFAULT_BETA, MethodChoice.AUTO,
+        return new EngineConfig(prior, AllocationMethod.TOP_TWO_THOMPSON, DEFAULT_BETA, MethodChoice.AUTO,
                 DEFAULT_DRAWS, Guards.NONE);
     }
 
@@ -59,7 +63,7 @@ public record EngineConfig(Prior prior, AllocationRule rule, double beta, Method
     }
 
     /** This configuration with another rule. */
-    public EngineConfig withRule(AllocationRule newRule) {
+    public EngineConfig withRule(AllocationMethod newRule) {
         return new EngineConfig(prior, newRule, beta, method, draws, guards);
     }
 

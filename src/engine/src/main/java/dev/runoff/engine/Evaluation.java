@@ -1,6 +1,6 @@
 package dev.runoff.engine;
 
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.allocation.GuardFlag;
 import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.posterior.Posterior;
@@ -27,7 +27,7 @@ import java.util.Set;
  * @param engineVersion   {@link AllocationEngine#VERSION} of the engine that computed it
  */
 public record Evaluation(List<String> arms, List<PosteriorSummary> posteriors, ProbabilityBest probabilityBest,
-                         double[] ruleWeights, double[] weights, Set<GuardFlag> flags, AllocationRule rule,
+                         double[] ruleWeights, double[] weights, Set<GuardFlag> flags, AllocationMethod rule,
                          double beta, long seed, String engineVersion) {
 
     /** Copies every mutable component. */

@@ -1,5 +1,9 @@
 package dev.runoff.engine;
 
+import dev.runoff.engine.core.Arm;
+
+import dev.runoff.engine.core.Metric;
+
 import static org.junit.jupiter.api.Assertions.assertArrayEquals;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
@@ -7,7 +11,7 @@ import static org.junit.jupiter.api.Assertions.assertNotEquals;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.allocation.GuardFlag;
 import dev.runoff.engine.allocation.Guards;
 import dev.runoff.engine.best.ProbabilityBest;
@@ -46,7 +50,7 @@ class AllocationEngineTest {
         BetaDistribution reference = new BetaDistribution(121, 881);
         assertEquals(reference.inverseCumulativeProbability(0.025), a.lower95(), 1e-9);
         assertEquals(reference.inverseCumulativeProbability(0.975), a.upper95(), 1e-9);
-        assertEquals(AllocationRule.TOP_TWO_THOMPSON, e.rule());
+        assertEquals(AllocationMethod.TOP_TWO_THOMPSON, e.rule());
         assertEquals(0.5, e.beta());
         assertEquals(7L, e.seed());
         assertEquals(AllocationEngine.VERSION, e.engineVersion());
@@ -57,7 +61,7 @@ class AllocationEngineTest {
         Evaluation e = ENGINE.evaluate(threeArms(), BERNOULLI, 0L);
         assertArrayEquals(e.ruleWeights(), e.weights(), 1e-15);
         assertEquals(1.0, e.weights()[0] + e.weights()[1] + e.weights()[2], 1e-12);
-        assertArrayEquals(AllocationRule.TOP_TWO_THOMPSON.weights(List.of(), e.probabilityBest().alpha(), 0.5),
+        assertArrayEquals(AllocationMethod.TOP_TWO_THOMPSON.weights(List.of(), e.probabilityBest().alpha(), 0.5),
                 e.ruleWeights(), 0.0);
         assertEquals(Set.of(), e.flags());
         assertFalse(e.warmUpActive());
@@ -141,10 +145,10 @@ class AllocationEngineTest {
         EngineConfig config = EngineConfig.defaults(Metric.VALUE).withBeta(0.6);
         List<Arm> arms = List.of(new Arm("a", ValueStats.ofSummary(400, 2.5, 4.0)),
                 new Arm("b", ValueStats.ofSummary(400, 2.9, 4.2)), new Arm("c", ValueStats.ofSummary(300, 2.0, 3.0)));
-        for (AllocationRule rule : AllocationRule.values()) {
+        for (AllocationMethod rule : AllocationMethod.values()) {
             double[] w = ENGINE.evaluate(arms, config.withRule(rule), 0L).weights();
             assertEquals(1.0, w[0] + w[1] + w[2], 1e-12, rule.cliName());
-            assertTrue(rule == AllocationRule.UNIFORM || (w[1] > w[0] && w[1] > w[2]), rule.cliName() + " favours arm b");
+            assertTrue(rule == AllocationMethod.UNIFORM || (w[1] > w[0] && w[1] > w[2]), rule.cliName() + " favours arm b");
         }
     }
 
@@ -182,7 +186,7 @@ class AllocationEngineTest {
     void rulesThatNeedMeansRejectPosteriorsWithoutOne() {
         // With alpha0 = 0.2 and no data the Student-t marginal has 0.4 degrees of freedom: no mean.
         EngineConfig config = EngineConfig.defaults(Metric.VALUE).withPrior(new NormalGammaPrior(0, 1, 0.2, 1))
-                .withRule(AllocationRule.TOP_TWO_VALUE);
+                .withRule(AllocationMethod.TOP_TWO_VALUE);
         List<Arm> arms = List.of(new Arm("a", ValueStats.EMPTY), new Arm("b", ValueStats.ofSummary(10, 1, 1)));
         IllegalArgumentException e = assertThrows(IllegalArgumentException.class, () -> ENGINE.evaluate(arms, config, 0L));
         assertTrue(e.getMessage().startsWith("arm 'a': rule top-two-value needs a finite posterior mean, got NaN"),

@@ -1,8 +1,12 @@
 package dev.runoff.engine;
 
+import dev.runoff.engine.core.Arm;
+
+import dev.runoff.engine.core.Metric;
+
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.stats.BernoulliStats;
 import java.util.ArrayList;
 import java.util.Arrays;
@@ -28,15 +32,15 @@ class BestArmShareSimulationTest {
 
     @Test
     void thompsonPutsAboutBetaOnTheBestArmAndLittleOnTheWorst() {
-        check(AllocationRule.TOP_TWO_THOMPSON, 101L);
+        check(AllocationMethod.TOP_TWO_THOMPSON, 101L);
     }
 
     @Test
     void probabilitySamplingPutsAboutBetaOnTheBestArmAndLittleOnTheWorst() {
-        check(AllocationRule.TOP_TWO_PROBABILITY, 202L);
+        check(AllocationMethod.TOP_TWO_PROBABILITY, 202L);
     }
 
-    private static void check(AllocationRule rule, long seed) {
+    private static void check(AllocationMethod rule, long seed) {
         long[][] measured = run(EngineConfig.defaults(Metric.BERNOULLI).withRule(rule), seed);
         long[] all = measured[0];
         long[] secondHalf = measured[1];

@@ -1,9 +1,11 @@
 package dev.runoff.engine;
 
+import dev.runoff.engine.core.Metric;
+
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.allocation.Guards;
 import dev.runoff.engine.posterior.BetaPrior;
 import dev.runoff.engine.posterior.NormalGammaPrior;
@@ -16,7 +18,7 @@ class EngineConfigTest {
     void defaultsAreTopTwoThompsonWithBetaOneHalfAndTenThousandDraws() {
         EngineConfig c = EngineConfig.defaults(Metric.BERNOULLI);
         assertEquals(BetaPrior.UNIFORM, c.prior());
-        assertEquals(AllocationRule.TOP_TWO_THOMPSON, c.rule());
+        assertEquals(AllocationMethod.TOP_TWO_THOMPSON, c.rule());
         assertEquals(0.5, c.beta());
         assertEquals(EngineConfig.MethodChoice.AUTO, c.method());
         assertEquals(10_000, c.draws());
@@ -29,8 +31,8 @@ class EngineConfigTest {
     @Test
     void withersChangeOneField() {
         EngineConfig c = EngineConfig.defaults(Metric.BERNOULLI).withBeta(0.7).withDraws(500)
-                .withRule(AllocationRule.UNIFORM).withMethod(EngineConfig.MethodChoice.EXACT);
-        assertEquals(new EngineConfig(BetaPrior.UNIFORM, AllocationRule.UNIFORM, 0.7, EngineConfig.MethodChoice.EXACT,
+                .withRule(AllocationMethod.UNIFORM).withMethod(EngineConfig.MethodChoice.EXACT);
+        assertEquals(new EngineConfig(BetaPrior.UNIFORM, AllocationMethod.UNIFORM, 0.7, EngineConfig.MethodChoice.EXACT,
                 500, Guards.NONE), c);
     }
 

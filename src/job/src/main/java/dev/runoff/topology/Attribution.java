@@ -1,6 +1,6 @@
 package dev.runoff.topology;
 
-import dev.runoff.engine.Metric;
+import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
 import java.time.Duration;

@@ -1,6 +1,6 @@
 package dev.runoff.topology;
 
-import dev.runoff.engine.Metric;
+import dev.runoff.engine.core.Metric;
 import dev.runoff.records.Definitions;
 import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.ExperimentDefinition;

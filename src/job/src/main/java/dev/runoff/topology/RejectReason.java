@@ -1,6 +1,7 @@
 package dev.runoff.topology;
 
-import java.util.Locale;
+import dev.runoff.engine.core.Names;
+
 
 /**
  * Why the job set a record aside, beyond the problems the records package finds while reading a record
@@ -57,6 +58,6 @@ public enum RejectReason {
     }
 
     private static String code(String name) {
-        return name.toLowerCase(Locale.ROOT).replace('_', '-');
+        return Names.kebab(name);
     }
 }

@@ -1,7 +1,7 @@
 package dev.runoff.topology;
 
 
-import dev.runoff.engine.Metric;
+import dev.runoff.engine.core.Metric;
 import java.nio.charset.StandardCharsets;
 import java.util.Objects;
 

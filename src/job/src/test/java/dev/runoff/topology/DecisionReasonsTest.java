@@ -4,9 +4,9 @@ import dev.runoff.decision.DecisionReasons;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
 
-import dev.runoff.engine.stopping.Decision;
+import dev.runoff.engine.stopping.Verdict;
 import dev.runoff.engine.stopping.GuardState;
-import dev.runoff.engine.stopping.Reason;
+import dev.runoff.engine.stopping.VerdictReason;
 import dev.runoff.engine.stopping.Rule;
 import java.time.Duration;
 import java.time.Instant;
@@ -20,15 +20,15 @@ class DecisionReasonsTest {
 
     @Test
     void everyStoppingReasonHasItsRecordReason() {
-        Map<Reason, String> expected = new EnumMap<>(Reason.class);
-        expected.put(Reason.GLR, "threshold-reached");
-        expected.put(Reason.POSTERIOR, "threshold-reached");
-        expected.put(Reason.INDIFFERENCE, "threshold-reached");
-        expected.put(Reason.BUDGET, "budget");
-        expected.put(Reason.BELOW_THRESHOLD, "below-threshold");
-        expected.put(Reason.MIN_TRIALS, "min-trials");
-        expected.put(Reason.MIN_DURATION, "min-duration");
-        for (Reason reason : Reason.values()) {
+        Map<VerdictReason, String> expected = new EnumMap<>(VerdictReason.class);
+        expected.put(VerdictReason.GLR, "threshold-reached");
+        expected.put(VerdictReason.POSTERIOR, "threshold-reached");
+        expected.put(VerdictReason.INDIFFERENCE, "threshold-reached");
+        expected.put(VerdictReason.BUDGET, "budget");
+        expected.put(VerdictReason.BELOW_THRESHOLD, "below-threshold");
+        expected.put(VerdictReason.MIN_TRIALS, "min-trials");
+        expected.put(VerdictReason.MIN_DURATION, "min-duration");
+        for (VerdictReason reason : VerdictReason.values()) {
             assertEquals(expected.get(reason), DecisionReasons.of(decision(reason, 1_000, 1_000, NOW.plusSeconds(60))),
                     reason.name());
         }
@@ -36,12 +36,12 @@ class DecisionReasonsTest {
 
     @Test
     void budgetStopIsADeadlineWhenOnlyTheDeadlinePassed() {
-        assertEquals("deadline", DecisionReasons.of(decision(Reason.BUDGET, 10, 1_000, NOW)));
-        assertEquals("budget", DecisionReasons.of(decision(Reason.BUDGET, 1_000, 1_000, NOW)));
+        assertEquals("deadline", DecisionReasons.of(decision(VerdictReason.BUDGET, 10, 1_000, NOW)));
+        assertEquals("budget", DecisionReasons.of(decision(VerdictReason.BUDGET, 1_000, 1_000, NOW)));
     }
 
-    private static Decision decision(Reason reason, long total, long budget, Instant deadline) {
+    private static Verdict decision(VerdictReason reason, long total, long budget, Instant deadline) {
         GuardState guards = new GuardState(10, 0, Duration.ZERO, Duration.ZERO, total, budget, NOW, deadline);
-        return new Decision(reason, Rule.GLR, 0, "a", 1.0, 2.0, 0.9, guards);
+        return new Verdict(reason, Rule.GLR, 0, "a", 1.0, 2.0, 0.9, guards);
     }
 }

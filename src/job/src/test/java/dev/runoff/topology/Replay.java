@@ -9,10 +9,10 @@ import static org.junit.jupiter.api.Assertions.assertArrayEquals;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 
 import dev.runoff.engine.AllocationEngine;
-import dev.runoff.engine.Arm;
+import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.Evaluation;
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.allocation.Guards;
 import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.posterior.BetaPrior;
@@ -21,8 +21,8 @@ import dev.runoff.engine.posterior.Posterior;
 import dev.runoff.engine.posterior.Prior;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
-import dev.runoff.engine.stopping.Decision;
-import dev.runoff.engine.stopping.StoppingRule;
+import dev.runoff.engine.stopping.Verdict;
+import dev.runoff.engine.stopping.StoppingCheck;
 import dev.runoff.engine.stopping.Timing;
 import dev.runoff.records.avro.AllocationSpec;
 import dev.runoff.records.avro.ArmState;
@@ -100,7 +100,7 @@ final class Replay {
         List<Posterior> posteriors = evaluation.posteriors().stream().map(Evaluation.PosteriorSummary::posterior)
                 .toList();
         ProbabilityBest best = Evaluator.bounded(evaluation.probabilityBest());
-        Decision decision = StoppingRule.decide(arms, best, new Timing(at, at),
+        Verdict decision = StoppingCheck.decide(arms, best, new Timing(at, at),
                 DefinitionConfigs.stopping(record.getDefinition()), LeaderWithin.of(posteriors));
         assertEquals(Double.doubleToLongBits(decision.statistic()), Double.doubleToLongBits(record.getStatistic()),
                 where + " statistic");
@@ -137,7 +137,7 @@ final class Replay {
                 : new Guards.ControlShare(def.getControlArm(), a.getControlShare());
         Guards guards = new Guards(a.getWarmUpTrials(), a.getFloor(), control,
                 a.getMaxStep() == null ? 1.0 : a.getMaxStep());
-        return new EngineConfig(prior(def), AllocationRule.valueOf(a.getRule().name()), a.getBeta(),
+        return new EngineConfig(prior(def), AllocationMethod.valueOf(a.getRule().name()), a.getBeta(),
                 EngineConfig.MethodChoice.AUTO, draws, guards);
     }
 

@@ -1,6 +1,6 @@
 package dev.runoff.records;
 
-import dev.runoff.engine.Metric;
+import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.posterior.BetaPrior;
 import dev.runoff.engine.posterior.NormalGammaPrior;
 import dev.runoff.engine.posterior.Prior;

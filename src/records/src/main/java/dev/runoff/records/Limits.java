@@ -1,6 +1,6 @@
 package dev.runoff.records;
 
-import dev.runoff.engine.Checks;
+import dev.runoff.engine.core.Checks;
 
 /**
  * Bounds that protect the job from hostile or broken input. Every record is checked against them after

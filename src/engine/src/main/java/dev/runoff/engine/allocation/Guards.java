@@ -1,6 +1,6 @@
 package dev.runoff.engine.allocation;
 
-import dev.runoff.engine.Checks;
+import dev.runoff.engine.core.Checks;
 import java.util.List;
 import java.util.Objects;
 

@@ -1,6 +1,6 @@
 package dev.runoff.engine.allocation;
 
-import dev.runoff.engine.Checks;
+import dev.runoff.engine.core.Checks;
 import dev.runoff.engine.best.ExpectedGain;
 import dev.runoff.engine.posterior.Posterior;
 import java.util.List;

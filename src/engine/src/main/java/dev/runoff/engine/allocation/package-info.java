@@ -2,7 +2,7 @@
  * Allocation rules and guards: how the probability that each arm is best becomes the traffic split that
  * serving tiers follow for one period.
  *
- * <p>{@link dev.runoff.engine.allocation.AllocationRule} names the rules (top-two Thompson sampling in
+ * <p>{@link dev.runoff.engine.allocation.AllocationMethod} names the rules (top-two Thompson sampling in
  * closed form, top-two probability, value and expected-improvement sampling, uniform);
  * {@link dev.runoff.engine.allocation.TopTwo} computes them as pure functions;
  * {@link dev.runoff.engine.allocation.Guards} describes warm-up, floor, control share and the per-period

@@ -1,7 +1,7 @@
 package dev.runoff.engine.planning;
 
 import dev.runoff.engine.EngineConfig;
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.allocation.AllocationMethod;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.Objects;
@@ -59,8 +59,8 @@ public final class Simulation {
         Objects.requireNonNull(config, "config");
         Objects.requireNonNull(executor, "executor");
         Objects.requireNonNull(progress, "progress");
-        boolean baselineApart = config.engine().rule() != AllocationRule.UNIFORM;
-        EngineConfig uniform = config.engine().withRule(AllocationRule.UNIFORM);
+        boolean baselineApart = config.engine().rule() != AllocationMethod.UNIFORM;
+        EngineConfig uniform = config.engine().withRule(AllocationMethod.UNIFORM);
         Submitter submit = new Submitter(executor, progress, config.replications() * (baselineApart ? 2 : 1));
         List<CompletableFuture<SimulationRun>> rule = new ArrayList<>();
         List<CompletableFuture<SimulationRun>> baseline = new ArrayList<>();
@@ -76,7 +76,7 @@ public final class Simulation {
         List<SimulationRun> ruleRuns = joinAll(rule, baseline);
         List<SimulationRun> baselineRuns = baselineApart ? joinAll(baseline, List.of()) : ruleRuns;
         return new SimulationResult(config, SimulationSummary.of(config.engine().rule(), ruleRuns),
-                SimulationSummary.of(AllocationRule.UNIFORM, baselineRuns), ruleRuns, baselineRuns);
+                SimulationSummary.of(AllocationMethod.UNIFORM, baselineRuns), ruleRuns, baselineRuns);
     }
 
     /**

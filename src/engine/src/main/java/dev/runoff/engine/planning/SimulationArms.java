@@ -1,7 +1,7 @@
 package dev.runoff.engine.planning;
 
-import dev.runoff.engine.Checks;
-import dev.runoff.engine.Metric;
+import dev.runoff.engine.core.Checks;
+import dev.runoff.engine.core.Metric;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;

@@ -1,6 +1,6 @@
 package dev.runoff.engine.planning;
 
-import dev.runoff.engine.Checks;
+import dev.runoff.engine.core.Checks;
 import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.stopping.Rule;
 import dev.runoff.engine.stopping.StoppingConfig;
@@ -13,7 +13,7 @@ import java.util.Objects;
  * @param arms         the true arms
  * @param engine       the engine configuration; its metric must match the arms'
  * @param stopping     the stopping configuration: GLR or posterior rule, with a finite trial budget
- *                     ({@code maxTotalTrials}) so that every run ends; the simulation has no clock, so no
+ *                     ({@code budgetTrials}) so that every run ends; the simulation has no clock, so no
  *                     minimum duration and no deadline
  * @param batch        trials between two evaluations, {@code >= 1}
  * @param replications number of simulated experiments, {@code >= 1}
@@ -37,8 +37,8 @@ public record SimulationConfig(SimulationArms arms, EngineConfig engine, Stoppin
             throw new IllegalArgumentException("stopping rule " + stopping.rule()
                     + " is not supported by the simulation yet; use GLR or POSTERIOR");
         }
-        if (stopping.maxTotalTrials() == StoppingConfig.NO_TRIAL_BUDGET) {
-            throw new IllegalArgumentException("the stopping configuration needs a trial budget (maxTotalTrials)"
+        if (stopping.budgetTrials() == StoppingConfig.NO_TRIAL_BUDGET) {
+            throw new IllegalArgumentException("the stopping configuration needs a trial budget (budgetTrials)"
                     + " so that every simulated run ends");
         }
         if (!stopping.minDuration().isZero() || !stopping.deadline().equals(StoppingConfig.NO_DEADLINE)) {
@@ -55,7 +55,7 @@ public record SimulationConfig(SimulationArms arms, EngineConfig engine, Stoppin
     }
 
     /** The trial budget of every run. */
-    public long maxTrials() {
-        return stopping.maxTotalTrials();
+    public long budgetTrials() {
+        return stopping.budgetTrials();
     }
 }

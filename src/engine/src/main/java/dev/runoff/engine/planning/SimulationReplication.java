@@ -1,15 +1,15 @@
 package dev.runoff.engine.planning;
 
 import dev.runoff.engine.AllocationEngine;
-import dev.runoff.engine.Arm;
+import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.Evaluation;
-import dev.runoff.engine.Metric;
+import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.stats.ArmStats;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
-import dev.runoff.engine.stopping.Decision;
-import dev.runoff.engine.stopping.StoppingRule;
+import dev.runoff.engine.stopping.Verdict;
+import dev.runoff.engine.stopping.StoppingCheck;
 import dev.runoff.engine.stopping.Timing;
 import java.time.Instant;
 import java.util.ArrayList;
@@ -22,7 +22,7 @@ import org.apache.commons.rng.simple.RandomSource;
 /**
  * One simulated experiment in batched mode, run by the same code as the streaming job: at each evaluation
  * the {@link AllocationEngine} computes the weights (with the previous period's weights, as the job does)
- * and {@link StoppingRule} decides; on CONTINUE, the next batch of trials draws arms i.i.d. from the
+ * and {@link StoppingCheck} decides; on CONTINUE, the next batch of trials draws arms i.i.d. from the
  * weights and outcomes from the true arms. The last batch is cut short at the trial budget, so a budget stop
  * happens at exactly the budget.
  *
@@ -59,12 +59,12 @@ final class SimulationReplication {
         while (true) {
             List<Arm> arms = arms(stats);
             Evaluation e = engine.evaluate(arms, engineConfig, streams.engineSeeds.nextLong(), previous);
-            Decision d = StoppingRule.decide(arms, e.probabilityBest(), NO_CLOCK, config.stopping());
+            Verdict d = StoppingCheck.decide(arms, e.probabilityBest(), NO_CLOCK, config.stopping());
             if (d.isStop()) {
                 return new SimulationRun(total, d.leader(), config.arms().isWrongPick(d.leader(), config.epsilon()),
                         d.reason(), trials(stats), e.probabilityBest().alpha());
             }
-            long n = Math.min(config.batch(), config.maxTrials() - total);
+            long n = Math.min(config.batch(), config.budgetTrials() - total);
             if (n <= 0) {
                 throw new IllegalStateException("CONTINUE at the trial budget: " + d);
             }

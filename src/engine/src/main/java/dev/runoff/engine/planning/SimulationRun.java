@@ -1,6 +1,6 @@
 package dev.runoff.engine.planning;
 
-import dev.runoff.engine.stopping.Reason;
+import dev.runoff.engine.stopping.VerdictReason;
 import java.util.Arrays;
 import java.util.Objects;
 
@@ -10,11 +10,11 @@ import java.util.Objects;
  * @param trials    total trials when it stopped
  * @param pick      index of the arm declared the winner (for a budget stop, the arm with the largest alpha)
  * @param wrong     whether the pick is an error (true mean more than epsilon below the best)
- * @param reason    why it stopped: the rule's reason, or {@link Reason#BUDGET}
+ * @param reason    why it stopped: the rule's reason, or {@link VerdictReason#BUDGET}
  * @param armTrials trials of each arm, in arm order
  * @param alpha     probability that each arm is best at the stopping evaluation, in arm order
  */
-public record SimulationRun(long trials, int pick, boolean wrong, Reason reason, long[] armTrials,
+public record SimulationRun(long trials, int pick, boolean wrong, VerdictReason reason, long[] armTrials,
                             double[] alpha) {
 
     /** Copies the arrays so the value stays immutable. */
@@ -26,7 +26,7 @@ public record SimulationRun(long trials, int pick, boolean wrong, Reason reason,
 
     /** Whether the run ended on the trial budget rather than by the stopping rule. */
     public boolean budgetStop() {
-        return reason == Reason.BUDGET;
+        return reason == VerdictReason.BUDGET;
     }
 
     @Override

@@ -1,7 +1,7 @@
 package dev.runoff.engine.planning;
 
-import dev.runoff.engine.Checks;
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.core.Checks;
+import dev.runoff.engine.allocation.AllocationMethod;
 import java.util.Arrays;
 import java.util.List;
 import java.util.Objects;
@@ -26,7 +26,7 @@ import org.apache.commons.math3.distribution.BetaDistribution;
  * @param budgetStops   runs that ended on the trial budget
  * @param armShares     share of all trials that went to each arm, in arm order
  */
-public record SimulationSummary(AllocationRule rule, int replications, double meanTrials, double medianTrials,
+public record SimulationSummary(AllocationMethod rule, int replications, double meanTrials, double medianTrials,
                                 long p90Trials, int errors, Interval errorInterval, int budgetStops,
                                 double[] armShares) {
 
@@ -46,7 +46,7 @@ public record SimulationSummary(AllocationRule rule, int replications, double me
      * @param rule the rule that produced them
      * @param runs at least one run
      */
-    public static SimulationSummary of(AllocationRule rule, List<SimulationRun> runs) {
+    public static SimulationSummary of(AllocationMethod rule, List<SimulationRun> runs) {
         int n = runs.size();
         if (n < 1) {
             throw new IllegalArgumentException("need at least one run, got " + n);

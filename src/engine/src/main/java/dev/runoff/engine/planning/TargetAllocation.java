@@ -1,6 +1,8 @@
 package dev.runoff.engine.planning;
 
-import dev.runoff.engine.Checks;
+import dev.runoff.engine.stopping.Divergence;
+
+import dev.runoff.engine.core.Checks;
 import java.util.Arrays;
 import java.util.Objects;
 

@@ -1,6 +1,6 @@
 package dev.runoff.engine.posterior;
 
-import dev.runoff.engine.Checks;
+import dev.runoff.engine.core.Checks;
 import dev.runoff.engine.stats.ArmStats;
 import dev.runoff.engine.stats.ValueStats;
 

@@ -1,6 +1,6 @@
 package dev.runoff.engine.posterior;
 
-import dev.runoff.engine.Checks;
+import dev.runoff.engine.core.Checks;
 import dev.runoff.engine.special.IncompleteBeta;
 import dev.runoff.engine.special.LogMath;
 import dev.runoff.engine.special.TailRoot;

@@ -1,6 +1,6 @@
 package dev.runoff.engine.special;
 
-import dev.runoff.engine.Checks;
+import dev.runoff.engine.core.Checks;
 
 /**
  * An n-point Gauss-Legendre rule on {@code [-1, 1]}: exact for polynomials of degree {@code 2n - 1}.

@@ -1,6 +1,6 @@
 package dev.runoff.engine.special;
 
-import dev.runoff.engine.Checks;
+import dev.runoff.engine.core.Checks;
 import org.apache.commons.math3.special.Beta;
 
 /**

@@ -1,6 +1,6 @@
 package dev.runoff.engine.stopping;
 
-import dev.runoff.engine.Checks;
+import dev.runoff.engine.core.Checks;
 import org.apache.commons.math3.optim.MaxEval;
 import org.apache.commons.math3.optim.nonlinear.scalar.GoalType;
 import org.apache.commons.math3.optim.univariate.BrentOptimizer;

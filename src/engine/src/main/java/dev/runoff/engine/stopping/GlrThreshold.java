@@ -1,7 +1,7 @@
 package dev.runoff.engine.stopping;
 
-import dev.runoff.engine.Checks;
-import dev.runoff.engine.Metric;
+import dev.runoff.engine.core.Checks;
+import dev.runoff.engine.core.Metric;
 import java.util.Objects;
 
 /**

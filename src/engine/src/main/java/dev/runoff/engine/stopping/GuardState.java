@@ -12,12 +12,12 @@ import java.util.Objects;
  * @param elapsed         time since the experiment started
  * @param minDuration     configured minimum duration before any STOP by a rule
  * @param totalTrials     trials over all arms
- * @param maxTotalTrials  trial budget ({@link StoppingConfig#NO_TRIAL_BUDGET} for none)
+ * @param budgetTrials  trial budget ({@link StoppingConfig#NO_TRIAL_BUDGET} for none)
  * @param now             evaluation time
  * @param deadline        deadline ({@link StoppingConfig#NO_DEADLINE} for none)
  */
 public record GuardState(long fewestTrials, long minTrialsPerArm, Duration elapsed, Duration minDuration,
-                         long totalTrials, long maxTotalTrials, Instant now, Instant deadline) {
+                         long totalTrials, long budgetTrials, Instant now, Instant deadline) {
 
     /** Checks that nothing is null. */
     public GuardState {
@@ -39,7 +39,7 @@ public record GuardState(long fewestTrials, long minTrialsPerArm, Duration elaps
 
     /** The total trials have reached the trial budget. */
     public boolean trialBudgetSpent() {
-        return totalTrials >= maxTotalTrials;
+        return totalTrials >= budgetTrials;
     }
 
     /** The evaluation time is at or after the deadline. */

@@ -2,7 +2,6 @@ package dev.runoff.engine.stopping;
 
 import dev.runoff.engine.best.ExactProbabilityBest;
 import dev.runoff.engine.posterior.Posterior;
-import dev.runoff.engine.stopping.LeaderConfidence;
 import java.util.List;
 
 /**

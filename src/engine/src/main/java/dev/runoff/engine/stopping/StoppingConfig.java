@@ -1,6 +1,6 @@
 package dev.runoff.engine.stopping;
 
-import dev.runoff.engine.Checks;
+import dev.runoff.engine.core.Checks;
 import java.time.Duration;
 import java.time.Instant;
 import java.util.Objects;
@@ -18,11 +18,11 @@ import java.util.Objects;
  *                        {@link Rule#INDIFFERENCE}
  * @param minTrialsPerArm trials every arm needs before a rule may stop the experiment, {@code >= 0}
  * @param minDuration     time the experiment must run before a rule may stop it, not negative
- * @param maxTotalTrials  trial budget, {@code >= 1}; {@link #NO_TRIAL_BUDGET} for none
+ * @param budgetTrials  trial budget, {@code >= 1}; {@link #NO_TRIAL_BUDGET} for none
  * @param deadline        instant at which the experiment stops for budget; {@link #NO_DEADLINE} for none
  */
 public record StoppingConfig(Rule rule, double delta, GlrThreshold glrThreshold, double z, double epsilon,
-                             long minTrialsPerArm, Duration minDuration, long maxTotalTrials, Instant deadline) {
+                             long minTrialsPerArm, Duration minDuration, long budgetTrials, Instant deadline) {
 
     /** No trial budget. */
     public static final long NO_TRIAL_BUDGET = Long.MAX_VALUE;
@@ -46,8 +46,8 @@ public record StoppingConfig(Rule rule, double delta, GlrThreshold glrThreshold,
         if (minDuration.isNegative()) {
             throw new IllegalArgumentException("minDuration must not be negative, got " + minDuration);
         }
-        if (maxTotalTrials < 1) {
-            throw new IllegalArgumentException("maxTotalTrials must be >= 1, got " + maxTotalTrials);
+        if (budgetTrials < 1) {
+            throw new IllegalArgumentException("budgetTrials must be >= 1, got " + budgetTrials);
         }
         Objects.requireNonNull(deadline, "deadline");
     }
@@ -72,31 +72,31 @@ public record StoppingConfig(Rule rule, double delta, GlrThreshold glrThreshold,
     /** This configuration with another rule. */
     public StoppingConfig withRule(Rule newRule) {
         return new StoppingConfig(newRule, delta, glrThreshold, z, epsilon, minTrialsPerArm, minDuration,
-                maxTotalTrials, deadline);
+                budgetTrials, deadline);
     }
 
     /** This configuration with another GLR threshold. */
     public StoppingConfig withGlrThreshold(GlrThreshold threshold) {
         return new StoppingConfig(rule, delta, threshold, z, epsilon, minTrialsPerArm, minDuration,
-                maxTotalTrials, deadline);
+                budgetTrials, deadline);
     }
 
     /** This configuration with another standard-error multiplier for the posterior rule. */
     public StoppingConfig withZ(double newZ) {
         return new StoppingConfig(rule, delta, glrThreshold, newZ, epsilon, minTrialsPerArm, minDuration,
-                maxTotalTrials, deadline);
+                budgetTrials, deadline);
     }
 
     /** This configuration with a minimum number of trials per arm. */
     public StoppingConfig withMinTrialsPerArm(long trials) {
-        return new StoppingConfig(rule, delta, glrThreshold, z, epsilon, trials, minDuration, maxTotalTrials,
+        return new StoppingConfig(rule, delta, glrThreshold, z, epsilon, trials, minDuration, budgetTrials,
                 deadline);
     }
 
     /** This configuration with a minimum duration. */
     public StoppingConfig withMinDuration(Duration duration) {
         return new StoppingConfig(rule, delta, glrThreshold, z, epsilon, minTrialsPerArm, duration,
-                maxTotalTrials, deadline);
+                budgetTrials, deadline);
     }
 
     /** This configuration with a trial budget. */
@@ -108,6 +108,6 @@ public record StoppingConfig(Rule rule, double delta, GlrThreshold glrThreshold,
     /** This configuration with a deadline. */
     public StoppingConfig withDeadline(Instant instant) {
         return new StoppingConfig(rule, delta, glrThreshold, z, epsilon, minTrialsPerArm, minDuration,
-                maxTotalTrials, instant);
+                budgetTrials, instant);
     }
 }

@@ -1,8 +1,8 @@
 /**
  * Stopping rules: when an experiment may end, and with which arm.
  *
- * <p>{@link dev.runoff.engine.stopping.StoppingRule#decide} turns arm statistics, the probability that each
- * arm is best and the experiment's timing into a {@link dev.runoff.engine.stopping.Decision} (CONTINUE or
+ * <p>{@link dev.runoff.engine.stopping.StoppingCheck#decide} turns arm statistics, the probability that each
+ * arm is best and the experiment's timing into a {@link dev.runoff.engine.stopping.Verdict} (CONTINUE or
  * STOP, with the statistic, threshold, leader's confidence and guard state behind it), under a validated
  * {@link dev.runoff.engine.stopping.StoppingConfig}. Three rules:
  * <ul>

@@ -159,13 +159,13 @@ class TopTwoTest {
 
     @Test
     void ruleNamesHaveCommandLineSpellings() {
-        assertEquals("top-two-thompson", AllocationRule.TOP_TWO_THOMPSON.cliName());
-        assertEquals("top-two-ei", AllocationRule.TOP_TWO_EI.cliName());
-        for (AllocationRule r : AllocationRule.values()) {
-            assertEquals(r, AllocationRule.fromCliName(r.cliName()));
+        assertEquals("top-two-thompson", AllocationMethod.TOP_TWO_THOMPSON.cliName());
+        assertEquals("top-two-ei", AllocationMethod.TOP_TWO_EI.cliName());
+        for (AllocationMethod r : AllocationMethod.values()) {
+            assertEquals(r, AllocationMethod.fromCliName(r.cliName()));
         }
         assertMessage("unknown rule 'thompson', expected one of top-two-thompson, top-two-probability, "
-                + "top-two-value, top-two-ei, uniform", () -> AllocationRule.fromCliName("thompson"));
+                + "top-two-value, top-two-ei, uniform", () -> AllocationMethod.fromCliName("thompson"));
     }
 
     private static void assertMessage(String expected, Runnable call) {

@@ -5,7 +5,7 @@ import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import dev.runoff.engine.Metric;
+import dev.runoff.engine.core.Metric;
 import java.util.List;
 import org.junit.jupiter.api.Test;
 

@@ -4,8 +4,8 @@ import static org.junit.jupiter.api.Assertions.assertArrayEquals;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 
-import dev.runoff.engine.allocation.AllocationRule;
-import dev.runoff.engine.stopping.Reason;
+import dev.runoff.engine.allocation.AllocationMethod;
+import dev.runoff.engine.stopping.VerdictReason;
 import java.util.ArrayList;
 import java.util.List;
 import org.apache.commons.math3.distribution.BinomialDistribution;
@@ -15,7 +15,7 @@ import org.junit.jupiter.params.provider.CsvSource;
 
 class SimulationSummaryTest {
 
-    private static SimulationRun run(long trials, boolean wrong, Reason reason, long... armTrials) {
+    private static SimulationRun run(long trials, boolean wrong, VerdictReason reason, long... armTrials) {
         return new SimulationRun(trials, 0, wrong, reason, armTrials, new double[armTrials.length]);
     }
 
@@ -58,9 +58,9 @@ class SimulationSummaryTest {
         // count is the mean of the two middle values.
         List<SimulationRun> runs = new ArrayList<>();
         for (long t = 10; t >= 1; t--) {
-            runs.add(run(t * 100, false, Reason.GLR, t * 100, 0));
+            runs.add(run(t * 100, false, VerdictReason.GLR, t * 100, 0));
         }
-        SimulationSummary s = SimulationSummary.of(AllocationRule.UNIFORM, runs);
+        SimulationSummary s = SimulationSummary.of(AllocationMethod.UNIFORM, runs);
         assertEquals(550.0, s.meanTrials(), 0.0);
         assertEquals(550.0, s.medianTrials(), 0.0);
         assertEquals(900, s.p90Trials());
@@ -71,9 +71,9 @@ class SimulationSummaryTest {
 
     @Test
     void budgetStopsCountWithTheirPickAndSharesPoolAllRuns() {
-        List<SimulationRun> runs = List.of(run(100, false, Reason.GLR, 60, 40), run(500, true, Reason.BUDGET, 100, 400),
-                run(300, true, Reason.GLR, 150, 150));
-        SimulationSummary s = SimulationSummary.of(AllocationRule.TOP_TWO_THOMPSON, runs);
+        List<SimulationRun> runs = List.of(run(100, false, VerdictReason.GLR, 60, 40), run(500, true, VerdictReason.BUDGET, 100, 400),
+                run(300, true, VerdictReason.GLR, 150, 150));
+        SimulationSummary s = SimulationSummary.of(AllocationMethod.TOP_TWO_THOMPSON, runs);
         assertEquals(3, s.replications());
         assertEquals(2, s.errors());
         assertEquals(2.0 / 3, s.errorRate(), 1e-15);

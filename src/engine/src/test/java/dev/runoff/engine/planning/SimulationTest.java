@@ -6,9 +6,9 @@ import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.engine.EngineConfig;
-import dev.runoff.engine.Metric;
-import dev.runoff.engine.allocation.AllocationRule;
-import dev.runoff.engine.stopping.Reason;
+import dev.runoff.engine.core.Metric;
+import dev.runoff.engine.allocation.AllocationMethod;
+import dev.runoff.engine.stopping.VerdictReason;
 import dev.runoff.engine.stopping.Rule;
 import dev.runoff.engine.stopping.StoppingConfig;
 import java.time.Duration;
@@ -77,7 +77,7 @@ class SimulationTest {
     void runsStoppedByTheRuleEndOnABatchBoundary() {
         SimulationResult r = Simulation.run(small(10, 3L), 2, SimulationProgress.NONE);
         for (SimulationRun run : r.ruleRuns()) {
-            assertEquals(Reason.GLR, run.reason(), run.toString());
+            assertEquals(VerdictReason.GLR, run.reason(), run.toString());
             assertEquals(0, run.trials() % 10, run.toString());
             assertEquals(run.trials(), run.armTrials()[0] + run.armTrials()[1] + run.armTrials()[2]);
         }
@@ -100,7 +100,7 @@ class SimulationTest {
 
     @Test
     void uniformRuleIsItsOwnBaseline() {
-        SimulationConfig c = config(THREE, MONTE_CARLO.withRule(AllocationRule.UNIFORM),
+        SimulationConfig c = config(THREE, MONTE_CARLO.withRule(AllocationMethod.UNIFORM),
                 StoppingConfig.glr(0.05).withMaxTotalTrials(5000), 10, 4, 4L);
         AtomicInteger calls = new AtomicInteger();
         SimulationResult r = Simulation.run(c, Runnable::run, (done, total) -> {
@@ -109,7 +109,7 @@ class SimulationTest {
         });
         assertEquals(4, calls.get());
         assertEquals(r.ruleRuns(), r.baselineRuns());
-        assertEquals(AllocationRule.UNIFORM, r.baseline().rule());
+        assertEquals(AllocationMethod.UNIFORM, r.baseline().rule());
         assertEquals(1.0, r.trialRatio(), 0.0);
     }
 

@@ -4,8 +4,8 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.engine.EngineConfig;
-import dev.runoff.engine.Metric;
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.core.Metric;
+import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.stopping.StoppingConfig;
 import org.apache.commons.math3.distribution.BetaDistribution;
 import org.apache.commons.rng.UniformRandomProvider;
@@ -33,7 +33,7 @@ class StoppingErrorSimulationTest {
         // only lower that. Close arms (0.5 and 0.45) at delta = 0.1, 400 runs. The engine samples the two arms
         // uniformly, which for two arms is exactly what top-two Thompson sampling with beta 1/2 does too; alpha
         // then only matters for budget stops (there are none), so one Monte Carlo draw keeps the test fast.
-        EngineConfig engine = EngineConfig.defaults(Metric.BERNOULLI).withRule(AllocationRule.UNIFORM)
+        EngineConfig engine = EngineConfig.defaults(Metric.BERNOULLI).withRule(AllocationMethod.UNIFORM)
                 .withMethod(EngineConfig.MethodChoice.MONTE_CARLO).withDraws(1);
         SimulationConfig c = new SimulationConfig(SimulationArms.bernoulli(0.5, 0.45), engine,
                 StoppingConfig.glr(DELTA).withMaxTotalTrials(1_000_000), 100, 400, 77L, 0.0);
@@ -51,7 +51,7 @@ class StoppingErrorSimulationTest {
         // at most delta (Bayesian calibration, common practice). This is NOT a guarantee for any fixed pair
         // of rates. 300 pairs of rates, one run each, exact alpha (standard error 0), batch 25, budget 500;
         // runs that end on the budget are left out, as the guarantee does not cover them.
-        EngineConfig engine = EngineConfig.defaults(Metric.BERNOULLI).withRule(AllocationRule.UNIFORM);
+        EngineConfig engine = EngineConfig.defaults(Metric.BERNOULLI).withRule(AllocationMethod.UNIFORM);
         UniformRandomProvider prior = RandomSource.XO_SHI_RO_256_PP.create(31L);
         int stops = 0;
         int errors = 0;

@@ -4,8 +4,8 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.engine.EngineConfig;
-import dev.runoff.engine.Metric;
-import dev.runoff.engine.allocation.AllocationRule;
+import dev.runoff.engine.core.Metric;
+import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.stopping.StoppingConfig;
 import org.junit.jupiter.api.Test;
 
@@ -51,15 +51,15 @@ class TopTwoSimulationTest {
         // the four suboptimal arms below 3 for top-two (seeds 1-6 gave 1.14 to 1.53), above 3 for uniform
         // (seeds 1-6 gave 8 to 31).
         for (long seed = 1; seed <= 3; seed++) {
-            double ratio = evidenceRatio(AllocationRule.TOP_TWO_THOMPSON, seed);
+            double ratio = evidenceRatio(AllocationMethod.TOP_TWO_THOMPSON, seed);
             assertTrue(ratio < 3, "top-two, seed " + seed + ": max/min of log(1/alpha_j) = " + ratio);
         }
-        double uniform = evidenceRatio(AllocationRule.UNIFORM, 1L);
+        double uniform = evidenceRatio(AllocationMethod.UNIFORM, 1L);
         assertTrue(uniform > 3, "uniform: max/min of log(1/alpha_j) = " + uniform);
     }
 
     /** Max over min of log(1/alpha_j) over the suboptimal arms after one run of 2,000 trials. */
-    private static double evidenceRatio(AllocationRule rule, long seed) {
+    private static double evidenceRatio(AllocationMethod rule, long seed) {
         SimulationConfig c = new SimulationConfig(ARMS, EngineConfig.defaults(Metric.BERNOULLI).withRule(rule),
                 StoppingConfig.glr(1e-100).withMaxTotalTrials(2000), 100, 1, seed, 0.0);
         SimulationRun run = Simulation.run(c, Runnable::run, SimulationProgress.NONE).ruleRuns().get(0);

@@ -4,7 +4,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import dev.runoff.engine.Metric;
+import dev.runoff.engine.core.Metric;
 import org.junit.jupiter.api.Test;
 
 class GlrThresholdTest {

@@ -22,7 +22,7 @@ class StoppingConfigTest {
         assertEquals(3.0, c.z());
         assertEquals(0, c.minTrialsPerArm());
         assertEquals(Duration.ZERO, c.minDuration());
-        assertEquals(StoppingConfig.NO_TRIAL_BUDGET, c.maxTotalTrials());
+        assertEquals(StoppingConfig.NO_TRIAL_BUDGET, c.budgetTrials());
         assertEquals(StoppingConfig.NO_DEADLINE, c.deadline());
         assertEquals(Rule.POSTERIOR, StoppingConfig.posterior(0.1).rule());
         assertEquals(0.02, StoppingConfig.indifference(0.1, 0.02).epsilon());
@@ -41,7 +41,7 @@ class StoppingConfigTest {
         assertEquals("minTrialsPerArm must be >= 0, got -5", message(() -> c.withMinTrialsPerArm(-5)));
         assertEquals("minDuration must not be negative, got PT-1S",
                 message(() -> c.withMinDuration(Duration.ofSeconds(-1))));
-        assertEquals("maxTotalTrials must be >= 1, got 0", message(() -> c.withMaxTotalTrials(0)));
+        assertEquals("budgetTrials must be >= 1, got 0", message(() -> c.withMaxTotalTrials(0)));
         assertThrows(NullPointerException.class, () -> c.withDeadline(null));
     }
 
@@ -58,11 +58,11 @@ class StoppingConfigTest {
         Instant now = Instant.parse("2026-03-02T09:00:00Z");
         GuardState guards = new GuardState(10, 0, Duration.ZERO, Duration.ZERO, 20, StoppingConfig.NO_TRIAL_BUDGET,
                 now, StoppingConfig.NO_DEADLINE);
-        assertEquals("leaderConfidence must be in [0.0, 1.0], got 1.1", message(() -> new Decision(Reason.GLR,
+        assertEquals("leaderConfidence must be in [0.0, 1.0], got 1.1", message(() -> new Verdict(VerdictReason.GLR,
                 Rule.GLR, 0, "A", 1, 2, 1.1, guards)));
-        assertEquals("leader must be >= 0, got -1", message(() -> new Decision(Reason.GLR, Rule.GLR, -1, "A", 1, 2,
+        assertEquals("leader must be >= 0, got -1", message(() -> new Verdict(VerdictReason.GLR, Rule.GLR, -1, "A", 1, 2,
                 0.5, guards)));
-        assertEquals(Decision.Action.CONTINUE, new Decision(Reason.MIN_DURATION, Rule.GLR, 0, "A", 1, 2, 0.5, guards)
+        assertEquals(Verdict.Action.CONTINUE, new Verdict(VerdictReason.MIN_DURATION, Rule.GLR, 0, "A", 1, 2, 0.5, guards)
                 .action());
     }
 }

@@ -5,7 +5,7 @@ import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import dev.runoff.engine.Arm;
+import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
@@ -17,7 +17,7 @@ import org.apache.commons.math3.analysis.integration.IterativeLegendreGaussInteg
 import org.apache.commons.math3.distribution.BetaDistribution;
 import org.junit.jupiter.api.Test;
 
-class StoppingRuleTest {
+class StoppingCheckTest {
     private static final Instant START = Instant.parse("2026-03-02T09:00:00Z");
     private static final Timing ONE_DAY = new Timing(START, START.plus(Duration.ofDays(1)));
 
@@ -45,9 +45,9 @@ class StoppingRuleTest {
 
     @Test
     void glrStopsWhenTheStatisticExceedsTheProvenThreshold() {
-        Decision d = StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, StoppingConfig.glr(0.05));
-        assertEquals(Decision.Action.STOP, d.action());
-        assertEquals(Reason.GLR, d.reason());
+        Verdict d = StoppingCheck.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, StoppingConfig.glr(0.05));
+        assertEquals(Verdict.Action.STOP, d.action());
+        assertEquals(VerdictReason.GLR, d.reason());
         assertEquals("glr", d.reason().label());
         assertEquals(0, d.leader());
         assertEquals("A", d.leaderName());
@@ -60,15 +60,15 @@ class StoppingRuleTest {
     @Test
     void glrContinuesBelowTheProvenThresholdButTheLighterOneStops() {
         // Z = 6.04 (hand computation); proven log(2 * 300 / 0.05) = 9.39; lighter log((1 + ln 300)/0.05) = 4.90.
-        Decision proven = StoppingRule.decide(moderateGap(), exact(0.99, 0.01), ONE_DAY, StoppingConfig.glr(0.05));
-        assertEquals(Decision.Action.CONTINUE, proven.action());
-        assertEquals(Reason.BELOW_THRESHOLD, proven.reason());
+        Verdict proven = StoppingCheck.decide(moderateGap(), exact(0.99, 0.01), ONE_DAY, StoppingConfig.glr(0.05));
+        assertEquals(Verdict.Action.CONTINUE, proven.action());
+        assertEquals(VerdictReason.BELOW_THRESHOLD, proven.reason());
         assertEquals(300 * (0.6 * Math.log(1.2) + 0.4 * Math.log(0.8)), proven.statistic(), 1e-9);
         assertEquals(Math.log(2.0 * 300 / 0.05), proven.threshold(), 1e-12);
 
-        Decision lighter = StoppingRule.decide(moderateGap(), exact(0.99, 0.01), ONE_DAY,
+        Verdict lighter = StoppingCheck.decide(moderateGap(), exact(0.99, 0.01), ONE_DAY,
                 StoppingConfig.glr(0.05).withGlrThreshold(GlrThreshold.LIGHTER_NOT_PROVEN));
-        assertEquals(Reason.GLR, lighter.reason());
+        assertEquals(VerdictReason.GLR, lighter.reason());
         assertEquals(Math.log((1 + Math.log(300)) / 0.05), lighter.threshold(), 1e-12);
     }
 
@@ -77,8 +77,8 @@ class StoppingRuleTest {
         // Gaussian GLR: 0.5^2 / (2 (4/100 + 9/150)) = 1.25, below 2 C_G(log(1/0.05)/2) + 4 log(4 + log 125).
         List<Arm> arms = List.of(new Arm("A", ValueStats.ofSummary(100, 10.5, 2.0)),
                 new Arm("B", ValueStats.ofSummary(150, 10.0, 3.0)));
-        Decision d = StoppingRule.decide(arms, exact(0.9, 0.1), ONE_DAY, StoppingConfig.glr(0.05));
-        assertEquals(Reason.BELOW_THRESHOLD, d.reason());
+        Verdict d = StoppingCheck.decide(arms, exact(0.9, 0.1), ONE_DAY, StoppingConfig.glr(0.05));
+        assertEquals(VerdictReason.BELOW_THRESHOLD, d.reason());
         assertEquals(1.25, d.statistic(), 1e-9);
         double expected = 2 * GaussianCalibrationTest.cgByGrid(Math.log(1 / 0.05) / 2) + 4 * Math.log(4 + Math.log(125));
         assertEquals(expected, d.threshold(), 1e-7);
@@ -86,9 +86,9 @@ class StoppingRuleTest {
 
     @Test
     void glrCannotStopBeforeEveryArmHasData() {
-        Decision d = StoppingRule.decide(List.of(bernoulli("A", 0, 0), bernoulli("B", 0, 0)), exact(0.5, 0.5),
+        Verdict d = StoppingCheck.decide(List.of(bernoulli("A", 0, 0), bernoulli("B", 0, 0)), exact(0.5, 0.5),
                 ONE_DAY, StoppingConfig.glr(0.05).withGlrThreshold(GlrThreshold.LIGHTER_NOT_PROVEN));
-        assertEquals(Reason.BELOW_THRESHOLD, d.reason());
+        assertEquals(VerdictReason.BELOW_THRESHOLD, d.reason());
         assertEquals(0.0, d.statistic());
     }
 
@@ -96,22 +96,22 @@ class StoppingRuleTest {
     void posteriorRuleJudgesTheLowerConfidenceBound() {
         StoppingConfig config = StoppingConfig.posterior(0.05);
         // 0.97 - 3 * 0.005 = 0.955 >= 0.95: STOP; the leader is the arm with the largest alpha.
-        Decision stop = StoppingRule.decide(moderateGap(), monteCarlo(new double[] {0.03, 0.97},
+        Verdict stop = StoppingCheck.decide(moderateGap(), monteCarlo(new double[] {0.03, 0.97},
                 new double[] {0.005, 0.005}), ONE_DAY, config);
-        assertEquals(Reason.POSTERIOR, stop.reason());
+        assertEquals(VerdictReason.POSTERIOR, stop.reason());
         assertEquals("B", stop.leaderName());
         assertEquals(0.955, stop.statistic(), 1e-12);
         assertEquals(0.95, stop.threshold(), 1e-15);
         // 0.97 - 3 * 0.01 = 0.94 < 0.95: CONTINUE, although alpha itself is above 0.95.
-        Decision wait = StoppingRule.decide(moderateGap(), monteCarlo(new double[] {0.03, 0.97},
+        Verdict wait = StoppingCheck.decide(moderateGap(), monteCarlo(new double[] {0.03, 0.97},
                 new double[] {0.01, 0.01}), ONE_DAY, config);
-        assertEquals(Reason.BELOW_THRESHOLD, wait.reason());
+        assertEquals(VerdictReason.BELOW_THRESHOLD, wait.reason());
         assertEquals(0.94, wait.statistic(), 1e-12);
         // z = 1: 0.97 - 0.01 = 0.96: STOP.
-        assertEquals(Reason.POSTERIOR, StoppingRule.decide(moderateGap(), monteCarlo(new double[] {0.03, 0.97},
+        assertEquals(VerdictReason.POSTERIOR, StoppingCheck.decide(moderateGap(), monteCarlo(new double[] {0.03, 0.97},
                 new double[] {0.01, 0.01}), ONE_DAY, config.withZ(1)).reason());
         // Exact alpha has standard error 0: 0.951 >= 0.95.
-        assertEquals(Reason.POSTERIOR, StoppingRule.decide(moderateGap(), exact(0.049, 0.951), ONE_DAY, config)
+        assertEquals(VerdictReason.POSTERIOR, StoppingCheck.decide(moderateGap(), exact(0.049, 0.951), ONE_DAY, config)
                 .reason());
     }
 
@@ -147,14 +147,14 @@ class StoppingRuleTest {
         List<BetaDistribution> posteriors = List.of(new BetaDistribution(null, 501, 501),
                 new BetaDistribution(null, 501, 501));
         LeaderConfidence reference = integrated(posteriors);
-        Decision stop = StoppingRule.decide(arms, exact(0.5, 0.5), ONE_DAY, StoppingConfig.indifference(0.05, 0.05),
+        Verdict stop = StoppingCheck.decide(arms, exact(0.5, 0.5), ONE_DAY, StoppingConfig.indifference(0.05, 0.05),
                 reference);
-        assertEquals(Reason.INDIFFERENCE, stop.reason());
+        assertEquals(VerdictReason.INDIFFERENCE, stop.reason());
         assertEquals(reference.probabilityWithin(0, 0.05), stop.statistic());
         assertEquals(0.987, stop.statistic(), 0.003);
-        Decision wait = StoppingRule.decide(arms, exact(0.5, 0.5), ONE_DAY, StoppingConfig.indifference(0.05, 0.01),
+        Verdict wait = StoppingCheck.decide(arms, exact(0.5, 0.5), ONE_DAY, StoppingConfig.indifference(0.05, 0.01),
                 reference);
-        assertEquals(Reason.BELOW_THRESHOLD, wait.reason());
+        assertEquals(VerdictReason.BELOW_THRESHOLD, wait.reason());
         assertEquals(0.67, wait.statistic(), 0.01);
         assertEquals(0.95, wait.threshold(), 1e-15);
     }
@@ -169,7 +169,7 @@ class StoppingRuleTest {
             calls.add(leader + "@" + epsilon);
             return integrated(posteriors).probabilityWithin(leader, epsilon);
         };
-        Decision d = StoppingRule.decide(arms, exact(0.02, 0.74, 0.24), ONE_DAY,
+        Verdict d = StoppingCheck.decide(arms, exact(0.02, 0.74, 0.24), ONE_DAY,
                 StoppingConfig.indifference(0.05, 0.1), recording);
         assertEquals(List.of("1@0.1"), calls);
         assertEquals("B", d.leaderName());
@@ -179,87 +179,87 @@ class StoppingRuleTest {
     @Test
     void indifferenceRuleWithoutAConfidenceFunctionIsRejected() {
         assertEquals("the indifference rule needs a LeaderConfidence", assertThrows(IllegalArgumentException.class,
-                () -> StoppingRule.decide(largeGap(), exact(0.9, 0.1), ONE_DAY,
+                () -> StoppingCheck.decide(largeGap(), exact(0.9, 0.1), ONE_DAY,
                         StoppingConfig.indifference(0.05, 0.01))).getMessage());
     }
 
     @Test
     void minimumTrialsPerArmHoldsAFiringRuleBack() {
         StoppingConfig config = StoppingConfig.glr(0.05).withMinTrialsPerArm(2001);
-        Decision d = StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config);
-        assertEquals(Decision.Action.CONTINUE, d.action());
-        assertEquals(Reason.MIN_TRIALS, d.reason());
+        Verdict d = StoppingCheck.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config);
+        assertEquals(Verdict.Action.CONTINUE, d.action());
+        assertEquals(VerdictReason.MIN_TRIALS, d.reason());
         assertEquals("min-trials", d.reason().label());
         assertEquals(2000, d.guards().fewestTrials());
         assertFalse(d.guards().minTrialsMet());
-        assertEquals(Reason.GLR, StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY,
+        assertEquals(VerdictReason.GLR, StoppingCheck.decide(largeGap(), exact(0.999, 0.001), ONE_DAY,
                 config.withMinTrialsPerArm(2000)).reason());
     }
 
     @Test
     void minimumDurationHoldsAFiringRuleBack() {
         StoppingConfig config = StoppingConfig.glr(0.05).withMinDuration(Duration.ofDays(7));
-        Decision early = StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config);
-        assertEquals(Reason.MIN_DURATION, early.reason());
+        Verdict early = StoppingCheck.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config);
+        assertEquals(VerdictReason.MIN_DURATION, early.reason());
         assertEquals(Duration.ofDays(1), early.guards().elapsed());
         Timing week = new Timing(START, START.plus(Duration.ofDays(7)));
-        assertEquals(Reason.GLR, StoppingRule.decide(largeGap(), exact(0.999, 0.001), week, config).reason());
+        assertEquals(VerdictReason.GLR, StoppingCheck.decide(largeGap(), exact(0.999, 0.001), week, config).reason());
     }
 
     @Test
     void spentTrialBudgetStopsWithTheBestArmByAlpha() {
         // Rule does not fire (Z = 6.04 < 9.39); 300 trials reach the budget of 300.
         StoppingConfig config = StoppingConfig.glr(0.05).withMaxTotalTrials(300);
-        Decision d = StoppingRule.decide(moderateGap(), exact(0.3, 0.7), ONE_DAY, config);
-        assertEquals(Decision.Action.STOP, d.action());
-        assertEquals(Reason.BUDGET, d.reason());
+        Verdict d = StoppingCheck.decide(moderateGap(), exact(0.3, 0.7), ONE_DAY, config);
+        assertEquals(Verdict.Action.STOP, d.action());
+        assertEquals(VerdictReason.BUDGET, d.reason());
         assertEquals("budget", d.reason().label());
         assertEquals("B", d.leaderName());
         assertEquals(0.7, d.leaderConfidence());
         assertTrue(d.guards().trialBudgetSpent());
         assertEquals(Math.log(2.0 * 300 / 0.05), d.threshold(), 1e-12);
-        assertEquals(Reason.BELOW_THRESHOLD, StoppingRule.decide(moderateGap(), exact(0.3, 0.7), ONE_DAY,
+        assertEquals(VerdictReason.BELOW_THRESHOLD, StoppingCheck.decide(moderateGap(), exact(0.3, 0.7), ONE_DAY,
                 config.withMaxTotalTrials(301)).reason());
     }
 
     @Test
     void passedDeadlineStopsForBudget() {
         StoppingConfig config = StoppingConfig.glr(0.05).withDeadline(START.plus(Duration.ofHours(24)));
-        Decision d = StoppingRule.decide(moderateGap(), exact(0.8, 0.2), ONE_DAY, config);
-        assertEquals(Reason.BUDGET, d.reason());
+        Verdict d = StoppingCheck.decide(moderateGap(), exact(0.8, 0.2), ONE_DAY, config);
+        assertEquals(VerdictReason.BUDGET, d.reason());
         assertTrue(d.guards().deadlinePassed());
         Timing before = new Timing(START, START.plus(Duration.ofHours(23)));
-        assertEquals(Reason.BELOW_THRESHOLD, StoppingRule.decide(moderateGap(), exact(0.8, 0.2), before, config)
+        assertEquals(VerdictReason.BELOW_THRESHOLD, StoppingCheck.decide(moderateGap(), exact(0.8, 0.2), before, config)
                 .reason());
     }
 
     @Test
     void budgetOverridesGuardsButAFiringRuleKeepsItsOwnReason() {
         StoppingConfig config = StoppingConfig.glr(0.05).withMaxTotalTrials(4000);
-        assertEquals(Reason.GLR, StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config).reason());
-        assertEquals(Reason.BUDGET, StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY,
+        assertEquals(VerdictReason.GLR, StoppingCheck.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config).reason());
+        assertEquals(VerdictReason.BUDGET, StoppingCheck.decide(largeGap(), exact(0.999, 0.001), ONE_DAY,
                 config.withMinTrialsPerArm(10_000)).reason());
     }
 
     @Test
     void sameInputsGiveEqualDecisions() {
         StoppingConfig config = StoppingConfig.glr(0.05).withMinTrialsPerArm(10);
-        assertEquals(StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config),
-                StoppingRule.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config));
+        assertEquals(StoppingCheck.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config),
+                StoppingCheck.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config));
     }
 
     @Test
     void rejectsInconsistentInputsNamingTheProblem() {
         StoppingConfig config = StoppingConfig.posterior(0.05);
         assertEquals("probability of being best has 3 entries but there are 2 arms",
-                assertThrows(IllegalArgumentException.class, () -> StoppingRule.decide(moderateGap(),
+                assertThrows(IllegalArgumentException.class, () -> StoppingCheck.decide(moderateGap(),
                         exact(0.5, 0.3, 0.2), ONE_DAY, config)).getMessage());
         assertEquals("alpha of arm 'B' must be in [0.0, 1.0], got 1.5",
-                assertThrows(IllegalArgumentException.class, () -> StoppingRule.decide(moderateGap(),
+                assertThrows(IllegalArgumentException.class, () -> StoppingCheck.decide(moderateGap(),
                         exact(0.2, 1.5), ONE_DAY, config)).getMessage());
         assertEquals("need at least 2 arms, got 1", assertThrows(IllegalArgumentException.class,
-                () -> StoppingRule.decide(List.of(bernoulli("A", 1, 1)), exact(1.0), ONE_DAY, config)).getMessage());
-        assertThrows(IllegalArgumentException.class, () -> StoppingRule.decide(moderateGap(), exact(0.5, 0.5),
+                () -> StoppingCheck.decide(List.of(bernoulli("A", 1, 1)), exact(1.0), ONE_DAY, config)).getMessage());
+        assertThrows(IllegalArgumentException.class, () -> StoppingCheck.decide(moderateGap(), exact(0.5, 0.5),
                 ONE_DAY, StoppingConfig.indifference(0.05, 0.1), (leader, eps) -> 1.2));
     }
 }

@@ -1,4 +1,4 @@
-package dev.runoff.engine;
+package dev.runoff.engine.core;
 
 /** The kind of outcome an experiment optimises. */
 public enum Metric {

@@ -1,4 +1,4 @@
-package dev.runoff.engine;
+package dev.runoff.engine.core;
 
 import dev.runoff.engine.stats.ArmStats;
 import java.util.Objects;

@@ -4,9 +4,9 @@ import dev.runoff.records.avro.ExperimentDefinition;
 import java.util.List;
 
 /** The weights published once an experiment has stopped, by the definition's {@code afterStop} policy. */
-public final class AfterStop {
+public final class AfterStopWeights {
 
-    private AfterStop() {
+    private AfterStopWeights() {
     }
 
     /**

@@ -1,6 +1,6 @@
-package dev.runoff.engine.planning;
+package dev.runoff.engine.stopping;
 
-import dev.runoff.engine.Checks;
+import dev.runoff.engine.core.Checks;
 
 /**
  * Kullback-Leibler divergences of the one-parameter families used by the engine, and the pairwise

@@ -1,42 +1,44 @@
 package dev.runoff.engine.stopping;
 
-import java.util.Locale;
+import dev.runoff.engine.core.Names;
+
+
 
 /** Why a decision was taken; each reason implies the action. */
-public enum Reason {
+public enum VerdictReason {
     /** STOP: the GLR statistic exceeded its threshold. */
-    GLR(Decision.Action.STOP),
+    GLR(Verdict.Action.STOP),
     /** STOP: the posterior probability rule fired. */
-    POSTERIOR(Decision.Action.STOP),
+    POSTERIOR(Verdict.Action.STOP),
     /** STOP: the indifference-zone rule fired. */
-    INDIFFERENCE(Decision.Action.STOP),
+    INDIFFERENCE(Verdict.Action.STOP),
     /** STOP: the trial budget or the deadline is spent; the winner is the current best by alpha. */
-    BUDGET(Decision.Action.STOP),
+    BUDGET(Verdict.Action.STOP),
     /** CONTINUE: the rule's statistic has not reached its threshold. */
-    BELOW_THRESHOLD(Decision.Action.CONTINUE),
+    BELOW_THRESHOLD(Verdict.Action.CONTINUE),
     /** CONTINUE: the rule fired but some arm has fewer trials than the configured minimum. */
-    MIN_TRIALS(Decision.Action.CONTINUE),
+    MIN_TRIALS(Verdict.Action.CONTINUE),
     /** CONTINUE: the rule fired but the experiment has run for less than the configured minimum duration. */
-    MIN_DURATION(Decision.Action.CONTINUE);
+    MIN_DURATION(Verdict.Action.CONTINUE);
 
-    private final Decision.Action action;
+    private final Verdict.Action action;
 
-    Reason(Decision.Action action) {
+    VerdictReason(Verdict.Action action) {
         this.action = action;
     }
 
     /** The action this reason leads to. */
-    public Decision.Action action() {
+    public Verdict.Action action() {
         return action;
     }
 
     /** Lower-case label for records and logs: "glr", "posterior", "indifference", "budget", "min-trials"... */
     public String label() {
-        return name().toLowerCase(Locale.ROOT).replace('_', '-');
+        return Names.kebab(this);
     }
 
     /** The reason a rule gives when it fires. */
-    static Reason firing(Rule rule) {
+    static VerdictReason firing(Rule rule) {
         return switch (rule) {
             case GLR -> GLR;
             case POSTERIOR -> POSTERIOR;

@@ -1,4 +1,6 @@
-package dev.runoff.engine.planning;
+package dev.runoff.engine.stopping;
+
+import dev.runoff.engine.stopping.Divergence;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertThrows;

@@ -1,7 +1,13 @@
 package dev.runoff.engine.stopping;
 
-import dev.runoff.engine.Arm;
-import dev.runoff.engine.Checks;
+
+
+
+
+
+
+import dev.runoff.engine.core.Arm;
+import dev.runoff.engine.core.Checks;
 import dev.runoff.engine.best.ProbabilityBest;
 import java.util.List;
 import java.util.Objects;
@@ -11,27 +17,27 @@ import java.util.Objects;
  *
  * <p>Order of the checks: if the configured rule fires and both guards (minimum trials per arm, minimum
  * duration) are met, STOP with the rule's reason. Otherwise, if the trial budget or the deadline is spent,
- * STOP with reason {@link Reason#BUDGET}, naming the arm with the largest alpha. Otherwise CONTINUE, with
- * reason {@link Reason#MIN_TRIALS} or {@link Reason#MIN_DURATION} when only a guard held the rule back, or
- * {@link Reason#BELOW_THRESHOLD}. A pure function of its arguments.
+ * STOP with reason {@link VerdictReason#BUDGET}, naming the arm with the largest alpha. Otherwise CONTINUE, with
+ * reason {@link VerdictReason#MIN_TRIALS} or {@link VerdictReason#MIN_DURATION} when only a guard held the rule back, or
+ * {@link VerdictReason#BELOW_THRESHOLD}. A pure function of its arguments.
  */
-public final class StoppingRule {
-    private StoppingRule() {
+public final class StoppingCheck {
+    private StoppingCheck() {
     }
 
     /**
-     * Decision for the GLR or posterior rule, which need no {@link LeaderConfidence}.
+     * Verdict for the GLR or posterior rule, which need no {@link LeaderConfidence}.
      *
      * @throws IllegalArgumentException if the configured rule is {@link Rule#INDIFFERENCE}, or on bad input
      */
-    public static Decision decide(List<Arm> arms, ProbabilityBest best, Timing timing, StoppingConfig config) {
+    public static Verdict decide(List<Arm> arms, ProbabilityBest best, Timing timing, StoppingConfig config) {
         return decide(arms, best, timing, config, (leader, epsilon) -> {
             throw new IllegalArgumentException("the indifference rule needs a LeaderConfidence");
         });
     }
 
     /**
-     * Decision for any rule.
+     * Verdict for any rule.
      *
      * @param arms       at least two arms, all Bernoulli or all value statistics
      * @param best       probability that each arm is best, in arm order
@@ -40,7 +46,7 @@ public final class StoppingRule {
      * @param confidence probability that a leader is within epsilon of the best (used by the indifference
      *                   rule only)
      */
-    public static Decision decide(List<Arm> arms, ProbabilityBest best, Timing timing, StoppingConfig config,
+    public static Verdict decide(List<Arm> arms, ProbabilityBest best, Timing timing, StoppingConfig config,
                                   LeaderConfidence confidence) {
         Objects.requireNonNull(timing, "timing");
         Objects.requireNonNull(config, "config");
@@ -49,24 +55,24 @@ public final class StoppingRule {
         GuardState guards = guards(arms, timing, config);
         Evaluation e = evaluate(arms, best, config, confidence);
         if (e.fired() && guards.minTrialsMet() && guards.minDurationMet()) {
-            return decision(Reason.firing(config.rule()), e.leader(), e, arms, best, config, guards);
+            return decision(VerdictReason.firing(config.rule()), e.leader(), e, arms, best, config, guards);
         }
         if (guards.budgetExhausted()) {
-            return decision(Reason.BUDGET, argmax(best), e, arms, best, config, guards);
+            return decision(VerdictReason.BUDGET, argmax(best), e, arms, best, config, guards);
         }
         return decision(continueReason(e, guards), e.leader(), e, arms, best, config, guards);
     }
 
-    private static Reason continueReason(Evaluation e, GuardState guards) {
+    private static VerdictReason continueReason(Evaluation e, GuardState guards) {
         if (!e.fired()) {
-            return Reason.BELOW_THRESHOLD;
+            return VerdictReason.BELOW_THRESHOLD;
         }
-        return guards.minTrialsMet() ? Reason.MIN_DURATION : Reason.MIN_TRIALS;
+        return guards.minTrialsMet() ? VerdictReason.MIN_DURATION : VerdictReason.MIN_TRIALS;
     }
 
-    private static Decision decision(Reason reason, int leader, Evaluation e, List<Arm> arms, ProbabilityBest best,
+    private static Verdict decision(VerdictReason reason, int leader, Evaluation e, List<Arm> arms, ProbabilityBest best,
                                      StoppingConfig config, GuardState guards) {
-        return new Decision(reason, config.rule(), leader, arms.get(leader).name(), e.statistic(), e.threshold(),
+        return new Verdict(reason, config.rule(), leader, arms.get(leader).name(), e.statistic(), e.threshold(),
                 best.alpha(leader), guards);
     }
 
@@ -116,7 +122,7 @@ public final class StoppingRule {
             total = Math.addExact(total, arm.stats().trials());
         }
         return new GuardState(fewest, config.minTrialsPerArm(), timing.elapsed(), config.minDuration(), total,
-                config.maxTotalTrials(), timing.now(), config.deadline());
+                config.budgetTrials(), timing.now(), config.deadline());
     }
 
     /** Arm with the largest alpha, lowest index on ties. */

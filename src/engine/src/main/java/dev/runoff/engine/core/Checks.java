@@ -1,4 +1,4 @@
-package dev.runoff.engine;
+package dev.runoff.engine.core;
 
 /** Argument checks whose messages name the offending parameter and value. */
 public final class Checks {

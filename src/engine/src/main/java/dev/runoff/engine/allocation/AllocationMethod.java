@@ -1,13 +1,15 @@
 package dev.runoff.engine.allocation;
 
+import dev.runoff.engine.core.Names;
+
+
 import dev.runoff.engine.posterior.Posterior;
 import java.util.Arrays;
 import java.util.List;
-import java.util.Locale;
 import java.util.stream.Collectors;
 
 /** The allocation rules, each spelled on the command line as its {@link #cliName()}. */
-public enum AllocationRule {
+public enum AllocationMethod {
     /** Top-two Thompson sampling in closed form ({@link TopTwo#thompson}). */
     TOP_TWO_THOMPSON(false, (posteriors, alpha, beta) -> TopTwo.thompson(alpha, beta)),
     /** Top-two probability sampling ({@link TopTwo#probability}). */
@@ -22,7 +24,7 @@ public enum AllocationRule {
     private final boolean needsMeans;
     private final Formula formula;
 
-    AllocationRule(boolean needsMeans, Formula formula) {
+    AllocationMethod(boolean needsMeans, Formula formula) {
         this.needsMeans = needsMeans;
         this.formula = formula;
     }
@@ -45,7 +47,7 @@ public enum AllocationRule {
 
     /** The command-line spelling, e.g. {@code top-two-thompson}. */
     public String cliName() {
-        return name().toLowerCase(Locale.ROOT).replace('_', '-');
+        return Names.kebab(this);
     }
 
     /**
@@ -53,14 +55,14 @@ public enum AllocationRule {
      *
      * @throws IllegalArgumentException naming the value and the valid spellings if there is none
      */
-    public static AllocationRule fromCliName(String name) {
-        for (AllocationRule r : values()) {
+    public static AllocationMethod fromCliName(String name) {
+        for (AllocationMethod r : values()) {
             if (r.cliName().equals(name)) {
                 return r;
             }
         }
         throw new IllegalArgumentException("unknown rule '" + name + "', expected one of "
-                + Arrays.stream(values()).map(AllocationRule::cliName).collect(Collectors.joining(", ")));
+                + Arrays.stream(values()).map(AllocationMethod::cliName).collect(Collectors.joining(", ")));
     }
 
     /** The function behind a rule. */

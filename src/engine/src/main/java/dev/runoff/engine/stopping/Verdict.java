@@ -1,13 +1,15 @@
 package dev.runoff.engine.stopping;
 
-import dev.runoff.engine.Checks;
+
+
+import dev.runoff.engine.core.Checks;
 import java.util.Objects;
 
 /**
  * A stopping decision with the numbers behind it.
  *
  * <p>{@code statistic} and {@code threshold} are always those of the configured {@link Rule} (see there for
- * their meaning), also when the reason is {@link Reason#BUDGET} or a guard. The leader is the winner when the
+ * their meaning), also when the reason is {@link VerdictReason#BUDGET} or a guard. The leader is the winner when the
  * action is STOP: for the GLR rule the arm with the largest empirical mean, for the other rules and for a
  * budget stop the arm with the largest alpha.
  *
@@ -20,11 +22,11 @@ import java.util.Objects;
  * @param leaderConfidence the leader's probability of being best (its alpha)
  * @param guards           the guard state at this evaluation
  */
-public record Decision(Reason reason, Rule rule, int leader, String leaderName, double statistic,
+public record Verdict(VerdictReason reason, Rule rule, int leader, String leaderName, double statistic,
                        double threshold, double leaderConfidence, GuardState guards) {
 
     /** Validates every field; messages name the field. */
-    public Decision {
+    public Verdict {
         Objects.requireNonNull(reason, "reason");
         Objects.requireNonNull(rule, "rule");
         Objects.requireNonNull(leaderName, "leaderName");
