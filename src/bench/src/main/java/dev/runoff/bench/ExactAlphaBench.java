@@ -23,7 +23,7 @@ import org.openjdk.jmh.annotations.Warmup;
 /**
  * One exact evaluation of alpha (and of the expected gains) for typical experiments. Target: 5 Beta arms
  * around 1,000 trials each under 0.5 ms per evaluation (median of the sampled times). Run with
- * {@code mvn -B -q -o -Pbench test-compile exec:exec -Dbench=ExactAlphaBench -Dbench.args="-f 1 -wi 3 -i 5"}.
+ * {@code mvn -B -q -o -pl src/bench -Pbench exec:exec -Dbench=ExactAlphaBench -Dbench.args="-f 1 -wi 3 -i 5"}.
  */
 @BenchmarkMode(Mode.SampleTime)
 @OutputTimeUnit(TimeUnit.MICROSECONDS)

@@ -33,7 +33,7 @@ import org.openjdk.jmh.annotations.Warmup;
  * one thread and with 8 threads calling at once. SampleTime gives the median (p0.50; each sample includes
  * the timer's own cost), AverageTime the mean; add {@code -prof gc} to see the allocation per pick.
  *
- * <p>Run: {@code mvn -B -q -o -Pbench test-compile exec:exec -Dbench=PickBench -Dbench.args="-f 1 -wi 3 -i 5"}.
+ * <p>Run: {@code mvn -B -q -o -pl src/bench -Pbench exec:exec -Dbench=PickBench -Dbench.args="-f 1 -wi 3 -i 5"}.
  */
 @BenchmarkMode({Mode.SampleTime, Mode.AverageTime})
 @OutputTimeUnit(TimeUnit.NANOSECONDS)

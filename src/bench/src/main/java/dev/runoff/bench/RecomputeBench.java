@@ -40,7 +40,7 @@ import org.openjdk.jmh.annotations.Warmup;
  * {@code recomputeAll} times passes over the whole pool (single shots after two warm-up passes, so the JIT
  * has compiled the engine), i.e. the time to recompute {@code experiments} experiments on one thread.
  *
- * <p>Run: {@code mvn -B -q -o -Pbench test-compile exec:exec -Dbench=RecomputeBench.recomputeOne
+ * <p>Run: {@code mvn -B -q -o -pl src/bench -Pbench exec:exec -Dbench=RecomputeBench.recomputeOne
  * -Dbench.args="-f 1 -wi 2 -i 3"}; the full pass: {@code -Dbench=RecomputeBench.recomputeAll
  * -Dbench.args="-f 1"}.
  */

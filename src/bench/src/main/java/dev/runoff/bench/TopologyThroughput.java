@@ -62,8 +62,8 @@ import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
  * event has been validated, deduplicated, attributed and pre-aggregated). The runs alternate, bare first,
  * {@code rounds} times each.
  *
- * <p>Run: {@code mvn -B -q -o test-compile org.codehaus.mojo:exec-maven-plugin:3.5.0:java
- * -Dexec.mainClass=dev.runoff.bench.TopologyThroughput -Dexec.classpathScope=test -Dexec.args="200000 2"}
+ * <p>Run: {@code mvn -B -q -o -pl src/bench org.codehaus.mojo:exec-maven-plugin:3.5.0:java
+ * -Dexec.mainClass=dev.runoff.bench.TopologyThroughput -Dexec.args="200000 2"}
  * (events, rounds, and optionally commit.interval.ms for both applications).
  */
 public final class TopologyThroughput {

@@ -53,7 +53,7 @@ import org.junit.jupiter.api.Test;
  * then {@code runoff audit verify} passes on the decisions topic and on an export of it, fails on each kind of
  * tampering with the right record named, and {@code runoff audit report} draws the experiment.
  */
-class AuditEndToEndTest {
+class AuditEndToEndIT {
 
     private static final Path DIR = Path.of("target", "audit-e2e");
     private static final String EXPERIMENT = "checkout-button";

@@ -53,7 +53,7 @@ import org.junit.jupiter.api.Test;
  * Two instances of the job against one embedded broker: readiness, metrics, interactive queries (found here,
  * redirected to the instance that holds the key, unknown), the rejected-records counter and the decision log.
  */
-class StreamsJobTest {
+class StreamsJobIT {
 
     private static final Duration TIMEOUT = Duration.ofSeconds(90);
     private static final ObjectMapper JSON = new ObjectMapper();

@@ -31,7 +31,7 @@ import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
 
 /** A Kafka Streams count topology with exactly_once_v2 against the embedded broker, end to end. */
-class ExactlyOnceStreamsTest {
+class ExactlyOnceStreamsIT {
     private static final String INPUT = "words";
     private static final String OUTPUT = "word-counts";
     private static final List<String> WORDS = List.of("alpha", "beta", "gamma", "delta", "epsilon");

@@ -19,7 +19,7 @@ import java.util.List;
 import org.junit.jupiter.api.Test;
 
 /** The demo, shortened (two layouts, short periods), end to end on its own embedded broker. */
-class DemoCommandTest {
+class DemoCommandIT {
 
     private static final ObjectMapper JSON = new ObjectMapper();
 

@@ -22,7 +22,7 @@ import org.junit.jupiter.api.Test;
  * {@code target/audit-report.png} for review. Skipped, and reported as skipped, where chromium is not
  * installed ({@code .ci/run} installs it).
  */
-class BrowserScreenshotTest {
+class BrowserScreenshotIT {
 
     private static final Path TARGET = Path.of("target");
     private static final int WIDTH = 1000;

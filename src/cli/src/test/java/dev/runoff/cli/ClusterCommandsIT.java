@@ -34,7 +34,7 @@ import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
 
 /** {@code topics create}, {@code experiment ...} and {@code run} against one embedded broker. */
-class ClusterCommandsTest {
+class ClusterCommandsIT {
 
     private static final List<String> TOPICS = TopicSpec.of(TopologySettings.defaults()).stream()
             .map(TopicSpec::name).toList();

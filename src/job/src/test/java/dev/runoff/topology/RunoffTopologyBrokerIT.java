@@ -44,7 +44,7 @@ import org.junit.jupiter.api.Test;
  * stream threads: thousands of events over several experiments on a four-partition input, with duplicates
  * and bad records mixed in.
  */
-class RunoffTopologyBrokerTest {
+class RunoffTopologyBrokerIT {
 
     private static final Duration TIMEOUT = Duration.ofSeconds(60);
     private static final TopologySettings SETTINGS = TopologySettings.fromMap(Map.of(

@@ -29,7 +29,7 @@ import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
 
 /** Restarts, a second instance on a formatted directory, two brokers side by side, and clean shutdown. */
-class EmbeddedKafkaBrokerRestartTest {
+class EmbeddedKafkaBrokerRestartIT {
     private static GuardedBroker guarded;
     private static EmbeddedKafkaBroker broker;
 

@@ -35,7 +35,7 @@ import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.ValueSource;
 
 /** One real broker for the class: transactions, compaction, topic creation and start failures. */
-class EmbeddedKafkaBrokerTest {
+class EmbeddedKafkaBrokerIT {
     private static GuardedBroker guarded;
     private static EmbeddedKafkaBroker broker;
 

@@ -55,7 +55,7 @@ import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
 
 /** The follower, the table and the outcome reporter against one real embedded broker. */
-class ServingBrokerTest {
+class ServingBrokerIT {
     private static final Duration WAIT = Duration.ofSeconds(20);
     private static final Map<String, String> COMPACTED = Map.of("cleanup.policy", "compact");
 
