@@ -1,6 +1,5 @@
 package dev.runoff.topology;
 
-import dev.runoff.decision.Evaluator;
 import dev.runoff.decision.ExperimentState;
 
 import com.fasterxml.jackson.databind.ObjectMapper;
@@ -10,20 +9,14 @@ import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
 import dev.runoff.records.Definitions;
 import dev.runoff.records.RecordCodec;
-import dev.runoff.records.avro.AllocationUpdate;
-import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.ExperimentDefinition;
 import java.nio.charset.StandardCharsets;
 import java.time.Duration;
-import java.util.ArrayList;
-import java.util.List;
 import java.util.function.LongSupplier;
-import org.apache.kafka.streams.KeyValue;
 import org.apache.kafka.streams.processor.PunctuationType;
 import org.apache.kafka.streams.processor.api.ContextualProcessor;
 import org.apache.kafka.streams.processor.api.ProcessorContext;
 import org.apache.kafka.streams.processor.api.Record;
-import org.apache.kafka.streams.state.KeyValueIterator;
 import org.apache.kafka.streams.state.KeyValueStore;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
@@ -39,30 +32,21 @@ import org.slf4j.LoggerFactory;
  *       topics.</li>
  *   <li>Statistics are merged into their arm; statistics for an unknown experiment or arm, or of the other
  *       metric kind, are kept out and sent to the rejected topic.</li>
- *   <li>A wall-clock punctuation (the allocation pass) visits the experiments round robin and evaluates those
- *       that are due: a new experiment or version; new data and the recompute period elapsed; or the
- *       heartbeat elapsed. A stopped experiment only re-publishes its control record at each heartbeat. One
- *       pass does at most the configured number of evaluations, starts none after the configured time, and
- *       the next pass resumes where it stopped.</li>
+ *   <li>A wall-clock punctuation runs the {@link AllocationPass} over the store.</li>
  * </ul>
  */
 final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
 
     private static final Logger LOG = LoggerFactory.getLogger(Fold.class);
     private static final ObjectMapper JSON = new ObjectMapper();
-    private static final long NANOS_PER_MILLI = 1_000_000L;
 
     private final String storeName;
     private final TopologySettings settings;
     private final Rejections rejections;
     private final JobCounters counters;
     private final LongSupplier nanoTime;
-    private final Evaluator evaluator;
-    private final RecordCodec<DecisionRecord> decisions = RecordCodec.decisionRecords();
-    private final RecordCodec<AllocationUpdate> updates = RecordCodec.allocationUpdates();
     private final RecordCodec<ExperimentDefinition> definitions = RecordCodec.definitions();
     private KeyValueStore<String, ExperimentState> experiments;
-    private String resumeFrom;
 
     Fold(String storeName, TopologySettings settings, Rejections rejections, JobCounters counters,
          LongSupplier nanoTime) {
@@ -71,15 +55,16 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
         this.rejections = rejections;
         this.counters = counters;
         this.nanoTime = nanoTime;
-        this.evaluator = new Evaluator(settings.monteCarloDraws());
     }
 
     @Override
     public void init(ProcessorContext<byte[], Emit> context) {
         super.init(context);
         experiments = context.getStateStore(storeName);
+        AllocationPass pass = new AllocationPass(settings, new StoredExperiments(experiments), new Forwarded(),
+                counters, nanoTime);
         context.schedule(Duration.ofMillis(settings.allocateIntervalMs()), PunctuationType.WALL_CLOCK_TIME,
-                this::allocate);
+                pass::run);
     }
 
     @Override
@@ -138,79 +123,13 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
         counters.folded(delta.stats().trials());
     }
 
-    /** The allocation pass. */
-    private void allocate(long now) {
-        long began = nanoTime.getAsLong();
-        List<KeyValue<String, ExperimentState>> batch = new ArrayList<>();
-        String next;
-        try (KeyValueIterator<String, ExperimentState> it = experiments.range(resumeFrom, null)) {
-            while (it.hasNext() && batch.size() < settings.allocateMaxVisits()) {
-                batch.add(it.next());
-            }
-            next = it.hasNext() ? it.peekNextKey() : null;
-        }
-        int work = 0;
-        for (KeyValue<String, ExperimentState> entry : batch) {
-            Action action = action(entry.value, now);
-            if (action == Action.NONE) {
-                continue;
-            }
-            if (work >= settings.allocateMaxEvaluations()
-                    || nanoTime.getAsLong() - began >= settings.allocateMaxTimeMs() * NANOS_PER_MILLI) {
-                next = entry.key;
-                break;
-            }
-            work++;
-            run(entry.key, entry.value, action, now);
-        }
-        resumeFrom = next;
-        counters.allocationPass(nanoTime.getAsLong() - began);
-    }
-
-    private Action action(ExperimentState state, long now) {
-        long heartbeat = state.definition().getHeartbeatMs();
-        if (state.stopped()) {
-            return since(state.lastPublishedAt(), now) >= heartbeat ? Action.HEARTBEAT : Action.NONE;
-        }
-        boolean recompute = state.dirty()
-                && since(state.lastComputedAt(), now) >= state.definition().getRecomputePeriodMs();
-        return state.due() || recompute || since(state.lastPublishedAt(), now) >= heartbeat
-                ? Action.EVALUATE : Action.NONE;
-    }
-
-    private static long since(long then, long now) {
-        return then < 0 ? Long.MAX_VALUE : now - then;
-    }
-
-    private void run(String id, ExperimentState state, Action action, long now) {
-        try {
-            if (action == Action.HEARTBEAT) {
-                Evaluator.Republished republished = evaluator.heartbeat(state, now);
-                byte[] update = updates.encode(republished.update(), settings.outputFormat());
-                experiments.put(id, republished.next());
-                emit(settings.allocationsTopic(), id, update, now);
-                return;
-            }
-            Evaluator.Result result = evaluator.evaluate(state, now);
-            byte[] decision = decisions.encode(result.decision(), settings.outputFormat());
-            byte[] update = updates.encode(result.update(), settings.outputFormat());
-            experiments.put(id, result.next());
-            emit(settings.decisionsTopic(), id, decision, now);
-            emit(settings.allocationsTopic(), id, update, now);
-            counters.decision();
-        } catch (RuntimeException e) {
-            LOG.warn("Evaluation of experiment {} (version {}) failed; retried after new data or the heartbeat", id,
-                    state.definition().getVersion(), e);
-            experiments.put(id, state.failed(now));
-            ObjectNode body = JSON.createObjectNode().put("experimentId", id)
-                    .put("definitionVersion", state.definition().getVersion()).put("error", String.valueOf(e));
-            context().forward(rejections.emit(utf8(id), utf8(body.toString()), now,
-                    RejectReason.EVALUATION_ERROR.code(), "evaluation: " + e, Source.NONE));
-        }
-    }
-
     private void rejectDelta(Record<byte[], StageTwo> record, String reason, String message) {
-        StageTwo delta = record.value();
+        context().forward(rejections.emit(record.key(), body(record.value()), record.timestamp(), reason, message,
+                Source.of(context().recordMetadata())));
+    }
+
+    /** The rejected delta as JSON: experiment, arm and statistics. */
+    private static byte[] body(StageTwo delta) {
         ObjectNode body = JSON.createObjectNode().put("experimentId", delta.experimentId()).put("arm", delta.arm());
         ArmStats stats = delta.stats();
         if (stats instanceof BernoulliStats b) {
@@ -219,8 +138,7 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
             ValueStats v = (ValueStats) stats;
             body.put("count", v.count()).put("mean", v.mean()).put("m2", v.m2());
         }
-        context().forward(rejections.emit(record.key(), utf8(body.toString()), record.timestamp(), reason, message,
-                Source.of(context().recordMetadata())));
+        return utf8(body.toString());
     }
 
     private void emit(String topic, String id, byte[] value, long timestamp) {
@@ -231,10 +149,22 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
         return text.getBytes(StandardCharsets.UTF_8);
     }
 
-    /** What the allocation pass does for one experiment. */
-    private enum Action {
-        NONE,
-        EVALUATE,
-        HEARTBEAT
+    /** The allocation pass's records, forwarded by this processor. */
+    private final class Forwarded implements AllocationPass.Output {
+
+        @Override
+        public void decision(String id, byte[] record, long timestamp) {
+            emit(settings.decisionsTopic(), id, record, timestamp);
+        }
+
+        @Override
+        public void control(String id, byte[] record, long timestamp) {
+            emit(settings.allocationsTopic(), id, record, timestamp);
+        }
+
+        @Override
+        public void rejected(String id, byte[] body, long timestamp, RejectReason reason, String message) {
+            context().forward(rejections.emit(utf8(id), body, timestamp, reason.code(), message, Source.NONE));
+        }
     }
 }

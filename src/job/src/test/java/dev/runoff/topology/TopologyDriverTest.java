@@ -20,6 +20,7 @@ import dev.runoff.records.avro.ExperimentStatus;
 import dev.runoff.records.avro.Guard;
 import java.util.ArrayList;
 import java.util.List;
+import java.util.Map;
 import java.util.OptionalInt;
 import org.apache.kafka.streams.test.TestRecord;
 import org.junit.jupiter.api.AfterEach;
@@ -187,6 +188,25 @@ class TopologyDriverTest {
     }
 
     @Test
+    void aPassBudgetSmallerThanTheExperimentsStillReachesEveryExperimentThroughTheTopology() {
+        TopologySettings budgeted = TopologySettings.fromMap(Map.of(TopologySettings.ALLOCATE_INTERVAL_KEY, 100,
+                TopologySettings.ALLOCATE_MAX_EVALUATIONS_KEY, 2));
+        try (TopologyFixture small = new TopologyFixture(budgeted)) {
+            List<String> ids = List.of("p0", "p1", "p2", "p3", "p4");
+            for (String id : ids) {
+                ExperimentDefinition def = Defs.bernoulli(id, "a", "b");
+                def.setHeartbeatMs(100);
+                small.define(def);
+            }
+            small.advance(100);
+            assertEquals(List.of("p0", "p1"), experimentIds(small.decisions()), "one pass, two evaluations");
+            small.advance(200);
+            assertEquals(List.of("p2", "p3", "p4"), experimentIds(small.decisions()),
+                    "the next passes resume where the last stopped, although p0 and p1 are due again");
+        }
+    }
+
+    @Test
     void tombstoneEndsTheExperiment() {
         job.define(Defs.bernoulli("gone", "a", "b"));
         job.advance(150);
@@ -233,6 +253,10 @@ class TopologyDriverTest {
                 job.event(unit, Events.click(experiment, unit, unit + "-c", null, job.clock()));
             }
         }
+    }
+
+    private static List<String> experimentIds(List<DecisionRecord> decisions) {
+        return decisions.stream().map(DecisionRecord::getExperimentId).toList();
     }
 
     private static double[] weights(AllocationUpdate update) {
