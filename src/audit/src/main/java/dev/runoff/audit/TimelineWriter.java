@@ -46,11 +46,11 @@ public final class TimelineWriter {
 
     /**
      * CSV with a header: sequence, time_utc, stream_time_ms, definition_version, then trials_, successes_,
-     * p_best_ and weight_ per arm, then decision, winner, reason. Empty cells where an arm is absent.
+     * pBest_ and weight_ per arm, then decision, winner, reason. Empty cells where an arm is absent.
      */
     public static String csv(Timeline timeline) {
         List<String> header = new ArrayList<>(List.of("sequence", "time_utc", "stream_time_ms", "definition_version"));
-        for (String prefix : List.of("trials_", "successes_", "p_best_", "weight_")) {
+        for (String prefix : List.of("trials_", "successes_", "pBest_", "weight_")) {
             timeline.arms().forEach(arm -> header.add(prefix + arm));
         }
         header.addAll(List.of("decision", "winner", "reason"));

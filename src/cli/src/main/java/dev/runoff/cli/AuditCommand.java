@@ -36,11 +36,14 @@ import picocli.CommandLine.Spec;
  * {@code runoff audit}: {@code verify} checks decision records (hash chain, sequence, recomputation, stopping
  * rule, sample ratio); {@code report} prints one experiment's timeline and draws its chart. Records come from
  * the decisions topic or from an exported JSON-lines file. Exit codes of verify: 0 when everything verifies,
- * 1 when something fails, 2 for bad arguments.
+ * 1 when something fails, 2 for bad arguments. {@code --client-config} takes plain Kafka client properties
+ * (not the job's configuration, which is what {@code --config} means in the other commands).
  */
 @Command(name = "audit", mixinStandardHelpOptions = true, versionProvider = VersionInfo.class,
         description = "Verify and report decision records from the decisions topic or an exported file.",
-        subcommands = {AuditCommand.Verify.class, AuditCommand.Report.class})
+        subcommands = {AuditCommand.Verify.class, AuditCommand.Report.class},
+        exitCodeListHeading = ExitCodes.HEADING,
+        exitCodeList = {"2:missing subcommand or bad arguments"})
 final class AuditCommand implements Runnable {
 
     @Spec
@@ -58,7 +61,7 @@ final class AuditCommand implements Runnable {
         @Spec(Spec.Target.MIXEE)
         private CommandSpec spec;
 
-        @Option(names = "--file", paramLabel = "FILE",
+        @Option(names = "--file", paramLabel = "FILE", converter = ExistingFile.class,
                 description = "Exported JSON-lines file: one canonical JSON decision record per line.")
         private Path file;
 
@@ -70,13 +73,15 @@ final class AuditCommand implements Runnable {
                 description = "Decisions topic (default: ${DEFAULT-VALUE}).")
         private String topic;
 
-        @Option(names = "--config", paramLabel = "FILE",
-                description = "Kafka client properties (security.protocol, sasl.*, ssl.*, ...).")
-        private Path config;
+        @Option(names = "--client-config", paramLabel = "FILE", converter = ExistingFile.class,
+                description = "Plain Kafka client properties (bootstrap.servers, security.protocol, sasl.*, ssl.*,"
+                        + " ...) for reading the topic; not the job's configuration file.")
+        private Path clientConfig;
 
-        @Option(names = "--timeout", paramLabel = "SECONDS", defaultValue = "30",
-                description = "Give up reading the topic after this long without progress (default: ${DEFAULT-VALUE}).")
-        private long timeoutSeconds;
+        @Option(names = "--timeout-ms", paramLabel = "MS", defaultValue = "30000",
+                description = "Give up reading the topic after this many milliseconds without progress"
+                        + " (default: ${DEFAULT-VALUE}).")
+        private long timeoutMs;
 
         @Option(names = "--experiment", paramLabel = "ID", description = "Only this experiment's records.")
         String experiment;
@@ -88,26 +93,24 @@ final class AuditCommand implements Runnable {
         }
 
         private DecisionSource source(EntryDecoder decoder) {
-            Map<String, String> client = config == null ? new LinkedHashMap<>() : load(config);
+            Map<String, String> client = clientConfig == null ? new LinkedHashMap<>() : load(clientConfig);
             if (bootstrapServer != null) {
                 client.put("bootstrap.servers", bootstrapServer);
             }
             boolean topicGiven = client.containsKey("bootstrap.servers");
             if ((file == null) == !topicGiven) {
                 throw new ParameterException(spec.commandLine(), file == null
-                        ? "give --file FILE or --bootstrap-server HOST:PORT (or bootstrap.servers in --config)"
+                        ? "give --file FILE or --bootstrap-server HOST:PORT (or bootstrap.servers in --client-config)"
                         : "give either --file or a bootstrap server, not both");
             }
             if (file != null) {
-                if (!Files.isRegularFile(file)) {
-                    throw new ParameterException(spec.commandLine(), "--file " + file + ": no such file");
-                }
                 return new FileSource(file, decoder);
             }
-            if (timeoutSeconds <= 0) {
-                throw new ParameterException(spec.commandLine(), "--timeout must be > 0, got " + timeoutSeconds);
+            if (timeoutMs <= 0) {
+                throw new ParameterException(spec.commandLine(), "--timeout-ms must be > 0, got " + timeoutMs);
             }
-            return new TopicSource(client, topic, Duration.ofSeconds(timeoutSeconds), decoder);
+            Quiet.connectionWarnings();
+            return new TopicSource(client, topic, Duration.ofMillis(timeoutMs), decoder);
         }
 
         private Map<String, String> load(Path path) {
@@ -115,7 +118,7 @@ final class AuditCommand implements Runnable {
             try (InputStream in = Files.newInputStream(path)) {
                 properties.load(in);
             } catch (IOException e) {
-                throw new ParameterException(spec.commandLine(), "--config " + path + ": " + e.getMessage(), e);
+                throw new ParameterException(spec.commandLine(), "--client-config " + path + ": " + e.getMessage(), e);
             }
             Map<String, String> map = new LinkedHashMap<>();
             properties.stringPropertyNames().forEach(k -> map.put(k, properties.getProperty(k)));
@@ -125,9 +128,10 @@ final class AuditCommand implements Runnable {
 
     /** {@code runoff audit verify}. */
     @Command(name = "verify", mixinStandardHelpOptions = true, versionProvider = VersionInfo.class,
-            description = {"Check decision records: hash chain, sequence numbers, recomputation by the engine,"
+            description = "Check decision records: hash chain, sequence numbers, recomputation by the engine,"
                     + " the stopping rule, and that exposures followed the published weights (sample ratio).",
-                "Exit code 0 when everything verifies, 1 when something fails, 2 for bad arguments."})
+            exitCodeListHeading = ExitCodes.HEADING,
+            exitCodeList = {"0:everything verifies", "1:something fails to verify", "2:bad arguments"})
     static final class Verify implements Callable<Integer> {
 
         @Spec
@@ -161,7 +165,9 @@ final class AuditCommand implements Runnable {
 
     /** {@code runoff audit report}. */
     @Command(name = "report", mixinStandardHelpOptions = true, versionProvider = VersionInfo.class,
-            description = "Print one experiment's decisions over time as text, CSV or JSON, and draw them as SVG.")
+            description = "Print one experiment's decisions over time as text, CSV or JSON, and draw them as SVG.",
+            exitCodeListHeading = ExitCodes.HEADING,
+            exitCodeList = {"0:printed", "1:an output file cannot be written, or an internal error", "2:bad arguments"})
     static final class Report implements Callable<Integer> {
 
         @Spec

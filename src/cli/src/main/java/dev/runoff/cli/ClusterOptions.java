@@ -17,8 +17,9 @@ final class ClusterOptions {
             description = "Brokers to connect to (overrides bootstrap.servers of --config).")
     String bootstrapServer;
 
-    @Option(names = "--config", paramLabel = "FILE",
-            description = "Job configuration file (properties): Kafka client keys and runoff.topic.* names.")
+    @Option(names = "--config", paramLabel = "FILE", converter = ExistingFile.class,
+            description = "Job configuration file (properties), as for run: Kafka client keys and runoff.topic.*"
+                    + " names.")
     Path config;
 
     /**

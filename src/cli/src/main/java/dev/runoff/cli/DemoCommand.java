@@ -19,11 +19,16 @@ import picocli.CommandLine.Spec;
 
 /**
  * {@code runoff demo}: the whole job on a laptop with nothing installed. Exit code 0 when the experiment
- * stopped, 1 when it did not stop within {@code --max-seconds}, 130 when interrupted (Ctrl-C).
+ * stopped, 1 when it did not stop within {@code --max-time-ms}, 2 for bad arguments, 130 when interrupted (Ctrl-C).
  */
 @Command(name = "demo", mixinStandardHelpOptions = true,
-        description = {"Zero set-up demo: an in-JVM Kafka broker, the job, and a ferry operator's booking page",
-            "testing fare-table layouts with synthetic visitors, until the job decides STOP."})
+        description = "Zero set-up demo: an in-JVM Kafka broker, the job, and a ferry operator's booking page"
+                + " testing fare-table layouts with synthetic visitors, until the job decides STOP.",
+        exitCodeListHeading = ExitCodes.HEADING,
+        exitCodeList = {"0:the experiment stopped",
+            "1:no STOP within --max-time-ms, or the demo failed",
+            "2:bad arguments",
+            "130:interrupted (Ctrl-C)"})
 final class DemoCommand implements Callable<Integer> {
 
     /** Exit code after Ctrl-C. */
@@ -32,10 +37,10 @@ final class DemoCommand implements Callable<Integer> {
     @Spec
     private CommandSpec spec;
 
-    @Option(names = "--seed", defaultValue = "42", description = "Seed of the synthetic visitors (default: ${DEFAULT-VALUE}).")
+    @Option(names = "--seed", defaultValue = "42", paramLabel = "S", description = "Seed of the synthetic visitors (default: ${DEFAULT-VALUE}).")
     private long seed;
 
-    @Option(names = "--arms", defaultValue = "5", description = "Layouts in play, 2 to 5 (default: ${DEFAULT-VALUE}).")
+    @Option(names = "--arms", defaultValue = "5", paramLabel = "N", description = "Layouts in play, 2 to 5 (default: ${DEFAULT-VALUE}).")
     private int arms;
 
     @Option(names = {"--visitors", "--speed"}, defaultValue = "2000", paramLabel = "N",
@@ -46,7 +51,7 @@ final class DemoCommand implements Callable<Integer> {
             description = "How often the job recomputes the weights (default: ${DEFAULT-VALUE}).")
     private long periodMs;
 
-    @Option(names = "--delta", defaultValue = "0.05", description = "Error probability of the stopping rule (default: ${DEFAULT-VALUE}).")
+    @Option(names = "--delta", defaultValue = "0.05", paramLabel = "D", description = "Error probability of the stopping rule (default: ${DEFAULT-VALUE}).")
     private double delta;
 
     @Option(names = "--budget-trials", defaultValue = "300000", paramLabel = "TRIALS",
@@ -57,10 +62,11 @@ final class DemoCommand implements Callable<Integer> {
             description = "Trials per layout before the weights adapt (default: ${DEFAULT-VALUE}).")
     private long warmUp;
 
-    @Option(names = "--max-seconds", defaultValue = "170", description = "Give up after this long (default: ${DEFAULT-VALUE}).")
-    private long maxSeconds;
+    @Option(names = "--max-time-ms", defaultValue = "170000", paramLabel = "MS",
+            description = "Give up after this many milliseconds without a STOP (default: ${DEFAULT-VALUE}).")
+    private long maxMs;
 
-    @Option(names = "--http-port", defaultValue = "0", description = "Port of the job's HTTP endpoint (default: a free port).")
+    @Option(names = "--http-port", defaultValue = "0", paramLabel = "PORT", description = "Port of the job's HTTP endpoint (default: a free port).")
     private int httpPort;
 
     @Option(names = "--export-decisions", paramLabel = "FILE",
@@ -70,8 +76,8 @@ final class DemoCommand implements Callable<Integer> {
     @Option(names = "--json", description = "JSON lines (one per period, then a summary) instead of tables.")
     private boolean json;
 
-    @Option(names = "--verbose", description = {"Keep the job's INFO and Kafka's WARN log lines (standard error);",
-        "without it the demo shows only errors."})
+    @Option(names = "--verbose", description = "Keep the job's INFO and Kafka's WARN log lines (standard error);"
+            + " without it the demo shows only errors.")
     private boolean verbose;
 
     Clock clock = Clock.systemUTC();
@@ -81,7 +87,7 @@ final class DemoCommand implements Callable<Integer> {
         // the demo's own shutdown hook closes the job and the broker, which still log: Log4j's hook must not
         // stop logging first (set before logging starts)
         System.setProperty(RunCommand.LOG4J_SHUTDOWN_HOOK, "false");
-        DemoOptions options = new DemoOptions(seed, arms, visitors, periodMs, delta, budget, warmUp, maxSeconds,
+        DemoOptions options = new DemoOptions(seed, arms, visitors, periodMs, delta, budget, warmUp, maxMs,
                 httpPort, exportDecisions, json);
         Map<String, Level> quiet = verbose ? Map.of()
                 : Map.of("dev.runoff", Level.WARN, "org.apache.kafka", Level.ERROR, "kafka", Level.ERROR);

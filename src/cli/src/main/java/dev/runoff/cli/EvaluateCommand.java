@@ -23,7 +23,9 @@ import picocli.CommandLine.Spec;
 
 /** {@code runoff evaluate}: posteriors, probability of being best and weights for arms given on the command line. */
 @Command(name = "evaluate", mixinStandardHelpOptions = true, versionProvider = VersionInfo.class,
-        description = "Evaluate arms: posterior, probability of being best, and the next period's weights.")
+        description = "Evaluate arms: posterior, probability of being best, and the next period's weights.",
+        exitCodeListHeading = ExitCodes.HEADING,
+        exitCodeList = {"0:success", "1:internal error", "2:bad arguments"})
 final class EvaluateCommand implements Callable<Integer> {
 
     @Spec

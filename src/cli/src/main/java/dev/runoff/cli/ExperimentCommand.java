@@ -29,7 +29,9 @@ import picocli.CommandLine.Spec;
 /** {@code runoff experiment validate|put|list|end}: experiment definitions. */
 @Command(name = "experiment", mixinStandardHelpOptions = true, description = "Manage experiment definitions.",
         subcommands = {ExperimentCommand.Validate.class, ExperimentCommand.Put.class, ExperimentCommand.ListAll.class,
-            ExperimentCommand.End.class})
+            ExperimentCommand.End.class},
+        exitCodeListHeading = ExitCodes.HEADING,
+        exitCodeList = {"2:missing subcommand or bad arguments"})
 final class ExperimentCommand implements Runnable {
 
     @Spec
@@ -72,12 +74,14 @@ final class ExperimentCommand implements Runnable {
 
     /** Checks a definition file locally; talks to no cluster. */
     @Command(name = "validate", mixinStandardHelpOptions = true,
-            description = "Check a definition file (JSON) locally; every problem names its field.")
+            description = "Check a definition file (JSON) locally; every problem names its field.",
+            exitCodeListHeading = ExitCodes.HEADING,
+            exitCodeList = {"0:the definition is valid", "2:an invalid definition or bad arguments"})
     static final class Validate implements Callable<Integer> {
         @Spec
         private CommandSpec spec;
 
-        @Parameters(paramLabel = "FILE", description = "Definition file (JSON).")
+        @Parameters(paramLabel = "FILE", converter = ExistingFile.class, description = "Definition file (JSON).")
         private Path file;
 
         Clock clock = Clock.systemUTC();
@@ -110,6 +114,7 @@ final class ExperimentCommand implements Runnable {
 
         @Override
         public Integer call() {
+            Quiet.connectionWarnings();
             DefinitionsClient client;
             try {
                 client = new DefinitionsClient(cluster.load(env), Duration.ofMillis(timeoutMs));
@@ -130,13 +135,17 @@ final class ExperimentCommand implements Runnable {
 
     /** Validates, then publishes a definition keyed by its experiment id. */
     @Command(name = "put", mixinStandardHelpOptions = true,
-            description = "Validate a definition file, then publish it (key = experimentId).")
+            description = "Validate a definition file, then publish it (key = experimentId).",
+            exitCodeListHeading = ExitCodes.HEADING,
+            exitCodeList = {"0:published", "1:the cluster refused or did not answer within --timeout-ms",
+                "2:an invalid definition, bad arguments or an invalid configuration"})
     static final class Put extends ClusterCommand {
-        @Parameters(paramLabel = "FILE", description = "Definition file (JSON).")
+        @Parameters(paramLabel = "FILE", converter = ExistingFile.class, description = "Definition file (JSON).")
         private Path file;
 
-        @Option(names = "--format", defaultValue = "AVRO", paramLabel = "AVRO|JSON",
-                description = "Encoding on the topic (default: ${DEFAULT-VALUE}).")
+        @Option(names = "--format", defaultValue = "avro", paramLabel = "FORMAT", converter = Spelling.Formats.class,
+                completionCandidates = Spelling.Formats.class,
+                description = "Encoding on the topic: ${COMPLETION-CANDIDATES} (default: ${DEFAULT-VALUE}).")
         private Format format;
 
         Clock clock = Clock.systemUTC();
@@ -157,8 +166,11 @@ final class ExperimentCommand implements Runnable {
 
     /** Lists the current definitions. */
     @Command(name = "list", mixinStandardHelpOptions = true,
-            description = {"List the current definitions (the compacted topic read to its end) with the version",
-                "the job accepted: 'pending' before it accepted one, '+new' when a newer submission waits."})
+            description = "List the current definitions (the compacted topic read to its end) with the version"
+                    + " the job accepted: 'pending' before it accepted one, '+new' when a newer submission waits.",
+            exitCodeListHeading = ExitCodes.HEADING,
+            exitCodeList = {"0:listed", "1:the cluster refused or did not answer within --timeout-ms",
+                "2:bad arguments or an invalid configuration"})
     static final class ListAll extends ClusterCommand {
         @Override
         int run(DefinitionsClient client, PrintWriter out) {
@@ -178,7 +190,10 @@ final class ExperimentCommand implements Runnable {
 
     /** Ends an experiment with a tombstone. */
     @Command(name = "end", mixinStandardHelpOptions = true,
-            description = "End an experiment: a tombstone on the definitions topic.")
+            description = "End an experiment: a tombstone on the definitions topic.",
+            exitCodeListHeading = ExitCodes.HEADING,
+            exitCodeList = {"0:ended", "1:the cluster refused or did not answer within --timeout-ms",
+                "2:bad arguments or an invalid configuration"})
     static final class End extends ClusterCommand {
         @Parameters(paramLabel = "ID", description = "Experiment id.")
         private String id;

@@ -71,7 +71,7 @@ final class JsonReport {
         number(n, "lower95", s.lower95());
         number(n, "upper95", s.upper95());
         ProbabilityBest pb = e.probabilityBest();
-        number(n, "probabilityBest", pb.alpha(i));
+        number(n, "pBest", pb.alpha(i));
         number(n, "standardError", pb.standardError(i));
         number(n, "ruleWeight", e.ruleWeights()[i]);
         number(n, "weight", e.weight(i));

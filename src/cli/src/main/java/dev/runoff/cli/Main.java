@@ -13,6 +13,10 @@ import picocli.CommandLine.Spec;
  */
 @Command(name = "runoff", mixinStandardHelpOptions = true, versionProvider = VersionInfo.class,
         description = "Adaptive best-arm experiments: posteriors, top-two allocation, stopping and audit.",
+        exitCodeListHeading = ExitCodes.HEADING,
+        exitCodeList = {"0:success (each command lists its own exit codes)",
+            "1:internal error",
+            "2:bad arguments or missing command"},
         subcommands = {
             EvaluateCommand.class,
             DemoCommand.class,

@@ -28,7 +28,9 @@ import picocli.CommandLine.Spec;
  */
 @Command(name = "plan", mixinStandardHelpOptions = true, versionProvider = VersionInfo.class,
         description = "Predict how much traffic an experiment needs: optimal weights, T* and predicted trials,"
-                + " and a simulation of the allocation and stopping rules against uniform allocation.")
+                + " and a simulation of the allocation and stopping rules against uniform allocation.",
+        exitCodeListHeading = ExitCodes.HEADING,
+        exitCodeList = {"0:success", "1:internal error", "2:bad arguments"})
 final class PlanCommand implements Callable<Integer> {
     /** Default trial budget of a simulated run, as a multiple of T* max(log(1/delta), 3). */
     static final int BUDGET_FACTOR = 20;

@@ -19,15 +19,20 @@ import picocli.CommandLine.Spec;
  * and nothing starts (exit code 2). Exit code 1 when the Kafka Streams client fails.
  */
 @Command(name = "run", mixinStandardHelpOptions = true,
-        description = {"Run the job against a Kafka cluster until SIGTERM.",
-            "Kafka keys in the file pass through to Kafka Streams; job keys start with runoff.;",
-            "environment variables override the file: RUNOFF_X_Y sets runoff.x.y, KAFKA_X_Y sets x.y."})
+        description = "Run the job against a Kafka cluster until SIGTERM. Kafka keys in the file pass through to"
+                + " Kafka Streams; job keys start with runoff.; environment variables override the file:"
+                + " RUNOFF_X_Y sets runoff.x.y, KAFKA_X_Y sets x.y.",
+        exitCodeListHeading = ExitCodes.HEADING,
+        exitCodeList = {"0:stopped cleanly (SIGTERM or Ctrl-C)",
+            "1:the Kafka Streams client failed",
+            "2:bad arguments or an invalid configuration (nothing was started)"})
 final class RunCommand implements Callable<Integer> {
 
     @Spec
     private CommandSpec spec;
 
-    @Option(names = "--config", required = true, paramLabel = "FILE", description = "Job configuration (properties).")
+    @Option(names = "--config", required = true, paramLabel = "FILE", converter = ExistingFile.class,
+            description = "Job configuration file (properties).")
     private Path config;
 
     private final Map<String, String> env;

@@ -5,6 +5,7 @@ import dev.runoff.engine.core.Names;
 import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.allocation.AllocationMethod;
+import dev.runoff.records.Format;
 import java.util.ArrayList;
 import java.util.Iterator;
 import java.util.List;
@@ -59,6 +60,13 @@ abstract class Spelling<E extends Enum<E>> implements ITypeConverter<E>, Iterabl
     static final class Methods extends Spelling<EngineConfig.MethodChoice> {
         Methods() {
             super(EngineConfig.MethodChoice.class);
+        }
+    }
+
+    /** Spellings of {@link Format}: {@code avro} and {@code json}. */
+    static final class Formats extends Spelling<Format> {
+        Formats() {
+            super(Format.class);
         }
     }
 

@@ -5,6 +5,7 @@ import dev.runoff.job.JobConfig;
 import dev.runoff.job.TopicCreator;
 import dev.runoff.job.TopicSpec;
 import java.io.PrintWriter;
+import java.time.Duration;
 import java.util.List;
 import java.util.Locale;
 import java.util.Map;
@@ -21,7 +22,9 @@ import picocli.CommandLine.Spec;
 
 /** {@code runoff topics create}: the job's topics with their settings. */
 @Command(name = "topics", mixinStandardHelpOptions = true, description = "Manage the job's topics.",
-        subcommands = TopicsCommand.Create.class)
+        subcommands = TopicsCommand.Create.class,
+        exitCodeListHeading = ExitCodes.HEADING,
+        exitCodeList = {"2:missing subcommand or bad arguments"})
 final class TopicsCommand implements Runnable {
 
     @Spec
@@ -38,9 +41,13 @@ final class TopicsCommand implements Runnable {
      * line per topic.
      */
     @Command(name = "create", mixinStandardHelpOptions = true,
-            description = {"Create the job's topics (idempotent): outcomes, experiments, accepted experiments,",
-                "allocations (control), decisions (kept forever), rejected. Existing topics keep their",
-                "partitions and get the promised settings."})
+            description = "Create the job's topics (idempotent): outcomes, experiments, accepted experiments,"
+                    + " allocations (control), decisions (kept forever), rejected. Existing topics keep their"
+                    + " partitions and get the promised settings.",
+            exitCodeListHeading = ExitCodes.HEADING,
+            exitCodeList = {"0:every topic exists with its settings",
+                "1:the cluster refused or did not answer within --timeout-ms",
+                "2:bad arguments or an invalid configuration"})
     static final class Create implements Callable<Integer> {
 
         @Spec
@@ -83,11 +90,17 @@ final class TopicsCommand implements Runnable {
             }
             List<TopicSpec> specs = TopicSpec.of(config.topology());
             List<TopicCreator.Outcome> outcomes;
-            try (Admin admin = Admin.create(config.clientProperties(JobConfig.Client.ADMIN))) {
+            Admin admin = Quiet.admin(config, timeoutMs);
+            try {
                 outcomes = new TopicCreator(admin, timeoutMs).ensure(specs, partitions,
                         Optional.ofNullable(replicationFactor));
+            } catch (TopicCreator.NoAnswerException e) {
+                return ConfigProblems.failure(spec, new IllegalStateException("no broker answered at "
+                        + config.bootstrapServers() + " within " + timeoutMs + " ms", e));
             } catch (IllegalStateException e) {
                 return ConfigProblems.failure(spec, e);
+            } finally {
+                admin.close(Duration.ofMillis(Math.min(timeoutMs, 1_000)));
             }
             PrintWriter out = spec.commandLine().getOut();
             for (int i = 0; i < specs.size(); i++) {

@@ -157,7 +157,7 @@ public final class Demo {
             throws InterruptedException {
         AllocationUpdate control = feed.awaitControl(START_TIMEOUT);
         long began = clock.millis();
-        long deadline = began + options.maxSeconds() * 1000;
+        long deadline = began + options.maxMs();
         Duration wait = Duration.ofMillis(options.periodMs() * 3 + 5_000);
         List<DecisionRecord> records = new ArrayList<>();
         while (clock.millis() < deadline) {

@@ -12,13 +12,13 @@ import java.nio.file.Path;
  * @param delta             error probability of the stopping rule
  * @param budget            trial budget of the experiment
  * @param warmUp            trials per arm before the weights leave uniform (and before any STOP)
- * @param maxSeconds        the demo gives up after this long without a STOP
+ * @param maxMs             the demo gives up after this many milliseconds without a STOP
  * @param httpPort          port of the job's HTTP endpoint (0: a free port)
  * @param exportDecisions   file for the decision records as JSON lines, or {@code null}
  * @param json              JSON lines on standard output instead of tables
  */
 public record DemoOptions(long seed, int arms, int visitorsPerPeriod, long periodMs, double delta, long budget,
-                          long warmUp, long maxSeconds, int httpPort, Path exportDecisions, boolean json) {
+                          long warmUp, long maxMs, int httpPort, Path exportDecisions, boolean json) {
 
     /** Checks every setting; the message names the option and the value. */
     public DemoOptions {
@@ -37,7 +37,7 @@ public record DemoOptions(long seed, int arms, int visitorsPerPeriod, long perio
             throw new IllegalArgumentException("--budget-trials must be at least --warm-up x --arms = " + warmUp * arms
                     + ", got " + budget);
         }
-        positive("--max-seconds", maxSeconds);
+        positive("--max-time-ms", maxMs);
         if (httpPort < 0 || httpPort > 65_535) {
             throw new IllegalArgumentException("--http-port must be in [0, 65535], got " + httpPort);
         }

@@ -96,8 +96,8 @@ final class DemoReport {
             out.printf(Locale.ROOT, "  confidence: %s; P(best) of %s = %.4f%n", rule(last), s.winner(),
                     s.winnerProbability());
         } else {
-            out.printf(Locale.ROOT, "no STOP within %d s (%d decisions); the hidden best layout is %s%n",
-                    o.maxSeconds(), s.periods(), s.trueBest());
+            out.printf(Locale.ROOT, "no STOP within %d ms (%d decisions); the hidden best layout is %s%n",
+                    o.maxMs(), s.periods(), s.trueBest());
         }
         out.printf(Locale.ROOT, "  traffic spent: %,d visitors counted at the last decision (%,d sent)%s%n", s.trials(),
                 s.visitorsSent(), s.stopped() ? String.format(Locale.ROOT, ", %,d (%.0f%%) of them on %s",

@@ -167,7 +167,7 @@ class AuditEndToEndIT {
         assertEquals("svg", document.getDocumentElement().getLocalName());
         Path config = Files.writeString(DIR.resolve("client.properties"), "bootstrap.servers="
                 + broker.bootstrapServers() + "\nclient.id=auditor\n");
-        Run csv = cli("audit", "report", "--config", config.toString(), "--format", "csv");
+        Run csv = cli("audit", "report", "--client-config", config.toString(), "--format", "csv");
         assertEquals(0, csv.exit, csv.err);
         assertEquals(decisions.size() + 1, csv.out.split("\r\n").length);
     }

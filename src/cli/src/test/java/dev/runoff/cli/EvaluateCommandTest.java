@@ -98,7 +98,7 @@ class EvaluateCommandTest {
             JsonNode arm = arms.get(i);
             assertEquals(e.arms().get(i), arm.get("name").asText());
             assertEquals(1000, arm.get("trials").asLong());
-            assertEquals(e.probabilityBest().alpha(i), arm.get("probabilityBest").asDouble(), 0.0);
+            assertEquals(e.probabilityBest().alpha(i), arm.get("pBest").asDouble(), 0.0);
             assertEquals(0.0, arm.get("standardError").asDouble(), 0.0);
             assertEquals(e.weight(i), arm.get("weight").asDouble(), 0.0);
             assertEquals("beta", arm.get("posterior").get("family").asText());
@@ -117,7 +117,7 @@ class EvaluateCommandTest {
         assertEquals(5000, root.get("draws").asInt());
         assertEquals(9, root.get("seed").asLong());
         for (JsonNode arm : root.get("arms")) {
-            double p = arm.get("probabilityBest").asDouble();
+            double p = arm.get("pBest").asDouble();
             // Binomial standard error of a proportion over 5000 draws.
             assertEquals(Math.sqrt(p * (1 - p) / 5000), arm.get("standardError").asDouble(), 1e-15);
         }

@@ -54,10 +54,12 @@ class RunCommandTest {
     }
 
     @Test
-    void aMissingConfigFileIsReportedAsAProblem() {
-        CliRun r = CliRun.of("run", "--config", dir.resolve("nope.properties").toString());
+    void aMissingConfigFileIsReportedAsNoSuchFile() {
+        Path missing = dir.resolve("nope.properties");
+        CliRun r = CliRun.of("run", "--config", missing.toString());
         assertEquals(2, r.exitCode());
-        assertTrue(r.err().startsWith("runoff run: config file "), r.err());
-        assertTrue(r.err().contains("nope.properties: not found"), r.err());
+        assertTrue(r.err().startsWith("runoff run: "), r.err());
+        assertTrue(r.err().contains("no such file: " + missing), r.err());
+        assertEquals(1, r.err().lines().count(), r.err());
     }
 }

@@ -84,8 +84,12 @@ final class ConfigSources {
     }
 
     private static void readFile(Path file, Map<String, Setting> settings, List<String> problems) {
-        if (!Files.isRegularFile(file)) {
-            problems.add("config file " + file + ": not found (or not a regular file)");
+        if (Files.isDirectory(file)) {
+            problems.add("config file: is a directory: " + file);
+            return;
+        }
+        if (!Files.exists(file)) {
+            problems.add("config file: no such file: " + file);
             return;
         }
         Properties props = new OrderedProperties();

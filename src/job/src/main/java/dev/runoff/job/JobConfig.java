@@ -78,10 +78,11 @@ public final class JobConfig {
                 appKeys.put(s.key(), s.value());
             } else if (s.key().startsWith(RUNOFF_PREFIX)) {
                 topologyKeys.put(s.key(), s.value());
-                topologyProblem(Map.of(s.key(), s.value())).ifPresent(p -> problems.add(at(s, p)));
+                topologyProblem(Map.of(s.key(), s.value())).ifPresent(p -> problems.add(at(s, p + suggestion(p, s))));
             } else {
                 kafka.put(s.key(), s.value());
-                KafkaKeys.problem(s.key(), s.value()).ifPresent(p -> problems.add(at(s, s.key() + ": " + p)));
+                KafkaKeys.problem(s.key(), s.value()).ifPresent(p -> problems.add(at(s, s.key() + ": " + p
+                        + suggestion(p, s))));
             }
         }
         AppSettings app = AppSettings.from(appKeys, p -> problems.add(at(settings.get(keyOf(p)), p)));
@@ -110,6 +111,31 @@ public final class JobConfig {
             return Optional.of(message.startsWith("unknown setting")
                     ? message + "; the application's own keys are " + AppSettings.KEYS : message);
         }
+    }
+
+    /** {@code "; did you mean K?"} when {@code problem} is an unknown key and a known key K is a near miss. */
+    private static String suggestion(String problem, Setting s) {
+        if (!problem.startsWith("unknown setting")) {
+            return "";
+        }
+        return NearMiss.closest(s.key(), knownKeys()).map(k -> "; did you mean " + k + "?").orElse("");
+    }
+
+    /** Every key the job knows: its own runoff.* keys and the plain Kafka keys. */
+    static Set<String> knownKeys() {
+        Set<String> keys = new java.util.LinkedHashSet<>(AppSettings.KEYS);
+        for (java.lang.reflect.Field f : TopologySettings.class.getFields()) {
+            if (java.lang.reflect.Modifier.isStatic(f.getModifiers()) && f.getType() == String.class
+                    && f.getName().endsWith("_KEY")) {
+                try {
+                    keys.add((String) f.get(null));
+                } catch (IllegalAccessException e) {
+                    throw new IllegalStateException(e);
+                }
+            }
+        }
+        keys.addAll(KafkaKeys.names());
+        return keys;
     }
 
     /** The key a message of {@link AppSettings#from} starts with. */

@@ -40,6 +40,13 @@ final class KafkaKeys {
     private KafkaKeys() {
     }
 
+    /** Every plain Kafka Streams, producer, consumer and admin client key (for "did you mean"). */
+    static java.util.Set<String> names() {
+        java.util.Set<String> names = new java.util.TreeSet<>();
+        UNPREFIXED.forEach(def -> names.addAll(def.names()));
+        return names;
+    }
+
     /** Whether {@code key} is a Kafka Streams or client setting, plain or with a client prefix. */
     static boolean isKnown(String key) {
         return definition(key).isPresent() || OPEN_PREFIXES.stream().anyMatch(p -> key.startsWith(p)

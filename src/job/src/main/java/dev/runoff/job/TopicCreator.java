@@ -12,7 +12,9 @@ import java.util.concurrent.ExecutionException;
 import java.util.concurrent.TimeUnit;
 import java.util.concurrent.TimeoutException;
 import java.util.stream.Collectors;
+import java.util.Properties;
 import org.apache.kafka.clients.admin.Admin;
+import org.apache.kafka.clients.admin.AdminClientConfig;
 import org.apache.kafka.clients.admin.AlterConfigOp;
 import org.apache.kafka.clients.admin.Config;
 import org.apache.kafka.clients.admin.ConfigEntry;
@@ -50,8 +52,34 @@ public final class TopicCreator {
     public record Outcome(String topic, Status status, int partitions, String detail) {
     }
 
+    /** The first request to the cluster got no answer in time: no broker answered at all. */
+    public static final class NoAnswerException extends IllegalStateException {
+        private static final long serialVersionUID = 1L;
+
+        NoAnswerException(String message, Throwable cause) {
+            super(message, cause);
+        }
+    }
+
     private final Admin admin;
     private final long timeoutMs;
+
+    /**
+     * An admin client for {@code config} that gives up within {@code timeoutMs}: the API and request timeouts
+     * are {@code timeoutMs}, and connection set-up and reconnection back-off stay within it, so an unreachable
+     * broker fails the first call after {@code timeoutMs} instead of Kafka's defaults (a minute and more).
+     */
+    public static Admin admin(JobConfig config, long timeoutMs) {
+        Properties props = config.clientProperties(JobConfig.Client.ADMIN);
+        long timeout = Math.max(1, timeoutMs);
+        props.put(AdminClientConfig.DEFAULT_API_TIMEOUT_MS_CONFIG, String.valueOf(timeout));
+        props.put(AdminClientConfig.REQUEST_TIMEOUT_MS_CONFIG, String.valueOf(timeout));
+        props.put(AdminClientConfig.SOCKET_CONNECTION_SETUP_TIMEOUT_MS_CONFIG, String.valueOf(Math.min(timeout, 10_000)));
+        props.put(AdminClientConfig.SOCKET_CONNECTION_SETUP_TIMEOUT_MAX_MS_CONFIG, String.valueOf(timeout));
+        props.put(AdminClientConfig.RECONNECT_BACKOFF_MAX_MS_CONFIG, String.valueOf(Math.min(timeout, 1_000)));
+        props.put(AdminClientConfig.RETRY_BACKOFF_MAX_MS_CONFIG, String.valueOf(Math.min(timeout, 1_000)));
+        return Admin.create(props);
+    }
 
     /** A creator using {@code admin}, waiting at most {@code timeoutMs} for each request. */
     public TopicCreator(Admin admin, long timeoutMs) {
@@ -74,7 +102,15 @@ public final class TopicCreator {
         if (replicationFactor.isPresent() && replicationFactor.get() < 1) {
             throw new IllegalArgumentException("replication factor must be >= 1, got " + replicationFactor.get());
         }
-        Set<String> existing = await(admin.listTopics().names(), "list topics");
+        Set<String> existing;
+        try {
+            existing = await(admin.listTopics().names(), "list topics");
+        } catch (IllegalStateException e) {
+            if (timedOut(e.getCause())) {
+                throw new NoAnswerException("no broker answered within " + timeoutMs + " ms", e.getCause());
+            }
+            throw e;
+        }
         List<NewTopic> missing = specs.stream().filter(s -> !existing.contains(s.name()))
                 .map(s -> new NewTopic(s.name(), Optional.of(partitions), replicationFactor).configs(s.configs()))
                 .toList();
@@ -158,8 +194,12 @@ public final class TopicCreator {
         }
     }
 
+    private static boolean timedOut(Throwable cause) {
+        return cause instanceof TimeoutException || cause instanceof org.apache.kafka.common.errors.TimeoutException;
+    }
+
     private IllegalStateException failure(String what, Throwable cause) {
-        String reason = cause instanceof TimeoutException ? "no answer within " + timeoutMs + " ms" : String.valueOf(
+        String reason = timedOut(cause) ? "no answer within " + timeoutMs + " ms" : String.valueOf(
                 cause.getMessage());
         return new IllegalStateException("could not " + what + ": " + reason, cause);
     }

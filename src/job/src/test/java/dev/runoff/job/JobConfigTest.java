@@ -115,7 +115,48 @@ class JobConfigTest {
     void aMissingFileIsAProblemNotAnException() {
         InvalidConfigException e = assertThrows(InvalidConfigException.class,
                 () -> JobConfig.load(dir.resolve("absent.properties"), Map.of(), Map.of(), true));
-        assertTrue(e.problems().get(0).contains("absent.properties: not found"), e.problems().toString());
+        assertTrue(e.problems().get(0).contains("no such file: " + dir.resolve("absent.properties")),
+                e.problems().toString());
+    }
+
+    @Test
+    void aDirectoryGivenAsTheConfigFileIsReportedAsADirectory() {
+        InvalidConfigException e = assertThrows(InvalidConfigException.class,
+                () -> JobConfig.load(dir, Map.of(), Map.of(), true));
+        assertTrue(e.problems().get(0).contains("is a directory: " + dir), e.problems().toString());
+    }
+
+    @Test
+    void aMisspeltJobKeySuggestsTheKnownKey() throws Exception {
+        Path file = dir.resolve("typo.properties");
+        java.nio.file.Files.writeString(file, "bootstrap.servers=localhost:9092\nrunof.http.port=8080\n");
+        InvalidConfigException e = assertThrows(InvalidConfigException.class,
+                () -> JobConfig.load(file, Map.of(), Map.of(), true));
+        assertTrue(e.problems().toString().contains("runof.http.port")
+                && e.problems().toString().contains("did you mean runoff.http.port?"), e.problems().toString());
+    }
+
+    @Test
+    void aMisspeltTopologyKeySuggestsTheKnownKey() {
+        InvalidConfigException e = assertThrows(InvalidConfigException.class,
+                () -> JobConfig.load(null, Map.of(), Map.of("bootstrap.servers", "localhost:9092",
+                        "runoff.topic.outcome", "x"), true));
+        assertTrue(e.problems().toString().contains("did you mean runoff.topic.outcomes?"), e.problems().toString());
+    }
+
+    @Test
+    void aMisspeltKafkaKeySuggestsTheKnownKey() {
+        InvalidConfigException e = assertThrows(InvalidConfigException.class,
+                () -> JobConfig.load(null, Map.of(), Map.of("bootstrap.server", "localhost:9092"), false));
+        assertTrue(e.problems().toString().contains("did you mean bootstrap.servers?"), e.problems().toString());
+    }
+
+    @Test
+    void anUnknownKeyFarFromEveryKnownKeyGetsNoSuggestion() {
+        InvalidConfigException e = assertThrows(InvalidConfigException.class,
+                () -> JobConfig.load(null, Map.of(), Map.of("bootstrap.servers", "localhost:9092",
+                        "completely.unrelated.thing", "1"), true));
+        assertFalse(e.problems().toString().contains("did you mean"), e.problems().toString());
     }
 
     @Test
