@@ -1,5 +1,7 @@
 package dev.runoff.topology;
 
+import dev.runoff.testkit.TestDefinitions;
+
 import static dev.runoff.topology.TopologyFixture.T0;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
@@ -43,20 +45,20 @@ class AllocationPassTest {
         AllocationPass pass = pass(budget);
         int passes = (experiments + budget - 1) / budget;
         for (int i = 0; i < passes; i++) {
-            pass.run(T0 + i * Defs.HEARTBEAT_MS);
+            pass.run(T0 + i * TestDefinitions.HEARTBEAT_MS);
         }
         assertEquals(List.of("e0", "e1", "e2", "e3", "e4", "e5", "e6"), output.decisions,
                 "each pass continues after the last, although the first ones are due again (heartbeat)");
-        pass.run(T0 + passes * Defs.HEARTBEAT_MS);
+        pass.run(T0 + passes * TestDefinitions.HEARTBEAT_MS);
         assertEquals(List.of("e0", "e1", "e2"), output.decisions.subList(experiments, output.decisions.size()),
                 "after the last experiment the next pass starts again from the first");
     }
 
     @Test
     void anEvaluationThatThrowsIsRejectedAndTheOtherExperimentsOfThePassAreStillEvaluated() {
-        define(Defs.bernoulli("a", "x", "y"));
+        define(TestDefinitions.bernoulli("a", "x", "y"));
         define(unevaluable("b"));
-        define(Defs.bernoulli("c", "x", "y"));
+        define(TestDefinitions.bernoulli("c", "x", "y"));
         pass(10).run(T0);
         assertEquals(List.of("a", "c"), output.decisions);
         assertEquals(List.of("a", "c"), output.controls);
@@ -79,7 +81,7 @@ class AllocationPassTest {
 
     private void defineAll(int count) {
         for (int i = 0; i < count; i++) {
-            define(Defs.bernoulli("e" + i, "x", "y"));
+            define(TestDefinitions.bernoulli("e" + i, "x", "y"));
         }
     }
 
@@ -93,7 +95,7 @@ class AllocationPassTest {
      * it stands for any state whose evaluation throws.
      */
     private static ExperimentDefinition unevaluable(String id) {
-        ExperimentDefinition definition = Defs.bernoulli(id, "x", "y");
+        ExperimentDefinition definition = TestDefinitions.bernoulli(id, "x", "y");
         definition.setStopping(StoppingSpec.newBuilder(definition.getStopping()).setDelta(2.0).build());
         return definition;
     }

@@ -1,5 +1,7 @@
 package dev.runoff.topology;
 
+import dev.runoff.testkit.TestDefinitions;
+
 import dev.runoff.decision.ExperimentState;
 
 import static dev.runoff.topology.TopologyFixture.T0;
@@ -48,7 +50,7 @@ class BadInputCorpusTest {
 
     private static final String ID = "corpus";
     private static final String EVENT = new String(Events.click(ID, "u-1", "ev-1", "a", T0), StandardCharsets.UTF_8);
-    private static final String DEFINITION = CanonicalJson.of(Defs.bernoulli("other", "x", "y"));
+    private static final String DEFINITION = CanonicalJson.of(TestDefinitions.bernoulli("other", "x", "y"));
 
     private TopologyFixture job;
     private int goodEvents;
@@ -56,7 +58,7 @@ class BadInputCorpusTest {
     @BeforeAll
     void start() {
         job = new TopologyFixture();
-        job.define(Defs.bernoulli(ID, "a", "b"));
+        job.define(TestDefinitions.bernoulli(ID, "a", "b"));
         job.accepted();
     }
 
@@ -117,7 +119,7 @@ class BadInputCorpusTest {
                 definition("key with a line break", "other\nFAKE LOG LINE", utf8(DEFINITION), "key-mismatch",
                         "'other\\u000aFAKE LOG LINE'"),
                 definition("definition redefining the running experiment with a NaN delta", ID,
-                        utf8(CanonicalJson.of(Defs.bernoulli(ID, "a", "b")).replace("\"delta\":0.05",
+                        utf8(CanonicalJson.of(TestDefinitions.bernoulli(ID, "a", "b")).replace("\"delta\":0.05",
                                 "\"delta\":NaN")), "not-finite", "stopping.delta"),
                 definition("tombstone without a key", null, null, "missing", "key"));
     }
@@ -151,7 +153,7 @@ class BadInputCorpusTest {
     @Test
     @Order(2)
     void countsHoldExactlyTheValidEventsAndTheDefinitionIsUnchanged() {
-        job.advance(Defs.RECOMPUTE_MS + 100);
+        job.advance(TestDefinitions.RECOMPUTE_MS + 100);
         ExperimentState state = job.state(ID);
         assertEquals(1, state.definition().getVersion());
         assertEquals(List.of(new BernoulliStats(goodEvents, 0), BernoulliStats.EMPTY), state.stats());

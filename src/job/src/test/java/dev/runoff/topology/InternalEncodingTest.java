@@ -1,5 +1,7 @@
 package dev.runoff.topology;
 
+import dev.runoff.testkit.TestDefinitions;
+
 import dev.runoff.decision.ExperimentState;
 
 import static org.junit.jupiter.api.Assertions.assertArrayEquals;
@@ -18,7 +20,7 @@ class InternalEncodingTest {
 
     @Test
     void experimentStateRoundTrips() {
-        ExperimentState state = ExperimentState.start(Defs.bernoulli("e", "a", "b"))
+        ExperimentState state = ExperimentState.start(TestDefinitions.bernoulli("e", "a", "b"))
                 .withDelta(1, new BernoulliStats(10, 3), 5L);
         ExperimentState stopped = new ExperimentState(state.definition(), state.stats(),
                 new ExperimentState.Stop("b", 1, List.of("a", "b"), new double[] {0, 1}), 4, 6, "ab".repeat(32),
@@ -40,7 +42,7 @@ class InternalEncodingTest {
                         back.timestamp(), back.attributionWindowMs(), back.source()));
         assertArrayEquals(event.originalValue(), back.originalValue());
         for (StageTwo s : List.of(StageTwo.delta(new ArmDelta("e", "a", new ValueStats(3, 1.5, 0.25))),
-                StageTwo.definition(Defs.value("e", "a", "b")), StageTwo.ended("e"))) {
+                StageTwo.definition(TestDefinitions.value("e", "a", "b")), StageTwo.ended("e"))) {
             byte[] bytes = StageTwo.SERDE.serializer().serialize("t", s);
             assertEquals(s, StageTwo.SERDE.deserializer().deserialize("t", bytes));
         }
@@ -48,7 +50,7 @@ class InternalEncodingTest {
 
     @Test
     void corruptBytesFailNamingTheProblem() {
-        byte[] bytes = ExperimentStateSerde.encode(ExperimentState.start(Defs.bernoulli("e", "a", "b")));
+        byte[] bytes = ExperimentStateSerde.encode(ExperimentState.start(TestDefinitions.bernoulli("e", "a", "b")));
         IllegalArgumentException truncated = assertThrows(IllegalArgumentException.class,
                 () -> ExperimentStateSerde.decode(Arrays.copyOf(bytes, bytes.length - 3)));
         assertEquals("corrupt internal value: truncated", truncated.getMessage());

@@ -1,5 +1,9 @@
 package dev.runoff.topology;
 
+import dev.runoff.decision.Replay;
+
+import dev.runoff.testkit.TestDefinitions;
+
 import dev.runoff.decision.DecisionReasons;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
@@ -30,7 +34,7 @@ class RecomputationTest {
 
     @Test
     void guardedExperimentWithStepCapReplays() {
-        ExperimentDefinition def = Defs.bernoulli("capped", "control", "b", "c", "d");
+        ExperimentDefinition def = TestDefinitions.bernoulli("capped", "control", "b", "c", "d");
         def.setControlArm("control");
         def.setAllocation(AllocationSpec.newBuilder(def.getAllocation()).setControlShare(0.25).setFloor(0.05)
                 .setMaxStep(0.05).build());
@@ -44,14 +48,14 @@ class RecomputationTest {
     void monteCarloExperimentWithThirteenArmsReplaysWithItsSeeds() {
         String[] arms = IntStream.range(0, 13).mapToObj(i -> "arm" + i).toArray(String[]::new);
         double[] rates = IntStream.range(0, 13).mapToDouble(i -> 0.05 + 0.01 * i).toArray();
-        List<DecisionRecord> chain = run(Defs.bernoulli("many", arms), rates, 3, 30);
+        List<DecisionRecord> chain = run(TestDefinitions.bernoulli("many", arms), rates, 3, 30);
         assertTrue(chain.stream().allMatch(r -> r.getMethod() == EstimationMethod.MONTE_CARLO && r.getDraws() > 0));
         Replay.assertChainReplays(chain);
     }
 
     @Test
     void indifferenceRuleStopsOnANearTieAndReplays() {
-        ExperimentDefinition def = Defs.bernoulli("tie", "a", "b");
+        ExperimentDefinition def = TestDefinitions.bernoulli("tie", "a", "b");
         def.setStopping(StoppingSpec.newBuilder(def.getStopping()).setRule(StoppingRule.INDIFFERENCE).setEpsilon(0.05)
                 .setDelta(0.1).build());
         def.setAfterStop(AfterStopPolicy.KEEP_WEIGHTS);
@@ -64,7 +68,7 @@ class RecomputationTest {
 
     @Test
     void budgetStopWithAllToControlReplays() {
-        ExperimentDefinition def = Defs.bernoulli("budget", "ctl", "alt");
+        ExperimentDefinition def = TestDefinitions.bernoulli("budget", "ctl", "alt");
         def.setControlArm("ctl");
         def.setAfterStop(AfterStopPolicy.ALL_TO_CONTROL);
         def.setStopping(StoppingSpec.newBuilder(def.getStopping()).setBudgetTrials(200L).build());
@@ -80,7 +84,7 @@ class RecomputationTest {
         TopologySettings json = TopologySettings.fromMap(Map.of(TopologySettings.FLUSH_INTERVAL_KEY, 100,
                 TopologySettings.ALLOCATE_INTERVAL_KEY, 100, TopologySettings.OUTPUT_FORMAT_KEY, "json"));
         try (TopologyFixture job = new TopologyFixture(json)) {
-            List<DecisionRecord> chain = run(job, Defs.value("json-out", "a", "b"), new double[] {0.4, 0.6}, 2,
+            List<DecisionRecord> chain = run(job, TestDefinitions.value("json-out", "a", "b"), new double[] {0.4, 0.6}, 2,
                     30);
             assertEquals(OptionalInt.empty(), HashChain.firstBreak(chain));
             Replay.assertChainReplays(chain);
@@ -119,7 +123,7 @@ class RecomputationTest {
                     }
                 }
             }
-            job.advance(Defs.RECOMPUTE_MS + 100);
+            job.advance(TestDefinitions.RECOMPUTE_MS + 100);
         }
         List<DecisionRecord> chain = job.decisions();
         assertEquals(OptionalInt.empty(), HashChain.firstBreak(chain));

@@ -1,5 +1,7 @@
 package dev.runoff.topology;
 
+import dev.runoff.testkit.TestDefinitions;
+
 import dev.runoff.testkit.Directories;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
@@ -73,9 +75,9 @@ class RunoffTopologyBrokerIT {
 
     @Test
     void foldedCountsEqualTheProducedTruthExactlyOnce() throws Exception {
-        List<ExperimentDefinition> definitions = List.of(endless(Defs.bernoulli("hero", "a", "b")),
-                endless(Defs.bernoulli("cta", "red", "green", "blue")),
-                endless(Defs.bernoulli("menu", "w", "x", "y", "z")), endless(Defs.value("price", "low", "high")));
+        List<ExperimentDefinition> definitions = List.of(endless(TestDefinitions.bernoulli("hero", "a", "b")),
+                endless(TestDefinitions.bernoulli("cta", "red", "green", "blue")),
+                endless(TestDefinitions.bernoulli("menu", "w", "x", "y", "z")), endless(TestDefinitions.value("price", "low", "high")));
         JobCounters counters = new JobCounters();
         Properties props = RunoffTopology.streamsConfig(SETTINGS, counters, Map.of(
                 StreamsConfig.APPLICATION_ID_CONFIG, "runoff-e2e",

@@ -1,5 +1,8 @@
 package dev.runoff.topology;
 
+import dev.runoff.decision.Replay;
+import dev.runoff.testkit.TestDefinitions;
+
 import dev.runoff.decision.DecisionReasons;
 
 import static dev.runoff.topology.TopologyFixture.T0;
@@ -38,7 +41,7 @@ class TopologyDriverTest {
 
     @Test
     void newExperimentGetsUniformWarmUpWeightsAtTheNextAllocationPass() {
-        job.define(Defs.bernoulli("layout", "a", "b", "c"));
+        job.define(TestDefinitions.bernoulli("layout", "a", "b", "c"));
         assertEquals(1, job.accepted().get(0).getVersion());
         job.advance(150);
         List<AllocationUpdate> updates = job.allocations();
@@ -57,12 +60,12 @@ class TopologyDriverTest {
 
     @Test
     void sequencesIncreaseByOneAndTheHashChainHolds() {
-        job.define(Defs.bernoulli("layout", "a", "b", "c"));
+        job.define(TestDefinitions.bernoulli("layout", "a", "b", "c"));
         for (int round = 0; round < 4; round++) {
             feed("layout", "a", 30, 3, "r" + round);
             feed("layout", "b", 30, 6, "r" + round);
             feed("layout", "c", 30, 9, "r" + round);
-            job.advance(Defs.RECOMPUTE_MS + 100);
+            job.advance(TestDefinitions.RECOMPUTE_MS + 100);
         }
         List<DecisionRecord> decisions = job.decisions();
         List<AllocationUpdate> updates = job.allocations();
@@ -81,11 +84,11 @@ class TopologyDriverTest {
 
     @Test
     void clearWinnerStopsAndTheDecisionStandsWhileLaterEventsAreFolded() {
-        job.define(Defs.bernoulli("banner", "plain", "bold"));
+        job.define(TestDefinitions.bernoulli("banner", "plain", "bold"));
         job.advance(150);
         feed("banner", "plain", 200, 10, "x");
         feed("banner", "bold", 200, 100, "x");
-        job.advance(Defs.RECOMPUTE_MS + 100);
+        job.advance(TestDefinitions.RECOMPUTE_MS + 100);
         List<DecisionRecord> decisions = job.decisions();
         DecisionRecord stop = decisions.get(decisions.size() - 1);
         assertEquals("STOP", stop.getDecision().name());
@@ -100,7 +103,7 @@ class TopologyDriverTest {
         Replay.assertChainReplays(decisions);
 
         feed("banner", "plain", 300, 290, "late");
-        job.advance(Defs.HEARTBEAT_MS + 100);
+        job.advance(TestDefinitions.HEARTBEAT_MS + 100);
         assertEquals(List.of(), job.decisions(), "no evaluation after the stop");
         List<AllocationUpdate> heartbeats = job.allocations();
         assertEquals(1, heartbeats.size());
@@ -112,11 +115,11 @@ class TopologyDriverTest {
 
     @Test
     void jobCountersCountFoldedTrialsDecisionsAndAllocationPasses() {
-        job.define(Defs.bernoulli("counted", "a", "b"));
+        job.define(TestDefinitions.bernoulli("counted", "a", "b"));
         job.advance(150);
         feed("counted", "a", 40, 4, "c");
         feed("counted", "b", 25, 5, "c");
-        job.advance(Defs.RECOMPUTE_MS + 100);
+        job.advance(TestDefinitions.RECOMPUTE_MS + 100);
         assertEquals(65, job.counters().foldedTrials(), "every exposure folded once");
         assertEquals(job.decisions().size(), job.counters().decisions());
         assertTrue(job.counters().allocationPasses() >= job.decisions().size());
@@ -125,7 +128,7 @@ class TopologyDriverTest {
 
     @Test
     void duplicateEventIdsAreCountedOnce() {
-        job.define(Defs.bernoulli("dup", "a", "b"));
+        job.define(TestDefinitions.bernoulli("dup", "a", "b"));
         byte[] exposure = Events.exposure("dup", "u1", "e-1", "a", T0);
         byte[] click = Events.click("dup", "u1", "e-2", null, T0 + 5);
         job.event("u1", exposure);
@@ -133,7 +136,7 @@ class TopologyDriverTest {
         job.event("other-key", exposure);
         job.event("u1", click);
         job.event("u1", click);
-        job.advance(Defs.RECOMPUTE_MS + 100);
+        job.advance(TestDefinitions.RECOMPUTE_MS + 100);
         assertEquals(new BernoulliStats(1, 1), job.state("dup").stats().get(0));
         assertEquals(3, job.counters().count(JobCounters.DUPLICATE));
         assertEquals(List.of(), job.rejected(), "duplicates are dropped, not rejected");
@@ -141,7 +144,7 @@ class TopologyDriverTest {
 
     @Test
     void attributionUsesTheUnitsFirstArmWithinTheWindow() {
-        job.define(Defs.bernoulli("attr", "a", "b"));
+        job.define(TestDefinitions.bernoulli("attr", "a", "b"));
         job.event("u1", Events.exposure("attr", "u1", "x1", "a", T0));
         job.event("u1", Events.click("attr", "u1", "c1", null, T0 + 1_000));
         job.event("u1", Events.exposure("attr", "u1", "x2", "a", T0 + 2_000));
@@ -150,9 +153,9 @@ class TopologyDriverTest {
         job.event("u1", Events.exposure("attr", "u1", "x3", "b", T0 + 5_000));
         job.event("u2", Events.exposure("attr", "u2", "y1", "b", T0));
         job.event("u2", Events.click("attr", "u2", "d1", "a", T0 + 10));
-        job.event("u2", Events.click("attr", "u2", "d2", null, T0 + Defs.WINDOW_MS + 1));
+        job.event("u2", Events.click("attr", "u2", "d2", null, T0 + TestDefinitions.WINDOW_MS + 1));
         job.event("u3", Events.click("attr", "u3", "z1", null, T0));
-        job.advance(Defs.RECOMPUTE_MS + 100);
+        job.advance(TestDefinitions.RECOMPUTE_MS + 100);
         assertEquals(List.of(new BernoulliStats(2, 2), new BernoulliStats(1, 0)), job.state("attr").stats());
         List<String> reasons = job.rejected().stream().map(r -> TopologyFixture.header(r, Rejections.REASON_HEADER))
                 .toList();
@@ -162,12 +165,12 @@ class TopologyDriverTest {
 
     @Test
     void changedDefinitionGetsTheNextVersionAndLaterRecordsCarryIt() {
-        ExperimentDefinition v1 = Defs.bernoulli("copy", "a", "b");
+        ExperimentDefinition v1 = TestDefinitions.bernoulli("copy", "a", "b");
         job.define(v1);
         job.advance(150);
         job.define(v1);
         assertEquals(1, job.accepted().size(), "resubmitting the same content keeps version 1");
-        job.define(Defs.withBeta(v1, 0.7));
+        job.define(TestDefinitions.withBeta(v1, 0.7));
         job.advance(150);
         assertEquals(2, last(job.accepted()).getVersion());
         List<DecisionRecord> decisions = job.decisions();
@@ -176,10 +179,10 @@ class TopologyDriverTest {
         assertEquals(2, last(job.allocations()).getDefinitionVersion());
 
         feed("copy", "a", 40, 4, "f");
-        ExperimentDefinition v3 = Defs.bernoulli("copy", "a", "b", "c");
+        ExperimentDefinition v3 = TestDefinitions.bernoulli("copy", "a", "b", "c");
         job.define(v3);
         feed("copy", "c", 40, 4, "f");
-        job.advance(Defs.RECOMPUTE_MS + 100);
+        job.advance(TestDefinitions.RECOMPUTE_MS + 100);
         DecisionRecord latest = last(job.decisions());
         assertEquals(3, latest.getDefinitionVersion());
         assertEquals(List.of(40L, 0L, 40L), latest.getArms().stream().map(ArmState::getTrials).toList(),
@@ -194,7 +197,7 @@ class TopologyDriverTest {
         try (TopologyFixture small = new TopologyFixture(budgeted)) {
             List<String> ids = List.of("p0", "p1", "p2", "p3", "p4");
             for (String id : ids) {
-                ExperimentDefinition def = Defs.bernoulli(id, "a", "b");
+                ExperimentDefinition def = TestDefinitions.bernoulli(id, "a", "b");
                 def.setHeartbeatMs(100);
                 small.define(def);
             }
@@ -208,7 +211,7 @@ class TopologyDriverTest {
 
     @Test
     void tombstoneEndsTheExperiment() {
-        job.define(Defs.bernoulli("gone", "a", "b"));
+        job.define(TestDefinitions.bernoulli("gone", "a", "b"));
         job.advance(150);
         job.allocations();
         job.end("gone");
@@ -219,19 +222,19 @@ class TopologyDriverTest {
         assertNull(job.state("gone"));
         job.event("u1", Events.exposure("gone", "u1", "x1", "a", T0));
         assertEquals("experiment-ended", TopologyFixture.header(job.rejected().get(0), Rejections.REASON_HEADER));
-        job.advance(Defs.HEARTBEAT_MS + 100);
+        job.advance(TestDefinitions.HEARTBEAT_MS + 100);
         assertEquals(List.of(), job.allocationRecords(), "nothing more is published");
     }
 
     @Test
     void valueMetricCountsOneObservationPerValueEvent() {
-        job.define(Defs.value("revenue", "x", "y"));
+        job.define(TestDefinitions.value("revenue", "x", "y"));
         double[] values = {12.5, 3.25, 40.0, -2.0, 7.75};
         for (int unit = 0; unit < 5; unit++) {
             job.event("u" + unit, Events.exposure("revenue", "u" + unit, "x" + unit, "y", T0));
             job.event("u" + unit, Events.value("revenue", "u" + unit, "v" + unit, null, T0 + 5, values[unit]));
         }
-        job.advance(Defs.RECOMPUTE_MS + 100);
+        job.advance(TestDefinitions.RECOMPUTE_MS + 100);
         ValueStats stats = (ValueStats) job.state("revenue").stats().get(1);
         double mean = 61.5 / 5;
         double m2 = 0;

@@ -1,8 +1,5 @@
-package dev.runoff.topology;
+package dev.runoff.decision;
 
-import dev.runoff.decision.DecisionReasons;
-import dev.runoff.decision.DefinitionConfigs;
-import dev.runoff.decision.Evaluator;
 import dev.runoff.engine.stopping.LeaderWithin;
 
 import static org.junit.jupiter.api.Assertions.assertArrayEquals;
@@ -44,13 +41,13 @@ import java.util.List;
  * engine configuration and the seed from the record and its definition, by hand (not through the job's own
  * mapping), and requires the same bits.
  */
-final class Replay {
+public final class Replay {
 
     private Replay() {
     }
 
     /** Recomputes every record of one experiment's chain, in order. */
-    static void assertChainReplays(List<DecisionRecord> chain) {
+    public static void assertChainReplays(List<DecisionRecord> chain) {
         double[] previous = null;
         List<String> previousArms = null;
         MetricKind previousKind = null;
@@ -66,7 +63,7 @@ final class Replay {
     }
 
     /** Recomputes one record with the weights published before it ({@code null}: none). */
-    static void assertReplays(DecisionRecord record, double[] previousWeights) {
+    public static void assertReplays(DecisionRecord record, double[] previousWeights) {
         String where = record.getExperimentId() + " #" + record.getSequence();
         assertEquals(seed(record.getExperimentId(), record.getSequence()), record.getSeed(), where + " seed");
         List<Arm> arms = arms(record);

@@ -1,4 +1,4 @@
-package dev.runoff.topology;
+package dev.runoff.testkit;
 
 import dev.runoff.records.avro.AfterStopPolicy;
 import dev.runoff.records.avro.AllocationRule;
@@ -11,21 +11,21 @@ import dev.runoff.records.avro.StoppingRule;
 import dev.runoff.records.avro.StoppingSpec;
 import java.util.List;
 
-/** Definitions for the topology tests: short periods so that a test advances the clock by seconds. */
-final class Defs {
+/** Definitions for tests: short periods, so that a test advances the clock by seconds. */
+public final class TestDefinitions {
 
     /** Recompute period of the test definitions. */
-    static final long RECOMPUTE_MS = 1_000;
+    public static final long RECOMPUTE_MS = 1_000;
     /** Heartbeat of the test definitions. */
-    static final long HEARTBEAT_MS = 10_000;
+    public static final long HEARTBEAT_MS = 10_000;
     /** Attribution window of the test definitions. */
-    static final long WINDOW_MS = 60_000;
+    public static final long WINDOW_MS = 60_000;
 
-    private Defs() {
+    private TestDefinitions() {
     }
 
     /** EXPOSURE trials, CLICK successes, uniform prior, top-two Thompson, GLR with delta 0.05. */
-    static ExperimentDefinition bernoulli(String id, String... arms) {
+    public static ExperimentDefinition bernoulli(String id, String... arms) {
         return ExperimentDefinition.newBuilder()
                 .setExperimentId(id)
                 .setArms(List.of(arms))
@@ -44,7 +44,7 @@ final class Defs {
     }
 
     /** EXPOSURE trials, VALUE observations, default Normal-Gamma prior, top-two Thompson, GLR. */
-    static ExperimentDefinition value(String id, String... arms) {
+    public static ExperimentDefinition value(String id, String... arms) {
         ExperimentDefinition def = bernoulli(id, arms);
         def.setMetric(MetricSpec.newBuilder().setKind(MetricKind.VALUE).setTrialEvent(EventType.EXPOSURE)
                 .setValueEvent(EventType.VALUE).build());
@@ -52,7 +52,7 @@ final class Defs {
     }
 
     /** {@code def} with a change nobody would make by accident: another beta. */
-    static ExperimentDefinition withBeta(ExperimentDefinition def, double beta) {
+    public static ExperimentDefinition withBeta(ExperimentDefinition def, double beta) {
         ExperimentDefinition copy = ExperimentDefinition.newBuilder(def).build();
         copy.setAllocation(AllocationSpec.newBuilder(def.getAllocation()).setBeta(beta).build());
         return copy;

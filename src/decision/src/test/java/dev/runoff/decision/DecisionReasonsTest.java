@@ -1,6 +1,5 @@
-package dev.runoff.topology;
+package dev.runoff.decision;
 
-import dev.runoff.decision.DecisionReasons;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
 
@@ -16,7 +15,10 @@ import org.junit.jupiter.api.Test;
 
 class DecisionReasonsTest {
 
-    private static final Instant NOW = Instant.ofEpochMilli(TopologyFixture.T0);
+    /** A fixed instant of the tests (2023-11-14). */
+    static final long T0 = 1_700_000_000_000L;
+
+    private static final Instant NOW = Instant.ofEpochMilli(T0);
 
     @Test
     void everyStoppingReasonHasItsRecordReason() {

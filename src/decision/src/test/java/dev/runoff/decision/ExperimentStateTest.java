@@ -1,7 +1,7 @@
-package dev.runoff.topology;
+package dev.runoff.decision;
 
-import dev.runoff.decision.Evaluator;
-import dev.runoff.decision.ExperimentState;
+import dev.runoff.testkit.TestDefinitions;
+
 
 import static org.junit.jupiter.api.Assertions.assertArrayEquals;
 import static org.junit.jupiter.api.Assertions.assertEquals;
@@ -22,35 +22,38 @@ import org.junit.jupiter.api.Test;
 /** The experiment state and the pure evaluation, without Kafka. */
 class ExperimentStateTest {
 
-    private static final long NOW = TopologyFixture.T0;
+    /** A fixed instant of the tests (2023-11-14). */
+    static final long T0 = 1_700_000_000_000L;
+
+    private static final long NOW = T0;
 
     @Test
     void newVersionKeepsStatisticsOfKeptArmsAndStartsNewArmsEmpty() {
-        ExperimentDefinition v1 = version(Defs.bernoulli("e", "a", "b", "c"), 1);
+        ExperimentDefinition v1 = version(TestDefinitions.bernoulli("e", "a", "b", "c"), 1);
         ExperimentState state = ExperimentState.start(v1).withDelta(0, new BernoulliStats(10, 2), NOW)
                 .withDelta(2, new BernoulliStats(7, 1), NOW);
         state = new Evaluator(100).evaluate(state, NOW).next();
-        ExperimentDefinition v2 = version(Defs.bernoulli("e", "c", "d"), 2);
+        ExperimentDefinition v2 = version(TestDefinitions.bernoulli("e", "c", "d"), 2);
         ExperimentState changed = state.withDefinition(v2);
         assertEquals(List.of(new BernoulliStats(7, 1), BernoulliStats.EMPTY), changed.stats());
         assertNull(changed.lastWeights(), "no previous weights for another arm list");
         assertTrue(changed.due());
-        ExperimentState sameArms = state.withDefinition(version(Defs.withBeta(v1, 0.6), 2));
+        ExperimentState sameArms = state.withDefinition(version(TestDefinitions.withBeta(v1, 0.6), 2));
         assertEquals(state.stats(), sameArms.stats());
         assertEquals(3, sameArms.lastWeights().length);
     }
 
     @Test
     void changeOfMetricKindEmptiesEveryArm() {
-        ExperimentState state = ExperimentState.start(version(Defs.bernoulli("e", "a", "b"), 1))
+        ExperimentState state = ExperimentState.start(version(TestDefinitions.bernoulli("e", "a", "b"), 1))
                 .withDelta(0, new BernoulliStats(10, 2), NOW);
-        ExperimentState value = state.withDefinition(version(Defs.value("e", "a", "b"), 2));
+        ExperimentState value = state.withDefinition(version(TestDefinitions.value("e", "a", "b"), 2));
         assertEquals(List.of(ValueStats.EMPTY, ValueStats.EMPTY), value.stats());
     }
 
     @Test
     void evaluationIsAPureFunctionOfStateAndTime() {
-        ExperimentState state = ExperimentState.start(version(Defs.bernoulli("e", "a", "b"), 1))
+        ExperimentState state = ExperimentState.start(version(TestDefinitions.bernoulli("e", "a", "b"), 1))
                 .withDelta(0, new BernoulliStats(40, 9), NOW).withDelta(1, new BernoulliStats(40, 14), NOW);
         Evaluator.Result first = new Evaluator(100).evaluate(state, NOW + 5);
         Evaluator.Result second = new Evaluator(100).evaluate(state, NOW + 5);
@@ -62,7 +65,7 @@ class ExperimentStateTest {
 
     @Test
     void stoppedExperimentIsRepublishedNotEvaluated() {
-        ExperimentState state = ExperimentState.start(version(Defs.bernoulli("e", "a", "b"), 1))
+        ExperimentState state = ExperimentState.start(version(TestDefinitions.bernoulli("e", "a", "b"), 1))
                 .withDelta(0, new BernoulliStats(500, 10), NOW).withDelta(1, new BernoulliStats(500, 200), NOW);
         Evaluator evaluator = new Evaluator(100);
         Evaluator.Result stop = evaluator.evaluate(state, NOW);
@@ -79,7 +82,7 @@ class ExperimentStateTest {
     void dominantArmWhoseIntegratedAlphaRoundsAboveOneIsEvaluated() {
         // Statistics for which the exact integration gave alpha 1.000000000047101 for arm c (measured).
         long[][] arms = {{10_166, 473}, {17_765, 1_501}, {18_456, 2_032}, {14_672, 984}, {9_936, 339}};
-        ExperimentState state = ExperimentState.start(version(Defs.bernoulli("e", "a", "b", "c", "d", "e"), 1));
+        ExperimentState state = ExperimentState.start(version(TestDefinitions.bernoulli("e", "a", "b", "c", "d", "e"), 1));
         for (int i = 0; i < arms.length; i++) {
             state = state.withDelta(i, new BernoulliStats(arms[i][0], arms[i][1]), NOW);
         }

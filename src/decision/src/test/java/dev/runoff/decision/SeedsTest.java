@@ -1,6 +1,5 @@
-package dev.runoff.topology;
+package dev.runoff.decision;
 
-import dev.runoff.decision.Seeds;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertNotEquals;
