@@ -3,7 +3,7 @@ package dev.runoff.bench;
 import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.planning.Simulation;
-import dev.runoff.engine.planning.SimulationArms;
+import dev.runoff.engine.planning.ArmModel;
 import dev.runoff.engine.planning.SimulationConfig;
 import dev.runoff.engine.planning.SimulationProgress;
 import dev.runoff.engine.planning.SimulationResult;
@@ -26,7 +26,7 @@ import org.openjdk.jmh.annotations.State;
 @BenchmarkMode(Mode.AverageTime)
 @OutputTimeUnit(TimeUnit.MILLISECONDS)
 public class SimulationBench {
-    private static final SimulationArms ARMS = SimulationArms.bernoulli(0.1, 0.2, 0.3, 0.4, 0.5);
+    private static final ArmModel ARMS = ArmModel.bernoulli(0.1, 0.2, 0.3, 0.4, 0.5);
     private static final StoppingConfig STOPPING = StoppingConfig.glr(0.01).withMaxTotalTrials(20_240);
 
     private long seed;

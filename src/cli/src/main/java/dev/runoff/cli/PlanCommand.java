@@ -5,7 +5,7 @@ import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.planning.Simulation;
-import dev.runoff.engine.planning.SimulationArms;
+import dev.runoff.engine.planning.ArmModel;
 import dev.runoff.engine.planning.SimulationConfig;
 import dev.runoff.engine.planning.SimulationProgress;
 import dev.runoff.engine.planning.SimulationResult;
@@ -104,7 +104,7 @@ final class PlanCommand implements Callable<Integer> {
 
     @Override
     public Integer call() {
-        SimulationArms arms = arms();
+        ArmModel arms = arms();
         named("--delta", delta, () -> StoppingConfig.glr(delta));
         named("--epsilon", epsilon, () -> Checks.nonNegative("epsilon", epsilon));
         named("--beta", beta, () -> EngineConfig.defaults(arms.metric()).withBeta(beta));
@@ -119,7 +119,7 @@ final class PlanCommand implements Callable<Integer> {
         return 0;
     }
 
-    private SimulationArms arms() {
+    private ArmModel arms() {
         if ((rates == null) == (means == null)) {
             throw usage("give either --rates (Bernoulli) or --means with --stddev (value metric)");
         }
@@ -127,7 +127,7 @@ final class PlanCommand implements Callable<Integer> {
             if (stddev != null) {
                 throw usage("--stddev goes with --means, not with --rates");
             }
-            return named("--rates", joined(rates), () -> SimulationArms.bernoulli(rates));
+            return named("--rates", joined(rates), () -> ArmModel.bernoulli(rates));
         }
         if (stddev == null) {
             throw usage("--means needs --stddev");
@@ -136,7 +136,7 @@ final class PlanCommand implements Callable<Integer> {
         if (s.length != means.length) {
             throw usage("--stddev: give one value or one per arm (" + means.length + "), got " + stddev.length);
         }
-        return named("--means", joined(means), () -> SimulationArms.gaussian(means, s));
+        return named("--means", joined(means), () -> ArmModel.gaussianStddevs(means, s));
     }
 
     private void checkCounts() {
@@ -154,7 +154,7 @@ final class PlanCommand implements Callable<Integer> {
         }
     }
 
-    private void checkTies(SimulationArms arms) {
+    private void checkTies(ArmModel arms) {
         if (!arms.bestIsTied()) {
             return;
         }
@@ -169,11 +169,11 @@ final class PlanCommand implements Callable<Integer> {
         }
     }
 
-    private static String tiedNames(SimulationArms arms) {
+    private static String tiedNames(ArmModel arms) {
         StringBuilder b = new StringBuilder();
         for (int a = 0; a < arms.size(); a++) {
             if (arms.mean(a) == arms.bestMean()) {
-                b.append(b.length() == 0 ? "" : " and ").append(SimulationArms.name(a));
+                b.append(b.length() == 0 ? "" : " and ").append(ArmModel.name(a));
             }
         }
         return b.toString();
@@ -196,7 +196,7 @@ final class PlanCommand implements Callable<Integer> {
         return Math.max(1, BUDGET_FACTOR * Math.round(plan.optimal().characteristicTime() * logFactor));
     }
 
-    private SimulationResult simulate(SimulationArms arms, PlanFigures plan) {
+    private SimulationResult simulate(ArmModel arms, PlanFigures plan) {
         StoppingConfig stop = StoppingConfig.glr(delta).withRule(stopping).withMaxTotalTrials(budget(plan));
         EngineConfig engine = EngineConfig.defaults(arms.metric()).withRule(rule).withBeta(beta);
         SimulationConfig config = new SimulationConfig(arms, engine, stop, batch, replications, seed, epsilon);

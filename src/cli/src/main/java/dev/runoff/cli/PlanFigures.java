@@ -3,7 +3,7 @@ package dev.runoff.cli;
 import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.planning.ArmModel;
 import dev.runoff.engine.planning.OptimalAllocation;
-import dev.runoff.engine.planning.SimulationArms;
+import dev.runoff.engine.planning.ArmModel;
 import dev.runoff.engine.planning.TargetAllocation;
 
 /**
@@ -22,14 +22,14 @@ import dev.runoff.engine.planning.TargetAllocation;
  * @param ruleTarget the allocation the rule tends to, or null
  * @param uniform    the uniform allocation, or null
  */
-record PlanFigures(SimulationArms arms, double delta, double epsilon, AllocationMethod rule, double beta, TargetAllocation optimal,
+record PlanFigures(ArmModel arms, double delta, double epsilon, AllocationMethod rule, double beta, TargetAllocation optimal,
                    TargetAllocation ruleTarget, TargetAllocation uniform) {
 
-    static PlanFigures of(SimulationArms arms, double delta, double epsilon, AllocationMethod rule, double beta) {
+    static PlanFigures of(ArmModel arms, double delta, double epsilon, AllocationMethod rule, double beta) {
         if (arms.bestIsTied()) {
             return new PlanFigures(arms, delta, epsilon, rule, beta, null, null, null);
         }
-        ArmModel model = arms.model();
+        ArmModel model = arms;
         TargetAllocation uniform = OptimalAllocation.uniform(model);
         TargetAllocation target = rule == AllocationMethod.UNIFORM ? uniform
                 : beta > 0 && beta < 1 ? OptimalAllocation.betaOptimal(model, beta) : null;

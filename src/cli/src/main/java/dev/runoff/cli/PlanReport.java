@@ -6,7 +6,7 @@ import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.allocation.AllocationMethod;
-import dev.runoff.engine.planning.SimulationArms;
+import dev.runoff.engine.planning.ArmModel;
 import dev.runoff.engine.planning.SimulationConfig;
 import dev.runoff.engine.planning.SimulationResult;
 import dev.runoff.engine.planning.SimulationSummary;
@@ -37,7 +37,7 @@ final class PlanReport {
 
     /** The tables. */
     String text() {
-        SimulationArms arms = plan.arms();
+        ArmModel arms = plan.arms();
         StringBuilder out = new StringBuilder();
         out.append(String.format(Locale.ROOT, "Plan for %d %s arms, delta %s, epsilon %s%n%n", arms.size(),
                 arms.metric() == Metric.BERNOULLI ? "Bernoulli" : "value", Posteriors.number(plan.delta()),
@@ -65,7 +65,7 @@ final class PlanReport {
         table.row(header.toArray(String[]::new));
         for (int a = 0; a < plan.arms().size(); a++) {
             int arm = a;
-            List<String> row = new ArrayList<>(List.of(SimulationArms.name(a), Posteriors.number(plan.arms().mean(a))));
+            List<String> row = new ArrayList<>(List.of(ArmModel.name(a), Posteriors.number(plan.arms().mean(a))));
             targets.forEach(t -> row.add(fixed(t.weight(arm), 4)));
             table.row(row.toArray(String[]::new));
         }
@@ -118,7 +118,7 @@ final class PlanReport {
         table.row(row("budget stops", columns, s -> Integer.toString(s.budgetStops())));
         for (int a = 0; a < plan.arms().size(); a++) {
             int arm = a;
-            table.row(row("traffic share " + SimulationArms.name(a), columns, s -> fixed(s.armShares()[arm], 4)));
+            table.row(row("traffic share " + ArmModel.name(a), columns, s -> fixed(s.armShares()[arm], 4)));
         }
         out.append(table.render());
         if (columns.size() == 2) {
@@ -152,7 +152,7 @@ final class PlanReport {
     /** One JSON object. */
     String json() {
         ObjectNode root = MAPPER.createObjectNode();
-        SimulationArms arms = plan.arms();
+        ArmModel arms = plan.arms();
         root.put("metric", Spelling.of(arms.metric()));
         ArrayNode names = root.putArray("arms");
         arms.names().forEach(names::add);

@@ -1,7 +1,7 @@
 package dev.runoff.demo;
 
 import dev.runoff.engine.planning.Simulation;
-import dev.runoff.engine.planning.SimulationArms;
+import dev.runoff.engine.planning.ArmModel;
 import dev.runoff.engine.planning.SimulationConfig;
 import dev.runoff.engine.planning.SimulationProgress;
 import dev.runoff.engine.planning.SimulationResult;
@@ -55,7 +55,7 @@ final class DemoSimulation implements AutoCloseable {
 
     /** The simulation's configuration: the job's mapping of {@code definition}, {@link #REPLICATIONS} runs. */
     static SimulationConfig config(ExperimentDefinition definition, double[] rates, int batch, long seed) {
-        return new SimulationConfig(SimulationArms.bernoulli(rates),
+        return new SimulationConfig(ArmModel.bernoulli(rates),
                 DefinitionConfigs.engine(definition, TopologySettings.MONTE_CARLO_DRAWS),
                 DefinitionConfigs.stopping(definition), batch, REPLICATIONS, seed, 0.0);
     }

@@ -21,7 +21,7 @@ import java.util.Objects;
  * @param epsilon      indifference zone for counting errors, finite, {@code >= 0}: a pick is wrong when its
  *                     true mean is more than epsilon below the best
  */
-public record SimulationConfig(SimulationArms arms, EngineConfig engine, StoppingConfig stopping, int batch,
+public record SimulationConfig(ArmModel arms, EngineConfig engine, StoppingConfig stopping, int batch,
                                int replications, long seed, double epsilon) {
 
     /** Validates every field; messages name the field and the value. */

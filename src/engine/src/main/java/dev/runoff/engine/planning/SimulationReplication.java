@@ -111,13 +111,13 @@ final class SimulationReplication {
 
     /** The replication's random streams. */
     private static final class Streams {
-        private final SimulationArms truth;
+        private final ArmModel truth;
         private final UniformRandomProvider choices;
         private final UniformRandomProvider engineSeeds;
         private final UniformRandomProvider[] outcomes;
         private final ZigguratSampler.NormalizedGaussian[] gaussians;
 
-        Streams(long seed, SimulationArms truth) {
+        Streams(long seed, ArmModel truth) {
             this.truth = truth;
             JumpableUniformRandomProvider root = (JumpableUniformRandomProvider) RandomSource.XO_SHI_RO_256_PP.create(seed);
             choices = root.jump();

@@ -15,18 +15,18 @@ class ArmModelTest {
 
     @Test
     void rejectsRatesOutsideTheOpenUnitInterval() {
-        assertEquals("mean of arm 1 must be in (0.0, 1.0), got 1.0", message(() -> ArmModel.bernoulli(0.5, 1.0)));
-        assertEquals("mean of arm 0 must be in (0.0, 1.0), got 0.0", message(() -> ArmModel.bernoulli(0.0, 0.5)));
-        assertEquals("mean of arm 2 must be in (0.0, 1.0), got NaN",
+        assertEquals("rate of arm2 must be in (0.0, 1.0), got 1.0", message(() -> ArmModel.bernoulli(0.5, 1.0)));
+        assertEquals("rate of arm1 must be in (0.0, 1.0), got 0.0", message(() -> ArmModel.bernoulli(0.0, 0.5)));
+        assertEquals("rate of arm3 must be in (0.0, 1.0), got NaN",
                 message(() -> ArmModel.bernoulli(0.1, 0.5, Double.NaN)));
     }
 
     @Test
     void rejectsTwoEqualBestMeansAskingForAnEpsilon() {
-        String m = message(() -> ArmModel.bernoulli(0.5, 0.3, 0.5));
-        assertEquals("arms 0 and 2 share the best mean 0.5: the best arm is not unique, so the optimal allocation"
+        String m = message(() -> ArmModel.bernoulli(0.5, 0.3, 0.5).best());
+        assertEquals("arm1 and arm3 share the best mean 0.5: the best arm is not unique, so the optimal allocation"
                 + " is undefined; plan with an indifference zone epsilon > 0 instead", m);
-        assertTrue(message(() -> ArmModel.gaussianCommonVariance(1, 2.0, 2.0)).contains("epsilon"));
+        assertTrue(message(() -> ArmModel.gaussianCommonVariance(1, 2.0, 2.0).best()).contains("epsilon"));
     }
 
     @Test
@@ -37,11 +37,11 @@ class ArmModelTest {
 
     @Test
     void rejectsBadGaussianParameters() {
-        assertEquals("variance of arm 1 must be a finite number > 0, got 0.0",
+        assertEquals("variance of arm2 must be a finite number > 0, got 0.0",
                 message(() -> ArmModel.gaussian(new double[] {1, 0}, new double[] {1, 0})));
         assertEquals("variances must have one entry per arm (2), got 1",
                 message(() -> ArmModel.gaussian(new double[] {1, 0}, new double[] {1})));
-        assertEquals("mean of arm 0 must be a finite number, got Infinity",
+        assertEquals("mean of arm1 must be a finite number, got Infinity",
                 message(() -> ArmModel.gaussianCommonVariance(1, Double.POSITIVE_INFINITY, 0)));
     }
 

@@ -21,12 +21,12 @@ import org.junit.jupiter.api.Test;
 
 /** The simulation's mechanics: seeding, parallelism, batching, the budget and the baseline. */
 class SimulationTest {
-    private static final SimulationArms THREE = SimulationArms.bernoulli(0.2, 0.5, 0.8);
+    private static final ArmModel THREE = ArmModel.bernoulli(0.2, 0.5, 0.8);
     /** Monte Carlo alpha, so that the engine's seeds matter too, with few draws to keep the test fast. */
     private static final EngineConfig MONTE_CARLO = EngineConfig.defaults(Metric.BERNOULLI)
             .withMethod(EngineConfig.MethodChoice.MONTE_CARLO).withDraws(500);
 
-    private static SimulationConfig config(SimulationArms arms, EngineConfig engine, StoppingConfig stopping,
+    private static SimulationConfig config(ArmModel arms, EngineConfig engine, StoppingConfig stopping,
                                            int batch, int replications, long seed) {
         return new SimulationConfig(arms, engine, stopping, batch, replications, seed, 0.0);
     }
@@ -128,14 +128,14 @@ class SimulationTest {
         // Garivier & Kaufmann (2016), Theorem 1: any delta-correct strategy has E[trials] >= T* kl(delta, 1 - delta).
         // The bound is on the expectation; the GLR rule's proven threshold needs several times more, so the mean
         // of 10 runs clears it with a wide margin.
-        SimulationArms value = SimulationArms.gaussian(new double[] {1.0, 1.5, 0.8}, new double[] {1.0, 1.0, 2.0});
-        for (SimulationArms arms : List.of(THREE, value)) {
+        ArmModel value = ArmModel.gaussianStddevs(new double[] {1.0, 1.5, 0.8}, new double[] {1.0, 1.0, 2.0});
+        for (ArmModel arms : List.of(THREE, value)) {
             EngineConfig engine = EngineConfig.defaults(arms.metric()).withMethod(EngineConfig.MethodChoice.MONTE_CARLO)
                     .withDraws(500);
             SimulationConfig c = config(arms, engine, StoppingConfig.glr(0.05).withMaxTotalTrials(100_000), 10, 10,
                     11L);
             SimulationResult r = Simulation.run(c, 2, SimulationProgress.NONE);
-            double bound = OptimalAllocation.optimal(arms.model()).lowerBoundTrials(0.05);
+            double bound = OptimalAllocation.optimal(arms).lowerBoundTrials(0.05);
             assertTrue(r.rule().meanTrials() > bound, arms + ": " + r.rule() + " vs bound " + bound);
             assertTrue(r.baseline().meanTrials() > bound, arms + ": " + r.baseline() + " vs bound " + bound);
             assertEquals(0, r.rule().budgetStops(), r.rule().toString());

@@ -35,7 +35,7 @@ class StoppingErrorSimulationTest {
         // then only matters for budget stops (there are none), so one Monte Carlo draw keeps the test fast.
         EngineConfig engine = EngineConfig.defaults(Metric.BERNOULLI).withRule(AllocationMethod.UNIFORM)
                 .withMethod(EngineConfig.MethodChoice.MONTE_CARLO).withDraws(1);
-        SimulationConfig c = new SimulationConfig(SimulationArms.bernoulli(0.5, 0.45), engine,
+        SimulationConfig c = new SimulationConfig(ArmModel.bernoulli(0.5, 0.45), engine,
                 StoppingConfig.glr(DELTA).withMaxTotalTrials(1_000_000), 100, 400, 77L, 0.0);
         SimulationSummary s = Simulation.run(c, 2, SimulationProgress.NONE).rule();
         System.out.println("GLR, rates 0.5 and 0.45, delta 0.1: " + s);
@@ -56,7 +56,7 @@ class StoppingErrorSimulationTest {
         int stops = 0;
         int errors = 0;
         for (int i = 0; i < 300; i++) {
-            SimulationArms arms = SimulationArms.bernoulli(openUnit(prior), openUnit(prior));
+            ArmModel arms = ArmModel.bernoulli(openUnit(prior), openUnit(prior));
             SimulationConfig c = new SimulationConfig(arms, engine,
                     StoppingConfig.posterior(DELTA).withMaxTotalTrials(500), 25, 1, i, 0.0);
             SimulationRun run = Simulation.run(c, Runnable::run, SimulationProgress.NONE).ruleRuns().get(0);

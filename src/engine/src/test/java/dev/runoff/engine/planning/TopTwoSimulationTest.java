@@ -15,7 +15,7 @@ import org.junit.jupiter.api.Test;
  * 0.2, 0.3, 0.4 and 0.5.
  */
 class TopTwoSimulationTest {
-    private static final SimulationArms ARMS = SimulationArms.bernoulli(0.1, 0.2, 0.3, 0.4, 0.5);
+    private static final ArmModel ARMS = ArmModel.bernoulli(0.1, 0.2, 0.3, 0.4, 0.5);
 
     @Test
     void topTwoNeedsAboutHalfTheTrialsOfUniformAllocation() {
@@ -30,7 +30,7 @@ class TopTwoSimulationTest {
         SimulationConfig c = new SimulationConfig(ARMS, EngineConfig.defaults(Metric.BERNOULLI),
                 StoppingConfig.glr(0.01).withMaxTotalTrials(200_000), 250, 6, 2024L, 0.0);
         SimulationResult r = Simulation.run(c, 2, SimulationProgress.NONE);
-        ArmModel model = ARMS.model();
+        ArmModel model = ARMS;
         double asymptotic = OptimalAllocation.betaOptimal(model, 0.5).characteristicTime()
                 / OptimalAllocation.uniform(model).characteristicTime();
         String report = "ratio " + r.trialRatio() + " vs asymptotic " + asymptotic + "; " + r.rule() + "; "
