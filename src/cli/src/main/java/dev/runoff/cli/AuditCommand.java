@@ -65,7 +65,7 @@ final class AuditCommand implements Runnable {
                 description = "Exported JSON-lines file: one canonical JSON decision record per line.")
         private Path file;
 
-        @Option(names = "--bootstrap-server", paramLabel = "HOST:PORT[,...]",
+        @Option(names = "--bootstrap-server", paramLabel = "HOST:PORT",
                 description = "Kafka bootstrap servers to read the decisions topic from.")
         private String bootstrapServer;
 

@@ -43,7 +43,7 @@ final class DemoCommand implements Callable<Integer> {
     @Option(names = "--arms", defaultValue = "5", paramLabel = "N", description = "Layouts in play, 2 to 5 (default: ${DEFAULT-VALUE}).")
     private int arms;
 
-    @Option(names = {"--visitors", "--speed"}, defaultValue = "2000", paramLabel = "N",
+    @Option(names = "--visitors", defaultValue = "2000", paramLabel = "N",
             description = "Visitors per period: more visitors, fewer periods (default: ${DEFAULT-VALUE}).")
     private int visitors;
 

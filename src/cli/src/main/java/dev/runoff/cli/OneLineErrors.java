@@ -1,6 +1,7 @@
 package dev.runoff.cli;
 
 import java.io.PrintWriter;
+import org.apache.kafka.common.errors.TimeoutException;
 import picocli.CommandLine;
 import picocli.CommandLine.IExecutionExceptionHandler;
 import picocli.CommandLine.IParameterExceptionHandler;
@@ -9,7 +10,9 @@ import picocli.CommandLine.ParseResult;
 
 /**
  * Reports bad arguments as one line on standard error, {@code <command>: <message>}, with exit code 2 and
- * no usage dump. Any other failure is an internal error: a line plus its stack trace, exit code 1.
+ * no usage dump. A cluster that did not answer in time (a Kafka {@code TimeoutException} anywhere in the
+ * cause chain) is one line too, with exit code 1. Any other failure is an internal error: a line plus its
+ * stack trace, exit code 1.
  */
 final class OneLineErrors implements IParameterExceptionHandler, IExecutionExceptionHandler {
     /** Exit code for bad arguments. */
@@ -28,10 +31,26 @@ final class OneLineErrors implements IParameterExceptionHandler, IExecutionExcep
             return usage(cmd, ex.getMessage());
         }
         PrintWriter err = cmd.getErr();
+        TimeoutException timeout = timeoutIn(ex);
+        if (timeout != null) {
+            err.println(cmd.getCommandSpec().qualifiedName() + ": no broker answered in time (" + timeout.getMessage()
+                    + "); check --bootstrap-server and the cluster");
+            err.flush();
+            return INTERNAL;
+        }
         err.println(cmd.getCommandSpec().qualifiedName() + ": internal error: " + ex);
         ex.printStackTrace(err);
         err.flush();
         return INTERNAL;
+    }
+
+    private static TimeoutException timeoutIn(Throwable ex) {
+        for (Throwable t = ex; t != null; t = t.getCause()) {
+            if (t instanceof TimeoutException timeout) {
+                return timeout;
+            }
+        }
+        return null;
     }
 
     private static int usage(CommandLine cmd, String message) {

@@ -14,7 +14,7 @@ import java.util.concurrent.TimeUnit;
 import org.junit.jupiter.api.Test;
 
 /** A broker that does not answer: one clear line, within the user's timeout (not Kafka's defaults). */
-class UnreachableBrokerTest {
+class UnreachableBrokerIT {
 
     /** A local port nobody listens on: bound, then released. */
     private static int closedPort() throws IOException {
@@ -36,6 +36,15 @@ class UnreachableBrokerTest {
         assertEquals(1, r.err().lines().count(), r.err());
         // a generous bound: Kafka's own defaults took over a minute here
         assertTrue(took.compareTo(Duration.ofSeconds(30)) < 0, "took " + took);
+    }
+
+    @Test
+    void experimentListAgainstAClosedPortSaysNoBrokerAnsweredInOneLine() throws IOException {
+        String address = "127.0.0.1:" + closedPort();
+        CliRun r = CliRun.of("experiment", "list", "--bootstrap-server", address, "--timeout-ms", "1000");
+        assertEquals(1, r.exitCode(), r.err());
+        assertEquals(1, r.err().lines().count(), r.err());
+        assertTrue(r.err().startsWith("runoff experiment list: no broker answered in time"), r.err());
     }
 
     @Test
