@@ -8,6 +8,8 @@ public enum Check {
     RECORD,
     /** previousHash links to the record before it; the hash matches the record's content. */
     CHAIN,
+    /** The record is signed by a trusted key and the signature matches (only with public keys given). */
+    SIGNATURE,
     /** Sequence numbers run 1, 2, 3, ... without gaps, repeats or reordering. */
     SEQUENCE,
     /** The engine, fed the record's statistics, configuration and seed, reproduces it bit for bit. */

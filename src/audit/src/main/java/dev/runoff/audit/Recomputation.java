@@ -34,10 +34,11 @@ public final class Recomputation {
     /** Fields that belong to the stopping decision; a difference there is a {@link Check#STOPPING} finding. */
     private static final Set<String> STOPPING_FIELDS = Set.of("decision", "winner", "reason", "statistic",
             "threshold");
-    /** Fields checked by the chain, not here. */
-    private static final List<String> CHAIN_FIELDS = List.of("previousHash", "hash");
+    /** Fields checked by the chain and the signature check, not here. */
+    private static final List<String> CHAIN_FIELDS = List.of("previousHash", "hash", "keyId", "signature");
     /** Fields left out when recomputing a record without {@code startedAt}: the chain's, and the start assumed. */
-    private static final List<String> WITHOUT_START = List.of("previousHash", "hash", "startedAt");
+    private static final List<String> WITHOUT_START = List.of("previousHash", "hash", "keyId", "signature",
+            "startedAt");
 
     /** Outcome over one experiment: findings, the number reproduced, notes. */
     record Result(List<Finding> findings, int reproduced, List<String> notes) {

@@ -1,6 +1,7 @@
 package dev.runoff.audit;
 
 import dev.runoff.records.Problem;
+import dev.runoff.records.SignatureVerifier;
 import dev.runoff.records.avro.DecisionRecord;
 import java.util.ArrayList;
 import java.util.Arrays;
@@ -9,20 +10,51 @@ import java.util.List;
 import java.util.Locale;
 import java.util.Map;
 import java.util.Objects;
+import java.util.Optional;
 
 /**
  * Runs every check of {@code audit verify} on the records read, experiment by experiment, in the order read:
  * the codec's rules (including that each hash matches its content), the chain links, the sequence numbers,
- * the recomputation and the stopping decision, and the sample-ratio test of each period.
+ * the signatures (when public keys are given), the recomputation and the stopping decision, and the
+ * sample-ratio test of each period.
  */
 public final class Verifier {
 
     private final SampleRatio sampleRatio;
     private final Recomputation recomputation = new Recomputation();
+    private final SignatureVerifier keys;
+    private final Map<String, String> lastHashes;
 
-    /** A verifier whose sample-ratio test runs at significance level {@code alpha}. */
+    /**
+     * A verifier whose sample-ratio test runs at significance level {@code alpha}, checking no signature
+     * (authorship is not checked).
+     */
     public Verifier(double alpha) {
+        this(alpha, null);
+    }
+
+    /**
+     * A verifier whose sample-ratio test runs at significance level {@code alpha} and that checks every
+     * record's signature against {@code keys} (null: authorship not checked).
+     */
+    public Verifier(double alpha, SignatureVerifier keys) {
+        this(alpha, keys, Map.of());
+    }
+
+    /**
+     * As {@link #Verifier(double, SignatureVerifier)}, also checking that each experiment in {@code lastHashes}
+     * (experiment id to the hash of its latest record, kept apart from the topic) still has a record with that
+     * hash: the chain alone cannot show that records were cut off its end.
+     */
+    public Verifier(double alpha, SignatureVerifier keys, Map<String, String> lastHashes) {
         this.sampleRatio = new SampleRatio(alpha);
+        this.keys = keys;
+        this.lastHashes = Map.copyOf(lastHashes);
+    }
+
+    /** The trusted public keys, or empty when authorship is not checked. */
+    public Optional<SignatureVerifier> keys() {
+        return Optional.ofNullable(keys);
     }
 
     /** The audits of every experiment in {@code entries}, in the order each experiment first appears. */
@@ -41,6 +73,16 @@ public final class Verifier {
     public ExperimentAudit verifyExperiment(String experimentId, List<Entry> entries) {
         List<Finding> findings = new ArrayList<>(recordProblems(entries));
         findings.addAll(ChainCheck.check(entries));
+        if (keys != null) {
+            findings.addAll(SignatureCheck.check(entries, keys));
+        }
+        String anchor = experimentId == null ? null : lastHashes.get(experimentId);
+        if (anchor != null && !entries.isEmpty() && entries.stream().noneMatch(e -> anchor.equals(e.hash()))) {
+            int last = entries.size() - 1;
+            findings.add(Finding.of(last, entries.get(last), Check.CHAIN, "hash", "no record has the hash " + anchor
+                    + " kept as the latest: records were cut off the end (the last one read has hash "
+                    + entries.get(last).hash() + ")"));
+        }
         findings.addAll(SequenceCheck.check(entries));
         Recomputation.Result recomputed = recomputation.check(entries);
         findings.addAll(recomputed.findings());

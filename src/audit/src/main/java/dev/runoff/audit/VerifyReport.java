@@ -4,6 +4,8 @@ import java.util.ArrayList;
 import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
+import java.util.Set;
+import java.util.TreeSet;
 
 /** The result of {@code audit verify} as readable text or as JSON. */
 public final class VerifyReport {
@@ -22,6 +24,23 @@ public final class VerifyReport {
     }
 
     /** A paragraph per experiment: verdict, counts, first failure, further findings, sample-ratio summary. */
+    public static String text(List<ExperimentAudit> audits, double alpha, Set<String> keyIds) {
+        return authorship(keyIds) + "\n" + text(audits, alpha);
+    }
+
+    /**
+     * One line on authorship: the key ids signatures were checked against, or that authorship was not
+     * checked ({@code keyIds} null).
+     */
+    public static String authorship(Set<String> keyIds) {
+        return keyIds == null
+                ? "Authorship: NOT checked (no --public-key given): the chain shows the records are complete, in "
+                + "order and unedited since sealed, not who wrote them; anyone able to write to the topic can "
+                + "reseal a forged chain"
+                : "Authorship: every signature checked against key(s) " + new TreeSet<>(keyIds);
+    }
+
+    /** The text report without the authorship line. */
     public static String text(List<ExperimentAudit> audits, double alpha) {
         StringBuilder out = new StringBuilder();
         if (audits.isEmpty()) {
@@ -68,9 +87,19 @@ public final class VerifyReport {
 
     /** {@code {"verified": bool, "alpha": a, "experiments": [...]}} with every finding and period. */
     public static String json(List<ExperimentAudit> audits, double alpha) {
+        return json(audits, alpha, null);
+    }
+
+    /**
+     * As {@link #json(List, double)} with {@code "authorshipChecked"} and {@code "publicKeys"} (the key ids,
+     * null when no key was given).
+     */
+    public static String json(List<ExperimentAudit> audits, double alpha, Set<String> keyIds) {
         Map<String, Object> root = new LinkedHashMap<>();
         root.put("verified", passed(audits));
         root.put("alpha", alpha);
+        root.put("authorshipChecked", keyIds != null);
+        root.put("publicKeys", keyIds == null ? null : List.copyOf(new TreeSet<>(keyIds)));
         List<Map<String, Object>> experiments = new ArrayList<>();
         for (ExperimentAudit audit : audits) {
             Map<String, Object> map = new LinkedHashMap<>();

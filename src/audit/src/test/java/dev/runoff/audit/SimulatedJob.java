@@ -16,6 +16,7 @@ import dev.runoff.decision.Evaluator;
 import dev.runoff.decision.ExperimentState;
 import java.util.ArrayList;
 import java.util.List;
+import java.util.function.IntFunction;
 import org.apache.commons.rng.UniformRandomProvider;
 import org.apache.commons.rng.simple.RandomSource;
 
@@ -57,6 +58,12 @@ final class SimulatedJob {
      */
     static List<DecisionRecord> run(ExperimentDefinition definition, double[] clickRates, int rounds, int exposures,
                                     long seed) {
+        return run(definition, round -> clickRates, rounds, exposures, seed);
+    }
+
+    /** As above with the click rates of each round (0 for the first period) given by {@code ratesOfRound}. */
+    static List<DecisionRecord> run(ExperimentDefinition definition, IntFunction<double[]> ratesOfRound, int rounds,
+                                    int exposures, long seed) {
         UniformRandomProvider rng = RandomSource.SPLIT_MIX_64.create(seed);
         Evaluator evaluator = new Evaluator(2_000);
         long now = Chains.T0;
@@ -65,7 +72,7 @@ final class SimulatedJob {
         for (int r = 0; r < rounds && !result.next().stopped(); r++) {
             double[] weights = result.decision().getArms().stream().mapToDouble(ArmState::getWeight).toArray();
             ExperimentState state = result.next();
-            long[][] counts = serve(rng, weights, clickRates, exposures);
+            long[][] counts = serve(rng, weights, ratesOfRound.apply(r), exposures);
             now += PERIOD_MS;
             for (int i = 0; i < weights.length; i++) {
                 state = state.withDelta(i, new BernoulliStats(counts[0][i], counts[1][i]), now - PERIOD_MS / 2);

@@ -10,6 +10,7 @@ import dev.runoff.audit.Timeline;
 import dev.runoff.audit.TimelineWriter;
 import dev.runoff.audit.TopicSource;
 import dev.runoff.audit.Verifier;
+import dev.runoff.records.SignatureVerifier;
 import dev.runoff.audit.VerifyReport;
 import java.io.IOException;
 import java.io.InputStream;
@@ -129,7 +130,8 @@ final class AuditCommand implements Runnable {
     /** {@code runoff audit verify}. */
     @Command(name = "verify", mixinStandardHelpOptions = true, versionProvider = VersionInfo.class,
             description = "Check decision records: hash chain, sequence numbers, recomputation by the engine,"
-                    + " the stopping rule, and that exposures followed the published weights (sample ratio).",
+                    + " the stopping rule, that exposures followed the published weights (sample ratio), and with"
+                    + " --public-key who signed them.",
             exitCodeListHeading = ExitCodes.HEADING,
             exitCodeList = {"0:everything verifies", "1:something fails to verify", "2:bad arguments"})
     static final class Verify implements Callable<Integer> {
@@ -147,17 +149,30 @@ final class AuditCommand implements Runnable {
         @Option(names = "--json", description = "Print the result as JSON.")
         private boolean json;
 
+        @Option(names = "--public-key", paramLabel = "[ID=]PEM",
+                description = "Ed25519 public key (PEM) the records may be signed with; repeat it for every key in"
+                        + " use since the first record (rotation). The key id is the file's 'Key-Id:' line, or ID."
+                        + " Without it, authorship is not checked.")
+        private List<String> publicKeys = List.of();
+
+        @Option(names = "--last-hash", paramLabel = "EXPERIMENT=HASH",
+                description = "Hash of an experiment's latest record, kept apart from the topic (repeatable): fails"
+                        + " when no record has it, i.e. when records were cut off the end of the chain.")
+        private java.util.Map<String, String> lastHashes = java.util.Map.of();
+
         @Override
         public Integer call() {
             Verifier verifier;
+            SignatureVerifier keys = PublicKeyFiles.read(spec, publicKeys);
             try {
-                verifier = new Verifier(alpha);
+                verifier = new Verifier(alpha, keys, lastHashes);
             } catch (IllegalArgumentException e) {
                 throw new ParameterException(spec.commandLine(), "--alpha: " + e.getMessage(), e);
             }
             List<ExperimentAudit> audits = verifier.verify(source.read());
             PrintWriter out = spec.commandLine().getOut();
-            out.print(json ? VerifyReport.json(audits, alpha) : VerifyReport.text(audits, alpha));
+            java.util.Set<String> ids = keys == null ? null : keys.keyIds();
+            out.print(json ? VerifyReport.json(audits, alpha, ids) : VerifyReport.text(audits, alpha, ids));
             out.flush();
             return VerifyReport.passed(audits) ? 0 : 1;
         }

@@ -3,6 +3,7 @@ package dev.runoff.cli;
 import dev.runoff.job.InvalidConfigException;
 import dev.runoff.job.JobConfig;
 import dev.runoff.job.StreamsJob;
+import dev.runoff.records.RecordSigner;
 import java.nio.file.Path;
 import java.time.Duration;
 import java.util.Map;
@@ -57,12 +58,14 @@ final class RunCommand implements Callable<Integer> {
     public Integer call() throws InterruptedException {
         System.setProperty(LOG4J_SHUTDOWN_HOOK, "false");
         JobConfig loaded;
+        RecordSigner signer;
         try {
             loaded = JobConfig.load(config, env, Map.of(), true);
+            signer = loaded.signing().signer();
         } catch (InvalidConfigException e) {
             return ConfigProblems.print(spec, e);
         }
-        StreamsJob job = StreamsJob.start(loaded);
+        StreamsJob job = StreamsJob.start(loaded, signer);
         Thread hook = new Thread(() -> {
             job.close();
             LogManager.shutdown();

@@ -11,7 +11,11 @@ import dev.runoff.broker.EmbeddedKafkaBroker;
 import dev.runoff.engine.planning.SimulationResult;
 import dev.runoff.records.CanonicalJson;
 import dev.runoff.records.Format;
+import dev.runoff.records.Ed25519;
 import dev.runoff.records.HashChain;
+import dev.runoff.records.Pem;
+import dev.runoff.records.RecordSigner;
+import dev.runoff.records.VerificationKey;
 import dev.runoff.records.avro.AllocationUpdate;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
@@ -22,6 +26,7 @@ import java.io.UncheckedIOException;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
+import java.security.SecureRandom;
 import java.time.Clock;
 import java.time.Duration;
 import java.util.ArrayList;
@@ -49,7 +54,11 @@ public final class Demo {
     /** How long the summary waits for an unfinished planner simulation after the STOP. */
     static final Duration SIMULATION_PATIENCE = Duration.ofSeconds(5);
 
+    /** Id of the key pair each demo run generates. */
+    static final String KEY_ID = "demo";
+
     private final DemoOptions options;
+    private final Ed25519.Pair keys;
     private final DemoReport report;
     private final Clock clock;
     private final Closer closer = new Closer();
@@ -60,6 +69,16 @@ public final class Demo {
      * @param clock   the wall clock of event timestamps and elapsed times
      */
     public Demo(DemoOptions options, PrintWriter out, Clock clock) {
+        this(options, out, clock, new SecureRandom());
+    }
+
+    /**
+     * A demo as above whose signing key pair (one per run) is drawn from {@code keyRandom}.
+     *
+     * @param keyRandom source of the run's Ed25519 key pair
+     */
+    public Demo(DemoOptions options, PrintWriter out, Clock clock, SecureRandom keyRandom) {
+        this.keys = Ed25519.generate(KEY_ID, keyRandom);
         this.options = options;
         this.report = new DemoReport(out, options.json(), DemoReport.blocksPrintable());
         this.clock = clock;
@@ -92,7 +111,7 @@ public final class Demo {
         DemoSimulation simulation = closer.register(DemoSimulation.start(definition, scenario.rates(),
                 options.visitorsPerPeriod(), options.seed()));
         JobConfig config = startCluster();
-        StreamsJob job = closer.register(StreamsJob.start(config));
+        StreamsJob job = closer.register(StreamsJob.start(config, RecordSigner.with(keys.signing())));
         Waiting.until("the job reaching RUNNING", START_TIMEOUT, () -> {
             if (job.failed()) {
                 throw new IllegalStateException("the job failed while starting (state " + job.state() + ")");
@@ -195,6 +214,10 @@ public final class Demo {
         Path exported = options.exportDecisions();
         if (exported != null) {
             export(records, exported);
+            Path publicKey = publicKeyFile(exported);
+            writePublicKey(keys.verification(), publicKey);
+            report.note("decision records signed with this run's key '" + KEY_ID + "'; check them with: runoff audit "
+                    + "verify --file " + exported + " --public-key " + publicKey);
         }
         double[] predicted = DemoSummary.predictions(scenario.rates(), options.delta());
         DemoSummary summary = new DemoSummary(last, records.size(), elapsed, visitors.visitors(), scenario.trueBest(),
@@ -203,6 +226,19 @@ public final class Demo {
         report.summary(summary, options);
         report.note("shutting down: job, broker, temporary directory ...");
         return summary;
+    }
+
+    /** Where the public key of an export to {@code file} goes: {@code FILE.pub.pem}. */
+    public static Path publicKeyFile(Path file) {
+        return file.resolveSibling(file.getFileName() + ".pub.pem");
+    }
+
+    private static void writePublicKey(VerificationKey key, Path file) {
+        try {
+            Files.writeString(file, Pem.write(key), StandardCharsets.US_ASCII);
+        } catch (IOException e) {
+            throw new UncheckedIOException("cannot write " + file + ": " + e.getMessage(), e);
+        }
     }
 
     /** Writes {@code records} to {@code file} as canonical JSON, one per line. */

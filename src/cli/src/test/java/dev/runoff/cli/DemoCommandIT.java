@@ -78,6 +78,14 @@ class DemoCommandIT {
         assertEquals(periods, exported.size());
         assertTrue(HashChain.firstBreak(exported).isEmpty(), "hash chain of the exported records");
         assertEquals("flexible-bundle", exported.get(exported.size() - 1).getWinner());
+        assertTrue(exported.stream().allMatch(d -> "demo".equals(d.getKeyId()) && d.getSignature() != null),
+                "every exported record is signed with the run's key");
+        Path publicKey = Path.of(export + ".pub.pem");
+        assertTrue(Files.isRegularFile(publicKey), "the run's public key next to the export");
+        CliRun verified = CliRun.of("audit", "verify", "--file", export.toString(), "--public-key", publicKey.toString());
+        assertEquals(0, verified.exitCode(), verified.out() + verified.err());
+        assertTrue(verified.out().contains("Authorship: every signature checked against key(s) [demo]"),
+                verified.out());
 
         // the planner's figures for the hidden rates 3% and 5% at delta 0.05, computed here from the planner
         ArmModel model = ArmModel.bernoulli(0.030, 0.050);

@@ -3,6 +3,9 @@ package dev.runoff.demo;
 import dev.runoff.job.StreamsJob;
 
 import dev.runoff.job.JobConfig;
+import dev.runoff.job.SigningSettings;
+import dev.runoff.records.Ed25519;
+import dev.runoff.records.Pem;
 import dev.runoff.job.AppSettings;
 import dev.runoff.job.DefinitionsClient;
 import dev.runoff.job.TopicSpec;
@@ -29,6 +32,7 @@ import dev.runoff.records.Format;
 import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.OutcomeEvent;
 import java.net.http.HttpResponse;
+import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Clock;
 import java.time.Duration;
@@ -74,11 +78,28 @@ class StreamsJobIT {
     }
 
     private static JobConfig config(String instance, int httpPort) {
-        return JobConfig.of(Map.of("bootstrap.servers", broker.bootstrapServers(),
+        Map<String, String> values = new java.util.HashMap<>(Map.of("bootstrap.servers", broker.bootstrapServers(),
                 "application.id", "job-test", "state.dir", dir.resolve(instance).toString(),
                 "application.server", "127.0.0.1:" + httpPort, "commit.interval.ms", "100",
                 "num.stream.threads", "1", "runoff.http.port", String.valueOf(httpPort),
                 "runoff.flush.interval.ms", "100", "runoff.allocate.interval.ms", "100"));
+        values.put(SigningSettings.KEY_FILE_KEY, keyFile().toString());
+        values.put(SigningSettings.KEY_ID_KEY, "job-it");
+        return JobConfig.of(values);
+    }
+
+    /** A private key PEM for the job, as a mounted Secret would hold it. */
+    private static Path keyFile() {
+        Path file = dir.resolve("signing.pem");
+        if (!Files.exists(file)) {
+            try {
+                Files.writeString(file, Pem.write(Ed25519.generate("job-it", new java.security.SecureRandom())
+                        .signing()));
+            } catch (java.io.IOException e) {
+                throw new java.io.UncheckedIOException(e);
+            }
+        }
+        return file;
     }
 
     @Test

@@ -2,6 +2,7 @@ package dev.runoff.client;
 
 import dev.runoff.records.Decoded;
 import dev.runoff.records.RecordCodec;
+import dev.runoff.records.SignatureVerifier;
 import dev.runoff.records.avro.AllocationUpdate;
 import java.time.Clock;
 import java.util.HashMap;
@@ -22,15 +23,17 @@ import org.slf4j.LoggerFactory;
  *
  * <p>Writing: {@link #apply} (or a {@link ControlTopicFollower}) decodes a control record, builds a new
  * snapshot and swaps it in; writers are serialised. A record is applied only if it is valid (as
- * {@code RecordCodec.allocationUpdates()} judges it), its key equals its experiment id, and its
- * (definitionVersion, sequence) is later than the one held; a null value (tombstone) removes the experiment.
- * Anything else is skipped and counted, never thrown.
+ * {@code RecordCodec.allocationUpdates()} judges it), its key equals its experiment id, its signature
+ * verifies when the table was created with a {@link SignatureVerifier}, and it is later than the one held
+ * (greater sequence, definitionVersion no smaller: see {@code CompiledAllocation#isSupersededBy}); a null
+ * value (tombstone) removes the experiment. Anything else is skipped and counted, never thrown.
  *
- * <p>Picks, in order: an experiment the table does not hold gets the policy's default arm; a STOPPED
- * experiment gets its winner or a draw from the record's weights ({@link StoppedPick}), whatever its
- * {@code validUntil} (a stop is final); a running experiment past {@code validUntil} on the injected clock
- * gets the {@link StaleFallback}; otherwise a draw from the current weights, {@link Assignment#HASHED}
- * (same unit, same weights, same arm) or {@link Assignment#RANDOM}.
+ * <p>Picks, in order: an experiment the table does not hold gets the policy's default arm; an experiment
+ * past {@code validUntil} on the injected clock, running or STOPPED, gets the {@link StaleFallback} (the job
+ * re-publishes a stopped experiment at every heartbeat, so only a record nobody renews goes stale); a
+ * STOPPED experiment gets its winner or a draw from the record's weights ({@link StoppedPick}); otherwise a
+ * draw from the current weights, {@link Assignment#HASHED} (same unit, same weights, same arm) or
+ * {@link Assignment#RANDOM}.
  */
 public final class AllocationTable {
     private static final Logger LOG = LoggerFactory.getLogger(AllocationTable.class);
@@ -44,11 +47,13 @@ public final class AllocationTable {
     private final boolean winnerAfterStop;
     private final RecordCodec<AllocationUpdate> codec = RecordCodec.allocationUpdates();
     private final Counters counters = new Counters();
+    private final SignatureVerifier signatures;
     private final Object writeLock = new Object();
     private volatile HashMap<String, CompiledAllocation> snapshot = new HashMap<>();
 
-    private AllocationTable(PickPolicy policy, Clock clock) {
+    private AllocationTable(PickPolicy policy, Clock clock, SignatureVerifier signatures) {
         this.policy = policy;
+        this.signatures = signatures;
         this.clock = clock;
         this.defaultArm = policy.defaultArm();
         this.uniformSource = policy.uniformSource();
@@ -63,7 +68,21 @@ public final class AllocationTable {
      * @param clock  the time against which {@code validUntil} is judged (for example {@code Clock.systemUTC()})
      */
     public static AllocationTable create(PickPolicy policy, Clock clock) {
-        return new AllocationTable(Objects.requireNonNull(policy, "policy"), Objects.requireNonNull(clock, "clock"));
+        return new AllocationTable(Objects.requireNonNull(policy, "policy"), Objects.requireNonNull(clock, "clock"),
+                null);
+    }
+
+    /**
+     * An empty table that applies only control records signed by one of {@code signatures}' keys; the others
+     * are skipped and counted in {@link ServingMetrics#unverifiedRecords()}.
+     *
+     * @param policy     how to pick
+     * @param clock      the time against which {@code validUntil} is judged
+     * @param signatures the trusted public keys of the job (several during a key rotation)
+     */
+    public static AllocationTable create(PickPolicy policy, Clock clock, SignatureVerifier signatures) {
+        return new AllocationTable(Objects.requireNonNull(policy, "policy"), Objects.requireNonNull(clock, "clock"),
+                Objects.requireNonNull(signatures, "signatures"));
     }
 
     /**
@@ -83,13 +102,13 @@ public final class AllocationTable {
             counters.unknownExperimentPicks.increment();
             return defaultArm;
         }
-        if (allocation.stopped()) {
-            counters.stoppedPicks.increment();
-            return winnerAfterStop ? allocation.winner() : weighted(allocation, unitKey);
-        }
         if (clock.millis() > allocation.validUntil()) {
             counters.stalePicks.increment();
             return stale(allocation, unitKey);
+        }
+        if (allocation.stopped()) {
+            counters.stoppedPicks.increment();
+            return winnerAfterStop ? allocation.winner() : weighted(allocation, unitKey);
         }
         return weighted(allocation, unitKey);
     }
@@ -210,6 +229,14 @@ public final class AllocationTable {
         if (!key.equals(update.getExperimentId())) {
             return malformed(key, "experimentId '" + update.getExperimentId() + "' differs from the key");
         }
+        if (signatures != null) {
+            SignatureVerifier.Outcome outcome = signatures.check(update);
+            if (!outcome.valid()) {
+                counters.unverifiedRecords.increment();
+                LOG.warn("Skipped control record with key '{}': {}", shorten(key), outcome.message());
+                return ControlRecordOutcome.UNVERIFIED;
+            }
+        }
         CompiledAllocation held = next.get(key);
         if (held != null && !held.isSupersededBy(update)) {
             counters.outdatedRecords.increment();
@@ -222,9 +249,12 @@ public final class AllocationTable {
 
     private ControlRecordOutcome malformed(String key, String why) {
         counters.malformedRecords.increment();
-        String shownKey = key.length() > LOGGED_KEY_CHARS ? key.substring(0, LOGGED_KEY_CHARS) + "..." : key;
-        LOG.warn("Skipped control record with key '{}': {}", shownKey, why);
+        LOG.warn("Skipped control record with key '{}': {}", shorten(key), why);
         return ControlRecordOutcome.MALFORMED;
+    }
+
+    private static String shorten(String key) {
+        return key.length() > LOGGED_KEY_CHARS ? key.substring(0, LOGGED_KEY_CHARS) + "..." : key;
     }
 
     /** The live counters, for the follower's poll errors. */

@@ -80,11 +80,15 @@ final class CompiledAllocation {
         return record.getValidUntil();
     }
 
-    /** True when {@code newer} has a later (definitionVersion, sequence) than this record. */
+    /**
+     * True when {@code newer} is a later record the job could have written after this one: a greater
+     * sequence (the job numbers an experiment's control records 1, 2, 3, ... across definition versions) and a
+     * definitionVersion no smaller (the job moves it forward only together with the sequence). A record that
+     * raises the version without raising the sequence is not one the job can produce.
+     */
     boolean isSupersededBy(AllocationUpdate newer) {
-        long version = record.getDefinitionVersion();
-        return newer.getDefinitionVersion() > version
-                || newer.getDefinitionVersion() == version && newer.getSequence() > record.getSequence();
+        return newer.getSequence() > record.getSequence()
+                && newer.getDefinitionVersion() >= record.getDefinitionVersion();
     }
 
     /** Deterministic position in [0, 1) of {@code unitKey} under this record's salt. */

@@ -8,6 +8,14 @@ public enum ControlRecordOutcome {
     REMOVED,
     /** The record failed to decode or validate, or its key was missing or differed from its experiment id. */
     MALFORMED,
-    /** A valid record not newer, by (definitionVersion, sequence), than the one the table holds. */
-    OUTDATED
+    /**
+     * A valid record that is not a later record than the one the table holds: its sequence is not greater,
+     * or its definitionVersion is smaller.
+     */
+    OUTDATED,
+    /**
+     * The table verifies signatures and the record is unsigned, signed by a key it does not trust, or its
+     * signature does not match: skipped, never applied.
+     */
+    UNVERIFIED
 }

@@ -23,7 +23,8 @@ import org.slf4j.LoggerFactory;
  * daemon thread. {@link Builder#start()} returns once the table has read every partition up to the end
  * offsets it saw when it started, so the first request does not see an empty table; after that the thread
  * keeps following the topic. Failed polls are counted in {@link ServingMetrics#pollErrors()}, logged and
- * retried after a back-off; malformed records are skipped and counted by the table. Neither ends the thread.
+ * retried after a back-off; malformed records (and, when the table verifies signatures, unverified ones)
+ * are skipped and counted by the table. Neither ends the thread.
  */
 public final class ControlTopicFollower implements AutoCloseable {
     /** Default name of the control topic. */

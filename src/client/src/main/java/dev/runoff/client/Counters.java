@@ -14,10 +14,12 @@ final class Counters {
     final LongAdder malformedRecords = new LongAdder();
     final LongAdder outdatedRecords = new LongAdder();
     final LongAdder pollErrors = new LongAdder();
+    final LongAdder unverifiedRecords = new LongAdder();
 
     ServingMetrics read(int experiments) {
         return new ServingMetrics(picks.sum(), unknownExperimentPicks.sum(), missingUnitKeyPicks.sum(),
                 stalePicks.sum(), stoppedPicks.sum(), recordsApplied.sum(), tombstones.sum(),
-                malformedRecords.sum(), outdatedRecords.sum(), pollErrors.sum(), experiments);
+                malformedRecords.sum(), outdatedRecords.sum(), pollErrors.sum(), experiments,
+                unverifiedRecords.sum());
     }
 }

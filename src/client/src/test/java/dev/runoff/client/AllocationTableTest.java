@@ -153,15 +153,21 @@ class AllocationTableTest {
     }
 
     @Test
-    void olderOrRepeatedRecordIsOutdatedButNewerDefinitionVersionWins() {
+    void olderOrRepeatedRecordIsOutdatedAndANewVersionNeedsAGreaterSequence() {
         AllocationTable table = table();
         table.apply("e", avro(running("e", 5, "a", 0.0, "b", 1.0)));
         assertEquals(ControlRecordOutcome.OUTDATED, table.apply("e", avro(running("e", 4, "a", 1.0, "b", 0.0))));
         assertEquals(ControlRecordOutcome.OUTDATED, table.apply("e", avro(running("e", 5, "a", 1.0, "b", 0.0))));
-        assertEquals(2, table.metrics().outdatedRecords());
+        // the job numbers control records across versions: a new version at a lower sequence is not its record
+        assertEquals(ControlRecordOutcome.OUTDATED,
+                table.apply("e", avro(version(running("e", 1, "a", 1.0, "b", 0.0), Long.MAX_VALUE))));
+        assertEquals(3, table.metrics().outdatedRecords());
         assertEquals("b", table.pick("e", "u"));
-        AllocationUpdate nextVersion = version(running("e", 1, "a", 1.0, "b", 0.0), 2);
-        assertEquals(ControlRecordOutcome.APPLIED, table.apply("e", avro(nextVersion)));
+        assertEquals(ControlRecordOutcome.APPLIED,
+                table.apply("e", avro(version(running("e", 6, "a", 1.0, "b", 0.0), 2))));
+        assertEquals("a", table.pick("e", "u"));
+        // nor does the version move back
+        assertEquals(ControlRecordOutcome.OUTDATED, table.apply("e", avro(running("e", 7, "a", 0.0, "b", 1.0))));
         assertEquals("a", table.pick("e", "u"));
     }
 
@@ -206,15 +212,18 @@ class AllocationTableTest {
     }
 
     @Test
-    void stoppedExperimentServesWinnerEvenPastValidUntil() {
+    void stoppedExperimentServesWinnerUntilValidUntilThenTheStaleFallback() {
         AllocationTable table = table(p -> p.afterStop(StoppedPick.WINNER).staleFallback(StaleFallback.DEFAULT_ARM));
         table.apply("e", avro(stopped("e", 9, "b", "a", 0.5, "b", 0.5)));
-        clock.set(VALID_UNTIL + 86_400_000L);
         for (int i = 0; i < 1_000; i++) {
             assertEquals("b", table.pick("e", "user-" + i));
         }
+        clock.set(VALID_UNTIL + 1);
+        for (int i = 0; i < 1_000; i++) {
+            assertEquals("fallback", table.pick("e", "user-" + i));
+        }
         assertEquals(1_000, table.metrics().stoppedPicks());
-        assertEquals(0, table.metrics().stalePicks());
+        assertEquals(1_000, table.metrics().stalePicks());
     }
 
     @Test

@@ -36,12 +36,15 @@ public final class JobConfig {
     private final Map<String, String> kafka;
     private final TopologySettings topology;
     private final AppSettings app;
+    private final SigningSettings signing;
     private final List<String> ignored;
 
-    private JobConfig(Map<String, String> kafka, TopologySettings topology, AppSettings app, List<String> ignored) {
+    private JobConfig(Map<String, String> kafka, TopologySettings topology, AppSettings app, SigningSettings signing,
+                      List<String> ignored) {
         this.kafka = Collections.unmodifiableMap(new LinkedHashMap<>(kafka));
         this.topology = topology;
         this.app = app;
+        this.signing = signing;
         this.ignored = List.copyOf(ignored);
     }
 
@@ -73,8 +76,11 @@ public final class JobConfig {
         Map<String, String> kafka = new LinkedHashMap<>();
         Map<String, String> topologyKeys = new LinkedHashMap<>();
         Map<String, String> appKeys = new LinkedHashMap<>();
+        Map<String, String> signingKeys = new LinkedHashMap<>();
         for (Setting s : settings.values()) {
-            if (AppSettings.KEYS.contains(s.key())) {
+            if (SigningSettings.KEYS.contains(s.key())) {
+                signingKeys.put(s.key(), s.value());
+            } else if (AppSettings.KEYS.contains(s.key())) {
                 appKeys.put(s.key(), s.value());
             } else if (s.key().startsWith(RUNOFF_PREFIX)) {
                 topologyKeys.put(s.key(), s.value());
@@ -86,6 +92,7 @@ public final class JobConfig {
             }
         }
         AppSettings app = AppSettings.from(appKeys, p -> problems.add(at(settings.get(keyOf(p)), p)));
+        SigningSettings signing = SigningSettings.from(signingKeys, p -> problems.add(at(settings.get(keyOf(p)), p)));
         TopologySettings topology = null;
         if (problems.isEmpty()) {
             try {
@@ -99,7 +106,7 @@ public final class JobConfig {
             throw new InvalidConfigException(problems);
         }
         kafka.putIfAbsent(StreamsConfig.APPLICATION_ID_CONFIG, DEFAULT_APPLICATION_ID);
-        return new JobConfig(kafka, topology, app, ignored);
+        return new JobConfig(kafka, topology, app, signing, ignored);
     }
 
     private static Optional<String> topologyProblem(Map<String, String> one) {
@@ -109,7 +116,8 @@ public final class JobConfig {
         } catch (IllegalArgumentException e) {
             String message = e.getMessage();
             return Optional.of(message.startsWith("unknown setting")
-                    ? message + "; the application's own keys are " + AppSettings.KEYS : message);
+                    ? message + "; the application's own keys are " + AppSettings.KEYS + " and " + SigningSettings.KEYS
+                    : message);
         }
     }
 
@@ -124,6 +132,7 @@ public final class JobConfig {
     /** Every key the job knows: its own runoff.* keys and the plain Kafka keys. */
     static Set<String> knownKeys() {
         Set<String> keys = new java.util.LinkedHashSet<>(AppSettings.KEYS);
+        keys.addAll(SigningSettings.KEYS);
         for (java.lang.reflect.Field f : TopologySettings.class.getFields()) {
             if (java.lang.reflect.Modifier.isStatic(f.getModifiers()) && f.getType() == String.class
                     && f.getName().endsWith("_KEY")) {
@@ -191,6 +200,11 @@ public final class JobConfig {
     /** The topology's settings. */
     public TopologySettings topology() {
         return topology;
+    }
+
+    /** The signing settings; the key itself is read by {@link SigningSettings#signer()} at start. */
+    public SigningSettings signing() {
+        return signing;
     }
 
     /** The application's settings. */

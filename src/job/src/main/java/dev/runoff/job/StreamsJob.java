@@ -1,5 +1,6 @@
 package dev.runoff.job;
 
+import dev.runoff.records.RecordSigner;
 import dev.runoff.topology.JobCounters;
 import dev.runoff.topology.RunoffTopology;
 import java.time.Duration;
@@ -50,9 +51,17 @@ public final class StreamsJob implements AutoCloseable {
      * connects in the background: see {@code /ready}).
      */
     public static StreamsJob start(JobConfig config) {
+        return start(config, config.signing().signer());
+    }
+
+    /**
+     * As {@link #start(JobConfig)}, signing the decision and control records with {@code signer} (which
+     * {@link SigningSettings#signer()} reads from the configuration).
+     */
+    public static StreamsJob start(JobConfig config, RecordSigner signer) {
         JobCounters counters = new JobCounters();
         Properties props = RunoffTopology.streamsConfig(config.topology(), counters, config.streamsOverrides());
-        Topology topology = RunoffTopology.build(config.topology(), props, counters);
+        Topology topology = RunoffTopology.build(config.topology(), props, counters, System::nanoTime, signer);
         KafkaStreams streams = new KafkaStreams(topology, props);
         JobMetrics metrics = new JobMetrics(streams, counters, config.applicationId());
         StatusServer http;
@@ -66,8 +75,10 @@ public final class StreamsJob implements AutoCloseable {
         StreamsJob job = new StreamsJob(config, counters, streams, metrics, http);
         streams.setUncaughtExceptionHandler(new ReplaceThreadHandler(metrics::threadReplaced));
         streams.setStateListener(job::stateChanged);
-        LOG.info("event=job-starting application.id={} bootstrap.servers={} http.port={} topics={}",
-                config.applicationId(), config.bootstrapServers(), http.port(), config.topology());
+        LOG.info("event=job-starting application.id={} bootstrap.servers={} http.port={} signing.key.id={} topics={}",
+                config.applicationId(), config.bootstrapServers(), http.port(),
+                signer.signs() ? signer.keyId() : "none (records unsigned: runoff.signing.required=false)",
+                config.topology());
         config.ignored().forEach(v -> LOG.warn("event=env-ignored variable={}", v));
         streams.start();
         return job;

@@ -4,6 +4,7 @@ import com.fasterxml.jackson.databind.ObjectMapper;
 import dev.runoff.decision.Evaluator;
 import dev.runoff.decision.ExperimentState;
 import dev.runoff.records.RecordCodec;
+import dev.runoff.records.RecordSigner;
 import dev.runoff.records.avro.AllocationUpdate;
 import dev.runoff.records.avro.DecisionRecord;
 import java.nio.charset.StandardCharsets;
@@ -24,6 +25,9 @@ import org.slf4j.LoggerFactory;
  * {@link TopologySettings#allocateMaxTimeMs()}. The next pass resumes where this one stopped, and after the
  * last experiment starts again from the first, so every experiment gets its turn.
  *
+ * <p>Every decision and control record is signed by the {@link RecordSigner} (the decision record after
+ * sealing: its hash leaves the signature fields out, so the chain's hashes do not depend on the key).
+ *
  * <p>An evaluation that throws leaves its experiment {@link ExperimentState#failed failed} (retried after new
  * data or the heartbeat) and is sent to the rejected topic with {@link RejectReason#EVALUATION_ERROR}; the
  * pass goes on with the next experiment.
@@ -40,6 +44,7 @@ final class AllocationPass {
     private final Output output;
     private final JobCounters counters;
     private final LongSupplier nanoTime;
+    private final RecordSigner signer;
     private final RecordCodec<DecisionRecord> decisions = RecordCodec.decisionRecords();
     private final RecordCodec<AllocationUpdate> updates = RecordCodec.allocationUpdates();
     private String resumeFrom;
@@ -55,6 +60,13 @@ final class AllocationPass {
      */
     AllocationPass(TopologySettings settings, Experiments experiments, Output output, JobCounters counters,
                    LongSupplier nanoTime) {
+        this(settings, experiments, output, counters, nanoTime, RecordSigner.unsigned());
+    }
+
+    /** As above, signing every decision and control record with {@code signer}. */
+    AllocationPass(TopologySettings settings, Experiments experiments, Output output, JobCounters counters,
+                   LongSupplier nanoTime, RecordSigner signer) {
+        this.signer = signer;
         this.settings = settings;
         this.evaluator = new Evaluator(settings.monteCarloDraws());
         this.experiments = experiments;
@@ -106,15 +118,15 @@ final class AllocationPass {
 
     private void heartbeat(String id, ExperimentState state, long now) {
         Evaluator.Republished republished = evaluator.heartbeat(state, now);
-        byte[] update = updates.encode(republished.update(), settings.outputFormat());
+        byte[] update = updates.encode(signer.sign(republished.update()), settings.outputFormat());
         experiments.put(id, republished.next());
         output.control(id, update, now);
     }
 
     private void evaluate(String id, ExperimentState state, long now) {
         Evaluator.Result result = evaluator.evaluate(state, now);
-        byte[] decision = decisions.encode(result.decision(), settings.outputFormat());
-        byte[] update = updates.encode(result.update(), settings.outputFormat());
+        byte[] decision = decisions.encode(signer.sign(result.decision()), settings.outputFormat());
+        byte[] update = updates.encode(signer.sign(result.update()), settings.outputFormat());
         experiments.put(id, result.next());
         output.decision(id, decision, now);
         output.control(id, update, now);

@@ -9,6 +9,7 @@ import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
 import dev.runoff.records.Definitions;
 import dev.runoff.records.RecordCodec;
+import dev.runoff.records.RecordSigner;
 import dev.runoff.records.avro.ExperimentDefinition;
 import java.nio.charset.StandardCharsets;
 import java.time.Duration;
@@ -45,11 +46,13 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
     private final Rejections rejections;
     private final JobCounters counters;
     private final LongSupplier nanoTime;
+    private final RecordSigner signer;
     private final RecordCodec<ExperimentDefinition> definitions = RecordCodec.definitions();
     private KeyValueStore<String, ExperimentState> experiments;
 
     Fold(String storeName, TopologySettings settings, Rejections rejections, JobCounters counters,
-         LongSupplier nanoTime) {
+         LongSupplier nanoTime, RecordSigner signer) {
+        this.signer = signer;
         this.storeName = storeName;
         this.settings = settings;
         this.rejections = rejections;
@@ -62,7 +65,7 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
         super.init(context);
         experiments = context.getStateStore(storeName);
         AllocationPass pass = new AllocationPass(settings, new StoredExperiments(experiments), new Forwarded(),
-                counters, nanoTime);
+                counters, nanoTime, signer);
         context.schedule(Duration.ofMillis(settings.allocateIntervalMs()), PunctuationType.WALL_CLOCK_TIME,
                 pass::run);
     }

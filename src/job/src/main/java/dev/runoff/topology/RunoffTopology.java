@@ -1,6 +1,6 @@
 package dev.runoff.topology;
 
-
+import dev.runoff.records.RecordSigner;
 import java.time.Duration;
 import java.util.Map;
 import java.util.Objects;
@@ -98,7 +98,7 @@ public final class RunoffTopology {
     }
 
     /**
-     * Builds the topology.
+     * Builds the topology; its records are unsigned.
      *
      * @param settings      the job's settings
      * @param streamsConfig the Kafka Streams settings (see {@link #streamsConfig})
@@ -107,6 +107,20 @@ public final class RunoffTopology {
      */
     public static Topology build(TopologySettings settings, Properties streamsConfig, JobCounters counters,
                                  LongSupplier nanoTime) {
+        return build(settings, streamsConfig, counters, nanoTime, RecordSigner.unsigned());
+    }
+
+    /**
+     * Builds the topology, signing every decision and control record with {@code signer}.
+     *
+     * @param settings      the job's settings
+     * @param streamsConfig the Kafka Streams settings (see {@link #streamsConfig})
+     * @param counters      where rejections and duplicates are counted
+     * @param nanoTime      monotonic clock bounding the time of an allocation pass (never used in a result)
+     * @param signer        signs the decision and control records (or leaves them unsigned)
+     */
+    public static Topology build(TopologySettings settings, Properties streamsConfig, JobCounters counters,
+                                 LongSupplier nanoTime, RecordSigner signer) {
         Rejections rejections = new Rejections(settings.rejectedTopic(), counters);
         StreamsBuilder builder = new StreamsBuilder(new TopologyConfig(new StreamsConfig(streamsConfig)));
         addStores(builder, settings);
@@ -132,7 +146,7 @@ public final class RunoffTopology {
 
         deltas.merge(definitions, Named.as("stage-two"))
                 .repartition(Repartitioned.with(Serdes.ByteArray(), StageTwo.SERDE).withName("by-experiment"))
-                .process(() -> new Fold(EXPERIMENTS_STORE, settings, rejections, counters, nanoTime), Named.as("fold"),
+                .process(() -> new Fold(EXPERIMENTS_STORE, settings, rejections, counters, nanoTime, signer), Named.as("fold"),
                         EXPERIMENTS_STORE)
                 .to(DESTINATION, Produced.with(Serdes.ByteArray(), EMIT_SERDE).withName("fold-outputs"));
         return builder.build(streamsConfig);

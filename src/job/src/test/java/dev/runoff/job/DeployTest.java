@@ -103,6 +103,24 @@ class DeployTest {
     }
 
     @Test
+    void theSigningKeyIsASecretMountedWhereTheConfigurationLooks() {
+        JsonNode set = manifest("StatefulSet/runoff");
+        String mount = null;
+        for (JsonNode m : container(set).get("volumeMounts")) {
+            if (m.get("name").asText().equals("signing-key")) {
+                mount = m.get("mountPath").asText();
+            }
+        }
+        assertEquals(config.getProperty(SigningSettings.KEY_FILE_KEY), mount + "/private.pem");
+        boolean secret = false;
+        for (JsonNode v : set.get("spec").get("template").get("spec").get("volumes")) {
+            secret |= v.get("name").asText().equals("signing-key")
+                    && v.get("secret").get("secretName").asText().equals("runoff-signing-key");
+        }
+        assertTrue(secret, "the signing-key volume is the Secret runoff-signing-key");
+    }
+
+    @Test
     void stateStoresLiveOnAPersistentVolumeAtTheConfiguredStateDir() {
         JsonNode set = manifest("StatefulSet/runoff");
         JsonNode claim = set.get("spec").get("volumeClaimTemplates").get(0);

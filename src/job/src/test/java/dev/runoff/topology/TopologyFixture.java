@@ -4,6 +4,7 @@ import dev.runoff.decision.ExperimentState;
 
 import dev.runoff.records.Decoded;
 import dev.runoff.records.RecordCodec;
+import dev.runoff.records.RecordSigner;
 import dev.runoff.records.avro.AllocationUpdate;
 import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.ExperimentDefinition;
@@ -56,10 +57,15 @@ final class TopologyFixture implements AutoCloseable {
     }
 
     TopologyFixture(TopologySettings settings) {
+        this(settings, RecordSigner.unsigned());
+    }
+
+    /** A job signing its decision and control records with {@code signer}. */
+    TopologyFixture(TopologySettings settings, RecordSigner signer) {
         this.settings = settings;
         Properties props = driverConfig(settings, counters, "runoff-ttd");
-        driver = new TopologyTestDriver(RunoffTopology.build(settings, props, counters), props,
-                Instant.ofEpochMilli(T0));
+        driver = new TopologyTestDriver(RunoffTopology.build(settings, props, counters, System::nanoTime, signer),
+                props, Instant.ofEpochMilli(T0));
         ByteArraySerializer bytes = new ByteArraySerializer();
         outcomes = driver.createInputTopic(settings.outcomesTopic(), bytes, bytes, Instant.ofEpochMilli(T0),
                 Duration.ZERO);

@@ -28,6 +28,34 @@ final class AllocationUpdateRules implements RecordRules<AllocationUpdate> {
         }
         problems.sumsToOne("weights", sum);
         checkWinner(update.getStatus() == ExperimentStatus.STOPPED, update.getWinner(), arms, problems);
+        checkSignatureFields(update.getKeyId(), update.getSignature(), problems);
+    }
+
+    /**
+     * keyId and signature are both null (unsigned) or both set: a key id's form and 64 bytes in padded
+     * base64 (Ed25519 signatures are 64 bytes, RFC 8032 section 5.1.6). Whether the signature matches is the
+     * verifier's business. Shared with decision records.
+     */
+    static void checkSignatureFields(String keyId, String signature, Problems problems) {
+        if ((keyId == null) != (signature == null)) {
+            problems.add(keyId == null ? "keyId" : "signature", Reason.INCONSISTENT,
+                    "keyId and signature are set together or not at all");
+            return;
+        }
+        if (keyId != null && !KeyIds.valid(keyId)) {
+            problems.add("keyId", Reason.INCONSISTENT, KeyIds.describe(keyId));
+        }
+        if (signature != null && !isSignature(signature)) {
+            problems.add("signature", Reason.INCONSISTENT, "must be 64 bytes in padded base64 (88 characters)");
+        }
+    }
+
+    private static boolean isSignature(String text) {
+        try {
+            return text.length() == 88 && java.util.Base64.getDecoder().decode(text).length == 64;
+        } catch (IllegalArgumentException e) {
+            return false;
+        }
     }
 
     /**

@@ -5,6 +5,7 @@ import java.math.MathContext;
 import java.math.RoundingMode;
 import java.util.Comparator;
 import java.util.List;
+import java.util.Set;
 import org.apache.avro.Schema;
 import org.apache.avro.generic.IndexedRecord;
 import org.apache.avro.specific.SpecificData;
@@ -17,7 +18,7 @@ import org.apache.avro.specific.SpecificData;
  *   <li>UTF-8, no whitespace between tokens.</li>
  *   <li>A record is an object holding every field of its schema, none omitted, absent values as
  *       {@code null}; keys sorted by their UTF-16 code units (all keys are ASCII field names, so this is
- *       plain byte order). Nested records likewise.</li>
+ *       plain byte order). Nested records likewise. The one exception is the compatibility rule below.</li>
  *   <li>A union holding a record is written as that record's object, without a type wrapper.</li>
  *   <li>Arrays keep their order. Enum values are their symbol as a string.</li>
  *   <li>{@code int} and {@code long} fields: decimal digits, {@code -} for negatives, no leading zeros, no
@@ -32,10 +33,20 @@ import org.apache.avro.specific.SpecificData;
  *       {@code \}{@code u00xx} with lowercase hex; every other character as itself in UTF-8 ({@code /} and
  *       non-ASCII are not escaped). Unpaired surrogates cannot be written.</li>
  * </ol>
- * In JavaScript, {@code JSON.stringify} of the same value with keys sorted produces the same text as long
+ * <p>Compatibility rule: a field added to a schema after its first release carries the schema property
+ * {@code "canonical": "when-set"} (see {@link #WHEN_SET}), must be nullable with a null default, and enters
+ * the canonical JSON only when its value is not null. A record written before the field existed therefore
+ * keeps its canonical text, its hash and its signature. Fields of the first release are always written.
+ *
+ * <p>In JavaScript, {@code JSON.stringify} of the same value with keys sorted produces the same text as long
  * as no integer exceeds 2^53 in magnitude.
  */
 public final class CanonicalJson {
+
+    /** Schema property of a field added after the first release; its value {@value #WHEN_SET}. */
+    public static final String CANONICAL_PROPERTY = "canonical";
+    /** Value of {@link #CANONICAL_PROPERTY}: the field is written only when it is not null. */
+    public static final String WHEN_SET = "when-set";
 
     private static final int MAX_SIGNIFICANT_DIGITS = 17;
     private static final int PLAIN_UPPER_EXPONENT = 21;
@@ -52,7 +63,7 @@ public final class CanonicalJson {
      *                                  an unpaired surrogate, a null in a field that is not nullable)
      */
     public static String of(IndexedRecord record) {
-        return without(record, null);
+        return without(record, Set.<String>of());
     }
 
     /**
@@ -62,15 +73,26 @@ public final class CanonicalJson {
      * @throws IllegalArgumentException as {@link #of(IndexedRecord)}
      */
     public static String without(IndexedRecord record, String excluded) {
+        return without(record, excluded == null ? Set.of() : Set.of(excluded));
+    }
+
+    /**
+     * The canonical JSON text of {@code record} with the top-level fields named in {@code excluded} left out
+     * entirely.
+     *
+     * @throws IllegalArgumentException as {@link #of(IndexedRecord)}
+     */
+    public static String without(IndexedRecord record, Set<String> excluded) {
         StringBuilder out = new StringBuilder(256);
         writeRecord(record, record.getSchema(), "", excluded, out);
         return out.toString();
     }
 
-    private static void writeRecord(IndexedRecord record, Schema schema, String path, String excluded,
+    private static void writeRecord(IndexedRecord record, Schema schema, String path, Set<String> excluded,
                                     StringBuilder out) {
         List<Schema.Field> fields = schema.getFields().stream()
-                .filter(f -> !f.name().equals(excluded))
+                .filter(f -> !excluded.contains(f.name()))
+                .filter(f -> record.get(f.pos()) != null || !WHEN_SET.equals(f.getProp(CANONICAL_PROPERTY)))
                 .sorted(Comparator.comparing(Schema.Field::name))
                 .toList();
         out.append('{');
@@ -96,7 +118,7 @@ public final class CanonicalJson {
         }
         switch (schema.getType()) {
             case UNION -> write(value, schema.getTypes().get(DATA.resolveUnion(schema, value)), path, out);
-            case RECORD -> writeRecord((IndexedRecord) value, schema, path, null, out);
+            case RECORD -> writeRecord((IndexedRecord) value, schema, path, Set.of(), out);
             case ARRAY -> writeArray((List<?>) value, schema.getElementType(), path, out);
             case ENUM, STRING -> string(value.toString(), path, out);
             case LONG, INT, BOOLEAN -> out.append(value);

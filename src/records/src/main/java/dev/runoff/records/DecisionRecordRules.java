@@ -39,6 +39,7 @@ final class DecisionRecordRules implements RecordRules<DecisionRecord> {
         }
         List<String> arms = record.getArms().stream().map(ArmState::getArm).toList();
         AllocationUpdateRules.checkWinner(record.getDecision() == Decision.STOP, record.getWinner(), arms, problems);
+        AllocationUpdateRules.checkSignatureFields(record.getKeyId(), record.getSignature(), problems);
         problems.notBlank("reason", record.getReason());
         if ((record.getStatistic() == null) != (record.getThreshold() == null)) {
             problems.add("threshold", Reason.INCONSISTENT, "statistic and threshold must both be set or both null");

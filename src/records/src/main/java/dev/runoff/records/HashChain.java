@@ -12,7 +12,9 @@ import java.util.regex.Pattern;
 
 /**
  * The per-experiment hash chain of decision records. The hash of a record is the SHA-256 (FIPS 180-4) of
- * the UTF-8 bytes of its {@link CanonicalJson canonical JSON} with the {@code hash} field left out, as 64
+ * the UTF-8 bytes of its {@link CanonicalJson canonical JSON} with the {@code hash}, {@code keyId} and
+ * {@code signature} fields left out (so signing a sealed record leaves its hash as it is; the signature
+ * covers the hash and the key id, see {@link RecordSignatures}), as 64
  * lowercase hex digits. {@code previousHash} of record n is the hash of record n - 1; that of the first
  * record is {@link #GENESIS}. Changing any field of any record, or removing, inserting or reordering
  * records, breaks the chain from that record on.
@@ -24,6 +26,10 @@ public final class HashChain {
 
     /** Name of the field excluded from its own hash. */
     public static final String HASH_FIELD = "hash";
+
+    /** Fields left out of the hash: the hash itself and the signature's two fields. */
+    private static final java.util.Set<String> UNHASHED = java.util.Set.of(HASH_FIELD, RecordSignatures.KEY_ID_FIELD,
+            RecordSignatures.SIGNATURE_FIELD);
 
     private static final Pattern HEX_64 = Pattern.compile("[0-9a-f]{64}");
 
@@ -40,17 +46,18 @@ public final class HashChain {
     }
 
     /**
-     * The hash {@code record} should carry: SHA-256 of its canonical JSON without the hash field (whatever
-     * the hash field holds now).
+     * The hash {@code record} should carry: SHA-256 of its canonical JSON without the hash, keyId and
+     * signature fields (whatever they hold now).
      *
      * @throws IllegalArgumentException when the record holds a value canonical JSON cannot represent
      */
     public static String hashOf(DecisionRecord record) {
-        return sha256Hex(CanonicalJson.without(record, HASH_FIELD).getBytes(StandardCharsets.UTF_8));
+        return sha256Hex(CanonicalJson.without(record, UNHASHED).getBytes(StandardCharsets.UTF_8));
     }
 
     /**
-     * A copy of {@code record} linked to {@code previousHash} and carrying its own hash.
+     * A copy of {@code record} linked to {@code previousHash} and carrying its own hash, unsigned (any
+     * signature of the input is dropped: it no longer matches).
      *
      * @throws IllegalArgumentException when {@code previousHash} is not 64 lowercase hex digits
      */
@@ -58,7 +65,8 @@ public final class HashChain {
         if (previousHash == null || !isHash(previousHash)) {
             throw new IllegalArgumentException("previousHash must be 64 lowercase hex digits, got " + previousHash);
         }
-        DecisionRecord sealed = DecisionRecord.newBuilder(record).setPreviousHash(previousHash).setHash("").build();
+        DecisionRecord sealed = DecisionRecord.newBuilder(record).setPreviousHash(previousHash).setHash("")
+                .setKeyId(null).setSignature(null).build();
         sealed.setHash(hashOf(sealed));
         return sealed;
     }

@@ -72,15 +72,22 @@ public final class RecordCodec<T extends SpecificRecord> {
         return new RecordCodec<>(ExperimentDefinition.class, Limits.DEFAULT, true, new DefinitionRules(), List.of());
     }
 
-    /** Codec of allocation updates (control records), with the default limits. */
+    /**
+     * Codec of allocation updates (control records), with the default limits; also reads Avro written with
+     * every earlier version of the schema ({@link WriterSchemas}).
+     */
     public static RecordCodec<AllocationUpdate> allocationUpdates() {
         return new RecordCodec<>(AllocationUpdate.class, Limits.DEFAULT, false, new AllocationUpdateRules(),
-                List.of());
+                WriterSchemas.previous("AllocationUpdate"));
     }
 
-    /** Codec of decision (audit) records, with the default limits. */
+    /**
+     * Codec of decision (audit) records, with the default limits; also reads Avro written with every earlier
+     * version of the schema ({@link WriterSchemas}).
+     */
     public static RecordCodec<DecisionRecord> decisionRecords() {
-        return new RecordCodec<>(DecisionRecord.class, Limits.DEFAULT, false, new DecisionRecordRules(), List.of());
+        return new RecordCodec<>(DecisionRecord.class, Limits.DEFAULT, false, new DecisionRecordRules(),
+                WriterSchemas.previous("DecisionRecord"));
     }
 
     /** This codec with other limits. */
