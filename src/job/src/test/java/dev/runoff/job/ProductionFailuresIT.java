@@ -35,8 +35,8 @@ import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
 
 /**
- * Poison pills on the real broker: an output the producer refuses as too large is dead-lettered truncated
- * and the job goes on; a record that kills the stream thread every time ends the job (DOWN with the cause,
+ * Poison pills on the real broker: an output the producer would refuse as too large is dead-lettered
+ * truncated and the job goes on, and so are bytes on an internal topic that the job did not write; a record that kills the stream thread every time ends the job (DOWN with the cause,
  * failed, hence a non-zero exit of the run command) after the configured number of replacements.
  */
 class ProductionFailuresIT {
@@ -94,12 +94,13 @@ class ProductionFailuresIT {
             Arrays.fill(huge, (byte) 'x');
             send("too-large.outcomes", "huge", huge);
             send("too-large.outcomes", "small", "not json".getBytes(StandardCharsets.UTF_8));
+            send("too-large-by-experiment-repartition", "alien", "not written by the job".getBytes(StandardCharsets.UTF_8));
             List<ConsumerRecord<byte[], byte[]>> rejected = new ArrayList<>();
             try (KafkaConsumer<byte[], byte[]> reader = reader("too-large.rejected")) {
-                Await.until("both dead letters", TIMEOUT, () -> {
+                Await.until("three dead letters", TIMEOUT, () -> {
                     reader.poll(Duration.ofMillis(200)).forEach(rejected::add);
-                    return rejected.stream().anyMatch(r -> "small".equals(key(r)))
-                            && rejected.stream().anyMatch(r -> "huge".equals(key(r)));
+                    return List.of("small", "huge", "alien").stream()
+                            .allMatch(k -> rejected.stream().anyMatch(r -> k.equals(key(r))));
                 });
             }
             ConsumerRecord<byte[], byte[]> dead = rejected.stream().filter(r -> "huge".equals(key(r))).findFirst()
@@ -109,6 +110,10 @@ class ProductionFailuresIT {
                     && header(dead, "runoff.message").contains("value 300000 bytes"), header(dead, "runoff.message"));
             assertTrue(header(dead, "runoff.source").contains("too-large.outcomes"), header(dead, "runoff.source"));
             assertEquals(16 * 1024, dead.value().length, "truncated to 16 KiB (a quarter of 100000 is more)");
+            ConsumerRecord<byte[], byte[]> alien = rejected.stream().filter(r -> "alien".equals(key(r))).findFirst()
+                    .orElseThrow();
+            assertEquals("deserialization-error", header(alien, "runoff.reason"));
+            assertEquals("not written by the job", new String(alien.value(), StandardCharsets.UTF_8));
             assertEquals(KafkaStreams.State.RUNNING, job.state());
             assertEquals(200, Http.get(job.httpPort(), "/health").statusCode());
             assertEquals(0.0, replacements(job), "no thread died");
