@@ -136,6 +136,11 @@ public final class StreamsJob implements AutoCloseable {
         return streams.state();
     }
 
+    /** The address the HTTP endpoint listens on, e.g. {@code 127.0.0.1}. */
+    public String httpAddress() {
+        return http.address();
+    }
+
     /** Port of the HTTP endpoint. */
     public int httpPort() {
         return http.port();
