@@ -1,6 +1,7 @@
 package dev.runoff.demo;
 
 import dev.runoff.job.AppSettings;
+import dev.runoff.job.SafetySettings;
 import dev.runoff.job.DefinitionsClient;
 import dev.runoff.job.JobConfig;
 import dev.runoff.job.StreamsJob;
@@ -118,7 +119,7 @@ public final class Demo {
             }
             return job.state() == KafkaStreams.State.RUNNING;
         });
-        report.note("job RUNNING; its HTTP endpoint: http://127.0.0.1:" + job.httpPort() + "/experiments/"
+        report.note("job RUNNING; its HTTP endpoint: http://" + job.httpAddress() + ":" + job.httpPort() + "/experiments/"
                 + DemoScenario.EXPERIMENT_ID + " (also /metrics, /health, /ready)");
         new DefinitionsClient(config, Duration.ofSeconds(30)).put(definition, Format.AVRO);
         report.note("experiment " + DemoScenario.EXPERIMENT_ID + ": a ferry operator's booking page tests "
@@ -162,6 +163,7 @@ public final class Demo {
         s.put("runoff.flush.interval.ms", "200");
         s.put("runoff.allocate.interval.ms", "100");
         s.put(AppSettings.HTTP_PORT_KEY, String.valueOf(options.httpPort()));
+        s.put(SafetySettings.BIND_ADDRESS_KEY, SafetySettings.BIND_ADDRESS);
         s.put(AppSettings.ROCKSDB_CACHE_KEY, String.valueOf(16L << 20));
         s.put(AppSettings.MEMTABLE_KEY, String.valueOf(4L << 20));
         return s;

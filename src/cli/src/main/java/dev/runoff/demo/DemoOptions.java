@@ -1,5 +1,7 @@
 package dev.runoff.demo;
 
+import dev.runoff.records.Definitions;
+
 import java.nio.file.Path;
 
 /**
@@ -26,8 +28,9 @@ public record DemoOptions(long seed, int arms, int visitorsPerPeriod, long perio
             throw new IllegalArgumentException("--arms must be in [2, " + DemoScenario.MAX_ARMS + "], got " + arms);
         }
         positive("--visitors", visitorsPerPeriod);
-        if (periodMs < 100) {
-            throw new IllegalArgumentException("--period-ms must be >= 100, got " + periodMs);
+        if (periodMs < Definitions.MIN_RECOMPUTE_PERIOD_MS) {
+            throw new IllegalArgumentException("--period-ms must be >= " + Definitions.MIN_RECOMPUTE_PERIOD_MS
+                    + " (the shortest recomputePeriodMs a definition may have), got " + periodMs);
         }
         if (!(delta > 0 && delta < 1)) {
             throw new IllegalArgumentException("--delta must be in (0, 1), got " + delta);

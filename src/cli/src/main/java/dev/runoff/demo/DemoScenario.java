@@ -1,5 +1,7 @@
 package dev.runoff.demo;
 
+import dev.runoff.records.Definitions;
+
 import dev.runoff.records.avro.AfterStopPolicy;
 import dev.runoff.records.avro.AllocationRule;
 import dev.runoff.records.avro.AllocationSpec;
@@ -89,7 +91,7 @@ public final class DemoScenario {
                         .setMinTrialsPerArm(warmUp).setBudgetTrials(budget).build())
                 .setAfterStop(AfterStopPolicy.ALL_TO_WINNER)
                 .setRecomputePeriodMs(recomputeMs)
-                .setHeartbeatMs(recomputeMs * 10)
+                .setHeartbeatMs(Math.max(recomputeMs * 10, Definitions.MIN_HEARTBEAT_MS))
                 .setAttributionWindowMs(3_600_000L)
                 .setValidForMs(recomputeMs * 60)
                 .build();

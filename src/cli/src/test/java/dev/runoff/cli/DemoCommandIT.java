@@ -28,7 +28,7 @@ class DemoCommandIT {
         Path export = Path.of("target", "cli-tests", "demo-decisions.jsonl").toAbsolutePath();
         Files.createDirectories(export.getParent());
         Files.deleteIfExists(export);
-        CliRun r = CliRun.of("demo", "--seed", "42", "--arms", "2", "--visitors", "1000", "--period-ms", "300",
+        CliRun r = CliRun.of("demo", "--seed", "42", "--arms", "2", "--visitors", "1000", "--period-ms", "1000",
                 "--warm-up", "50", "--json", "--export-decisions", export.toString());
         assertEquals(0, r.exitCode(), r.err() + r.out());
         List<JsonNode> lines = new ArrayList<>();

@@ -1,5 +1,6 @@
 package dev.runoff.job;
 
+import dev.runoff.topology.OversizeGuard;
 import dev.runoff.topology.TopologySettings;
 import java.nio.file.Files;
 import java.nio.file.Path;
@@ -37,14 +38,16 @@ public final class JobConfig {
     private final TopologySettings topology;
     private final AppSettings app;
     private final SigningSettings signing;
+    private final SafetySettings safety;
     private final List<String> ignored;
 
     private JobConfig(Map<String, String> kafka, TopologySettings topology, AppSettings app, SigningSettings signing,
-                      List<String> ignored) {
+                      SafetySettings safety, List<String> ignored) {
         this.kafka = Collections.unmodifiableMap(new LinkedHashMap<>(kafka));
         this.topology = topology;
         this.app = app;
         this.signing = signing;
+        this.safety = safety;
         this.ignored = List.copyOf(ignored);
     }
 
@@ -77,9 +80,12 @@ public final class JobConfig {
         Map<String, String> topologyKeys = new LinkedHashMap<>();
         Map<String, String> appKeys = new LinkedHashMap<>();
         Map<String, String> signingKeys = new LinkedHashMap<>();
+        Map<String, String> safetyKeys = new LinkedHashMap<>();
         for (Setting s : settings.values()) {
             if (SigningSettings.KEYS.contains(s.key())) {
                 signingKeys.put(s.key(), s.value());
+            } else if (SafetySettings.KEYS.contains(s.key())) {
+                safetyKeys.put(s.key(), s.value());
             } else if (AppSettings.KEYS.contains(s.key())) {
                 appKeys.put(s.key(), s.value());
             } else if (s.key().startsWith(RUNOFF_PREFIX)) {
@@ -93,6 +99,7 @@ public final class JobConfig {
         }
         AppSettings app = AppSettings.from(appKeys, p -> problems.add(at(settings.get(keyOf(p)), p)));
         SigningSettings signing = SigningSettings.from(signingKeys, p -> problems.add(at(settings.get(keyOf(p)), p)));
+        SafetySettings safety = SafetySettings.from(safetyKeys, kafka, p -> problems.add(at(settings.get(keyOf(p)), p)));
         TopologySettings topology = null;
         if (problems.isEmpty()) {
             try {
@@ -106,7 +113,7 @@ public final class JobConfig {
             throw new InvalidConfigException(problems);
         }
         kafka.putIfAbsent(StreamsConfig.APPLICATION_ID_CONFIG, DEFAULT_APPLICATION_ID);
-        return new JobConfig(kafka, topology, app, signing, ignored);
+        return new JobConfig(kafka, topology, app, signing, safety, ignored);
     }
 
     private static Optional<String> topologyProblem(Map<String, String> one) {
@@ -133,6 +140,7 @@ public final class JobConfig {
     static Set<String> knownKeys() {
         Set<String> keys = new java.util.LinkedHashSet<>(AppSettings.KEYS);
         keys.addAll(SigningSettings.KEYS);
+        keys.addAll(SafetySettings.KEYS);
         for (java.lang.reflect.Field f : TopologySettings.class.getFields()) {
             if (java.lang.reflect.Modifier.isStatic(f.getModifiers()) && f.getType() == String.class
                     && f.getName().endsWith("_KEY")) {
@@ -212,6 +220,11 @@ public final class JobConfig {
         return app;
     }
 
+    /** The settings of the endpoint's exposure, thread replacements and processing guarantee. */
+    public SafetySettings safety() {
+        return safety;
+    }
+
     /** Every Kafka setting (keys that are not {@code runoff.*}), with {@code application.id} defaulted. */
     public Map<String, String> kafka() {
         return kafka;
@@ -242,8 +255,10 @@ public final class JobConfig {
         out.putIfAbsent(StreamsConfig.ROCKSDB_CONFIG_SETTER_CLASS_CONFIG, BoundedRocksDbConfig.class.getName());
         String interceptors = StreamsConfig.producerPrefix(ProducerConfig.INTERCEPTOR_CLASSES_CONFIG);
         String configured = kafka.get(interceptors);
-        out.put(interceptors, configured == null || configured.isBlank() ? DecisionLog.class.getName()
-                : configured + "," + DecisionLog.class.getName());
+        out.put(interceptors, (configured == null || configured.isBlank() ? DecisionLog.class.getName()
+                : configured + "," + DecisionLog.class.getName()) + "," + OversizeGuard.class.getName());
+        out.put(StreamsConfig.producerPrefix(OversizeGuard.REJECTED_KEY), topology.rejectedTopic());
+        out.put(StreamsConfig.producerPrefix(OversizeGuard.OUTPUTS_KEY), OversizeGuard.outputs(topology));
         out.put(StreamsConfig.producerPrefix(DecisionLog.TOPIC_KEY), topology.decisionsTopic());
         out.put(AppSettings.ROCKSDB_CACHE_KEY, app.rocksDbCacheBytes());
         out.put(AppSettings.MEMTABLE_KEY, app.memtableBytes());

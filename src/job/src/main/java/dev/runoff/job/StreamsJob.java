@@ -8,6 +8,7 @@ import java.util.Properties;
 import java.util.concurrent.CountDownLatch;
 import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicBoolean;
+import java.util.concurrent.atomic.AtomicReference;
 import org.apache.kafka.streams.KafkaStreams;
 import org.apache.kafka.streams.StoreQueryParameters;
 import org.apache.kafka.streams.StreamsConfig;
@@ -36,10 +37,12 @@ public final class StreamsJob implements AutoCloseable {
     private final CountDownLatch ended = new CountDownLatch(1);
     private final AtomicBoolean closed = new AtomicBoolean();
     private volatile boolean failed;
+    private final AtomicReference<String> cause;
 
     private StreamsJob(JobConfig config, JobCounters counters, KafkaStreams streams, JobMetrics metrics,
-                       StatusServer http) {
+                       StatusServer http, AtomicReference<String> cause) {
         this.config = config;
+        this.cause = cause;
         this.counters = counters;
         this.streams = streams;
         this.metrics = metrics;
@@ -61,24 +64,36 @@ public final class StreamsJob implements AutoCloseable {
     public static StreamsJob start(JobConfig config, RecordSigner signer) {
         JobCounters counters = new JobCounters();
         Properties props = RunoffTopology.streamsConfig(config.topology(), counters, config.streamsOverrides());
+        props.put(StreamsConfig.producerPrefix(RunoffTopology.COUNTERS_CONFIG), counters);
         Topology topology = RunoffTopology.build(config.topology(), props, counters, System::nanoTime, signer);
         KafkaStreams streams = new KafkaStreams(topology, props);
         JobMetrics metrics = new JobMetrics(streams, counters, config.applicationId());
+        AtomicReference<String> cause = new AtomicReference<>();
+        SafetySettings safety = config.safety();
         StatusServer http;
         try {
-            http = StatusServer.start(config.app().httpPort(), backend(streams, metrics, self(config)));
+            http = StatusServer.start(safety.httpBindAddress(), config.app().httpPort(), safety.httpToken(),
+                    backend(streams, metrics, self(config), cause));
         } catch (RuntimeException e) {
             metrics.close();
             streams.close(Duration.ZERO);
             throw e;
         }
-        StreamsJob job = new StreamsJob(config, counters, streams, metrics, http);
-        streams.setUncaughtExceptionHandler(new ReplaceThreadHandler(metrics::threadReplaced));
+        StreamsJob job = new StreamsJob(config, counters, streams, metrics, http, cause);
+        streams.setUncaughtExceptionHandler(new ReplaceThreadHandler(safety.maxThreadReplacements(),
+                safety.replacementWindowMs(), System::currentTimeMillis, metrics::threadReplaced,
+                c -> cause.compareAndSet(null, c)));
         streams.setStateListener(job::stateChanged);
-        LOG.info("event=job-starting application.id={} bootstrap.servers={} http.port={} signing.key.id={} topics={}",
-                config.applicationId(), config.bootstrapServers(), http.port(),
+        LOG.info("event=job-starting application.id={} bootstrap.servers={} http={}:{} http.token={} signing.key.id={}"
+                + " topics={}", config.applicationId(), config.bootstrapServers(), safety.httpBindAddress(), http.port(),
+                safety.httpToken().isPresent() ? "required" : "none",
                 signer.signs() ? signer.keyId() : "none (records unsigned: runoff.signing.required=false)",
                 config.topology());
+        if (SafetySettings.atLeastOnce(config.kafka())) {
+            LOG.warn("event=at-least-once processing.guarantee=at_least_once ({}=true): after a crash events may "
+                    + "be counted twice and a decision chain may repeat a sequence; the documented guarantees "
+                    + "assume exactly_once_v2", SafetySettings.AT_LEAST_ONCE_KEY);
+        }
         config.ignored().forEach(v -> LOG.warn("event=env-ignored variable={}", v));
         streams.start();
         return job;
@@ -89,7 +104,8 @@ public final class StreamsJob implements AutoCloseable {
         return server == null || server.isEmpty() ? null : HostInfo.buildFromEndpoint(server);
     }
 
-    private static StatusServer.Backend backend(KafkaStreams streams, JobMetrics metrics, HostInfo self) {
+    private static StatusServer.Backend backend(KafkaStreams streams, JobMetrics metrics, HostInfo self,
+                                                AtomicReference<String> cause) {
         ExperimentLookup lookup = new ExperimentLookup(streams, self);
         return new StatusServer.Backend() {
             @Override
@@ -106,6 +122,11 @@ public final class StreamsJob implements AutoCloseable {
             public Lookup experiment(String id) {
                 return lookup.find(id);
             }
+
+            @Override
+            public String failure() {
+                return cause.get();
+            }
         };
     }
 
@@ -113,7 +134,8 @@ public final class StreamsJob implements AutoCloseable {
         LOG.info("event=streams-state from={} to={}", before, now);
         if (now == KafkaStreams.State.ERROR) {
             failed = true;
-            LOG.error("event=streams-failed state=ERROR: the Kafka Streams client stopped; the job ends");
+            LOG.error("event=streams-failed state=ERROR cause=\"{}\": the Kafka Streams client stopped; the job ends",
+                    cause.get());
             ended.countDown();
         } else if (now == KafkaStreams.State.NOT_RUNNING) {
             ended.countDown();
@@ -123,6 +145,11 @@ public final class StreamsJob implements AutoCloseable {
     /** State of the Kafka Streams client. */
     public KafkaStreams.State state() {
         return streams.state();
+    }
+
+    /** The address the HTTP endpoint listens on, e.g. {@code 127.0.0.1}. */
+    public String httpAddress() {
+        return http.address();
     }
 
     /** Port of the HTTP endpoint. */
@@ -157,6 +184,11 @@ public final class StreamsJob implements AutoCloseable {
     /** The configuration the job runs with. */
     public JobConfig config() {
         return config;
+    }
+
+    /** Why the job gave up (thread replacements exhausted), or {@code null}. */
+    public String failureCause() {
+        return cause.get();
     }
 
     /** Whether the Kafka Streams client ended in ERROR. */

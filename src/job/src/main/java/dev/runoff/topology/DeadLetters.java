@@ -49,6 +49,28 @@ final class DeadLetters {
         return List.of(dead);
     }
 
+    /**
+     * The record to dead-letter for {@code refused}, a record the producer refused: its key and value cut to
+     * {@code keep} bytes each, {@code message} as the message; none without a topic.
+     */
+    List<ProducerRecord<byte[], byte[]>> truncated(ErrorHandlerContext context, ProducerRecord<byte[], byte[]> refused,
+                                                    int keep, RejectReason reason, String message) {
+        counters.rejected(reason.code());
+        if (topic == null) {
+            return List.of();
+        }
+        ProducerRecord<byte[], byte[]> dead = new ProducerRecord<>(topic, null, refused.timestamp(),
+                cut(refused.key(), keep), cut(refused.value(), keep));
+        for (Header header : Rejections.headers(reason.code(), message, source(context))) {
+            dead.headers().add(header);
+        }
+        return List.of(dead);
+    }
+
+    private static byte[] cut(byte[] bytes, int keep) {
+        return bytes == null || bytes.length <= keep ? bytes : java.util.Arrays.copyOf(bytes, keep);
+    }
+
     private static String source(ErrorHandlerContext context) {
         String where = context.topic() == null ? "punctuation" : context.topic() + "/" + context.partition() + "/"
                 + context.offset();

@@ -44,6 +44,8 @@ public enum RejectReason {
     PROCESSING_ERROR,
     /** An unexpected exception in a punctuation (dead-lettered by the exception handler). */
     PUNCTUATION_ERROR,
+    /** An output the producer refused as too large (dead-lettered truncated by the production handler). */
+    PRODUCTION_ERROR,
     /** Bytes the source deserializer could not read (dead-lettered by the exception handler). */
     DESERIALIZATION_ERROR;
 

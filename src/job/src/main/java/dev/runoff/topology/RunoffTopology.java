@@ -85,6 +85,7 @@ public final class RunoffTopology {
         props.put(StreamsConfig.PROCESSING_EXCEPTION_HANDLER_GLOBAL_ENABLED_CONFIG, "true");
         props.put(StreamsConfig.DESERIALIZATION_EXCEPTION_HANDLER_CLASS_CONFIG,
                 DeadLetterDeserializationHandler.class.getName());
+        props.put(StreamsConfig.PRODUCTION_EXCEPTION_HANDLER_CLASS_CONFIG, DeadLetterProductionHandler.class.getName());
         props.put(StreamsConfig.DEFAULT_TIMESTAMP_EXTRACTOR_CLASS_CONFIG,
                 UsePartitionTimeOnInvalidTimestamp.class.getName());
         props.put(COUNTERS_CONFIG, Objects.requireNonNull(counters, "counters"));

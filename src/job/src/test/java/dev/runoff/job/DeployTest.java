@@ -178,4 +178,51 @@ class DeployTest {
         array.forEach(n -> out.add(n.asText()));
         return out;
     }
+
+    @Test
+    void onlyTheMonitoringAndToolsNamespacesMayReachTheEndpoint() {
+        JsonNode policy = manifest("NetworkPolicy/runoff").get("spec");
+        JsonNode podLabels = manifest("StatefulSet/runoff").get("spec").get("template").get("metadata").get("labels");
+        assertEquals(podLabels, policy.get("podSelector").get("matchLabels"), "the policy selects the job's pods");
+        assertEquals(List.of("Ingress"), strings(policy.get("policyTypes")));
+        int httpPort = Integer.parseInt(config.getProperty(AppSettings.HTTP_PORT_KEY));
+        List<String> namespaces = new ArrayList<>();
+        for (JsonNode rule : policy.get("ingress")) {
+            for (JsonNode port : rule.get("ports")) {
+                assertEquals(httpPort, port.get("port").asInt());
+                assertEquals("TCP", port.get("protocol").asText());
+            }
+            assertTrue(rule.has("from"), "a rule without 'from' admits everyone");
+            for (JsonNode peer : rule.get("from")) {
+                assertEquals(List.of("namespaceSelector"), fieldNames(peer), "only whole named namespaces");
+                JsonNode labels = peer.get("namespaceSelector").get("matchLabels");
+                assertEquals(List.of("kubernetes.io/metadata.name"), fieldNames(labels));
+                namespaces.add(labels.get("kubernetes.io/metadata.name").asText());
+            }
+        }
+        assertEquals(List.of("monitoring", "runoff-tools"), namespaces);
+    }
+
+    @Test
+    void thePodListensBeyondLoopbackAndTakesItsTokenFromAnOptionalSecret() {
+        assertEquals("0.0.0.0", config.getProperty(SafetySettings.BIND_ADDRESS_KEY), "probes reach the pod IP");
+        assertFalse(config.stringPropertyNames().contains(SafetySettings.TOKEN_KEY), "no token in the ConfigMap");
+        JsonNode token = null;
+        for (JsonNode e : container(manifest("StatefulSet/runoff")).get("env")) {
+            if (e.get("name").asText().equals("RUNOFF_HTTP_TOKEN")) {
+                token = e;
+            }
+        }
+        assertNotNull(token, "RUNOFF_HTTP_TOKEN");
+        assertEquals(SafetySettings.TOKEN_KEY, ConfigSources.keyOf("RUNOFF_HTTP_TOKEN"));
+        JsonNode ref = token.get("valueFrom").get("secretKeyRef");
+        assertEquals("runoff-http-token", ref.get("name").asText());
+        assertTrue(ref.get("optional").asBoolean(), "no Secret: no token, the job still starts");
+    }
+
+    private static List<String> fieldNames(JsonNode node) {
+        List<String> names = new ArrayList<>();
+        node.fieldNames().forEachRemaining(names::add);
+        return names;
+    }
 }

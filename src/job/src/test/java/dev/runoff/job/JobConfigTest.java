@@ -1,5 +1,9 @@
 package dev.runoff.job;
 
+import java.util.Optional;
+
+import dev.runoff.topology.OversizeGuard;
+
 import dev.runoff.testkit.RepositoryFiles;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
@@ -167,7 +171,11 @@ class JobConfigTest {
         assertEquals(AppSettings.defaults(), c.app());
         Map<String, Object> streams = c.streamsOverrides();
         assertEquals(BoundedRocksDbConfig.class.getName(), streams.get("rocksdb.config.setter"));
-        assertEquals(DecisionLog.class.getName(), streams.get("producer.interceptor.classes"));
+        assertEquals(DecisionLog.class.getName() + "," + OversizeGuard.class.getName(),
+                streams.get("producer.interceptor.classes"));
+        assertEquals(TopologySettings.REJECTED_TOPIC, streams.get("producer." + OversizeGuard.REJECTED_KEY));
+        assertEquals(SafetySettings.defaults(), c.safety());
+        assertEquals("127.0.0.1", c.safety().httpBindAddress());
         assertEquals(TopologySettings.DECISIONS_TOPIC, streams.get("producer." + DecisionLog.TOPIC_KEY));
         assertEquals(AppSettings.ROCKSDB_CACHE_BYTES, streams.get(AppSettings.ROCKSDB_CACHE_KEY));
     }
@@ -197,5 +205,34 @@ class JobConfigTest {
 
     private static boolean has(List<String> problems, String... parts) {
         return problems.stream().anyMatch(p -> List.of(parts).stream().allMatch(p::contains));
+    }
+
+    @Test
+    void atLeastOnceIsRefusedUnlessAcknowledged() {
+        InvalidConfigException refused = assertThrows(InvalidConfigException.class, () -> JobConfig.of(Map.of(
+                "bootstrap.servers", "h:9092", "processing.guarantee", "at_least_once")));
+        assertTrue(refused.getMessage().contains("processing.guarantee=at_least_once")
+                && refused.getMessage().contains(SafetySettings.AT_LEAST_ONCE_KEY + "=true"), refused.getMessage());
+        JobConfig accepted = JobConfig.of(Map.of("bootstrap.servers", "h:9092", "processing.guarantee",
+                "at_least_once", SafetySettings.AT_LEAST_ONCE_KEY, "true"));
+        assertTrue(accepted.safety().atLeastOnceAccepted());
+        assertEquals("at_least_once", accepted.kafka().get("processing.guarantee"));
+    }
+
+    @Test
+    void theEndpointSettingsAreReadAndTheTokenIsNeverShown(@TempDir Path dir) throws IOException {
+        Path tokenFile = dir.resolve("token");
+        Files.writeString(tokenFile, "t0ps3cret\n");
+        JobConfig c = JobConfig.of(Map.of("bootstrap.servers", "h:9092", SafetySettings.BIND_ADDRESS_KEY, "0.0.0.0",
+                SafetySettings.TOKEN_FILE_KEY, tokenFile.toString(), SafetySettings.REPLACEMENTS_KEY, "5",
+                SafetySettings.REPLACEMENT_WINDOW_KEY, "60000"));
+        assertEquals(new SafetySettings("0.0.0.0", Optional.of("t0ps3cret"), 5, 60_000, false), c.safety());
+        assertFalse(c.safety().toString().contains("t0ps3cret"), c.safety().toString());
+        InvalidConfigException both = assertThrows(InvalidConfigException.class, () -> JobConfig.of(Map.of(
+                "bootstrap.servers", "h:9092", SafetySettings.TOKEN_KEY, "t0ps3cret",
+                SafetySettings.TOKEN_FILE_KEY, tokenFile.toString(), SafetySettings.REPLACEMENTS_KEY, "-1")));
+        assertTrue(both.getMessage().contains("set one") && both.getMessage().contains(
+                SafetySettings.REPLACEMENTS_KEY + " must be in [0, 1000], got -1"), both.getMessage());
+        assertFalse(both.getMessage().contains("t0ps3cret"), both.getMessage());
     }
 }

@@ -3,7 +3,17 @@ package dev.runoff.job;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import java.io.BufferedReader;
 import java.io.IOException;
+import java.io.InputStreamReader;
+import java.net.Socket;
+import java.nio.charset.StandardCharsets;
+import java.time.Duration;
+import java.util.ArrayList;
+import java.util.Optional;
+import java.util.concurrent.CompletableFuture;
+import java.util.concurrent.CountDownLatch;
+import java.util.concurrent.TimeUnit;
 import java.net.URI;
 import java.net.http.HttpClient;
 import java.net.http.HttpRequest;
@@ -123,5 +133,134 @@ class StatusServerTest {
         HttpResponse<String> head = send("HEAD", "/ready");
         assertEquals(200, head.statusCode());
         assertEquals("", head.body());
+    }
+
+    @Test
+    void aMalformedPercentEscapeIsABadRequestNotAnInternalError() throws Exception {
+        // RFC 3986 section 2.1: a percent-encoded octet is "%" followed by two hexadecimal digits
+        assertEquals(400, rawStatus("/experiments/%zz"));
+        assertEquals(400, rawStatus("/experiments/abc%"));
+        assertEquals(null, askedFor.get(), "the backend was never asked");
+        // the JDK server already answers 400 to a request URI it cannot parse; the decoder refuses on its own too
+        assertEquals(Optional.empty(), StatusServer.decode("abc%"));
+        assertEquals(Optional.empty(), StatusServer.decode("%zz"));
+        assertEquals(Optional.of("e 1"), StatusServer.decode("e%201"));
+    }
+
+    @Test
+    void healthReportsDownWithTheCauseOnceTheJobGaveUp() throws Exception {
+        server.close();
+        AtomicReference<String> failure = new AtomicReference<>();
+        server = StatusServer.start(0, new ScriptedBackend() {
+            @Override
+            public String failure() {
+                return failure.get();
+            }
+        });
+        state.set(KafkaStreams.State.RUNNING);
+        assertEquals(200, get("/health").statusCode());
+        failure.set("stream thread failed 4 times within 600000 ms: boom");
+        HttpResponse<String> down = get("/health");
+        assertEquals(503, down.statusCode());
+        assertTrue(down.body().contains("\"cause\":\"stream thread failed 4 times within 600000 ms: boom\""),
+                down.body());
+    }
+
+    @Test
+    void aTokenGuardsEverythingButTheProbes() throws Exception {
+        server.close();
+        server = StatusServer.start("127.0.0.1", 0, Optional.of("s3cret"), new ScriptedBackend());
+        state.set(KafkaStreams.State.RUNNING);
+        assertEquals(200, get("/health").statusCode());
+        assertEquals(200, get("/ready").statusCode());
+        HttpResponse<String> anonymous = get("/metrics");
+        assertEquals(401, anonymous.statusCode());
+        assertEquals("Bearer", anonymous.headers().firstValue("WWW-Authenticate").orElseThrow());
+        assertEquals(401, get("/experiments/x").statusCode());
+        assertEquals(401, withToken("/metrics", "Bearer wrong").statusCode());
+        assertEquals(200, withToken("/metrics", "Bearer s3cret").statusCode());
+        assertEquals(404, withToken("/experiments/x", "Bearer s3cret").statusCode());
+        assertEquals("x", askedFor.get());
+    }
+
+    @Test
+    void itListensOnlyOnTheConfiguredAddress() throws Exception {
+        assertEquals("127.0.0.1", server.address());
+    }
+
+    @Test
+    void probesAnswerWhileEveryQueryThreadIsBusy() throws Exception {
+        server.close();
+        CountDownLatch release = new CountDownLatch(1);
+        CountDownLatch busy = new CountDownLatch(StatusServer.QUERY_THREADS);
+        server = StatusServer.start(0, new ScriptedBackend() {
+            @Override
+            public Lookup experiment(String id) {
+                busy.countDown();
+                try {
+                    release.await();
+                } catch (InterruptedException e) {
+                    Thread.currentThread().interrupt();
+                }
+                return new Lookup.NotFound();
+            }
+        });
+        try {
+            List<CompletableFuture<HttpResponse<String>>> slow = new ArrayList<>();
+            for (int i = 0; i < StatusServer.QUERY_THREADS + 4; i++) {
+                slow.add(client.sendAsync(request("/experiments/slow" + i), HttpResponse.BodyHandlers.ofString()));
+            }
+            assertTrue(busy.await(30, TimeUnit.SECONDS), "every query thread is blocked");
+            state.set(KafkaStreams.State.RUNNING);
+            assertEquals(200, client.send(request("/health"), HttpResponse.BodyHandlers.ofString()).statusCode());
+            assertEquals(200, client.send(request("/ready"), HttpResponse.BodyHandlers.ofString()).statusCode());
+            release.countDown();
+            for (CompletableFuture<HttpResponse<String>> f : slow) {
+                assertEquals(404, f.get(30, TimeUnit.SECONDS).statusCode());
+            }
+        } finally {
+            release.countDown();
+        }
+    }
+
+    private HttpRequest request(String path) {
+        return HttpRequest.newBuilder(URI.create("http://127.0.0.1:" + server.port() + path))
+                .timeout(Duration.ofSeconds(30)).build();
+    }
+
+    private HttpResponse<String> withToken(String path, String authorization) throws Exception {
+        HttpRequest request = HttpRequest.newBuilder(URI.create("http://127.0.0.1:" + server.port() + path))
+                .header("Authorization", authorization).build();
+        return client.send(request, HttpResponse.BodyHandlers.ofString());
+    }
+
+    /** The status code of a GET of {@code rawPath} sent as is (HttpClient refuses to send a malformed URI). */
+    private int rawStatus(String rawPath) throws IOException {
+        try (Socket socket = new Socket("127.0.0.1", server.port())) {
+            socket.getOutputStream().write(("GET " + rawPath + " HTTP/1.1\r\nHost: localhost\r\n"
+                    + "Connection: close\r\n\r\n").getBytes(StandardCharsets.US_ASCII));
+            String status = new BufferedReader(new InputStreamReader(socket.getInputStream(),
+                    StandardCharsets.US_ASCII)).readLine();
+            return Integer.parseInt(status.split(" ")[1]);
+        }
+    }
+
+    /** The scripted backend of the fields above. */
+    private class ScriptedBackend implements StatusServer.Backend {
+        @Override
+        public KafkaStreams.State state() {
+            return state.get();
+        }
+
+        @Override
+        public String metrics() {
+            return "";
+        }
+
+        @Override
+        public Lookup experiment(String id) {
+            askedFor.set(id);
+            return lookup.get();
+        }
     }
 }

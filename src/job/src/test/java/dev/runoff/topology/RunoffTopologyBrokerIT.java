@@ -157,7 +157,7 @@ class RunoffTopologyBrokerIT {
     /** A definition that never stops: the test reads the final counts from CONTINUE decisions. */
     private static ExperimentDefinition endless(ExperimentDefinition def) {
         def.setStopping(StoppingSpec.newBuilder(def.getStopping()).setMinTrialsPerArm(1_000_000_000L).build());
-        def.setRecomputePeriodMs(500);
+        def.setRecomputePeriodMs(1_000);
         def.setHeartbeatMs(5_000);
         return def;
     }

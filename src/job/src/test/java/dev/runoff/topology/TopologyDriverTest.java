@@ -1,5 +1,7 @@
 package dev.runoff.topology;
 
+import dev.runoff.records.Definitions;
+
 import dev.runoff.decision.Replay;
 import dev.runoff.testkit.TestDefinitions;
 
@@ -192,18 +194,18 @@ class TopologyDriverTest {
 
     @Test
     void aPassBudgetSmallerThanTheExperimentsStillReachesEveryExperimentThroughTheTopology() {
-        TopologySettings budgeted = TopologySettings.fromMap(Map.of(TopologySettings.ALLOCATE_INTERVAL_KEY, 100,
-                TopologySettings.ALLOCATE_MAX_EVALUATIONS_KEY, 2));
+        TopologySettings budgeted = TopologySettings.fromMap(Map.of(TopologySettings.ALLOCATE_INTERVAL_KEY,
+                Definitions.MIN_HEARTBEAT_MS, TopologySettings.ALLOCATE_MAX_EVALUATIONS_KEY, 2));
         try (TopologyFixture small = new TopologyFixture(budgeted)) {
             List<String> ids = List.of("p0", "p1", "p2", "p3", "p4");
             for (String id : ids) {
                 ExperimentDefinition def = TestDefinitions.bernoulli(id, "a", "b");
-                def.setHeartbeatMs(100);
+                def.setHeartbeatMs(Definitions.MIN_HEARTBEAT_MS);
                 small.define(def);
             }
-            small.advance(100);
+            small.advance(Definitions.MIN_HEARTBEAT_MS);
             assertEquals(List.of("p0", "p1"), experimentIds(small.decisions()), "one pass, two evaluations");
-            small.advance(200);
+            small.advance(2 * Definitions.MIN_HEARTBEAT_MS);
             assertEquals(List.of("p2", "p3", "p4"), experimentIds(small.decisions()),
                     "the next passes resume where the last stopped, although p0 and p1 are due again");
         }

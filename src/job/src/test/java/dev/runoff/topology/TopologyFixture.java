@@ -122,6 +122,11 @@ final class TopologyFixture implements AutoCloseable {
         }
     }
 
+    /** An input of raw bytes for any source topic of the topology, internal repartition topics included. */
+    TestInputTopic<byte[], byte[]> rawInput(String topic) {
+        return driver.createInputTopic(topic, new ByteArraySerializer(), new ByteArraySerializer());
+    }
+
     /** The current wall-clock time of the driver. */
     long clock() {
         return clock;

@@ -174,8 +174,8 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
     }
 
     private static void checkPeriods(ExperimentDefinition def, Problems problems) {
-        problems.atLeast("recomputePeriodMs", def.getRecomputePeriodMs(), 1);
-        problems.atLeast("heartbeatMs", def.getHeartbeatMs(), 1);
+        problems.atLeast("recomputePeriodMs", def.getRecomputePeriodMs(), Definitions.MIN_RECOMPUTE_PERIOD_MS);
+        problems.atLeast("heartbeatMs", def.getHeartbeatMs(), Definitions.MIN_HEARTBEAT_MS);
         problems.atLeast("attributionWindowMs", def.getAttributionWindowMs(), 1);
         long longestGap = Math.max(def.getRecomputePeriodMs(), def.getHeartbeatMs());
         if (def.getValidForMs() <= longestGap) {

@@ -15,6 +15,19 @@ public final class Definitions {
     private static final RecordCodec<ExperimentDefinition> CODEC = RecordCodec.definitions();
     private static final String VERSION_FIELD = "version";
 
+    /**
+     * Shortest accepted {@code recomputePeriodMs}: one evaluation per second per experiment at most. An
+     * evaluation costs up to a few milliseconds (see performance.md) and writes one decision record.
+     */
+    public static final long MIN_RECOMPUTE_PERIOD_MS = 1_000L;
+
+    /**
+     * Shortest accepted {@code heartbeatMs}. A running experiment is evaluated (and writes a decision record)
+     * at each heartbeat even without new data, so this bounds the decision records of an idle experiment at
+     * 8,640 a day; the decisions topic keeps them for ever.
+     */
+    public static final long MIN_HEARTBEAT_MS = 10_000L;
+
     private Definitions() {
     }
 
