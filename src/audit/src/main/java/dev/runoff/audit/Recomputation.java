@@ -180,10 +180,10 @@ public final class Recomputation {
      * recomputed record states them too), or {@code null} when it reports none.
      */
     private static long[] pending(DecisionRecord record) {
-        if (record.getArms().stream().anyMatch(a -> a.getPendingUnits() == null)) {
+        if (record.getArms().stream().anyMatch(a -> a.getPending() == null)) {
             return null;
         }
-        return record.getArms().stream().mapToLong(ArmState::getPendingUnits).toArray();
+        return record.getArms().stream().mapToLong(ArmState::getPending).toArray();
     }
 
     /** The sufficient statistics of one arm as the record states them. */

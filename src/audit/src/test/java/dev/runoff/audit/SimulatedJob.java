@@ -69,7 +69,7 @@ final class SimulatedJob {
             long[][] counts = serve(rng, weights, clickRates, exposures);
             now += PERIOD_MS;
             for (int i = 0; i < weights.length; i++) {
-                // a tenth of the period's units still pending (unit counting): records report pendingUnits > 0
+                // a tenth of the period's units still pending (unit counting): records report pending > 0
                 state = state.withDelta(i, new BernoulliStats(counts[0][i], counts[1][i]), counts[0][i] / 10,
                         now - PERIOD_MS / 2);
             }

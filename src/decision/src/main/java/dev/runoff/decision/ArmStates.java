@@ -36,7 +36,7 @@ final class ArmStates {
                     .setWeight(weights[i]);
             statistics(arm, state.stats().get(i));
             if (reportsPending(state)) {
-                arm.setPendingUnits(state.pending()[i]);
+                arm.setPending(state.pending()[i]);
             }
             out.add(arm.build());
         }

@@ -178,7 +178,7 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
     /** The rejected delta as JSON: experiment, arm and statistics. */
     private static byte[] body(StageTwo delta) {
         ObjectNode body = JSON.createObjectNode().put("experimentId", delta.experimentId()).put("arm", delta.arm())
-                .put("version", delta.version()).put("pendingUnits", delta.pending());
+                .put("version", delta.version()).put("pending", delta.pending());
         ArmStats stats = delta.stats();
         if (stats instanceof BernoulliStats b) {
             body.put("trials", b.trials()).put("successes", b.successes());
