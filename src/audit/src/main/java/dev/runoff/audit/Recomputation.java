@@ -171,9 +171,20 @@ public final class Recomputation {
     private static DecisionRecord evaluate(DecisionRecord record, double[] previous, long startedAt) {
         List<ArmStats> stats = record.getArms().stream().map(a -> stats(a, kind(record))).toList();
         ExperimentState state = new ExperimentState(record.getDefinition(), stats, null, record.getSequence() - 1, 0,
-                record.getPreviousHash(), previous, startedAt, -1, -1, false, false);
+                record.getPreviousHash(), previous, startedAt, -1, -1, false, false, pending(record), null);
         int draws = record.getDraws() > 0 ? record.getDraws() : EngineConfig.DEFAULT_DRAWS;
         return new Evaluator(draws).evaluate(state, record.getStreamTime()).decision();
+    }
+
+    /**
+     * The pending units the record reports (an input the decision did not use, carried over so that the
+     * recomputed record states them too), or {@code null} when it reports none.
+     */
+    private static long[] pending(DecisionRecord record) {
+        if (record.getArms().stream().anyMatch(a -> a.getPending() == null)) {
+            return null;
+        }
+        return record.getArms().stream().mapToLong(ArmState::getPending).toArray();
     }
 
     /** The sufficient statistics of one arm as the record states them. */

@@ -23,7 +23,8 @@ import org.apache.commons.rng.simple.RandomSource;
 /**
  * The job's evaluation without Kafka: the topology's {@link Evaluator} and {@link ExperimentState}, fed each
  * period with exposures that a serving tier draws from the weights last published (clicks drawn from fixed
- * rates), so that the records are genuine decisions of the job's code and follow their weights.
+ * rates), so that the records are genuine decisions of the job's code and follow their weights. Each period
+ * also leaves a tenth of its units pending, so the records report pending units as the job's do.
  */
 final class SimulatedJob {
 
@@ -75,7 +76,9 @@ final class SimulatedJob {
             long[][] counts = serve(rng, weights, ratesOfRound.apply(r), exposures);
             now += PERIOD_MS;
             for (int i = 0; i < weights.length; i++) {
-                state = state.withDelta(i, new BernoulliStats(counts[0][i], counts[1][i]), now - PERIOD_MS / 2);
+                // a tenth of the period's units still pending (unit counting): records report pending > 0
+                state = state.withDelta(i, new BernoulliStats(counts[0][i], counts[1][i]), counts[0][i] / 10,
+                        now - PERIOD_MS / 2);
             }
             result = evaluator.evaluate(state, now);
             records.add(result.decision());

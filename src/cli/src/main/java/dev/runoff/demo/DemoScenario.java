@@ -23,6 +23,11 @@ public final class DemoScenario {
 
     /** The demo experiment's id. */
     public static final String EXPERIMENT_ID = "ferry-fare-tables";
+    /**
+     * Conversion window of the demo's definition: short, so that units are counted (their windows close) a
+     * few seconds after their exposure and the demo still ends in about a minute.
+     */
+    public static final long CONVERSION_WINDOW_MS = 2_000L;
 
     /** Layout names, in definition order. */
     static final List<String> LAYOUTS = List.of("classic-grid", "flexible-bundle", "compact-list",
@@ -71,7 +76,8 @@ public final class DemoScenario {
     }
 
     /**
-     * The definition the demo registers: bookings per exposure (Beta(1, 1) prior), top-two Thompson
+     * The definition the demo registers: bookings per visitor, counted once the visitor's conversion window
+     * of {@link #CONVERSION_WINDOW_MS} has closed (Beta(1, 1) prior), top-two Thompson
      * sampling with beta 1/2 after a warm-up, the GLR stopping rule at {@code delta}, a trial budget.
      *
      * @param recomputeMs how often the job recomputes the weights
@@ -92,7 +98,7 @@ public final class DemoScenario {
                 .setAfterStop(AfterStopPolicy.ALL_TO_WINNER)
                 .setRecomputePeriodMs(recomputeMs)
                 .setHeartbeatMs(Math.max(recomputeMs * 10, Definitions.MIN_HEARTBEAT_MS))
-                .setAttributionWindowMs(3_600_000L)
+                .setAttributionWindowMs(CONVERSION_WINDOW_MS)
                 .setValidForMs(recomputeMs * 60)
                 .build();
     }

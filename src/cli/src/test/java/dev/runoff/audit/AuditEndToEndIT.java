@@ -12,6 +12,7 @@ import dev.runoff.records.RecordCodec;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.Decision;
 import dev.runoff.records.avro.DecisionRecord;
+import dev.runoff.records.avro.CountingMode;
 import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.topology.JobCounters;
 import dev.runoff.topology.RunoffTopology;
@@ -220,6 +221,9 @@ class AuditEndToEndIT {
     private static List<DecisionRecord> serveUntilStop() {
         ExperimentDefinition def = SimulatedJob.definition(EXPERIMENT, ARMS, 0);
         def.setVersion(0);
+        // Per-exposure counting: each round must be counted by the next decision (see awaitDecisionWithTrials);
+        // with unit counting a round would be counted only once its units' windows have closed.
+        def.setCounting(CountingMode.EXPOSURE);
         def.setRecomputePeriodMs(RECOMPUTE_MS);
         def.setHeartbeatMs(30_000);
         def.setValidForMs(60_000);

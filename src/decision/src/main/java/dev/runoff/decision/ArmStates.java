@@ -1,6 +1,7 @@
 package dev.runoff.decision;
 
 import dev.runoff.engine.Evaluation;
+import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.posterior.BetaPosterior;
 import dev.runoff.engine.posterior.Posterior;
@@ -10,6 +11,7 @@ import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.BetaParams;
+import dev.runoff.records.avro.CountingMode;
 import dev.runoff.records.avro.StudentTParams;
 import java.util.ArrayList;
 import java.util.List;
@@ -33,9 +35,18 @@ final class ArmStates {
                     .setWeightBeforeGuards(ruleWeights[i])
                     .setWeight(weights[i]);
             statistics(arm, state.stats().get(i));
+            if (reportsPending(state)) {
+                arm.setPending(state.pending()[i]);
+            }
             out.add(arm.build());
         }
         return out;
+    }
+
+    /** Pending units are reported for Bernoulli metrics with unit counting, when the state knows them. */
+    private static boolean reportsPending(ExperimentState state) {
+        return state.pending() != null && state.metric() == Metric.BERNOULLI
+                && state.definition().getCounting() == CountingMode.UNIT;
     }
 
     private static void statistics(ArmState.Builder arm, ArmStats stats) {

@@ -32,13 +32,17 @@ import java.util.Objects;
  * @param lastPublishedAt    time of the last control record, or -1
  * @param dirty              whether statistics changed since the last evaluation
  * @param due                whether the next allocation pass must evaluate (new experiment, new version)
+ * @param pending            per arm, units exposed whose conversion window has not closed (unit counting), or
+ *                           {@code null} when not known (records written before pending units were reported)
+ * @param armSince           per arm, the definition version since which the arm has been in the definition
+ *                           without interruption; statistics of units first exposed earlier are not merged
  */
 public record ExperimentState(ExperimentDefinition definition, List<ArmStats> stats, Stop stop,
                               long decisionSequence, long allocationSequence, String lastHash,
                               double[] lastWeights, long startedAt, long lastComputedAt, long lastPublishedAt,
-                              boolean dirty, boolean due) {
+                              boolean dirty, boolean due, long[] pending, long[] armSince) {
 
-    /** Validates the shape: one statistics entry per arm, weights of the same length. */
+    /** Validates the shape: one statistics entry per arm, weights, pending units and arm starts alike. */
     public ExperimentState {
         Objects.requireNonNull(definition, "definition");
         stats = List.copyOf(stats);
@@ -54,12 +58,35 @@ public record ExperimentState(ExperimentDefinition definition, List<ArmStats> st
             }
             lastWeights = lastWeights.clone();
         }
+        pending = pending == null ? null : perArm(pending, stats.size(), "pending");
+        armSince = armSince == null ? new long[stats.size()] : perArm(armSince, stats.size(), "armSince");
+    }
+
+    /**
+     * A state whose pending units are unknown and whose arms all count from version 0 (every unit): what an
+     * auditor rebuilds from a decision record.
+     */
+    public ExperimentState(ExperimentDefinition definition, List<ArmStats> stats, Stop stop, long decisionSequence,
+                           long allocationSequence, String lastHash, double[] lastWeights, long startedAt,
+                           long lastComputedAt, long lastPublishedAt, boolean dirty, boolean due) {
+        this(definition, stats, stop, decisionSequence, allocationSequence, lastHash, lastWeights, startedAt,
+                lastComputedAt, lastPublishedAt, dirty, due, null, null);
+    }
+
+    private static long[] perArm(long[] values, int arms, String name) {
+        if (values.length != arms) {
+            throw new IllegalArgumentException(name + " has " + values.length + " entries for " + arms + " arms");
+        }
+        return values.clone();
     }
 
     /** A new experiment: empty statistics, nothing published, due for its first evaluation. */
     public static ExperimentState start(ExperimentDefinition definition) {
-        return new ExperimentState(definition, empty(definition, definition.getArms().size()), null, 0, 0,
-                HashChain.GENESIS, null, -1, -1, -1, false, true);
+        int arms = definition.getArms().size();
+        long[] since = new long[arms];
+        Arrays.fill(since, definition.getVersion());
+        return new ExperimentState(definition, empty(definition, arms), null, 0, 0, HashChain.GENESIS, null, -1, -1,
+                -1, false, true, new long[arms], since);
     }
 
     /** The experiment id. */
@@ -92,52 +119,78 @@ public record ExperimentState(ExperimentDefinition definition, List<ArmStats> st
         return lastWeights == null ? null : lastWeights.clone();
     }
 
-    /**
-     * This state with {@code delta} merged into arm {@code index}'s statistics, marked dirty, started at
-     * {@code now} if it had not started.
-     */
+    @Override
+    public long[] pending() {
+        return pending == null ? null : pending.clone();
+    }
+
+    @Override
+    public long[] armSince() {
+        return armSince.clone();
+    }
+
+    /** {@link #withDelta(int, ArmStats, long, long)} with no change of pending units. */
     public ExperimentState withDelta(int index, ArmStats delta, long now) {
+        return withDelta(index, delta, 0, now);
+    }
+
+    /**
+     * This state with {@code delta} merged into arm {@code index}'s statistics and {@code pendingDelta} added
+     * to its pending units (never below 0), marked dirty, started at {@code now} if it had not started.
+     */
+    public ExperimentState withDelta(int index, ArmStats delta, long pendingDelta, long now) {
         List<ArmStats> merged = new ArrayList<>(stats);
         merged.set(index, ArmStats.merge(stats.get(index), delta));
+        long[] waiting = pending == null ? new long[stats.size()] : pending.clone();
+        waiting[index] = Math.max(0, waiting[index] + pendingDelta);
         return new ExperimentState(definition, merged, stop, decisionSequence, allocationSequence, lastHash,
-                lastWeights, startedAt < 0 ? now : startedAt, lastComputedAt, lastPublishedAt, true, due);
+                lastWeights, startedAt < 0 ? now : startedAt, lastComputedAt, lastPublishedAt, true, due, waiting,
+                armSince);
     }
 
     /**
      * This state under a new definition version. Only the configuration changes, except: arms that are new
-     * start with empty statistics, removed arms are dropped, and the last weights are forgotten when the
+     * start with empty statistics, no pending units and count only units first exposed under {@code next}
+     * (a re-added arm starts clean), removed arms are dropped, and the last weights are forgotten when the
      * arm list changed; a change of metric kind empties every arm. A running experiment is due for
      * evaluation; a stopped one keeps its stop.
      */
     public ExperimentState withDefinition(ExperimentDefinition next) {
         boolean sameKind = Definitions.metric(next) == metric();
         List<String> before = definition.getArms();
-        List<ArmStats> kept = new ArrayList<>(next.getArms().size());
-        for (String arm : next.getArms()) {
-            int old = before.indexOf(arm);
-            kept.add(sameKind && old >= 0 ? stats.get(old) : empty(next, 1).get(0));
+        int arms = next.getArms().size();
+        List<ArmStats> kept = new ArrayList<>(arms);
+        long[] waiting = new long[arms];
+        long[] since = new long[arms];
+        for (int i = 0; i < arms; i++) {
+            int old = before.indexOf(next.getArms().get(i));
+            boolean keep = sameKind && old >= 0;
+            kept.add(keep ? stats.get(old) : empty(next, 1).get(0));
+            waiting[i] = keep && pending != null ? pending[old] : 0;
+            since[i] = keep ? armSince[old] : next.getVersion();
         }
         boolean sameArms = before.equals(next.getArms()) && sameKind;
         return new ExperimentState(next, kept, stop, decisionSequence, allocationSequence, lastHash,
-                sameArms ? lastWeights : null, startedAt, lastComputedAt, lastPublishedAt, dirty, !stopped());
+                sameArms ? lastWeights : null, startedAt, lastComputedAt, lastPublishedAt, dirty, !stopped(), waiting,
+                since);
     }
 
     /** This state after an evaluation published decision {@code sequence} with {@code hash}. */
     ExperimentState evaluated(long now, String hash, double[] weights, Stop newStop) {
         return new ExperimentState(definition, stats, newStop, decisionSequence + 1, allocationSequence + 1, hash,
-                weights, startedAt, now, now, false, false);
+                weights, startedAt, now, now, false, false, pending, armSince);
     }
 
     /** This state after a heartbeat of a stopped experiment (a control record only). */
     ExperimentState republished(long now) {
         return new ExperimentState(definition, stats, stop, decisionSequence, allocationSequence + 1, lastHash,
-                lastWeights, startedAt, lastComputedAt, now, dirty, false);
+                lastWeights, startedAt, lastComputedAt, now, dirty, false, pending, armSince);
     }
 
     /** This state after an evaluation failed at {@code now}: not retried before new data or a heartbeat. */
     public ExperimentState failed(long now) {
         return new ExperimentState(definition, stats, stop, decisionSequence, allocationSequence, lastHash,
-                lastWeights, startedAt, now, now, false, false);
+                lastWeights, startedAt, now, now, false, false, pending, armSince);
     }
 
     private static List<ArmStats> empty(ExperimentDefinition definition, int count) {
@@ -152,13 +205,14 @@ public record ExperimentState(ExperimentDefinition definition, List<ArmStats> st
                 && allocationSequence == s.allocationSequence && lastHash.equals(s.lastHash)
                 && Arrays.equals(lastWeights, s.lastWeights) && startedAt == s.startedAt
                 && lastComputedAt == s.lastComputedAt && lastPublishedAt == s.lastPublishedAt && dirty == s.dirty
-                && due == s.due;
+                && due == s.due && Arrays.equals(pending, s.pending) && Arrays.equals(armSince, s.armSince);
     }
 
     @Override
     public int hashCode() {
         return Objects.hash(definition, stats, stop, decisionSequence, allocationSequence, lastHash,
-                Arrays.hashCode(lastWeights), startedAt, lastComputedAt, lastPublishedAt, dirty, due);
+                Arrays.hashCode(lastWeights), startedAt, lastComputedAt, lastPublishedAt, dirty, due,
+                Arrays.hashCode(pending), Arrays.hashCode(armSince));
     }
 
     @Override
@@ -167,7 +221,8 @@ public record ExperimentState(ExperimentDefinition definition, List<ArmStats> st
                 + ", stop=" + stop + ", decision=" + decisionSequence + ", allocation=" + allocationSequence
                 + ", lastWeights=" + Arrays.toString(lastWeights) + ", startedAt=" + startedAt
                 + ", lastComputedAt=" + lastComputedAt + ", lastPublishedAt=" + lastPublishedAt + ", dirty=" + dirty
-                + ", due=" + due + "]";
+                + ", due=" + due + ", pending=" + Arrays.toString(pending) + ", armSince="
+                + Arrays.toString(armSince) + "]";
     }
 
     /**

@@ -3,6 +3,7 @@ package dev.runoff.topology;
 import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
+import java.nio.charset.StandardCharsets;
 import java.time.Duration;
 import java.util.ArrayList;
 import java.util.List;
@@ -18,42 +19,60 @@ import org.apache.kafka.streams.state.KeyValueStore;
 
 /**
  * Stage 1, step 4: turns events into per-arm statistics, one unit at a time (events arrive keyed by
- * experiment and unit, so every event of a unit reaches this task).
+ * experiment and unit, so every event of a unit reaches this task). {@link UnitCounting} is the rule.
  * <ul>
  *   <li>A trial event fixes the unit's arm (the first one is kept; a trial on another arm is rejected with
- *       {@code arm-conflict}) and, for a Bernoulli metric, counts one trial.</li>
- *   <li>A success or value event without an arm takes the unit's arm when it lies within the experiment's
- *       attribution window of the unit's latest trial event (either side, to tolerate clock skew between
- *       producers), else it is {@code unattributed}. With an arm, it must be the unit's ({@code arm-mismatch}).
- *       A unit with no trial event cannot be attributed.</li>
- *   <li>Bernoulli: a success counts only while the unit's successes are below its trials, so successes never
- *       exceed trials on any arm; an extra one is rejected with {@code excess-success}.</li>
- *   <li>Value metric: each value event is one observation of the unit's arm; the metric is the mean value
- *       per value event.</li>
+ *       {@code arm-conflict}). Unit counting (Bernoulli, the default): the unit becomes pending on its arm;
+ *       per-exposure counting: one trial.</li>
+ *   <li>A success or value event is credited to the unit's counted (first) exposure. Naming another arm than
+ *       the unit's is {@code arm-mismatch}; an arm-less event takes the unit's arm. Unit counting: a success
+ *       stamped more than the conversion window after the first exposure is {@code unattributed}, a second
+ *       one {@code excess-success}, one arriving after the unit was counted {@code late-outcome}. Per
+ *       exposure: an arm-less event must lie within the window of the latest exposure, and successes never
+ *       exceed trials.</li>
+ *   <li>An outcome whose unit has no trial event yet waits up to the definition's early-outcome grace
+ *       ({@link #MAX_WAITING_PER_UNIT} per unit) and is replayed when the trial event comes; after the grace
+ *       it is rejected as {@code unattributed}.</li>
+ *   <li>A punctuation every flush interval (wall clock) closes the windows that have ended: each such unit
+ *       enters its arm's trials, as a success if it converted.</li>
  * </ul>
- * Unit entries are dropped once idle for their attribution window plus a margin, by a wall-clock
- * punctuation that looks at a bounded number of entries per call and resumes where it stopped.
+ * Time: windows compare event timestamps with each other and with the job's wall clock (the punctuation's
+ * time), as the rest of the job does. Unit entries are dropped once counted and idle for their window plus
+ * a margin, by a wall-clock punctuation that looks at a bounded number of entries per call.
  */
 final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], Routed<ArmDelta>> {
 
-    private final String storeName;
+    /** Most outcome events one unit may have waiting for its first trial event. */
+    static final int MAX_WAITING_PER_UNIT = 16;
+
+    private static final char CLOSE = 'C';
+    private static final char EXPIRE = 'E';
+    private static final int DIGITS = 19;
+
     private final TopologySettings settings;
     private final Rejections rejections;
+    private final JobCounters counters;
     private KeyValueStore<String, UnitState> units;
+    private KeyValueStore<String, byte[]> deadlines;
+    private KeyValueStore<String, Waiting> early;
     private String resumeFrom;
 
-    Attribution(String storeName, TopologySettings settings, Rejections rejections) {
-        this.storeName = storeName;
+    Attribution(TopologySettings settings, Rejections rejections, JobCounters counters) {
         this.settings = settings;
         this.rejections = rejections;
+        this.counters = counters;
     }
 
     @Override
     public void init(ProcessorContext<byte[], Routed<ArmDelta>> context) {
         super.init(context);
-        units = context.getStateStore(storeName);
+        units = context.getStateStore(RunoffTopology.UNITS_STORE);
+        deadlines = context.getStateStore(RunoffTopology.DEADLINES_STORE);
+        early = context.getStateStore(RunoffTopology.EARLY_STORE);
         context.schedule(Duration.ofMillis(settings.unitsCleanupIntervalMs()), PunctuationType.WALL_CLOCK_TIME,
                 this::cleanUp);
+        context.schedule(Duration.ofMillis(settings.flushIntervalMs()), PunctuationType.WALL_CLOCK_TIME,
+                this::deadlinesDue);
     }
 
     @Override
@@ -63,74 +82,190 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         UnitState unit = units.get(key);
         long now = context().currentSystemTimeMs();
         if (event.role() == UnitEvent.Role.TRIAL) {
-            trial(record, key, unit, now);
-            return;
-        }
-        String arm = resolveArm(record, unit);
-        if (arm == null) {
-            return;
-        }
-        if (event.role() == UnitEvent.Role.VALUE) {
-            pass(record, new ArmDelta(event.experimentId(), arm, ValueStats.EMPTY.add(event.value())));
-        } else if (unit.successes() >= unit.trials()) {
-            reject(record, RejectReason.EXCESS_SUCCESS.code(), "type: the unit already has " + unit.successes()
-                    + " successes for " + unit.trials() + " trials; successes never exceed trials");
+            trial(event, record.timestamp(), key, unit, now);
+        } else if (unit == null) {
+            hold(event, record.timestamp(), key, now);
         } else {
-            units.put(key, unit.success(now));
-            pass(record, new ArmDelta(event.experimentId(), arm, new BernoulliStats(0, 1)));
+            outcome(event, record.timestamp(), key, unit, now);
         }
     }
 
-    private void trial(Record<byte[], UnitEvent> record, String key, UnitState unit, long now) {
-        UnitEvent event = record.value();
-        if (unit != null && !unit.arm().equals(event.arm())) {
-            reject(record, RejectReason.ARM_CONFLICT.code(), "arm: the unit was first counted on arm "
+    private void trial(UnitEvent event, long timestamp, String key, UnitState unit, long now) {
+        UnitCounting.Step step = UnitCounting.expose(unit, event.arm(), event.version(), event.unitLevel(),
+                event.timestamp(), event.attributionWindowMs(), now);
+        if (step.verdict() == UnitCounting.Verdict.ARM_CONFLICT) {
+            reject(event, timestamp, RejectReason.ARM_CONFLICT, "arm: the unit was first counted on arm "
                     + EventValidator.quote(unit.arm()) + ", not " + EventValidator.quote(event.arm())
                     + "; the first arm is kept");
             return;
         }
-        units.put(key, unit == null ? UnitState.first(event.arm(), event.timestamp(), event.attributionWindowMs(), now)
-                : unit.trial(event.timestamp(), event.attributionWindowMs(), now));
+        units.put(key, step.unit());
+        if (unit == null && step.unit().unitLevel()) {
+            deadlines.put(deadline(step.unit().closesAt(), CLOSE, key), new byte[0]);
+        }
         if (event.metric() == Metric.BERNOULLI) {
-            pass(record, new ArmDelta(event.experimentId(), event.arm(), new BernoulliStats(1, 0)));
+            pass(step.unit(), event.experimentId(), step.count(), timestamp);
+        }
+        if (unit == null) {
+            release(key, now);
         }
     }
 
-    /** The arm a success or value event counts for, or {@code null} after rejecting it. */
-    private String resolveArm(Record<byte[], UnitEvent> record, UnitState unit) {
-        UnitEvent event = record.value();
-        if (unit == null) {
-            reject(record, RejectReason.UNATTRIBUTED.code(), "unitId: the unit has no trial event in experiment "
-                    + EventValidator.quote(event.experimentId()) + " to attribute this " + event.role().name()
-                    .toLowerCase(Locale.ROOT) + " event to");
-            return null;
+    /** A success or value event of a unit that has a trial event. */
+    private void outcome(UnitEvent event, long timestamp, String key, UnitState unit, long now) {
+        if (event.arm() != null && !event.arm().equals(unit.arm())) {
+            reject(event, timestamp, RejectReason.ARM_MISMATCH, "arm: " + EventValidator.quote(event.arm())
+                    + " differs from the arm " + EventValidator.quote(unit.arm()) + " the unit was first exposed to");
+            return;
         }
-        if (event.arm() != null) {
-            if (!event.arm().equals(unit.arm())) {
-                reject(record, RejectReason.ARM_MISMATCH.code(), "arm: " + EventValidator.quote(event.arm())
-                        + " differs from the unit's arm " + EventValidator.quote(unit.arm()));
-                return null;
+        if (event.role() == UnitEvent.Role.VALUE) {
+            value(event, timestamp, unit);
+            return;
+        }
+        UnitCounting.Step step = UnitCounting.convert(unit, event.timestamp(), event.arm() != null, now);
+        switch (step.verdict()) {
+            case TAKEN -> {
+                units.put(key, step.unit());
+                pass(step.unit(), event.experimentId(), step.count(), timestamp);
             }
-            return unit.arm();
+            case OUTSIDE_WINDOW -> reject(event, timestamp, RejectReason.UNATTRIBUTED, "timestamp: "
+                    + (event.timestamp() - (unit.unitLevel() ? unit.firstTrialAt() : unit.lastTrialAt()))
+                    + " ms from the unit's " + (unit.unitLevel() ? "first" : "latest") + " trial event, outside"
+                    + " the conversion window of " + unit.windowMs() + " ms");
+            case EXCESS -> reject(event, timestamp, RejectReason.EXCESS_SUCCESS, "type: the unit already has "
+                    + unit.successes() + (unit.unitLevel() ? " success; a unit converts at most once"
+                    : " successes for " + unit.trials() + " trials; successes never exceed trials"));
+            case LATE -> reject(event, timestamp, RejectReason.LATE_OUTCOME, "timestamp: the unit's conversion"
+                    + " window closed at " + unit.closesAt() + " and it was counted as a failure before this"
+                    + " success arrived");
+            default -> throw new IllegalStateException("unexpected verdict " + step.verdict());
         }
+    }
+
+    private void value(UnitEvent event, long timestamp, UnitState unit) {
         long gap = Math.abs(event.timestamp() - unit.lastTrialAt());
-        if (gap > event.attributionWindowMs()) {
-            reject(record, RejectReason.UNATTRIBUTED.code(), "timestamp: " + gap
+        if (event.arm() == null && gap > event.attributionWindowMs()) {
+            reject(event, timestamp, RejectReason.UNATTRIBUTED, "timestamp: " + gap
                     + " ms from the unit's latest trial event, more than the attribution window of "
                     + event.attributionWindowMs() + " ms");
-            return null;
+            return;
         }
-        return unit.arm();
+        forward(new ArmDelta(event.experimentId(), unit.arm(), unit.version(), ValueStats.EMPTY.add(event.value()),
+                0), timestamp);
     }
 
-    private void pass(Record<byte[], UnitEvent> record, ArmDelta delta) {
-        context().forward(new Record<>(record.key(), Routed.pass(delta), record.timestamp(), new RecordHeaders()));
+    /** An outcome before its unit's first trial event: waits for it, within the grace and the bound. */
+    private void hold(UnitEvent event, long timestamp, String key, long now) {
+        Waiting waiting = early.get(key);
+        int count = waiting == null ? 0 : waiting.events().size();
+        if (event.earlyGraceMs() <= 0 || count >= MAX_WAITING_PER_UNIT) {
+            reject(event, timestamp, RejectReason.UNATTRIBUTED, "unitId: the unit has no trial event in experiment "
+                    + EventValidator.quote(event.experimentId()) + " to attribute this "
+                    + event.role().name().toLowerCase(Locale.ROOT) + " event to"
+                    + (event.earlyGraceMs() <= 0 ? "" : " and already has " + count + " events waiting for one"));
+            return;
+        }
+        Waiting.Entry entry = new Waiting.Entry(now, event);
+        early.put(key, waiting == null ? new Waiting(List.of(entry)) : waiting.with(entry));
+        deadlines.put(deadline(saturatedSum(now, event.earlyGraceMs()), EXPIRE, key), new byte[0]);
+        counters.earlyHeld();
     }
 
-    private void reject(Record<byte[], UnitEvent> record, String reason, String message) {
-        UnitEvent event = record.value();
-        context().forward(rejections.routed(event.originalKey(), event.originalValue(), record.timestamp(), reason,
+    /** Replays the outcomes that waited for the unit's first trial event. */
+    private void release(String key, long now) {
+        Waiting waiting = early.get(key);
+        if (waiting == null) {
+            return;
+        }
+        early.delete(key);
+        for (Waiting.Entry entry : waiting.events()) {
+            counters.earlyMatched();
+            outcome(entry.event(), now, key, units.get(key), now);
+        }
+    }
+
+    private void pass(UnitState unit, String experimentId, UnitCounting.Count count, long timestamp) {
+        if (!count.isEmpty()) {
+            forward(new ArmDelta(experimentId, unit.arm(), unit.version(),
+                    new BernoulliStats(count.trials(), count.successes()), count.pending()), timestamp);
+        }
+    }
+
+    private void forward(ArmDelta delta, long timestamp) {
+        String key = UnitEvent.unitKey(delta.experimentId(), "");
+        context().forward(new Record<>(key.getBytes(StandardCharsets.UTF_8), Routed.pass(delta), timestamp,
+                new RecordHeaders()));
+    }
+
+    private void reject(UnitEvent event, long timestamp, RejectReason reason, String message) {
+        context().forward(rejections.routed(event.originalKey(), event.originalValue(), timestamp, reason.code(),
                 message, event.source()));
+    }
+
+    /** Closes the windows and ends the graces due by {@code now}, at most the clean-up bound per call. */
+    private void deadlinesDue(long now) {
+        List<String> due = new ArrayList<>();
+        try (KeyValueIterator<String, byte[]> it = deadlines.range(null, deadline(now, '\u007f', ""))) {
+            while (it.hasNext() && due.size() < settings.unitsCleanupMaxEntries()) {
+                due.add(it.next().key);
+            }
+        }
+        for (String entry : due) {
+            deadlines.delete(entry);
+            char kind = entry.charAt(DIGITS);
+            String key = entry.substring(DIGITS + 1);
+            if (kind == CLOSE) {
+                close(key, now);
+            } else {
+                expire(key, now);
+            }
+        }
+    }
+
+    private void close(String key, long now) {
+        UnitState unit = units.get(key);
+        if (unit == null) {
+            return;
+        }
+        UnitCounting.Step step = UnitCounting.close(unit, now);
+        if (!step.count().isEmpty()) {
+            units.put(key, step.unit());
+            pass(step.unit(), key.substring(0, key.indexOf('\u0000')), step.count(), now);
+        }
+    }
+
+    private void expire(String key, long now) {
+        Waiting waiting = early.get(key);
+        if (waiting == null) {
+            return;
+        }
+        List<Waiting.Entry> kept = new ArrayList<>();
+        for (Waiting.Entry entry : waiting.events()) {
+            UnitEvent event = entry.event();
+            if (now - entry.arrivedAt() >= event.earlyGraceMs()) {
+                reject(event, now, RejectReason.UNATTRIBUTED, "unitId: the unit had no trial event in experiment "
+                        + EventValidator.quote(event.experimentId()) + " within the early-outcome grace of "
+                        + event.earlyGraceMs() + " ms after this " + event.role().name().toLowerCase(Locale.ROOT)
+                        + " event arrived");
+            } else {
+                kept.add(entry);
+            }
+        }
+        if (kept.isEmpty()) {
+            early.delete(key);
+        } else {
+            early.put(key, new Waiting(kept));
+        }
+    }
+
+    /** Deadline key: the time as 19 digits (sorts in time order), the kind, the unit key. */
+    static String deadline(long at, char kind, String unitKey) {
+        return String.format(Locale.ROOT, "%019d", Math.max(0L, at)) + kind + unitKey;
+    }
+
+    private static long saturatedSum(long a, long b) {
+        long sum = a + b;
+        return ((a ^ sum) & (b ^ sum)) < 0 ? Long.MAX_VALUE : sum;
     }
 
     /** Drops expired unit entries, looking at most at the configured number per call. */

@@ -2,6 +2,7 @@ package dev.runoff.topology;
 
 import dev.runoff.engine.core.Metric;
 import dev.runoff.records.Definitions;
+import dev.runoff.records.avro.CountingMode;
 import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.ExperimentDefinition;
 import java.util.Set;
@@ -15,17 +16,20 @@ import java.util.Set;
  * @param metric              its metric kind
  * @param trialEvent          the event type that counts as a trial
  * @param outcomeEvent        the success event (Bernoulli) or the value event (value metric)
- * @param attributionWindowMs its attribution window
+ * @param attributionWindowMs its conversion (attribution) window
+ * @param unitLevel           whether it counts units (Bernoulli metric with {@code UNIT} counting)
+ * @param earlyGraceMs        how long an outcome that arrives before its unit's first trial event waits
  */
 record DefinitionView(String experimentId, long version, Set<String> arms, Metric metric, EventType trialEvent,
-                      EventType outcomeEvent, long attributionWindowMs) {
+                      EventType outcomeEvent, long attributionWindowMs, boolean unitLevel, long earlyGraceMs) {
 
     static DefinitionView of(ExperimentDefinition def) {
         Metric metric = Definitions.metric(def);
         EventType outcome = metric == Metric.BERNOULLI ? def.getMetric().getSuccessEvent()
                 : def.getMetric().getValueEvent();
         return new DefinitionView(def.getExperimentId(), def.getVersion(), Set.copyOf(def.getArms()), metric,
-                def.getMetric().getTrialEvent(), outcome, def.getAttributionWindowMs());
+                def.getMetric().getTrialEvent(), outcome, def.getAttributionWindowMs(),
+                metric == Metric.BERNOULLI && def.getCounting() == CountingMode.UNIT, def.getEarlyOutcomeGraceMs());
     }
 
     /** The role of an event of type {@code type}, or {@code null} when the metric does not use it. */

@@ -75,7 +75,8 @@ final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], R
         } else {
             UnitEvent valid = new UnitEvent(event.getExperimentId(), event.getUnitId(), event.getEventId(), role,
                     view.metric(), arm, event.getValue() == null ? Double.NaN : event.getValue(),
-                    event.getTimestamp(), view.attributionWindowMs(), source, record.key(), record.value());
+                    event.getTimestamp(), view.attributionWindowMs(), view.version(), view.unitLevel(),
+                    view.earlyGraceMs(), source, record.key(), record.value());
             context().forward(new Record<>(valid.unitKeyBytes(), Routed.pass(valid), record.timestamp(),
                     new RecordHeaders()));
         }

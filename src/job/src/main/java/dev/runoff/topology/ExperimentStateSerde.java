@@ -13,7 +13,7 @@ final class ExperimentStateSerde {
     static final InternalSerde<ExperimentState> SERDE =
             new InternalSerde<>(ExperimentStateSerde::encode, ExperimentStateSerde::decode);
 
-    private static final int FORMAT = 1;
+    private static final int FORMAT = 2;
 
     private ExperimentStateSerde() {
     }
@@ -34,8 +34,13 @@ final class ExperimentStateSerde {
         if (s.lastWeights() != null) {
             writeDoubles(out, s.lastWeights());
         }
-        return out.writeLong(s.startedAt()).writeLong(s.lastComputedAt()).writeLong(s.lastPublishedAt())
-                .writeBoolean(s.dirty()).writeBoolean(s.due()).toByteArray();
+        out.writeLong(s.startedAt()).writeLong(s.lastComputedAt()).writeLong(s.lastPublishedAt())
+                .writeBoolean(s.dirty()).writeBoolean(s.due()).writeBoolean(s.pending() != null);
+        if (s.pending() != null) {
+            writeLongs(out, s.pending());
+        }
+        writeLongs(out, s.armSince());
+        return out.toByteArray();
     }
 
     static ExperimentState decode(byte[] bytes) {
@@ -55,8 +60,15 @@ final class ExperimentStateSerde {
         long allocationSequence = in.readLong();
         String lastHash = in.readString();
         double[] lastWeights = in.readBoolean() ? readDoubles(in, arms) : null;
+        long startedAt = in.readLong();
+        long lastComputedAt = in.readLong();
+        long lastPublishedAt = in.readLong();
+        boolean dirty = in.readBoolean();
+        boolean due = in.readBoolean();
+        long[] pending = in.readBoolean() ? readLongs(in, arms) : null;
         ExperimentState state = new ExperimentState(definition, stats, stop, decisionSequence, allocationSequence,
-                lastHash, lastWeights, in.readLong(), in.readLong(), in.readLong(), in.readBoolean(), in.readBoolean());
+                lastHash, lastWeights, startedAt, lastComputedAt, lastPublishedAt, dirty, due, pending,
+                readLongs(in, arms));
         in.end();
         return state;
     }
@@ -70,6 +82,20 @@ final class ExperimentStateSerde {
             arms.add(in.readString());
         }
         return new ExperimentState.Stop(winner, version, arms, readDoubles(in, count));
+    }
+
+    private static void writeLongs(BinaryOut out, long[] values) {
+        for (long v : values) {
+            out.writeLong(v);
+        }
+    }
+
+    private static long[] readLongs(BinaryIn in, int count) {
+        long[] values = new long[count];
+        for (int i = 0; i < count; i++) {
+            values[i] = in.readLong();
+        }
+        return values;
     }
 
     private static void writeDoubles(BinaryOut out, double[] values) {

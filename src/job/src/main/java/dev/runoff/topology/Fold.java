@@ -8,8 +8,10 @@ import dev.runoff.engine.stats.ArmStats;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
 import dev.runoff.records.Definitions;
+import dev.runoff.records.Format;
 import dev.runoff.records.RecordCodec;
 import dev.runoff.records.RecordSigner;
+import dev.runoff.records.avro.MetricKind;
 import dev.runoff.records.avro.ExperimentDefinition;
 import java.nio.charset.StandardCharsets;
 import java.time.Duration;
@@ -29,10 +31,13 @@ import org.slf4j.LoggerFactory;
  *   <li>A definition gets its version ({@link Definitions#assignVersion}: same content keeps it, a change
  *       adds 1), replaces the configuration (see {@link ExperimentState#withDefinition}) and is published on
  *       the accepted-definitions topic, which feeds event validation.</li>
- *   <li>The end of an experiment deletes its state and publishes tombstones on the control and accepted
- *       topics.</li>
- *   <li>Statistics are merged into their arm; statistics for an unknown experiment or arm, or of the other
- *       metric kind, are kept out and sent to the rejected topic.</li>
+ *   <li>A definition that reuses the id of an ended experiment ({@code experiment-id-ended}) or changes the
+ *       metric kind or the counting mode ({@code metric-change}) is refused: start a new experiment.</li>
+ *   <li>The end of an experiment deletes its state, remembers its id and publishes tombstones on the control
+ *       and accepted topics.</li>
+ *   <li>Statistics and pending-unit changes are merged into their arm; those for an unknown experiment or
+ *       arm, of the other metric kind, or of units first exposed before the arm was last added, are kept out
+ *       and sent to the rejected topic.</li>
  *   <li>A wall-clock punctuation runs the {@link AllocationPass} over the store.</li>
  * </ul>
  */
@@ -49,6 +54,7 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
     private final RecordSigner signer;
     private final RecordCodec<ExperimentDefinition> definitions = RecordCodec.definitions();
     private KeyValueStore<String, ExperimentState> experiments;
+    private KeyValueStore<String, Long> ended;
 
     Fold(String storeName, TopologySettings settings, Rejections rejections, JobCounters counters,
          LongSupplier nanoTime, RecordSigner signer) {
@@ -64,6 +70,7 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
     public void init(ProcessorContext<byte[], Emit> context) {
         super.init(context);
         experiments = context.getStateStore(storeName);
+        ended = context.getStateStore(RunoffTopology.ENDED_STORE);
         AllocationPass pass = new AllocationPass(settings, new StoredExperiments(experiments), new Forwarded(),
                 counters, nanoTime, signer);
         context.schedule(Duration.ofMillis(settings.allocateIntervalMs()), PunctuationType.WALL_CLOCK_TIME,
@@ -74,15 +81,22 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
     public void process(Record<byte[], StageTwo> record) {
         StageTwo message = record.value();
         switch (message.kind()) {
-            case DEFINITION -> define(message.definition(), record.timestamp());
+            case DEFINITION -> define(record, message.definition(), record.timestamp());
             case ENDED -> end(message.experimentId(), record.timestamp());
             case DELTA -> fold(record);
         }
     }
 
-    private void define(ExperimentDefinition submitted, long timestamp) {
+    private void define(Record<byte[], StageTwo> record, ExperimentDefinition submitted, long timestamp) {
         String id = submitted.getExperimentId();
         ExperimentState current = experiments.get(id);
+        String refusal = refusal(id, current, submitted);
+        if (refusal != null) {
+            RejectReason reason = current == null ? RejectReason.EXPERIMENT_ID_ENDED : RejectReason.METRIC_CHANGE;
+            context().forward(rejections.emit(record.key(), definitions.encode(submitted, Format.JSON), timestamp,
+                    reason.code(), refusal, Source.of(context().recordMetadata())));
+            return;
+        }
         ExperimentDefinition assigned = Definitions.assignVersion(current == null ? null : current.definition(),
                 submitted);
         if (current != null && assigned == current.definition()) {
@@ -93,11 +107,36 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
         LOG.info("Experiment {} now at definition version {}", id, assigned.getVersion());
     }
 
+    /**
+     * Why {@code submitted} may not be accepted, or {@code null}: an ended id is never reused, and the metric
+     * kind and the counting mode of an experiment never change (its counts would mix two meanings).
+     */
+    private String refusal(String id, ExperimentState current, ExperimentDefinition submitted) {
+        if (current == null) {
+            Long endedAt = ended.get(id);
+            return endedAt == null ? null : "experimentId: experiment " + EventValidator.quote(id) + " ended at "
+                    + endedAt + " and its id is not reused; start a new experiment with a new id";
+        }
+        MetricKind kind = submitted.getMetric().getKind();
+        if (kind != current.definition().getMetric().getKind()) {
+            return "metric.kind: experiment " + EventValidator.quote(id) + " measures "
+                    + current.definition().getMetric().getKind() + ", not " + kind
+                    + "; the metric of an experiment never changes, start a new experiment with a new id";
+        }
+        if (submitted.getCounting() != current.definition().getCounting()) {
+            return "counting: experiment " + EventValidator.quote(id) + " counts " + current.definition().getCounting()
+                    + ", not " + submitted.getCounting()
+                    + "; the counting of an experiment never changes, start a new experiment with a new id";
+        }
+        return null;
+    }
+
     private void end(String id, long timestamp) {
         if (experiments.get(id) == null) {
             return;
         }
         experiments.delete(id);
+        ended.put(id, timestamp);
         emit(settings.allocationsTopic(), id, null, timestamp);
         emit(settings.acceptedDefinitionsTopic(), id, null, timestamp);
         LOG.info("Experiment {} ended: state deleted, tombstones published", id);
@@ -122,7 +161,15 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
                     + " is not an arm of version " + current.definition().getVersion());
             return;
         }
-        experiments.put(delta.experimentId(), current.withDelta(index, delta.stats(), context().currentSystemTimeMs()));
+        long since = current.armSince()[index];
+        if (delta.version() < since) {
+            rejectDelta(record, RejectReason.DELTA_STALE_ARM.code(), "version: units first exposed under version "
+                    + delta.version() + ", but arm " + EventValidator.quote(delta.arm())
+                    + " counts only units first exposed from version " + since + " (when it was last added)");
+            return;
+        }
+        experiments.put(delta.experimentId(), current.withDelta(index, delta.stats(), delta.pending(),
+                context().currentSystemTimeMs()));
         counters.folded(delta.stats().trials());
     }
 
@@ -133,7 +180,8 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
 
     /** The rejected delta as JSON: experiment, arm and statistics. */
     private static byte[] body(StageTwo delta) {
-        ObjectNode body = JSON.createObjectNode().put("experimentId", delta.experimentId()).put("arm", delta.arm());
+        ObjectNode body = JSON.createObjectNode().put("experimentId", delta.experimentId()).put("arm", delta.arm())
+                .put("version", delta.version()).put("pending", delta.pending());
         ArmStats stats = delta.stats();
         if (stats instanceof BernoulliStats b) {
             body.put("trials", b.trials()).put("successes", b.successes());

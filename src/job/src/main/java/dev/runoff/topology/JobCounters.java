@@ -15,6 +15,10 @@ public final class JobCounters {
 
     /** Key under which dropped duplicate events are counted. */
     public static final String DUPLICATE = "duplicate-event";
+    /** Key under which outcome events held to wait for their unit's first trial event are counted. */
+    public static final String EARLY_HELD = "early-outcome-held";
+    /** Key under which held outcome events matched by their unit's first trial event are counted. */
+    public static final String EARLY_MATCHED = "early-outcome-matched";
 
     private final Map<String, LongAdder> counts = new ConcurrentHashMap<>();
     private final LongAdder foldedTrials = new LongAdder();
@@ -35,6 +39,16 @@ public final class JobCounters {
     /** Counts one dropped duplicate. */
     public void duplicate() {
         add(DUPLICATE);
+    }
+
+    /** Counts one outcome event held until its unit's first trial event comes (or the grace ends). */
+    public void earlyHeld() {
+        add(EARLY_HELD);
+    }
+
+    /** Counts one held outcome event matched by its unit's first trial event. */
+    public void earlyMatched() {
+        add(EARLY_MATCHED);
     }
 
     /** Counts {@code trials} trials folded into an experiment's statistics. */
@@ -73,7 +87,7 @@ public final class JobCounters {
         return allocationPassNanos.sum();
     }
 
-    /** The count under {@code key} (a reason code or {@link #DUPLICATE}), 0 if none. */
+    /** The count under {@code key} (a reason code, {@link #DUPLICATE}, {@link #EARLY_HELD}...), 0 if none. */
     public long count(String key) {
         LongAdder adder = counts.get(key);
         return adder == null ? 0 : adder.sum();

@@ -16,7 +16,8 @@ import org.apache.kafka.streams.state.KeyValueIterator;
 import org.apache.kafka.streams.state.KeyValueStore;
 
 /**
- * Stage 1, step 5: sums the statistics of each (experiment, arm) seen by this task in a persistent store,
+ * Stage 1, step 5: sums the statistics and pending-unit changes of each (experiment, arm, version of the
+ * units' first exposure) seen by this task in a persistent store,
  * and every flush interval (wall clock) forwards each sum keyed by experiment id and deletes it. A flush
  * forwards at most the configured number of sums and resumes where it stopped. With exactly-once
  * processing, the store changes, the forwarded sums and the input offsets commit together: nothing is lost
@@ -26,7 +27,7 @@ final class PreAggregate extends ContextualProcessor<byte[], ArmDelta, byte[], S
 
     private final String storeName;
     private final TopologySettings settings;
-    private KeyValueStore<String, ArmStats> sums;
+    private KeyValueStore<String, Sum> sums;
     private String resumeFrom;
 
     PreAggregate(String storeName, TopologySettings settings) {
@@ -45,25 +46,44 @@ final class PreAggregate extends ContextualProcessor<byte[], ArmDelta, byte[], S
     public void process(Record<byte[], ArmDelta> record) {
         ArmDelta delta = record.value();
         String key = delta.key();
-        ArmStats sum = sums.get(key);
-        sums.put(key, sum == null ? delta.stats() : ArmStats.merge(sum, delta.stats()));
+        Sum sum = sums.get(key);
+        sums.put(key, sum == null ? new Sum(delta.stats(), delta.pending())
+                : new Sum(ArmStats.merge(sum.stats(), delta.stats()), sum.pending() + delta.pending()));
     }
 
     private void flush(long now) {
-        List<KeyValue<String, ArmStats>> batch = new ArrayList<>();
-        try (KeyValueIterator<String, ArmStats> it = sums.range(resumeFrom, null)) {
+        List<KeyValue<String, Sum>> batch = new ArrayList<>();
+        try (KeyValueIterator<String, Sum> it = sums.range(resumeFrom, null)) {
             while (it.hasNext() && batch.size() < settings.flushMaxEntries()) {
                 batch.add(it.next());
             }
             resumeFrom = it.hasNext() ? it.peekNextKey() : null;
         }
-        for (KeyValue<String, ArmStats> entry : batch) {
-            int split = entry.key.indexOf('\u0000');
-            String experimentId = entry.key.substring(0, split);
-            ArmDelta delta = new ArmDelta(experimentId, entry.key.substring(split + 1), entry.value);
-            context().forward(new Record<>(experimentId.getBytes(StandardCharsets.UTF_8), StageTwo.delta(delta), now,
-                    new RecordHeaders()));
+        for (KeyValue<String, Sum> entry : batch) {
+            ArmDelta delta = ArmDelta.of(entry.key, entry.value.stats(), entry.value.pending());
+            context().forward(new Record<>(delta.experimentId().getBytes(StandardCharsets.UTF_8),
+                    StageTwo.delta(delta), now, new RecordHeaders()));
             sums.delete(entry.key);
+        }
+    }
+
+    /** A stored sum: statistics and the change of pending units. */
+    record Sum(ArmStats stats, long pending) {
+
+        /** Serde of the store. */
+        static final InternalSerde<Sum> SERDE = new InternalSerde<>(Sum::encode, Sum::decode);
+
+        private static byte[] encode(Sum sum) {
+            BinaryOut out = new BinaryOut();
+            Stats.write(out, sum.stats);
+            return out.writeLong(sum.pending).toByteArray();
+        }
+
+        private static Sum decode(byte[] bytes) {
+            BinaryIn in = new BinaryIn(bytes);
+            Sum sum = new Sum(Stats.read(in), in.readLong());
+            in.end();
+            return sum;
         }
     }
 }

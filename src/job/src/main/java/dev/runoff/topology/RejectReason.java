@@ -28,16 +28,24 @@ public enum RejectReason {
     ARM_MISMATCH,
     /** A success or value event with no trial event of its unit to attribute it to (within the window). */
     UNATTRIBUTED,
-    /** A success beyond the unit's number of trials (successes never exceed trials). */
+    /** A success beyond the unit's number of trials (successes never exceed trials; a unit converts once). */
     EXCESS_SUCCESS,
+    /** Unit counting: a success within the window that arrived after the window closed and the unit was counted. */
+    LATE_OUTCOME,
     /** A definition whose record key differs from its experimentId. */
     KEY_MISMATCH,
+    /** A definition that changes the metric kind or the counting mode: start a new experiment instead. */
+    METRIC_CHANGE,
+    /** A definition for an experiment id that has ended: ids are not reused, start one with a new id. */
+    EXPERIMENT_ID_ENDED,
     /** Pre-aggregated statistics for an experiment the job no longer holds (race with a tombstone). */
     DELTA_UNKNOWN_EXPERIMENT,
     /** Pre-aggregated statistics for an arm the definition in force does not have (race with a change). */
     DELTA_UNKNOWN_ARM,
     /** Pre-aggregated statistics of the other metric kind (race with a change of metric). */
     DELTA_METRIC_MISMATCH,
+    /** Pre-aggregated statistics of units first exposed before their arm was last (re-)added. */
+    DELTA_STALE_ARM,
     /** The engine or the stopping rule refused to evaluate an experiment. */
     EVALUATION_ERROR,
     /** An unexpected exception while processing a record (dead-lettered by the exception handler). */

@@ -56,6 +56,12 @@ public final class RunoffTopology {
     public static final String DEDUPE_STORE = "seen-event-ids";
     /** Name of the store of unit attribution entries. */
     public static final String UNITS_STORE = "units";
+    /** Name of the store of unit deadlines: conversion windows to close, early-outcome graces to end. */
+    public static final String DEADLINES_STORE = "unit-deadlines";
+    /** Name of the store of outcome events waiting for their unit's first trial event. */
+    public static final String EARLY_STORE = "early-outcomes";
+    /** Name of the store of experiment ids that have ended (never reused). */
+    public static final String ENDED_STORE = "ended-experiments";
     /** Name of the store of pre-aggregated statistics. */
     public static final String DELTAS_STORE = "arm-deltas";
     /** Name of the store of experiment states. */
@@ -135,7 +141,8 @@ public final class RunoffTopology {
                 .repartition(Repartitioned.with(Serdes.ByteArray(), UnitEvent.SERDE).withName("events-by-unit"))
                 .process(() -> new Dedupe(DEDUPE_STORE, settings.dedupeWindowMs(), counters), Named.as("dedupe"),
                         DEDUPE_STORE)
-                .process(() -> new Attribution(UNITS_STORE, settings, rejections), Named.as("attribute"), UNITS_STORE),
+                .process(() -> new Attribution(settings, rejections, counters), Named.as("attribute"), UNITS_STORE,
+                        DEADLINES_STORE, EARLY_STORE),
                 "attribute");
         KStream<byte[], StageTwo> deltas = attributed.process(() -> new PreAggregate(DELTAS_STORE, settings),
                 Named.as("pre-aggregate"), DELTAS_STORE);
@@ -147,8 +154,8 @@ public final class RunoffTopology {
 
         deltas.merge(definitions, Named.as("stage-two"))
                 .repartition(Repartitioned.with(Serdes.ByteArray(), StageTwo.SERDE).withName("by-experiment"))
-                .process(() -> new Fold(EXPERIMENTS_STORE, settings, rejections, counters, nanoTime, signer), Named.as("fold"),
-                        EXPERIMENTS_STORE)
+                .process(() -> new Fold(EXPERIMENTS_STORE, settings, rejections, counters, nanoTime, signer),
+                        Named.as("fold"), EXPERIMENTS_STORE, ENDED_STORE)
                 .to(DESTINATION, Produced.with(Serdes.ByteArray(), EMIT_SERDE).withName("fold-outputs"));
         return builder.build(streamsConfig);
     }
@@ -164,8 +171,14 @@ public final class RunoffTopology {
                 Serdes.String(), Serdes.ByteArray()).withCachingEnabled());
         builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(UNITS_STORE),
                 Serdes.String(), UnitState.SERDE).withCachingEnabled());
+        builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(DEADLINES_STORE),
+                Serdes.String(), Serdes.ByteArray()).withCachingEnabled());
+        builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(EARLY_STORE),
+                Serdes.String(), Waiting.SERDE).withCachingEnabled());
+        builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(ENDED_STORE),
+                Serdes.String(), Serdes.Long()).withCachingEnabled());
         builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(DELTAS_STORE),
-                Serdes.String(), new InternalSerde<>(Stats::encode, Stats::decode)).withCachingEnabled());
+                Serdes.String(), PreAggregate.Sum.SERDE).withCachingEnabled());
         builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(EXPERIMENTS_STORE),
                 Serdes.String(), ExperimentStateSerde.SERDE).withCachingEnabled());
     }

@@ -16,15 +16,18 @@ import java.util.Objects;
  * @param kind         which of the three
  * @param experimentId the experiment (also the record key)
  * @param arm          DELTA: the arm; otherwise {@code null}
+ * @param version      DELTA: the definition version of the units' first exposure; otherwise 0
  * @param stats        DELTA: the statistics to merge; otherwise {@code null}
+ * @param pending      DELTA: the change of the arm's pending units; otherwise 0
  * @param definition   DEFINITION: the validated definition as submitted; otherwise {@code null}
  */
-record StageTwo(Kind kind, String experimentId, String arm, ArmStats stats, ExperimentDefinition definition) {
+record StageTwo(Kind kind, String experimentId, String arm, long version, ArmStats stats, long pending,
+                ExperimentDefinition definition) {
 
     /** Serde of the repartition topic. */
     static final InternalSerde<StageTwo> SERDE = new InternalSerde<>(StageTwo::encode, StageTwo::decode);
 
-    private static final int FORMAT = 1;
+    private static final int FORMAT = 2;
 
     /** Checks that the fields of the kind are present. */
     StageTwo {
@@ -50,23 +53,25 @@ record StageTwo(Kind kind, String experimentId, String arm, ArmStats stats, Expe
     }
 
     static StageTwo delta(ArmDelta delta) {
-        return new StageTwo(Kind.DELTA, delta.experimentId(), delta.arm(), delta.stats(), null);
+        return new StageTwo(Kind.DELTA, delta.experimentId(), delta.arm(), delta.version(), delta.stats(),
+                delta.pending(), null);
     }
 
     static StageTwo definition(ExperimentDefinition definition) {
-        return new StageTwo(Kind.DEFINITION, definition.getExperimentId(), null, null, definition);
+        return new StageTwo(Kind.DEFINITION, definition.getExperimentId(), null, 0, null, 0, definition);
     }
 
     static StageTwo ended(String experimentId) {
-        return new StageTwo(Kind.ENDED, experimentId, null, null, null);
+        return new StageTwo(Kind.ENDED, experimentId, null, 0, null, 0, null);
     }
 
     private static byte[] encode(StageTwo s) {
         BinaryOut out = new BinaryOut().writeByte(FORMAT).writeByte(s.kind.ordinal()).writeString(s.experimentId);
         switch (s.kind) {
             case DELTA -> {
-                out.writeString(s.arm);
+                out.writeString(s.arm).writeLong(s.version);
                 Stats.write(out, s.stats);
+                out.writeLong(s.pending);
             }
             case DEFINITION -> out.writeBytes(DefinitionBytes.encode(s.definition));
             case ENDED -> {
@@ -85,9 +90,11 @@ record StageTwo(Kind kind, String experimentId, String arm, ArmStats stats, Expe
         Kind kind = Kind.values()[in.readByte()];
         String experimentId = in.readString();
         StageTwo result = switch (kind) {
-            case DELTA -> new StageTwo(kind, experimentId, in.readString(), Stats.read(in), null);
-            case DEFINITION -> new StageTwo(kind, experimentId, null, null, DefinitionBytes.decode(in.readBytes()));
-            case ENDED -> new StageTwo(kind, experimentId, null, null, null);
+            case DELTA -> new StageTwo(kind, experimentId, in.readString(), in.readLong(), Stats.read(in),
+                    in.readLong(), null);
+            case DEFINITION -> new StageTwo(kind, experimentId, null, 0, null, 0,
+                    DefinitionBytes.decode(in.readBytes()));
+            case ENDED -> new StageTwo(kind, experimentId, null, 0, null, 0, null);
         };
         in.end();
         return result;

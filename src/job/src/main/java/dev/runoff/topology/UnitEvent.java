@@ -18,19 +18,22 @@ import java.util.Objects;
  * @param arm                 the arm named by the event, or {@code null}
  * @param value               the event's value, or NaN when it has none
  * @param timestamp           the event's timestamp field (ms since the epoch)
- * @param attributionWindowMs the experiment's attribution window
+ * @param attributionWindowMs the experiment's conversion (attribution) window
+ * @param version             the definition version the event was checked against
+ * @param unitLevel           whether the experiment counts units (Bernoulli, {@code UNIT}) rather than exposures
+ * @param earlyGraceMs        how long an outcome that arrives before its unit's first trial event waits
  * @param source              where the record was read
  * @param originalKey         the original record key, or {@code null}
  * @param originalValue       the original record value
  */
 record UnitEvent(String experimentId, String unitId, String eventId, Role role, Metric metric, String arm,
-                 double value, long timestamp, long attributionWindowMs, Source source, byte[] originalKey,
-                 byte[] originalValue) {
+                 double value, long timestamp, long attributionWindowMs, long version, boolean unitLevel,
+                 long earlyGraceMs, Source source, byte[] originalKey, byte[] originalValue) {
 
     /** Serde of the repartition topic. */
     static final InternalSerde<UnitEvent> SERDE = new InternalSerde<>(UnitEvent::encode, UnitEvent::decode);
 
-    private static final int FORMAT = 1;
+    private static final int FORMAT = 2;
 
     /** Checks the fields every step relies on. */
     UnitEvent {
@@ -72,7 +75,8 @@ record UnitEvent(String experimentId, String unitId, String eventId, Role role, 
         BinaryOut out = new BinaryOut().writeByte(FORMAT).writeString(e.experimentId).writeString(e.unitId)
                 .writeString(e.eventId).writeByte(e.role.ordinal()).writeByte(e.metric.ordinal())
                 .writeNullableString(e.arm).writeDouble(e.value).writeLong(e.timestamp)
-                .writeLong(e.attributionWindowMs);
+                .writeLong(e.attributionWindowMs).writeLong(e.version).writeBoolean(e.unitLevel)
+                .writeLong(e.earlyGraceMs);
         e.source.write(out);
         return out.writeNullableBytes(e.originalKey).writeBytes(e.originalValue).toByteArray();
     }
@@ -85,7 +89,7 @@ record UnitEvent(String experimentId, String unitId, String eventId, Role role, 
         }
         UnitEvent event = new UnitEvent(in.readString(), in.readString(), in.readString(),
                 Role.values()[in.readByte()], Metric.values()[in.readByte()], in.readNullableString(),
-                in.readDouble(), in.readLong(), in.readLong(), Source.read(in), in.readNullableBytes(),
+                in.readDouble(), in.readLong(), in.readLong(), in.readLong(), in.readBoolean(), in.readLong(), Source.read(in), in.readNullableBytes(),
                 in.readBytes());
         in.end();
         return event;

@@ -2,49 +2,54 @@ package dev.runoff.topology;
 
 
 /**
- * What attribution keeps per (experiment, unit).
+ * What attribution keeps per (experiment, unit); {@link UnitCounting} decides how it changes.
  *
  * @param arm          the arm of the unit's first trial event (kept for good)
- * @param firstTrialAt timestamp of its first trial event
- * @param lastTrialAt  timestamp of its latest trial event (the attribution window is measured from it)
- * @param trials       its trial events counted
- * @param successes    its successes counted, never above {@code trials}
- * @param windowMs     the experiment's attribution window at the last update
+ * @param version      the definition version in force at that first trial event
+ * @param unitLevel    whether the experiment counts units ({@code UNIT}) rather than exposures
+ * @param firstTrialAt timestamp of its first trial event (the conversion window is measured from it)
+ * @param lastTrialAt  timestamp of its latest trial event
+ * @param trials       its trial events seen (counted as trials only with per-exposure counting)
+ * @param successes    its successes: counted ones (per exposure, never above {@code trials}) or, with unit
+ *                     counting, 1 once it converted within its window
+ * @param windowMs     the experiment's conversion window at the first trial event (unit counting) or at the
+ *                     last update (per exposure)
+ * @param counted      unit counting: whether the unit has entered its arm's trials (its window closed)
  * @param touchedAt    wall-clock time of the last update, for the clean-up
  */
-record UnitState(String arm, long firstTrialAt, long lastTrialAt, long trials, long successes, long windowMs,
-                 long touchedAt) {
+record UnitState(String arm, long version, boolean unitLevel, long firstTrialAt, long lastTrialAt, long trials,
+                 long successes, long windowMs, boolean counted, long touchedAt) {
 
     /** Serde of the units store. */
     static final InternalSerde<UnitState> SERDE = new InternalSerde<>(UnitState::encode, UnitState::decode);
 
-    static UnitState first(String arm, long timestamp, long windowMs, long now) {
-        return new UnitState(arm, timestamp, timestamp, 1, 0, windowMs, now);
+    private static final int FORMAT = 2;
+
+    /** When the unit's conversion window closes: its first trial event's timestamp plus the window. */
+    long closesAt() {
+        return firstTrialAt > Long.MAX_VALUE - windowMs ? Long.MAX_VALUE : firstTrialAt + windowMs;
     }
 
-    UnitState trial(long timestamp, long window, long now) {
-        return new UnitState(arm, firstTrialAt, Math.max(lastTrialAt, timestamp), trials + 1, successes, window, now);
-    }
-
-    UnitState success(long now) {
-        return new UnitState(arm, firstTrialAt, lastTrialAt, trials, successes + 1, windowMs, now);
-    }
-
-    /** Whether the clean-up may drop this entry at {@code now}. */
+    /** Whether the clean-up may drop this entry at {@code now}: idle past its window plus the margin, counted. */
     boolean expired(long now, long marginMs) {
         long idle = now - touchedAt;
-        return idle > windowMs && idle - windowMs > marginMs;
+        return (counted || !unitLevel) && idle > windowMs && idle - windowMs > marginMs;
     }
 
     private static byte[] encode(UnitState u) {
-        return new BinaryOut().writeString(u.arm).writeLong(u.firstTrialAt).writeLong(u.lastTrialAt)
-                .writeLong(u.trials).writeLong(u.successes).writeLong(u.windowMs).writeLong(u.touchedAt).toByteArray();
+        return new BinaryOut().writeByte(FORMAT).writeString(u.arm).writeLong(u.version).writeBoolean(u.unitLevel)
+                .writeLong(u.firstTrialAt).writeLong(u.lastTrialAt).writeLong(u.trials).writeLong(u.successes)
+                .writeLong(u.windowMs).writeBoolean(u.counted).writeLong(u.touchedAt).toByteArray();
     }
 
     private static UnitState decode(byte[] bytes) {
         BinaryIn in = new BinaryIn(bytes);
-        UnitState state = new UnitState(in.readString(), in.readLong(), in.readLong(), in.readLong(), in.readLong(),
-                in.readLong(), in.readLong());
+        int format = in.readByte();
+        if (format != FORMAT) {
+            throw new IllegalArgumentException("unit entry format " + format + " is not " + FORMAT);
+        }
+        UnitState state = new UnitState(in.readString(), in.readLong(), in.readBoolean(), in.readLong(),
+                in.readLong(), in.readLong(), in.readLong(), in.readLong(), in.readBoolean(), in.readLong());
         in.end();
         return state;
     }

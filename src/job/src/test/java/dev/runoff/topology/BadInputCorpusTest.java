@@ -153,7 +153,8 @@ class BadInputCorpusTest {
     @Test
     @Order(2)
     void countsHoldExactlyTheValidEventsAndTheDefinitionIsUnchanged() {
-        job.advance(TestDefinitions.RECOMPUTE_MS + 100);
+        // unit counting: each good exposure is one unit, counted once its conversion window has closed
+        job.advance(TestDefinitions.WINDOW_MS + TestDefinitions.RECOMPUTE_MS + 100);
         ExperimentState state = job.state(ID);
         assertEquals(1, state.definition().getVersion());
         assertEquals(List.of(new BernoulliStats(goodEvents, 0), BernoulliStats.EMPTY), state.stats());

@@ -21,10 +21,10 @@ class InternalEncodingTest {
     @Test
     void experimentStateRoundTrips() {
         ExperimentState state = ExperimentState.start(TestDefinitions.bernoulli("e", "a", "b"))
-                .withDelta(1, new BernoulliStats(10, 3), 5L);
+                .withDelta(1, new BernoulliStats(10, 3), 4, 5L);
         ExperimentState stopped = new ExperimentState(state.definition(), state.stats(),
                 new ExperimentState.Stop("b", 1, List.of("a", "b"), new double[] {0, 1}), 4, 6, "ab".repeat(32),
-                new double[] {0.25, 0.75}, 5, 9, 9, true, false);
+                new double[] {0.25, 0.75}, 5, 9, 9, true, false, null, new long[] {1, 3});
         for (ExperimentState s : List.of(state, stopped)) {
             assertEquals(s, ExperimentStateSerde.decode(ExperimentStateSerde.encode(s)));
         }
@@ -33,15 +33,17 @@ class InternalEncodingTest {
     @Test
     void envelopesRoundTrip() {
         UnitEvent event = new UnitEvent("e", "u", "ev", UnitEvent.Role.VALUE, Metric.VALUE, null, -2.5, 7L, 60_000L,
-                new Source("in", 3, 99L), null, new byte[] {1, 2, 3});
+                3L, true, 500L, new Source("in", 3, 99L), null, new byte[] {1, 2, 3});
         UnitEvent back = UnitEvent.SERDE.deserializer().deserialize("t", UnitEvent.SERDE.serializer().serialize("t",
                 event));
         assertEquals(List.of(event.experimentId(), event.unitId(), event.eventId(), event.role(), event.metric(),
-                        event.value(), event.timestamp(), event.attributionWindowMs(), event.source()),
+                        event.value(), event.timestamp(), event.attributionWindowMs(), event.version(),
+                        event.unitLevel(), event.earlyGraceMs(), event.source()),
                 List.of(back.experimentId(), back.unitId(), back.eventId(), back.role(), back.metric(), back.value(),
-                        back.timestamp(), back.attributionWindowMs(), back.source()));
+                        back.timestamp(), back.attributionWindowMs(), back.version(), back.unitLevel(),
+                        back.earlyGraceMs(), back.source()));
         assertArrayEquals(event.originalValue(), back.originalValue());
-        for (StageTwo s : List.of(StageTwo.delta(new ArmDelta("e", "a", new ValueStats(3, 1.5, 0.25))),
+        for (StageTwo s : List.of(StageTwo.delta(new ArmDelta("e", "a", 2, new ValueStats(3, 1.5, 0.25), -4)),
                 StageTwo.definition(TestDefinitions.value("e", "a", "b")), StageTwo.ended("e"))) {
             byte[] bytes = StageTwo.SERDE.serializer().serialize("t", s);
             assertEquals(s, StageTwo.SERDE.deserializer().deserialize("t", bytes));
@@ -54,7 +56,7 @@ class InternalEncodingTest {
         IllegalArgumentException truncated = assertThrows(IllegalArgumentException.class,
                 () -> ExperimentStateSerde.decode(Arrays.copyOf(bytes, bytes.length - 3)));
         assertEquals("corrupt internal value: truncated", truncated.getMessage());
-        byte[] hugeLength = {1, 0x7f, 0x7f, 0x7f, 0x7f};
+        byte[] hugeLength = {2, 0x7f, 0x7f, 0x7f, 0x7f};
         assertEquals("corrupt internal value: length 2139062143 with 0 bytes left",
                 assertThrows(IllegalArgumentException.class, () -> ExperimentStateSerde.decode(hugeLength))
                         .getMessage());

@@ -106,7 +106,10 @@ class RecomputationTest {
         String id = def.getExperimentId();
         boolean value = def.getMetric().getValueEvent() != null;
         SplittableRandom random = new SplittableRandom(42);
-        job.define(def);
+        // These tests replay decisions of the rules on counts fed round by round: per-exposure counting puts
+        // each round's counts in the next evaluation (unit counting, which waits for windows to close, is
+        // replayed in UnitCountingTopologyTest).
+        job.define(TestDefinitions.perExposure(def));
         job.advance(150);
         for (int round = 0; round < rounds; round++) {
             for (int arm = 0; arm < rates.length; arm++) {

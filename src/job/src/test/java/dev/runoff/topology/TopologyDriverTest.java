@@ -62,7 +62,7 @@ class TopologyDriverTest {
 
     @Test
     void sequencesIncreaseByOneAndTheHashChainHolds() {
-        job.define(TestDefinitions.bernoulli("layout", "a", "b", "c"));
+        job.define(TestDefinitions.perExposure(TestDefinitions.bernoulli("layout", "a", "b", "c")));
         for (int round = 0; round < 4; round++) {
             feed("layout", "a", 30, 3, "r" + round);
             feed("layout", "b", 30, 6, "r" + round);
@@ -86,7 +86,7 @@ class TopologyDriverTest {
 
     @Test
     void clearWinnerStopsAndTheDecisionStandsWhileLaterEventsAreFolded() {
-        job.define(TestDefinitions.bernoulli("banner", "plain", "bold"));
+        job.define(TestDefinitions.perExposure(TestDefinitions.bernoulli("banner", "plain", "bold")));
         job.advance(150);
         feed("banner", "plain", 200, 10, "x");
         feed("banner", "bold", 200, 100, "x");
@@ -117,7 +117,7 @@ class TopologyDriverTest {
 
     @Test
     void jobCountersCountFoldedTrialsDecisionsAndAllocationPasses() {
-        job.define(TestDefinitions.bernoulli("counted", "a", "b"));
+        job.define(TestDefinitions.perExposure(TestDefinitions.bernoulli("counted", "a", "b")));
         job.advance(150);
         feed("counted", "a", 40, 4, "c");
         feed("counted", "b", 25, 5, "c");
@@ -130,7 +130,7 @@ class TopologyDriverTest {
 
     @Test
     void duplicateEventIdsAreCountedOnce() {
-        job.define(TestDefinitions.bernoulli("dup", "a", "b"));
+        job.define(TestDefinitions.perExposure(TestDefinitions.bernoulli("dup", "a", "b")));
         byte[] exposure = Events.exposure("dup", "u1", "e-1", "a", T0);
         byte[] click = Events.click("dup", "u1", "e-2", null, T0 + 5);
         job.event("u1", exposure);
@@ -146,7 +146,7 @@ class TopologyDriverTest {
 
     @Test
     void attributionUsesTheUnitsFirstArmWithinTheWindow() {
-        job.define(TestDefinitions.bernoulli("attr", "a", "b"));
+        job.define(TestDefinitions.perExposure(TestDefinitions.bernoulli("attr", "a", "b")));
         job.event("u1", Events.exposure("attr", "u1", "x1", "a", T0));
         job.event("u1", Events.click("attr", "u1", "c1", null, T0 + 1_000));
         job.event("u1", Events.exposure("attr", "u1", "x2", "a", T0 + 2_000));
@@ -157,7 +157,8 @@ class TopologyDriverTest {
         job.event("u2", Events.click("attr", "u2", "d1", "a", T0 + 10));
         job.event("u2", Events.click("attr", "u2", "d2", null, T0 + TestDefinitions.WINDOW_MS + 1));
         job.event("u3", Events.click("attr", "u3", "z1", null, T0));
-        job.advance(TestDefinitions.RECOMPUTE_MS + 100);
+        // u3's click has no exposure: it waits the early-outcome grace before it is rejected as unattributed
+        job.advance(TestDefinitions.bernoulli("attr", "a", "b").getEarlyOutcomeGraceMs() + 100);
         assertEquals(List.of(new BernoulliStats(2, 2), new BernoulliStats(1, 0)), job.state("attr").stats());
         List<String> reasons = job.rejected().stream().map(r -> TopologyFixture.header(r, Rejections.REASON_HEADER))
                 .toList();
@@ -167,7 +168,7 @@ class TopologyDriverTest {
 
     @Test
     void changedDefinitionGetsTheNextVersionAndLaterRecordsCarryIt() {
-        ExperimentDefinition v1 = TestDefinitions.bernoulli("copy", "a", "b");
+        ExperimentDefinition v1 = TestDefinitions.perExposure(TestDefinitions.bernoulli("copy", "a", "b"));
         job.define(v1);
         job.advance(150);
         job.define(v1);
@@ -181,7 +182,7 @@ class TopologyDriverTest {
         assertEquals(2, last(job.allocations()).getDefinitionVersion());
 
         feed("copy", "a", 40, 4, "f");
-        ExperimentDefinition v3 = TestDefinitions.bernoulli("copy", "a", "b", "c");
+        ExperimentDefinition v3 = TestDefinitions.perExposure(TestDefinitions.bernoulli("copy", "a", "b", "c"));
         job.define(v3);
         feed("copy", "c", 40, 4, "f");
         job.advance(TestDefinitions.RECOMPUTE_MS + 100);

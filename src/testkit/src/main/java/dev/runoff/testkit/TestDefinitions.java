@@ -3,6 +3,7 @@ package dev.runoff.testkit;
 import dev.runoff.records.avro.AfterStopPolicy;
 import dev.runoff.records.avro.AllocationRule;
 import dev.runoff.records.avro.AllocationSpec;
+import dev.runoff.records.avro.CountingMode;
 import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.records.avro.MetricKind;
@@ -49,6 +50,23 @@ public final class TestDefinitions {
         def.setMetric(MetricSpec.newBuilder().setKind(MetricKind.VALUE).setTrialEvent(EventType.EXPOSURE)
                 .setValueEvent(EventType.VALUE).build());
         return def;
+    }
+
+    /**
+     * {@code def} with per-exposure counting (every trial event a trial, every success counted at once): for
+     * tests of decision mechanics that feed counts directly and must not wait for conversion windows.
+     */
+    public static ExperimentDefinition perExposure(ExperimentDefinition def) {
+        ExperimentDefinition copy = ExperimentDefinition.newBuilder(def).build();
+        copy.setCounting(CountingMode.EXPOSURE);
+        return copy;
+    }
+
+    /** {@code def} with conversion window {@code windowMs}. */
+    public static ExperimentDefinition withWindow(ExperimentDefinition def, long windowMs) {
+        ExperimentDefinition copy = ExperimentDefinition.newBuilder(def).build();
+        copy.setAttributionWindowMs(windowMs);
+        return copy;
     }
 
     /** {@code def} with a change nobody would make by accident: another beta. */

@@ -1,0 +1,140 @@
+package dev.runoff.topology;
+
+/**
+ * The counting rule of one unit, free of Kafka so that {@link Attribution} and the bias simulation in the
+ * tests run the same code.
+ *
+ * <p><b>Unit counting</b> (the default): a unit's first trial event makes it <i>pending</i> on its arm; a
+ * success event stamped at most the conversion window after that exposure marks it converted (once); when
+ * the window has closed on the job's wall clock, {@link #close} counts the unit as one trial, and as one
+ * success if it converted. Later exposures add nothing.
+ *
+ * <p>Design: under adaptive allocation the arms are fed at different times, so at any decision an arm fed
+ * recently has more units whose conversions have not happened yet. Counting a unit only once its window
+ * has closed gives every counted unit the same full chance to convert, whenever it was exposed: each
+ * counted unit is an independent Bernoulli draw with the arm's conversion probability within the window,
+ * so the Beta posterior sees unbiased trials (the selection into the count depends only on the exposure
+ * time, which is independent of the outcome). Counting exposures at once and conversions when they arrive
+ * (per-exposure counting), or counting converters at once and non-converters at window close, both make a
+ * recently fed arm look worse (respectively better), and the allocation feeds on that bias. The price is
+ * delay: a decision does not know the pending units, which the decision record reports per arm.
+ *
+ * <p><b>Per-exposure counting</b> (the {@code EXPOSURE} option): every trial event is a trial at once and
+ * every attributed success a success at once, never more successes than trials per unit.
+ */
+final class UnitCounting {
+
+    private UnitCounting() {
+    }
+
+    /** What a step adds to the unit's arm: trials, successes and the change of the arm's pending units. */
+    record Count(long trials, long successes, long pending) {
+
+        /** Nothing to add. */
+        static final Count NONE = new Count(0, 0, 0);
+
+        boolean isEmpty() {
+            return trials == 0 && successes == 0 && pending == 0;
+        }
+    }
+
+    /** What became of an event. */
+    enum Verdict {
+        /** Taken into account (the count may still be empty). */
+        TAKEN,
+        /** A trial event on another arm than the unit's first. */
+        ARM_CONFLICT,
+        /** A success stamped outside the conversion window. */
+        OUTSIDE_WINDOW,
+        /** A success beyond what the unit may have (one per unit, or one per trial). */
+        EXCESS,
+        /** Unit counting: a success that arrived after the unit was counted (its window had closed). */
+        LATE
+    }
+
+    /**
+     * Result of a step.
+     *
+     * @param unit    the unit entry after the step (unchanged unless TAKEN)
+     * @param count   what to add to the unit's arm
+     * @param verdict what became of the event
+     */
+    record Step(UnitState unit, Count count, Verdict verdict) {
+        static Step refused(UnitState unit, Verdict verdict) {
+            return new Step(unit, Count.NONE, verdict);
+        }
+    }
+
+    /**
+     * A trial event of {@code arm} stamped {@code timestamp}, seen at wall-clock {@code now}.
+     *
+     * @param unit      the unit's entry, or {@code null} for its first trial event
+     * @param version   the definition version in force
+     * @param unitLevel whether the experiment counts units rather than exposures
+     * @param windowMs  the experiment's conversion window
+     */
+    static Step expose(UnitState unit, String arm, long version, boolean unitLevel, long timestamp, long windowMs,
+                       long now) {
+        if (unit == null) {
+            UnitState first = new UnitState(arm, version, unitLevel, timestamp, timestamp, 1, 0, windowMs, false, now);
+            return new Step(first, unitLevel ? new Count(0, 0, 1) : new Count(1, 0, 0), Verdict.TAKEN);
+        }
+        if (!unit.arm().equals(arm)) {
+            return Step.refused(unit, Verdict.ARM_CONFLICT);
+        }
+        UnitState next = new UnitState(unit.arm(), unit.version(), unit.unitLevel(), unit.firstTrialAt(),
+                Math.max(unit.lastTrialAt(), timestamp), unit.trials() + 1, unit.successes(),
+                unit.unitLevel() ? unit.windowMs() : windowMs, unit.counted(), now);
+        return new Step(next, unit.unitLevel() ? Count.NONE : new Count(1, 0, 0), Verdict.TAKEN);
+    }
+
+    /**
+     * A success event stamped {@code timestamp}, seen at wall-clock {@code now}. Unit counting: the window runs
+     * from the first exposure (a success stamped up to one window before it is allowed for clock skew between
+     * producers). Per exposure: an arm-less success must lie within the window of the latest exposure, either
+     * side.
+     *
+     * @param armNamed whether the event named the unit's arm
+     */
+    static Step convert(UnitState unit, long timestamp, boolean armNamed, long now) {
+        if (unit.unitLevel()) {
+            long gap = timestamp - unit.firstTrialAt();
+            if (gap > unit.windowMs() || gap < -unit.windowMs()) {
+                return Step.refused(unit, Verdict.OUTSIDE_WINDOW);
+            }
+            if (unit.successes() > 0) {
+                return Step.refused(unit, Verdict.EXCESS);
+            }
+            if (unit.counted()) {
+                return Step.refused(unit, Verdict.LATE);
+            }
+            return new Step(withSuccess(unit, now), Count.NONE, Verdict.TAKEN);
+        }
+        if (!armNamed && Math.abs(timestamp - unit.lastTrialAt()) > unit.windowMs()) {
+            return Step.refused(unit, Verdict.OUTSIDE_WINDOW);
+        }
+        if (unit.successes() >= unit.trials()) {
+            return Step.refused(unit, Verdict.EXCESS);
+        }
+        return new Step(withSuccess(unit, now), new Count(0, 1, 0), Verdict.TAKEN);
+    }
+
+    /**
+     * Unit counting: once the unit's window has closed at wall-clock {@code now}, the unit enters its arm's
+     * trials, as a success if it converted; otherwise (window still open, already counted, per-exposure
+     * counting) nothing changes.
+     */
+    static Step close(UnitState unit, long now) {
+        if (!unit.unitLevel() || unit.counted() || now < unit.closesAt()) {
+            return new Step(unit, Count.NONE, Verdict.TAKEN);
+        }
+        UnitState counted = new UnitState(unit.arm(), unit.version(), true, unit.firstTrialAt(), unit.lastTrialAt(),
+                unit.trials(), unit.successes(), unit.windowMs(), true, now);
+        return new Step(counted, new Count(1, unit.successes() > 0 ? 1 : 0, -1), Verdict.TAKEN);
+    }
+
+    private static UnitState withSuccess(UnitState unit, long now) {
+        return new UnitState(unit.arm(), unit.version(), unit.unitLevel(), unit.firstTrialAt(), unit.lastTrialAt(),
+                unit.trials(), unit.successes() + 1, unit.windowMs(), unit.counted(), now);
+    }
+}
