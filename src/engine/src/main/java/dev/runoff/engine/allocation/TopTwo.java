@@ -111,8 +111,10 @@ public final class TopTwo {
     }
 
     /**
-     * Top-two expected improvement (Qin, Klabjan and Russo 2017): the leader maximises
-     * {@code E[(theta_i - max_{j != i} mu_j)^+]} with {@code mu} the posterior means; the challenger
+     * Top-two expected improvement (Qin, Klabjan and Russo 2017): the leader maximises the classic expected
+     * improvement {@code v_i = E[(theta_i - max_j mu_j)^+]} over the best posterior mean of <em>all</em>
+     * arms, the arm itself included (the paper's EI value, section 2, from the EI of Jones et al. 1998 over
+     * the current best; not over the best <em>other</em> arm); the challenger
      * maximises {@code E[(theta_j - theta_leader)^+]} over {@code j != leader}. The leader gets
      * {@code beta}, the challenger {@code 1 - beta}.
      *
@@ -129,9 +131,10 @@ public final class TopTwo {
         for (int i = 0; i < k; i++) {
             mu[i] = Checks.finite("posterior mean of arm " + i, posteriors.get(i).mean());
         }
+        double best = mu[Weights.argmax(mu)];
         double[] improvement = new double[k];
         for (int i = 0; i < k; i++) {
-            improvement[i] = ExpectedGain.overThreshold(posteriors.get(i), mu[Weights.argmaxExcept(mu, i)]);
+            improvement[i] = ExpectedGain.overThreshold(posteriors.get(i), best);
         }
         int leader = Weights.argmax(improvement);
         double[] overLeader = new double[k];

@@ -24,11 +24,16 @@ final class ExactArm {
     private static final double END_GAP = 1e-11;
 
     private final Posterior posterior;
+    /** The Beta posterior behind this arm (itself or the one a {@link Reflected} wraps), or null. */
+    private final BetaPosterior beta;
+    /** +1, or -1 for a reflected Beta: the Beta variable is {@code sign * (x + shift)}. */
+    private final double sign;
     private final double shift;
     private final double center;
     private final double spread;
     private final double lower;
     private final double upper;
+    private final boolean capped;
     private final double maxLogDensity;
     private final TailRoot cdfRoot;
     private final TailRoot survivalRoot;
@@ -52,13 +57,17 @@ final class ExactArm {
      */
     ExactArm(Posterior posterior, double shift, double logTail, boolean integratedTails) {
         this.posterior = posterior;
+        this.beta = betaOf(posterior);
+        this.sign = posterior instanceof Reflected ? -1 : 1;
         this.shift = shift;
         this.center = centerOf(posterior);
         this.spread = spreadOf(posterior);
-        this.cdfRoot = TailRoot.ofCdf(posterior::logCdf, posterior::logDensity, posterior.supportLower(),
-                posterior.supportUpper(), center, spread);
-        this.survivalRoot = TailRoot.ofSurvival(posterior::logSurvival, posterior::logDensity,
-                posterior.supportLower(), posterior.supportUpper(), center, spread);
+        Posterior rooted = posterior instanceof Reflected r ? r.inner() : posterior;
+        double rootCenter = sign * center;
+        this.cdfRoot = TailRoot.ofCdf(rooted::logCdf, rooted::logDensity, rooted.supportLower(),
+                rooted.supportUpper(), rootCenter, spread);
+        this.survivalRoot = TailRoot.ofSurvival(rooted::logSurvival, rooted::logDensity,
+                rooted.supportLower(), rooted.supportUpper(), rootCenter, spread);
         double lo = lowerAt(logTail);
         double hi = upperAt(logTail);
         for (int round = 0; integratedTails && round < WIDENING_ROUNDS; round++) {
@@ -66,8 +75,22 @@ final class ExactArm {
             hi = upperAt(logTail - Math.max(0, StrictMath.log(residualLength(hi))));
         }
         this.lower = lo;
-        this.upper = Math.min(hi, upperCap(posterior) - shift);
+        double cap = upperCap(posterior) - shift;
+        this.capped = hi > cap;
+        this.upper = Math.min(hi, cap);
         this.maxLogDensity = maxLogDensityOf(posterior);
+    }
+
+    private static BetaPosterior betaOf(Posterior p) {
+        if (p instanceof BetaPosterior b) {
+            return b;
+        }
+        return p instanceof Reflected r && r.inner() instanceof BetaPosterior b ? b : null;
+    }
+
+    /** Whether the range was cut at {@link #upperCap}: some mass lies above it. */
+    boolean capped() {
+        return capped;
     }
 
     /**
@@ -79,7 +102,7 @@ final class ExactArm {
      */
     private static double upperCap(Posterior p) {
         double top = p.supportUpper();
-        if (!Double.isFinite(top) || !Double.isFinite(p.supportLower())) {
+        if (p instanceof Reflected || !Double.isFinite(top) || !Double.isFinite(p.supportLower())) {
             return Double.POSITIVE_INFINITY;
         }
         return top - END_GAP * (top - p.supportLower());
@@ -87,6 +110,9 @@ final class ExactArm {
 
     /** An upper bound of the log density ({@code +infinity} when none is known cheaply). */
     private static double maxLogDensityOf(Posterior p) {
+        if (p instanceof Reflected r) {
+            return maxLogDensityOf(r.inner());
+        }
         if (p instanceof StudentTPosterior t) {
             return t.logDensity(t.location());
         }
@@ -101,7 +127,7 @@ final class ExactArm {
         if (p instanceof StudentTPosterior t) {
             return t.location();
         }
-        if (p instanceof BetaPosterior) {
+        if (betaOf(p) != null) {
             return p.mean();
         }
         return p.quantile(0.5);
@@ -111,7 +137,7 @@ final class ExactArm {
         if (p instanceof StudentTPosterior t) {
             return t.scale();
         }
-        if (p instanceof BetaPosterior) {
+        if (betaOf(p) != null) {
             return Math.sqrt(p.variance());
         }
         return (p.quantile(0.75) - p.quantile(0.25)) / 1.349;
@@ -132,20 +158,37 @@ final class ExactArm {
         return upper;
     }
 
-    /** The point where {@code log F = logTarget}, to about six digits. */
+    /**
+     * The point where {@code log F = logTarget}, to about six digits. The roots of a {@link Reflected} arm
+     * are solved on the posterior it wraps ({@code log F(x) = log S_inner(-x)}), where points near 0 keep
+     * their relative precision.
+     */
     double lowerAt(double logTarget) {
-        return cdfRoot.solve(logTarget, normalGuess(-Math.sqrt(-2 * logTarget)), ROUGH_TOLERANCE) - shift;
+        double z = Math.sqrt(-2 * logTarget);
+        if (sign < 0) {
+            return -survivalRoot.solve(logTarget, normalGuess(z), ROUGH_TOLERANCE) - shift;
+        }
+        return cdfRoot.solve(logTarget, normalGuess(-z), ROUGH_TOLERANCE) - shift;
     }
 
-    /** The point where {@code log S = logTarget}, to about six digits. */
+    /** The point where {@code log S = logTarget}, to about six digits (see {@link #lowerAt}). */
     double upperAt(double logTarget) {
-        return survivalRoot.solve(logTarget, normalGuess(Math.sqrt(-2 * logTarget)), ROUGH_TOLERANCE) - shift;
+        double z = Math.sqrt(-2 * logTarget);
+        if (sign < 0) {
+            return -cdfRoot.solve(logTarget, normalGuess(-z), ROUGH_TOLERANCE) - shift;
+        }
+        return survivalRoot.solve(logTarget, normalGuess(z), ROUGH_TOLERANCE) - shift;
     }
 
-    /** {@code center + z * spread} if inside the support, else the centre: a first guess for a tail point. */
+    /**
+     * {@code c + z * spread} for the centre {@code c} of the posterior the roots are solved on, if inside
+     * its support, else {@code c}: a first guess for a tail point.
+     */
     private double normalGuess(double z) {
-        double guess = center + z * spread;
-        return guess > posterior.supportLower() && guess < posterior.supportUpper() ? guess : center;
+        Posterior rooted = posterior instanceof Reflected r ? r.inner() : posterior;
+        double c = sign * center;
+        double guess = c + z * spread;
+        return guess > rooted.supportLower() && guess < rooted.supportUpper() ? guess : c;
     }
 
     /**
@@ -191,10 +234,9 @@ final class ExactArm {
     /** Curvature (inverse squared length scale) of the log density at {@code x}. */
     double curvature(double x) {
         double y = x + shift;
-        if (posterior instanceof BetaPosterior beta) {
-            double a = beta.a();
-            double b = beta.b();
-            return Math.max(1 / beta.variance(), endTerm(a, y) + endTerm(b, 1 - y));
+        if (beta != null) {
+            double u = sign * y;
+            return Math.max(1 / beta.variance(), endTerm(beta.a(), u) + endTerm(beta.b(), 1 - u));
         }
         if (posterior instanceof StudentTPosterior t) {
             double z = (y - t.location()) / t.scale();
@@ -204,13 +246,48 @@ final class ExactArm {
     }
 
     /**
+     * Distance from {@code x} to the nearest end of the support where the log density has an end term
+     * ({@link #endTerm}: a Beta end with a non-integer shape); infinity when there is none.
+     */
+    double endDistance(double x) {
+        double d = Double.POSITIVE_INFINITY;
+        if (beta != null) {
+            double u = sign * (x + shift);
+            if (hasEndTerm(beta.a())) {
+                d = u;
+            }
+            if (hasEndTerm(beta.b())) {
+                d = Math.min(d, 1 - u);
+            }
+        }
+        return Math.max(0, d);
+    }
+
+    /**
+     * The coefficient {@code c} of the end term {@code c / distance^2} of the support end nearest to
+     * {@code x} (0 when there is none): {@code max(|shape - 1|, 1/4)}.
+     */
+    double endCoefficient(double x) {
+        if (beta == null) {
+            return 0;
+        }
+        double u = sign * (x + shift);
+        double shape = u <= 0.5 ? beta.a() : beta.b();
+        return hasEndTerm(shape) ? Math.max(Math.abs(shape - 1), 0.25) : 0;
+    }
+
+    private static boolean hasEndTerm(double shape) {
+        return !(shape >= 1 && shape == Math.rint(shape));
+    }
+
+    /**
      * Curvature term of an end of the Beta support at {@code distance} from it, where the density behaves
      * like {@code distance^(shape-1)}: none for an integer shape (the factor is a polynomial, which
      * Gauss-Legendre integrates exactly), otherwise {@code max(|shape-1|, 1/4) / distance^2} so the panels
      * shrink geometrically towards that end.
      */
     private static double endTerm(double shape, double distance) {
-        if (shape >= 1 && shape == Math.rint(shape)) {
+        if (!hasEndTerm(shape)) {
             return 0;
         }
         return Math.max(Math.abs(shape - 1), 0.25) / (distance * distance);

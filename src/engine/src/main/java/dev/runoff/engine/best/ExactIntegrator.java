@@ -62,6 +62,16 @@ final class ExactIntegrator {
      * @param which which integrals to compute (others are returned as 0)
      */
     static double[] integrate(List<ExactArm> arms, double[] from, double[] to, Own own, boolean[] which) {
+        return integrate(arms, from, to, own, which, true);
+    }
+
+    /**
+     * As {@link #integrate(List, double[], double[], Own, boolean[])}; {@code close} says whether the part of
+     * a density integral above {@code to} is added as a closing term (false when another integral covers
+     * that part).
+     */
+    static double[] integrate(List<ExactArm> arms, double[] from, double[] to, Own own, boolean[] which,
+                              boolean close) {
         int n = arms.size();
         double start = Double.POSITIVE_INFINITY;
         double end = Double.NEGATIVE_INFINITY;
@@ -97,7 +107,7 @@ final class ExactIntegrator {
         }
         for (int i = 0; i < n; i++) {
             result[i] = acc.value(i);
-            if (own == Own.DENSITY && which[i] && to[i] > from[i]) {
+            if (close && own == Own.DENSITY && which[i] && to[i] > from[i]) {
                 result[i] += beyondEnd(arms, i, to[i], result[i]);
             }
         }
@@ -159,13 +169,16 @@ final class ExactIntegrator {
     /**
      * Right edge of the panel starting at {@code left}: the width {@code h} must satisfy
      * {@code h <= PANEL_FACTOR / sqrt(K)} at both ends, halved until it does (geometric panels towards a
-     * singular end of the support need one or two halvings). A panel never steps over an arm's centre,
+     * singular end of the support need one or two halvings; the far end is checked at {@code end} when
+     * {@code left + h} rounds beyond it, since beyond every range the curvature is 0 and the check would
+     * pass: a range ending at {@code -1e-30} was crossed from {@code -0.001} in one panel). A panel never
+     * steps over an arm's centre,
      * where that arm's curvature peaks: the wide geometric panels of a heavy tail would otherwise jump over
      * the whole body of the distribution.
      */
     private static double nextEdge(List<ExactArm> arms, double[] from, double[] to, boolean[] which,
                                    double left, double end) {
-        double h = Math.min(end - left, PANEL_FACTOR / Math.sqrt(curvature(arms, from, to, which, left)));
+        double h = Math.min(end - left, width(arms, from, to, which, left));
         for (ExactArm arm : arms) {
             double center = arm.center();
             if (center > left && center < left + h) {
@@ -173,7 +186,7 @@ final class ExactIntegrator {
             }
         }
         for (int halving = 0; halving < MAX_HALVINGS; halving++) {
-            double limit = PANEL_FACTOR / Math.sqrt(curvature(arms, from, to, which, left + h));
+            double limit = width(arms, from, to, which, Math.min(left + h, end));
             if (h <= limit) {
                 break;
             }
@@ -181,6 +194,30 @@ final class ExactIntegrator {
         }
         double right = left + Math.max(h, 16 * Math.ulp(left));
         return right >= end || end - right < 1e-3 * h ? end : right;
+    }
+
+    /**
+     * Panel width {@code PANEL_FACTOR / sqrt(K(x))}. Within about 1e-154 of a Beta support end with a
+     * non-integer shape the squared distance underflows and K is infinite; the width is then taken in the
+     * form {@code PANEL_FACTOR * d / sqrt(C)}, with {@code d} the distance to the nearest such end and
+     * {@code C} the sum of the end coefficients there ({@link ExactArm#endCoefficient}), the same geometric
+     * panels that {@code K ~ C / d^2} gives further out. Before this, the panels shrank to a few ulps and
+     * integration gave up (issue 14: prior shapes below about 0.15).
+     */
+    private static double width(List<ExactArm> arms, double[] from, double[] to, boolean[] which, double x) {
+        double k = curvature(arms, from, to, which, x);
+        if (!Double.isInfinite(k)) {
+            return PANEL_FACTOR / Math.sqrt(k);
+        }
+        double distance = Double.POSITIVE_INFINITY;
+        double coefficient = 0;
+        for (ExactArm arm : arms) {
+            if (arm.active(x)) {
+                distance = Math.min(distance, arm.endDistance(x));
+                coefficient += arm.endCoefficient(x);
+            }
+        }
+        return PANEL_FACTOR * distance / Math.sqrt(Math.max(coefficient, 0.25));
     }
 
     /** Sum of the curvatures of the log factors that vary at {@code x}. */

@@ -9,8 +9,9 @@ public enum Rule {
      */
     GLR,
     /**
-     * Posterior probability rule: stop when the lower confidence bound {@code alpha - z * standardError} of
-     * the largest probability of being best reaches {@code 1 - delta}. Statistic: that bound; threshold:
+     * Posterior probability rule: stop when a lower confidence bound of the largest probability of being
+     * best reaches {@code 1 - delta} (Monte Carlo: the Wilson score bound with quantile z over the draws;
+     * exact: alpha itself). Statistic: that bound; threshold:
      * {@code 1 - delta}. Its error rate is calibrated on average over the prior, NOT for a fixed truth: if
      * the prior is wrong, or for some particular true means, the error rate can exceed delta.
      */

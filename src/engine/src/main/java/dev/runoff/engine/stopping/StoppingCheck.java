@@ -96,10 +96,17 @@ public final class StoppingCheck {
         return new Evaluation(z.leader(), z.value(), threshold, z.value() > threshold);
     }
 
-    /** Posterior rule: fires when {@code alpha_max - z * standardError >= 1 - delta}. */
+    /**
+     * Posterior rule: fires when a lower confidence bound of {@code alpha_max} reaches {@code 1 - delta}. For
+     * Monte Carlo estimates the bound is the Wilson score bound over the draws ({@link WilsonBound}); the
+     * Wald bound {@code alpha - z * standardError} used before is alpha itself when every draw picks the
+     * leader. For other estimates it stays {@code alpha - z * standardError}.
+     */
     private static Evaluation posterior(ProbabilityBest best, StoppingConfig config) {
         int leader = argmax(best);
-        double lower = best.alpha(leader) - config.z() * best.standardError(leader);
+        double lower = best.method() == ProbabilityBest.Method.MONTE_CARLO && best.draws() > 0
+                ? WilsonBound.lower(best.alpha(leader), best.draws(), config.z())
+                : best.alpha(leader) - config.z() * best.standardError(leader);
         double threshold = 1 - config.delta();
         return new Evaluation(leader, lower, threshold, lower >= threshold);
     }

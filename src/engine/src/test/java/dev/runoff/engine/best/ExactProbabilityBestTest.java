@@ -8,6 +8,8 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import dev.runoff.engine.posterior.BetaPosterior;
 import dev.runoff.engine.posterior.Posterior;
 import dev.runoff.engine.posterior.StudentTPosterior;
+import java.math.BigDecimal;
+import java.math.MathContext;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;
@@ -73,6 +75,76 @@ class ExactProbabilityBestTest {
             assertTrue(expected < 1e-10 && expected > 1e-20, "case not tiny enough: " + expected);
             assertEquals(expected, alpha[1], 1e-12 * expected, Arrays.toString(c));
         }
+    }
+
+    @Test
+    void tinyAlphasDownToOneInTenToTheThreeHundredKeepRelativeAccuracy() {
+        // Issue 14, bug 3. Reference: Miller (2015) closed form in exact rational arithmetic, converted with
+        // BigDecimal (BigFraction.doubleValue gives 0 below about 1e-308 of its operands' range). P(B > A)
+        // for A = Beta(501, 501): 1.795e-188 for B = Beta(1, 1001), 2.294e-65 for B = Beta(151, 851) (these
+        // came out 0 and 23% low with a single unchecked retry), and about 1e-95 .. 1e-299 for the others.
+        int[][] cases = {{1, 1001}, {151, 851}, {1, 400}, {1, 700}, {1, 1500}, {1, 1900}, {3, 1700}, {40, 3000}};
+        for (int[] c : cases) {
+            double[] alpha = alphas(new BetaPosterior(501, 501), new BetaPosterior(c[0], c[1]));
+            double expected = toDouble(MillerFormula.probabilityBBeatsA(501, 501, c[0], c[1]));
+            assertTrue(expected >= 1e-300 && expected < 1e-60, "case not tiny enough: " + expected);
+            assertEquals(expected, alpha[1], 1e-9 * expected, Arrays.toString(c));
+        }
+        assertEquals(1.79479216788302e-188, alphas(new BetaPosterior(501, 501), new BetaPosterior(1, 1001))[1],
+                1e-9 * 1.79479216788302e-188);
+    }
+
+    @Test
+    void tinyStudentTAlphasKeepRelativeAccuracy() {
+        // Issue 14, bug 3, Student-t posteriors. Reference: mpmath 1.3.0 at 40 digits (confirmed at 60 digits
+        // with a finer split), P(T1 > T2) = quad(f1(x) * F2(x)) over (-inf, l1 - 50 s1], 64 equal pieces
+        // of [l1, l2], [l2, l2 + 50 s2], [l2 + 1e4 s2, inf), with
+        // log f = loggamma((nu+1)/2) - loggamma(nu/2) - log(sqrt(nu pi) s) - (nu+1)/2 log(1 + z^2/nu) and
+        // F(x) = betainc(nu/2, 1/2, 0, nu/(nu+z^2), regularized=True)/2 for z < 0, z = (x - l)/s.
+        double[][] cases = {
+            {0, 1, 500, 20, 1, 500, 9.669385007947379498e-42},
+            {0, 1, 500, 38, 1, 500, 4.5719412513945097687e-120},
+            {0, 1, 30, 60, 1, 30, 9.5437773799028762967e-33},
+            {0, 1, 200, 50, 1.5, 100, 1.7299099948725319963e-55},
+            {0, 1, 2000, 30, 0.5, 1000, 3.4481994808516508482e-141},
+            {0, 1, 500, 60, 1, 500, 2.4999948903569319967e-216},
+            {0, 1, 5000, 48, 1, 5000, 2.3986052700689533555e-239},
+            {0, 1, 20000, 52, 1, 20000, 2.1205825760295168517e-291}};
+        for (double[] c : cases) {
+            double alpha = alphas(new StudentTPosterior(c[0], c[1], c[2]), new StudentTPosterior(c[3], c[4], c[5]))[0];
+            assertEquals(c[6], alpha, 1e-9 * c[6], Arrays.toString(c));
+        }
+    }
+
+    @Test
+    void smallPriorShapesIntegrateAtBothSingularEnds() {
+        // Issue 14, bugs 1 and 2. Prior (0.1, 0.1): arms 0/10 and 0/20 give Beta(0.1, 10.1) and
+        // Beta(0.1, 20.1), singular at 0 (integration used to give up); arms 10/10 and 20/20 give
+        // Beta(10.1, 0.1) and Beta(20.1, 0.1), singular at 1 (1.2% of the mass was lost); shapes down to 0.03
+        // keep the sum of three alphas within 1e-10 of 1 (below 0.03 mass under the smallest double, about
+        // (4.9e-324)^shape, is lost: 5e-9 at 0.02, 4e-6 at 0.01, measured). By symmetry
+        // theta -> 1 - theta the second pair's alphas are the first pair's swapped. Reference: mpmath 1.3.0
+        // at 30 digits, P(u1 < u2) for u1 ~ Beta(0.1, 10.1), u2 ~ Beta(0.1, 20.1), after t = u^0.1, which
+        // removes the singularity: quad((1 - t^10)^9.1 * (1 - betainc(0.1, 20.1, 0, t^10, regularized=True))
+        // / (0.1 * beta(0.1, 10.1)), [0, 0.5, 0.8, 1]) = 0.468744116060519091543710114562.
+        double reference = 0.468744116060519091543710114562;
+        double[] atZero = alphas(new BetaPosterior(0.1, 10.1), new BetaPosterior(0.1, 20.1));
+        double[] atOne = alphas(new BetaPosterior(10.1, 0.1), new BetaPosterior(20.1, 0.1));
+        assertEquals(1 - reference, atZero[0], 1e-12);
+        assertEquals(reference, atZero[1], 1e-12);
+        assertEquals(reference, atOne[0], 1e-12);
+        assertEquals(1 - reference, atOne[1], 1e-12);
+        for (double shape : new double[] {0.03, 0.05, 0.1, 0.15, 0.2}) {
+            double sum = Arrays.stream(alphas(new BetaPosterior(shape, 10 + shape), new BetaPosterior(shape,
+                    20 + shape), new BetaPosterior(5 + shape, shape))).sum();
+            assertEquals(1.0, sum, 1e-10, "shape " + shape);
+        }
+    }
+
+    /** An exact fraction as the nearest double, also below the range where BigFraction.doubleValue works. */
+    private static double toDouble(BigFraction f) {
+        return new BigDecimal(f.getNumerator()).divide(new BigDecimal(f.getDenominator()), MathContext.DECIMAL64)
+                .doubleValue();
     }
 
     @Test

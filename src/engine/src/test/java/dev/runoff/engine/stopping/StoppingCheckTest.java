@@ -6,7 +6,11 @@ import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.engine.core.Arm;
+import dev.runoff.engine.best.ExactProbabilityBest;
+import dev.runoff.engine.best.MonteCarloProbabilityBest;
 import dev.runoff.engine.best.ProbabilityBest;
+import dev.runoff.engine.posterior.Posterior;
+import dev.runoff.engine.posterior.StudentTPosterior;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
 import java.time.Duration;
@@ -15,6 +19,8 @@ import java.util.ArrayList;
 import java.util.List;
 import org.apache.commons.math3.analysis.integration.IterativeLegendreGaussIntegrator;
 import org.apache.commons.math3.distribution.BetaDistribution;
+import org.apache.commons.math3.distribution.NormalDistribution;
+import org.apache.commons.math3.stat.interval.WilsonScoreInterval;
 import org.junit.jupiter.api.Test;
 
 class StoppingCheckTest {
@@ -29,8 +35,12 @@ class StoppingCheckTest {
         return new ProbabilityBest(alpha, new double[alpha.length], ProbabilityBest.Method.EXACT, 0);
     }
 
-    private static ProbabilityBest monteCarlo(double[] alpha, double[] se) {
-        return new ProbabilityBest(alpha, se, ProbabilityBest.Method.MONTE_CARLO, 100_000);
+    private static ProbabilityBest monteCarlo(double[] alpha, int draws) {
+        double[] se = new double[alpha.length];
+        for (int i = 0; i < alpha.length; i++) {
+            se[i] = Math.sqrt(alpha[i] * (1 - alpha[i]) / draws);
+        }
+        return new ProbabilityBest(alpha, se, ProbabilityBest.Method.MONTE_CARLO, draws);
     }
 
     /** A = 60%, B = 40% of 150 trials each: Z = 300 (0.6 ln 1.2 + 0.4 ln 0.8) = 6.04 (hand computation). */
@@ -93,26 +103,60 @@ class StoppingCheckTest {
     }
 
     @Test
-    void posteriorRuleJudgesTheLowerConfidenceBound() {
+    void posteriorRuleJudgesTheWilsonLowerBoundOfMonteCarloAlpha() {
         StoppingConfig config = StoppingConfig.posterior(0.05);
-        // 0.97 - 3 * 0.005 = 0.955 >= 0.95: STOP; the leader is the arm with the largest alpha.
-        Verdict stop = StoppingCheck.decide(moderateGap(), monteCarlo(new double[] {0.03, 0.97},
-                new double[] {0.005, 0.005}), ONE_DAY, config);
+        // Reference: Commons Math WilsonScoreInterval (Wilson 1927) at the two-sided level of z = 3.
+        double level = 1 - 2 * new NormalDistribution().cumulativeProbability(-3);
+        double wilson10k = new WilsonScoreInterval().createInterval(10_000, 9_700, level).getLowerBound();
+        Verdict stop = StoppingCheck.decide(moderateGap(), monteCarlo(new double[] {0.03, 0.97}, 10_000), ONE_DAY,
+                config);
         assertEquals(VerdictReason.POSTERIOR, stop.reason());
         assertEquals("B", stop.leaderName());
-        assertEquals(0.955, stop.statistic(), 1e-12);
+        assertEquals(wilson10k, stop.statistic(), 1e-12);
         assertEquals(0.95, stop.threshold(), 1e-15);
-        // 0.97 - 3 * 0.01 = 0.94 < 0.95: CONTINUE, although alpha itself is above 0.95.
-        Verdict wait = StoppingCheck.decide(moderateGap(), monteCarlo(new double[] {0.03, 0.97},
-                new double[] {0.01, 0.01}), ONE_DAY, config);
+        // 1,000 draws: the Wilson bound 0.9492 < 0.95: CONTINUE, although alpha itself is above 0.95.
+        double wilson1k = new WilsonScoreInterval().createInterval(1_000, 970, level).getLowerBound();
+        Verdict wait = StoppingCheck.decide(moderateGap(), monteCarlo(new double[] {0.03, 0.97}, 1_000), ONE_DAY,
+                config);
         assertEquals(VerdictReason.BELOW_THRESHOLD, wait.reason());
-        assertEquals(0.94, wait.statistic(), 1e-12);
-        // z = 1: 0.97 - 0.01 = 0.96: STOP.
+        assertEquals(wilson1k, wait.statistic(), 1e-12);
+        assertTrue(wilson1k < 0.95);
+        // z = 1 with 1,000 draws: bound 0.9641: STOP.
         assertEquals(VerdictReason.POSTERIOR, StoppingCheck.decide(moderateGap(), monteCarlo(new double[] {0.03, 0.97},
-                new double[] {0.01, 0.01}), ONE_DAY, config.withZ(1)).reason());
+                1_000), ONE_DAY, config.withZ(1)).reason());
         // Exact alpha has standard error 0: 0.951 >= 0.95.
         assertEquals(VerdictReason.POSTERIOR, StoppingCheck.decide(moderateGap(), exact(0.049, 0.951), ONE_DAY, config)
                 .reason());
+    }
+
+    @Test
+    void posteriorRuleDoesNotStopWhenEveryDrawPicksALeaderBelowTheTarget() {
+        // Issue 14, bug 5. Two near-normal posteriors (Student-t, 1e9 degrees of freedom, scale 1) whose
+        // difference has mean d sqrt(2) and variance 2: P(best) = Phi(d) = 0.999768 for d = Phi^-1(0.999768).
+        // With 10,000 Monte Carlo draws every draw picks the leader with probability 0.999768^10000 = 9.8%;
+        // the Wald bound alpha - 3 se is then 1 and the rule stopped at delta 1e-4 although P(best) < 1 - delta.
+        // The Wilson bound (Wilson 1927) at 10,000 of 10,000 is 10000 / (10000 + 9) < 0.9999, so the rule
+        // cannot stop on any seed. Tolerance: none (0 stops of 400 seeds); the old bound's stops on the same
+        // seeds are counted as a check that the seeds reach the degenerate case (expected 39 of 400; more
+        // than 15 with probability above 1 - 1e-6 by the binomial(400, 0.098) tail).
+        double d = new NormalDistribution().inverseCumulativeProbability(0.999768);
+        List<Posterior> ps = List.of(new StudentTPosterior(d * Math.sqrt(2), 1, 1e9), new StudentTPosterior(0, 1, 1e9));
+        assertEquals(0.999768, new ExactProbabilityBest().estimate(ps, 0).alpha(0), 1e-7);
+        StoppingConfig config = StoppingConfig.posterior(1e-4);
+        MonteCarloProbabilityBest estimator = new MonteCarloProbabilityBest(10_000);
+        int stops = 0;
+        int waldStops = 0;
+        for (long seed = 0; seed < 400; seed++) {
+            ProbabilityBest best = estimator.estimate(ps, seed);
+            if (StoppingCheck.decide(moderateGap(), best, ONE_DAY, config).action() == Verdict.Action.STOP) {
+                stops++;
+            }
+            if (best.alpha(0) - 3 * best.standardError(0) >= 1 - 1e-4) {
+                waldStops++;
+            }
+        }
+        assertEquals(0, stops);
+        assertTrue(waldStops > 15, "Wald bound stopped on " + waldStops + " of 400 seeds");
     }
 
     /**
