@@ -9,10 +9,12 @@ import dev.runoff.engine.planning.ArmModel;
 import dev.runoff.engine.planning.SimulationConfig;
 import dev.runoff.engine.planning.SimulationProgress;
 import dev.runoff.engine.planning.SimulationResult;
+import dev.runoff.engine.planning.StoppingComparison;
 import dev.runoff.engine.stopping.Rule;
 import dev.runoff.engine.stopping.StoppingConfig;
 import java.io.PrintWriter;
 import java.util.Arrays;
+import java.util.List;
 import java.util.concurrent.Callable;
 import java.util.function.Supplier;
 import picocli.CommandLine.Command;
@@ -72,8 +74,10 @@ final class PlanCommand implements Callable<Integer> {
 
     @Option(names = "--stopping", converter = StoppingChoice.class, completionCandidates = StoppingChoice.class,
             paramLabel = "RULE", defaultValue = "glr",
-            description = "Stopping rule: ${COMPLETION-CANDIDATES} (default: ${DEFAULT-VALUE}).")
-    private Rule stopping;
+            description = "Stopping rule: ${COMPLETION-CANDIDATES} (default: ${DEFAULT-VALUE}). glr-heuristic is NOT"
+                    + " proven; mixture is for --rates only; indifference needs --epsilon > 0; all compares every"
+                    + " rule on the same seeds in one table.")
+    private StoppingChoice.Selection stopping;
 
     @Option(names = "--batch", paramLabel = "N", defaultValue = "100",
             description = "Trials between two evaluations of the weights and the stopping rule"
@@ -110,10 +114,13 @@ final class PlanCommand implements Callable<Integer> {
         named("--beta", beta, () -> EngineConfig.defaults(arms.metric()).withBeta(beta));
         checkCounts();
         checkTies(arms);
+        checkStopping(arms);
         PlanFigures plan = PlanFigures.of(arms, delta, epsilon, rule, beta);
-        SimulationResult simulation = replications == 0 ? null : simulate(arms, plan);
+        boolean simulate = replications > 0;
+        SimulationResult simulation = simulate && !stopping.all() ? simulate(arms, plan) : null;
+        PlanReport.Comparison comparison = simulate && stopping.all() ? compare(arms, plan) : null;
         PrintWriter out = spec.commandLine().getOut();
-        PlanReport report = new PlanReport(plan, simulation);
+        PlanReport report = new PlanReport(plan, simulation, comparison);
         out.print(json ? report.json() + System.lineSeparator() : report.text());
         out.flush();
         return 0;
@@ -151,6 +158,18 @@ final class PlanCommand implements Callable<Integer> {
         }
         if (threads != null && threads < 1) {
             throw usage("--threads must be >= 1, got " + threads);
+        }
+    }
+
+    private void checkStopping(ArmModel arms) {
+        if (stopping.all()) {
+            return;
+        }
+        if (!stopping.rule().supports(arms.metric())) {
+            throw usage("--stopping " + Spelling.of(stopping.rule()) + " is for --rates (Bernoulli arms) only");
+        }
+        if (stopping.rule() == Rule.INDIFFERENCE && epsilon == 0) {
+            throw usage("--stopping indifference needs an indifference zone --epsilon > 0");
         }
     }
 
@@ -197,11 +216,27 @@ final class PlanCommand implements Callable<Integer> {
     }
 
     private SimulationResult simulate(ArmModel arms, PlanFigures plan) {
-        StoppingConfig stop = StoppingConfig.glr(delta).withRule(stopping).withMaxTotalTrials(budget(plan));
+        return Simulation.run(simulationConfig(arms, plan, stopping.rule()), parallelism(), progress());
+    }
+
+    /** Every rule of {@code --stopping all} on the same seeds, with the configured allocation rule. */
+    private PlanReport.Comparison compare(ArmModel arms, PlanFigures plan) {
+        List<Rule> rules = stopping.rulesFor(arms.metric(), epsilon);
+        SimulationConfig config = simulationConfig(arms, plan, rules.get(0));
+        List<StoppingComparison> rows = Simulation.compare(config, rules, parallelism(), progress());
+        return new PlanReport.Comparison(config, rows);
+    }
+
+    /** The simulation of {@code stoppingRule}; with an indifference zone its epsilon is {@code --epsilon}. */
+    private SimulationConfig simulationConfig(ArmModel arms, PlanFigures plan, Rule stoppingRule) {
+        StoppingConfig base = epsilon > 0 ? StoppingConfig.indifference(delta, epsilon) : StoppingConfig.glr(delta);
+        StoppingConfig stop = base.withRule(stoppingRule).withMaxTotalTrials(budget(plan));
         EngineConfig engine = EngineConfig.defaults(arms.metric()).withRule(rule).withBeta(beta);
-        SimulationConfig config = new SimulationConfig(arms, engine, stop, batch, replications, seed, epsilon);
-        int parallelism = threads == null ? Runtime.getRuntime().availableProcessors() : threads;
-        return Simulation.run(config, parallelism, progress());
+        return new SimulationConfig(arms, engine, stop, batch, replications, seed, epsilon);
+    }
+
+    private int parallelism() {
+        return threads == null ? Runtime.getRuntime().availableProcessors() : threads;
     }
 
     /** A progress bar on standard error, only on a terminal and not with --json. */

@@ -10,6 +10,7 @@ import dev.runoff.engine.planning.ArmModel;
 import dev.runoff.engine.planning.SimulationConfig;
 import dev.runoff.engine.planning.SimulationResult;
 import dev.runoff.engine.planning.SimulationSummary;
+import dev.runoff.engine.planning.StoppingComparison;
 import dev.runoff.engine.planning.TargetAllocation;
 import java.util.ArrayList;
 import java.util.List;
@@ -26,13 +27,28 @@ final class PlanReport {
 
     private final PlanFigures plan;
     private final SimulationResult simulation;
+    private final Comparison comparison;
 
     /**
-     * A report of the planning figures and, unless {@code simulation} is null, the simulation.
+     * A report of the planning figures and, unless null, the simulation of one stopping rule against uniform
+     * allocation and the comparison of stopping rules ({@code --stopping all}).
      */
-    PlanReport(PlanFigures plan, SimulationResult simulation) {
+    PlanReport(PlanFigures plan, SimulationResult simulation, Comparison comparison) {
         this.plan = plan;
         this.simulation = simulation;
+        this.comparison = comparison;
+    }
+
+    /**
+     * Stopping rules compared on the same replication seeds.
+     *
+     * @param config what was simulated (the stopping rule of the first row; delta, budget and guards of all)
+     * @param rows   one row per rule
+     */
+    record Comparison(SimulationConfig config, List<StoppingComparison> rows) {
+        Comparison {
+            rows = List.copyOf(rows);
+        }
     }
 
     /** The tables. */
@@ -46,8 +62,34 @@ final class PlanReport {
         if (simulation != null) {
             out.append(NL).append(simulationText());
         }
+        if (comparison != null) {
+            out.append(NL).append(comparisonText());
+        }
         return out.toString();
     }
+
+    /** One row per stopping rule, on the same replication seeds. */
+    private String comparisonText() {
+        SimulationConfig c = comparison.config();
+        StringBuilder out = new StringBuilder(String.format(Locale.ROOT,
+                "Stopping rules: %d runs each on the same seeds, %s, batch %d, budget %d trials per run, seed %d%n",
+                c.replications(), plan.rule().cliName(), c.batch(), c.budgetTrials(), c.seed()));
+        Columns table = new Columns();
+        table.row("stopping", "proven", "mean trials", "median trials", "90th percentile trials", "wrong picks",
+                "error rate", "95% interval (Clopper-Pearson)", "budget stops");
+        for (StoppingComparison row : comparison.rows()) {
+            SimulationSummary s = row.summary();
+            table.row(Spelling.of(row.stopping()), row.proven() ? "yes" : "NO", fixed(s.meanTrials(), 1),
+                    fixed(s.medianTrials(), 1), Long.toString(s.p90Trials()), s.errors() + "/" + s.replications(),
+                    fixed(s.errorRate(), 4), "[" + fixed(s.errorInterval().lower(), 4) + ", "
+                            + fixed(s.errorInterval().upper(), 4) + "]", Integer.toString(s.budgetStops()));
+        }
+        out.append(table.render());
+        out.append("proven: error probability at most delta for every fixed truth (glr on --means plugs in sample"
+                + " variances, so it is not counted as proven); a NO rule can exceed delta.").append(NL);
+        return out.toString();
+    }
+
 
     private String noPlanning() {
         return "Planning: the best arm is not unique, so the optimal allocation is undefined and T* is infinite;"
@@ -184,11 +226,48 @@ final class PlanReport {
             number(root, "trialRatio", simulation.trialRatio());
             number(root, "asymptoticRatio", plan.asymptoticRatio());
         }
+        if (comparison != null) {
+            comparisonJson(root);
+        }
         try {
             return MAPPER.writeValueAsString(root);
         } catch (JsonProcessingException e) {
             throw new IllegalStateException("cannot write the JSON report", e);
         }
+    }
+
+    /** {@code stoppingComparison}: one object per rule, with the simulation's settings beside it. */
+    private void comparisonJson(ObjectNode root) {
+        SimulationConfig c = comparison.config();
+        ObjectNode settings = root.putObject("stoppingComparisonSettings");
+        settings.put("rule", plan.rule().cliName());
+        settings.put("replications", c.replications());
+        settings.put("batch", c.batch());
+        settings.put("seed", c.seed());
+        settings.put("budgetTrials", c.budgetTrials());
+        ArrayNode rows = root.putArray("stoppingComparison");
+        for (StoppingComparison row : comparison.rows()) {
+            SimulationSummary s = row.summary();
+            ObjectNode n = rows.addObject();
+            n.put("stopping", Spelling.of(row.stopping()));
+            number(n, "meanTrials", s.meanTrials());
+            number(n, "medianTrials", s.medianTrials());
+            n.put("p90Trials", s.p90Trials());
+            n.put("errors", s.errors());
+            n.put("replications", s.replications());
+            number(n, "errorRate", s.errorRate());
+            interval(n, s);
+            n.put("proven", row.proven());
+            n.put("budgetStops", s.budgetStops());
+        }
+    }
+
+    private static void interval(ObjectNode n, SimulationSummary s) {
+        ObjectNode interval = n.putObject("errorInterval");
+        interval.put("method", "clopper-pearson");
+        number(interval, "level", s.errorInterval().level());
+        number(interval, "lower", s.errorInterval().lower());
+        number(interval, "upper", s.errorInterval().upper());
     }
 
     private void target(ObjectNode root, String field, TargetAllocation t) {
@@ -220,11 +299,7 @@ final class PlanReport {
         n.put("p90Trials", s.p90Trials());
         n.put("errors", s.errors());
         number(n, "errorRate", s.errorRate());
-        ObjectNode interval = n.putObject("errorInterval");
-        interval.put("method", "clopper-pearson");
-        number(interval, "level", s.errorInterval().level());
-        number(interval, "lower", s.errorInterval().lower());
-        number(interval, "upper", s.errorInterval().upper());
+        interval(n, s);
         n.put("budgetStops", s.budgetStops());
         numbers(n.putArray("armShares"), s.armShares());
         return n;

@@ -157,6 +157,60 @@ class PlanCommandTest {
         }
     }
 
+    @Test
+    void stoppingAllPrintsOneRowPerRuleInOneTable() {
+        EvaluateCommandTest.Run r = run(small("--stopping", "all", "--epsilon", "0.05"));
+        assertEquals(0, r.exitCode(), r.err());
+        List<String> lines = r.out().lines().toList();
+        assertTrue(lines.contains("Stopping rules: 4 runs each on the same seeds, top-two-thompson, batch 50,"
+                + " budget 1540 trials per run, seed 1"), r.out());
+        assertTrue(lines.stream().anyMatch(l -> l.matches("stopping +proven +mean trials +median trials +90th"
+                + " percentile trials +wrong picks +error rate +95% interval \\(Clopper-Pearson\\) +budget stops")),
+                r.out());
+        for (String row : List.of("glr +yes", "posterior +NO", "indifference +NO", "glr-heuristic +NO", "mixture +yes")) {
+            assertEquals(1, lines.stream().filter(l -> l.matches(row + " +\\d+\\.\\d +\\d+\\.\\d +\\d+ +\\d+/4"
+                    + " +\\d\\.\\d{4} +\\[\\d\\.\\d{4}, \\d\\.\\d{4}\\] +\\d+")).count(), row + " in\n" + r.out());
+        }
+        assertFalse(r.out().contains("traffic share"), "no uniform baseline table with --stopping all");
+    }
+
+    @Test
+    void stoppingAllInJsonIsAnArrayWithTheDocumentedKeys() throws Exception {
+        JsonNode root = json(run(small("--stopping", "all", "--json")));
+        JsonNode rows = root.get("stoppingComparison");
+        // no --epsilon: no indifference zone, so the indifference rule is left out
+        assertEquals(4, rows.size(), rows.toString());
+        List<String> names = new java.util.ArrayList<>();
+        for (JsonNode row : rows) {
+            names.add(row.get("stopping").asText());
+            for (String key : List.of("meanTrials", "medianTrials", "p90Trials", "errorRate")) {
+                assertTrue(row.get(key).isNumber(), key + " in " + row);
+            }
+            assertTrue(row.get("proven").isBoolean(), row.toString());
+            JsonNode interval = row.get("errorInterval");
+            assertEquals("clopper-pearson", interval.get("method").asText());
+            assertTrue(interval.get("lower").asDouble() <= row.get("errorRate").asDouble()
+                    && row.get("errorRate").asDouble() <= interval.get("upper").asDouble(), row.toString());
+        }
+        assertEquals(List.of("glr", "posterior", "glr-heuristic", "mixture"), names);
+        assertEquals(List.of(true, false, false, true),
+                List.of(rows.get(0).get("proven").asBoolean(), rows.get(1).get("proven").asBoolean(),
+                        rows.get(2).get("proven").asBoolean(), rows.get(3).get("proven").asBoolean()));
+        assertEquals(4, root.get("stoppingComparisonSettings").get("replications").asInt());
+        assertFalse(root.has("simulation"), "no single-rule simulation with --stopping all");
+    }
+
+    @Test
+    void stoppingAllOnValueArmsLeavesOutTheMixtureRuleAndClaimsNoProof() throws Exception {
+        JsonNode rows = json(run("plan", "--means", "1,0", "--stddev", "1", "--delta", "0.1", "--simulate", "2",
+                "--batch", "50", "--stopping", "all", "--json")).get("stoppingComparison");
+        assertEquals(3, rows.size(), rows.toString());
+        for (JsonNode row : rows) {
+            assertFalse(row.get("proven").asBoolean(), row.toString());
+            assertFalse(row.get("stopping").asText().equals("mixture"), row.toString());
+        }
+    }
+
     @ParameterizedTest
     @CsvSource(delimiter = '|', value = {
         "--rates 0.5,1.2|--rates 0.5,1.2: rate of arm2 must be in (0.0, 1.0), got 1.2",
@@ -169,7 +223,10 @@ class PlanCommandTest {
         "--rates 0.5,0.4 --epsilon -1|--epsilon -1.0: epsilon must be a finite number >= 0, got -1.0",
         "--rates 0.5,0.4 --beta 2|--beta 2.0: beta must be in [0.0, 1.0], got 2.0",
         "--rates 0.5,0.4 --rule best|Invalid value for option '--rule': 'best' is not one of",
-        "--rates 0.5,0.4 --stopping indifference|'indifference' is not one of glr, posterior",
+        "--rates 0.5,0.4 --stopping best|'best' is not one of glr, posterior, indifference, glr-heuristic, mixture,"
+            + " all",
+        "--rates 0.5,0.4 --stopping indifference|--stopping indifference needs an indifference zone --epsilon > 0",
+        "--means 1,2 --stddev 1 --stopping mixture|--stopping mixture is for --rates (Bernoulli arms) only",
         "--rates 0.5,0.4 --batch 0|--batch must be >= 1, got 0",
         "--rates 0.5,0.4 --simulate -1|--simulate must be >= 0, got -1",
         "--rates 0.5,0.4 --threads 0|--threads must be >= 1, got 0",

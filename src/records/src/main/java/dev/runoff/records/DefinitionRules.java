@@ -138,6 +138,9 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
         StoppingSpec stopping = def.getStopping();
         problems.open("delta", stopping.getDelta(), 0, 1);
         checkEpsilon(stopping, def.getMetric().getKind(), problems);
+        if (stopping.getRule() == StoppingRule.MIXTURE && def.getMetric().getKind() != MetricKind.BERNOULLI) {
+            problems.add("rule", Reason.INCONSISTENT, "MIXTURE needs metric.kind BERNOULLI");
+        }
         problems.atLeast("minTrialsPerArm", stopping.getMinTrialsPerArm(), 0);
         problems.atLeast("minDurationMs", stopping.getMinDurationMs(), 0);
         if (stopping.getDeadline() != null) {

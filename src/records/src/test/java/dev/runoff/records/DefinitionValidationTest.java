@@ -129,6 +129,26 @@ class DefinitionValidationTest {
     }
 
     @Test
+    void theMixtureRuleNeedsABernoulliMetric() {
+        ExperimentDefinition value = Samples.valueMetric();
+        value.getStopping().setRule(StoppingRule.MIXTURE);
+        Decoded<ExperimentDefinition> decoded = Definitions.validate(value, Samples.NOW);
+        Rejections.assertFirstProblem(decoded, "stopping.rule", Reason.INCONSISTENT,
+                "MIXTURE needs metric.kind BERNOULLI");
+        assertEquals(1, decoded.problems().size(), decoded.problems().toString());
+    }
+
+    @Test
+    void theNewStoppingRulesAreAcceptedForBernoulliMetrics() {
+        for (StoppingRule rule : List.of(StoppingRule.GLR_HEURISTIC, StoppingRule.MIXTURE)) {
+            ExperimentDefinition def = Samples.bernoulli();
+            def.getStopping().setRule(rule);
+            def.getStopping().setEpsilon(null);
+            assertSame(def, Definitions.validate(def, Samples.NOW).orThrow(), rule.name());
+        }
+    }
+
+    @Test
     void everyProblemIsReportedAtOnce() {
         ExperimentDefinition def = Samples.bernoulli();
         def.getStopping().setDelta(2.0);

@@ -2,6 +2,7 @@ package dev.runoff.engine.planning;
 
 import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.allocation.AllocationMethod;
+import dev.runoff.engine.stopping.Rule;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.Objects;
@@ -77,6 +78,59 @@ public final class Simulation {
         List<SimulationRun> baselineRuns = baselineApart ? joinAll(baseline, List.of()) : ruleRuns;
         return new SimulationResult(config, SimulationSummary.of(config.engine().rule(), ruleRuns),
                 SimulationSummary.of(AllocationMethod.UNIFORM, baselineRuns), ruleRuns, baselineRuns);
+    }
+
+    /**
+     * Runs the configured allocation rule once per stopping rule, each on the same replication seeds (so
+     * until one rule stops, every rule sees the same trials: the comparison is paired), with no uniform
+     * baseline.
+     *
+     * @param config   what to simulate; its stopping configuration gives delta, epsilon, guards and budget
+     * @param rules    the stopping rules to compare, at least one, each supported by the arms' metric
+     * @param executor runs the replications
+     * @param progress told as runs finish
+     * @return one comparison per rule, in the order given
+     */
+    public static List<StoppingComparison> compare(SimulationConfig config, List<Rule> rules, Executor executor,
+                                                   SimulationProgress progress) {
+        Objects.requireNonNull(config, "config");
+        Objects.requireNonNull(executor, "executor");
+        Objects.requireNonNull(progress, "progress");
+        if (rules.isEmpty()) {
+            throw new IllegalArgumentException("need at least one stopping rule to compare");
+        }
+        Submitter submit = new Submitter(executor, progress, config.replications() * rules.size());
+        List<List<CompletableFuture<SimulationRun>>> futures = new ArrayList<>();
+        for (Rule rule : rules) {
+            SimulationConfig c = config.withStopping(config.stopping().withRule(rule));
+            SimulationReplication replication = new SimulationReplication(c, c.engine());
+            List<CompletableFuture<SimulationRun>> runs = new ArrayList<>();
+            for (int r = 0; r < config.replications(); r++) {
+                runs.add(submit.run(replication, replicationSeed(config.seed(), r)));
+            }
+            futures.add(runs);
+        }
+        List<CompletableFuture<SimulationRun>> all = futures.stream().flatMap(List::stream).toList();
+        List<StoppingComparison> rows = new ArrayList<>();
+        for (int i = 0; i < rules.size(); i++) {
+            SimulationSummary summary = SimulationSummary.of(config.engine().rule(), joinAll(futures.get(i), all));
+            rows.add(new StoppingComparison(rules.get(i), rules.get(i).provenFor(config.arms().metric()), summary));
+        }
+        return rows;
+    }
+
+    /** {@link #compare(SimulationConfig, List, Executor, SimulationProgress)} on a pool of daemon threads. */
+    public static List<StoppingComparison> compare(SimulationConfig config, List<Rule> rules, int parallelism,
+                                                   SimulationProgress progress) {
+        if (parallelism < 1) {
+            throw new IllegalArgumentException("parallelism must be >= 1, got " + parallelism);
+        }
+        ExecutorService pool = Executors.newFixedThreadPool(parallelism, daemonThreads());
+        try {
+            return compare(config, rules, pool, progress);
+        } finally {
+            pool.shutdownNow();
+        }
     }
 
     /**

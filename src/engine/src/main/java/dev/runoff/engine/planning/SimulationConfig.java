@@ -2,7 +2,6 @@ package dev.runoff.engine.planning;
 
 import dev.runoff.engine.core.Checks;
 import dev.runoff.engine.EngineConfig;
-import dev.runoff.engine.stopping.Rule;
 import dev.runoff.engine.stopping.StoppingConfig;
 import java.util.Objects;
 
@@ -12,7 +11,7 @@ import java.util.Objects;
  *
  * @param arms         the true arms
  * @param engine       the engine configuration; its metric must match the arms'
- * @param stopping     the stopping configuration: GLR or posterior rule, with a finite trial budget
+ * @param stopping     the stopping configuration: any rule the arms' metric supports, with a finite trial budget
  *                     ({@code budgetTrials}) so that every run ends; the simulation has no clock, so no
  *                     minimum duration and no deadline
  * @param batch        trials between two evaluations, {@code >= 1}
@@ -33,9 +32,9 @@ public record SimulationConfig(ArmModel arms, EngineConfig engine, StoppingConfi
             throw new IllegalArgumentException("the engine's prior is for the " + engine.metric()
                     + " metric but the arms are " + arms.metric());
         }
-        if (stopping.rule() == Rule.INDIFFERENCE) {
-            throw new IllegalArgumentException("stopping rule " + stopping.rule()
-                    + " is not supported by the simulation yet; use GLR or POSTERIOR");
+        if (!stopping.rule().supports(arms.metric())) {
+            throw new IllegalArgumentException("stopping rule " + stopping.rule() + " does not support "
+                    + arms.metric() + " arms");
         }
         if (stopping.budgetTrials() == StoppingConfig.NO_TRIAL_BUDGET) {
             throw new IllegalArgumentException("the stopping configuration needs a trial budget (budgetTrials)"
@@ -52,6 +51,11 @@ public record SimulationConfig(ArmModel arms, EngineConfig engine, StoppingConfi
             throw new IllegalArgumentException("replications must be >= 1, got " + replications);
         }
         Checks.nonNegative("epsilon", epsilon);
+    }
+
+    /** This configuration with another stopping configuration. */
+    public SimulationConfig withStopping(StoppingConfig newStopping) {
+        return new SimulationConfig(arms, engine, newStopping, batch, replications, seed, epsilon);
     }
 
     /** The trial budget of every run. */

@@ -8,6 +8,9 @@ import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.stats.ArmStats;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
+import dev.runoff.engine.posterior.Posterior;
+import dev.runoff.engine.stopping.LeaderConfidence;
+import dev.runoff.engine.stopping.LeaderWithin;
 import dev.runoff.engine.stopping.Verdict;
 import dev.runoff.engine.stopping.StoppingCheck;
 import dev.runoff.engine.stopping.Timing;
@@ -59,7 +62,7 @@ final class SimulationReplication {
         while (true) {
             List<Arm> arms = arms(stats);
             Evaluation e = engine.evaluate(arms, engineConfig, streams.engineSeeds.nextLong(), previous);
-            Verdict d = StoppingCheck.decide(arms, e.probabilityBest(), NO_CLOCK, config.stopping());
+            Verdict d = StoppingCheck.decide(arms, e.probabilityBest(), NO_CLOCK, config.stopping(), confidence(e));
             if (d.isStop()) {
                 return new SimulationRun(total, d.leader(), config.arms().isWrongPick(d.leader(), config.epsilon()),
                         d.reason(), trials(stats), e.probabilityBest().alpha());
@@ -76,6 +79,12 @@ final class SimulationReplication {
             total += n;
             previous = w;
         }
+    }
+
+    /** The indifference rule's confidence, bound to this evaluation's posteriors (as the decision module does). */
+    private static LeaderConfidence confidence(Evaluation e) {
+        List<Posterior> posteriors = e.posteriors().stream().map(Evaluation.PosteriorSummary::posterior).toList();
+        return LeaderWithin.of(posteriors);
     }
 
     private ArmStats[] emptyStats() {

@@ -1,5 +1,8 @@
 package dev.runoff.engine.stopping;
 
+import dev.runoff.engine.core.Metric;
+import java.util.Objects;
+
 /** The configured stopping rule. */
 public enum Rule {
     /**
@@ -22,5 +25,38 @@ public enum Rule {
      * Statistic: that probability; threshold: {@code 1 - delta}. Like {@link #POSTERIOR}, a posterior
      * statement: calibrated on average over the prior.
      */
-    INDIFFERENCE
+    INDIFFERENCE,
+    /**
+     * NOT PROVEN: the GLR statistic against the lighter threshold {@code log((1 + log t) / delta)}
+     * ({@link GlrThreshold#LIGHTER_NOT_PROVEN}), which Garivier &amp; Kaufmann (2016, section 6) used in their
+     * experiments. It stops earlier than {@link #GLR}; no error guarantee is proven for it.
+     */
+    GLR_HEURISTIC,
+    /**
+     * Per-pair mixture-martingale test, Bernoulli arms only ({@link Mixture}): stop when, for the empirical
+     * leader a and every other arm b, the Beta(1, 1) marginal likelihood of the pair over its maximum
+     * likelihood under {@code mu_a <= mu_b} reaches {@code (K - 1) / delta}. Proven delta-correct for a
+     * fixed truth under adaptive sampling and continuous monitoring (Ville's inequality; see {@link Mixture}).
+     */
+    MIXTURE;
+
+    /**
+     * Whether the rule's error probability is proven to be at most delta for every fixed truth, under
+     * adaptive sampling and continuous monitoring, for arms of this metric. GLR on value arms uses a threshold
+     * proven for known variances with sample variances plugged in, so it is not counted as proven there.
+     */
+    public boolean provenFor(Metric metric) {
+        Objects.requireNonNull(metric, "metric");
+        return switch (this) {
+            case GLR -> metric == Metric.BERNOULLI;
+            case MIXTURE -> metric == Metric.BERNOULLI;
+            case POSTERIOR, INDIFFERENCE, GLR_HEURISTIC -> false;
+        };
+    }
+
+    /** Whether the rule accepts arms of this metric ({@link #MIXTURE} is for Bernoulli arms only). */
+    public boolean supports(Metric metric) {
+        Objects.requireNonNull(metric, "metric");
+        return this != MIXTURE || metric == Metric.BERNOULLI;
+    }
 }

@@ -79,7 +79,9 @@ public final class StoppingCheck {
     private static Evaluation evaluate(List<Arm> arms, ProbabilityBest best, StoppingConfig config,
                                        LeaderConfidence confidence) {
         return switch (config.rule()) {
-            case GLR -> glr(arms, config);
+            case GLR -> glr(arms, config, config.glrThreshold());
+            case GLR_HEURISTIC -> glr(arms, config, GlrThreshold.LIGHTER_NOT_PROVEN);
+            case MIXTURE -> mixture(arms, config);
             case POSTERIOR -> posterior(best, config);
             case INDIFFERENCE -> indifference(best, config, confidence);
         };
@@ -89,11 +91,18 @@ public final class StoppingCheck {
      * GLR rule (Garivier &amp; Kaufmann 2016, section 3): fires when {@code Z(t) > beta(t, delta)}. Evaluated
      * at t = 1 when no arm has trials yet; Z is then 0 and the rule cannot fire.
      */
-    private static Evaluation glr(List<Arm> arms, StoppingConfig config) {
+    private static Evaluation glr(List<Arm> arms, StoppingConfig config, GlrThreshold glrThreshold) {
         Glr.Statistic z = Glr.statistic(arms);
-        double threshold = config.glrThreshold().value(z.metric(), Math.max(1, z.trials()), arms.size(),
+        double threshold = glrThreshold.value(z.metric(), Math.max(1, z.trials()), arms.size(),
                 config.delta());
         return new Evaluation(z.leader(), z.value(), threshold, z.value() > threshold);
+    }
+
+    /** Mixture-martingale rule ({@link Mixture}): fires when {@code min_b log M_ab >= log((K - 1) / delta)}. */
+    private static Evaluation mixture(List<Arm> arms, StoppingConfig config) {
+        Glr.Statistic m = Mixture.statistic(arms);
+        double threshold = Mixture.threshold(arms.size(), config.delta());
+        return new Evaluation(m.leader(), m.value(), threshold, m.value() >= threshold);
     }
 
     /**

@@ -19,7 +19,11 @@ public enum VerdictReason {
     /** CONTINUE: the rule fired but some arm has fewer trials than the configured minimum. */
     MIN_TRIALS(Verdict.Action.CONTINUE),
     /** CONTINUE: the rule fired but the experiment has run for less than the configured minimum duration. */
-    MIN_DURATION(Verdict.Action.CONTINUE);
+    MIN_DURATION(Verdict.Action.CONTINUE),
+    /** STOP: the GLR statistic exceeded the lighter, NOT PROVEN threshold. */
+    GLR_HEURISTIC(Verdict.Action.STOP),
+    /** STOP: the mixture-martingale test fired. */
+    MIXTURE(Verdict.Action.STOP);
 
     private final Verdict.Action action;
 
@@ -43,6 +47,8 @@ public enum VerdictReason {
             case GLR -> GLR;
             case POSTERIOR -> POSTERIOR;
             case INDIFFERENCE -> INDIFFERENCE;
+            case GLR_HEURISTIC -> GLR_HEURISTIC;
+            case MIXTURE -> MIXTURE;
         };
     }
 }

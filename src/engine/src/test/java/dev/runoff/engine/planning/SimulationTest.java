@@ -148,8 +148,10 @@ class SimulationTest {
         StoppingConfig glr = StoppingConfig.glr(0.05).withMaxTotalTrials(100);
         EngineConfig engine = EngineConfig.defaults(Metric.BERNOULLI);
         assertThrows(IllegalArgumentException.class, () -> config(THREE, engine, StoppingConfig.glr(0.05), 10, 1, 1));
-        assertThrows(IllegalArgumentException.class,
-                () -> config(THREE, engine, StoppingConfig.indifference(0.05, 0.01).withMaxTotalTrials(100), 10, 1, 1));
+        ArmModel values = ArmModel.gaussianStddevs(new double[] {1, 0}, new double[] {1, 1});
+        IllegalArgumentException mixture = assertThrows(IllegalArgumentException.class,
+                () -> config(values, EngineConfig.defaults(Metric.VALUE), glr.withRule(Rule.MIXTURE), 10, 1, 1));
+        assertTrue(mixture.getMessage().contains("MIXTURE does not support VALUE arms"), mixture.getMessage());
         assertThrows(IllegalArgumentException.class,
                 () -> config(THREE, engine, glr.withMinDuration(Duration.ofDays(1)), 10, 1, 1));
         assertThrows(IllegalArgumentException.class,
@@ -160,6 +162,25 @@ class SimulationTest {
                 () -> new SimulationConfig(THREE, engine, glr, 10, 1, 1, -0.1));
         assertTrue(e.getMessage().contains("epsilon"), e.getMessage());
         assertEquals(Rule.GLR, config(THREE, engine, glr, 10, 1, 1).stopping().rule());
+    }
+
+    @Test
+    void everyStoppingRuleRunsAndCompareKeepsTheirOrderOnTheSameSeeds() {
+        // Well-separated arms (0.2, 0.5, 0.8), delta 0.05, epsilon 0.01 for the indifference rule: every rule
+        // stops by itself well before the budget and names the best arm.
+        StoppingConfig stop = StoppingConfig.indifference(0.05, 0.01).withMaxTotalTrials(20_000);
+        SimulationConfig c = config(THREE, EngineConfig.defaults(Metric.BERNOULLI), stop, 20, 6, 3);
+        List<Rule> rules = List.of(Rule.MIXTURE, Rule.INDIFFERENCE, Rule.GLR, Rule.GLR_HEURISTIC, Rule.POSTERIOR);
+        List<StoppingComparison> rows = Simulation.compare(c, rules, Runnable::run, SimulationProgress.NONE);
+        assertEquals(rules, rows.stream().map(StoppingComparison::stopping).toList());
+        for (StoppingComparison row : rows) {
+            assertEquals(0, row.summary().budgetStops(), row.toString());
+            assertEquals(0, row.summary().errors(), row.toString());
+            assertEquals(row.stopping().provenFor(Metric.BERNOULLI), row.proven());
+            SimulationSummary alone = Simulation.run(c.withStopping(stop.withRule(row.stopping())), Runnable::run,
+                    SimulationProgress.NONE).rule();
+            assertEquals(alone, row.summary(), "the comparison is the single-rule simulation on the same seeds");
+        }
     }
 
     private static int argmax(double[] x) {
