@@ -4,6 +4,8 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.job.TopicSpec;
+import dev.runoff.records.Ed25519;
+import dev.runoff.records.Pem;
 import dev.runoff.broker.EmbeddedKafkaBroker;
 import dev.runoff.topology.TopologySettings;
 import java.io.IOException;
@@ -133,8 +135,11 @@ class ClusterCommandsIT {
             port = s.getLocalPort();
         }
         Path config = dir.resolve("run.properties");
+        Path key = Files.writeString(dir.resolve("signing.pem"),
+                Pem.write(Ed25519.generate("run-test", new java.security.SecureRandom()).signing()));
         Files.write(config, List.of("bootstrap.servers=" + broker.bootstrapServers(), "application.id=run-test",
-                "state.dir=" + dir.resolve("run-state"), "runoff.http.port=" + port));
+                "state.dir=" + dir.resolve("run-state"), "runoff.http.port=" + port,
+                "runoff.signing.key.file=" + key, "runoff.signing.key.id=run-test"));
         String classpath = System.getProperty("surefire.test.class.path", System.getProperty("java.class.path"));
         Path err = dir.resolve("run.err");
         Process p = new ProcessBuilder(Path.of(System.getProperty("java.home"), "bin", "java").toString(),
