@@ -215,8 +215,9 @@ class ServingBrokerIT {
         Clock clock = Clock.fixed(Instant.ofEpochMilli(NOW), ZoneOffset.UTC);
         byte[] key = "a secret of at least thirty-two bytes!".getBytes(StandardCharsets.UTF_8);
         try (ServingTier tier = new ServingTier(broker.bootstrapServers(), key, clock)) {
-            assertEquals("green", tier.buttonColour("alice", "req-1"));
-            tier.clicked("alice", "click-1");
+            ArmAssignment served = tier.buttonColour("alice", "req-1");
+            assertEquals("green", served.arm());
+            tier.clicked(served, "click-1");
         }
         List<ConsumerRecord<String, byte[]>> records = readAll(OutcomeReporter.DEFAULT_TOPIC, 2);
         assertEquals(2, records.size());
@@ -225,6 +226,7 @@ class ServingBrokerIT {
             OutcomeEvent event = RecordCodec.outcomeEvents().decode(record.value(), NOW).orThrow();
             types.add(event.getType());
             assertEquals(UnitPseudonymizer.withKey(key).pseudonym("alice"), event.getUnitId());
+            assertEquals("green", event.getArm(), "every event carries the served arm");
         }
         types.sort(Comparator.naturalOrder());
         assertEquals(List.of(EventType.EXPOSURE, EventType.CLICK), types);
