@@ -94,16 +94,25 @@ final class ExponentialRace {
         // pass 1: the arm with the smallest lower bound is the likely winner; only its clock is certainly needed
         int first = 0;
         double firstBound = Double.POSITIVE_INFINITY;
+        double secondBound = Double.POSITIVE_INFINITY;
         for (int k = 0; k < arms.length; k++) {
             double bound = lowerBound(uniform(unitHash, k)) * inverseWeights[k];
             if (bound < firstBound) {
+                secondBound = firstBound;
                 firstBound = bound;
                 first = k;
+            } else if (bound < secondBound) {
+                secondBound = bound;
             }
         }
-        int best = first;
         double bestClock = clock(uniform(unitHash, first), first);
-        // pass 2: an arm can only beat (or tie earlier than) the best clock if its lower bound does not exceed it
+        return secondBound > bestClock ? arms[first] : contest(unitHash, first, bestClock);
+    }
+
+    /** Pass 2: an arm can only beat (or tie earlier than) the best clock if its lower bound does not exceed it. */
+    private String contest(long unitHash, int first, double firstClock) {
+        int best = first;
+        double bestClock = firstClock;
         for (int k = 0; k < arms.length; k++) {
             if (k == first) {
                 continue;
