@@ -71,7 +71,8 @@ public final class OutcomeReporter {
      * @param served  the assignment served
      * @param eventId an id unique to this exposure, stable across retries
      * @return the producer's future of the send, or empty when nothing was sent
-     * @throws RecordRejectedException when the event breaks the schema's rules (blank or over-long ids...)
+     * @throws RecordRejectedException  when the event breaks the schema's rules (blank or over-long ids...)
+     * @throws IllegalArgumentException when the assignment has no unit key (a random pick made without one)
      */
     public Optional<Future<RecordMetadata>> exposure(ArmAssignment served, String eventId) {
         Objects.requireNonNull(served, "served");
@@ -91,7 +92,7 @@ public final class OutcomeReporter {
      * @param value   the outcome's value: required for VALUE, optional for CONVERSION, null for CLICK
      * @return the producer's future of the send, or empty when nothing was sent
      * @throws RecordRejectedException  when the event breaks the schema's rules
-     * @throws IllegalArgumentException when {@code type} is EXPOSURE
+     * @throws IllegalArgumentException when {@code type} is EXPOSURE or the assignment has no unit key
      */
     public Optional<Future<RecordMetadata>> outcome(ArmAssignment served, String eventId, EventType type,
                                                     Double value) {

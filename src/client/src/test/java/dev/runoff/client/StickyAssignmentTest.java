@@ -137,6 +137,20 @@ class StickyAssignmentTest {
         assertArrayEquals(picks(table(history.get(0))), picks(first));
     }
 
+    @Test
+    void pinnedArmsNeverChange() {
+        // Arms produced by this implementation when the race was introduced (first letters, units user-0 ..
+        // user-23). Every replica and release must agree on them: if this fails, units would change arm.
+        AllocationTable table = AllocationTable.create(PickPolicy.builder("fallback").build(), clock);
+        table.apply("checkout-button", avro(running("checkout-button", 1, "control", 0.4, "green", 0.3,
+                "blue", 0.2, "red", 0.1)));
+        StringBuilder arms = new StringBuilder();
+        for (int i = 0; i < 24; i++) {
+            arms.append(table.pick("checkout-button", "user-" + i).charAt(0));
+        }
+        assertEquals("rbbccrgrcbbgcgbcbcgcbcgc", arms.toString());
+    }
+
     /** Moulton and Jiang's J_P(x, y) = sum over i in both supports of 1 / sum_j max(x_j / x_i, y_j / y_i). */
     private static double probabilityJaccard(double[] x, double[] y) {
         double sum = 0;
