@@ -18,8 +18,9 @@ import org.slf4j.LoggerFactory;
  * The latest control record of every experiment, held in memory, and the arm picks made from it.
  *
  * <p>Reading: {@link #pick} never throws for any experiment id or unit key and allocates nothing. It reads
- * one immutable snapshot (a map from experiment id to precomputed arm names, cumulative weights and hash
- * salt) through a volatile field, so any number of request threads can call it without locks.
+ * one immutable snapshot (a map from experiment id to the compiled record: arm names, weights, hash seeds)
+ * through a volatile field, so any number of request threads can call it without locks. {@link #assign}
+ * makes the same choice and returns it with what {@link OutcomeReporter} needs to report it.
  *
  * <p>Writing: {@link #apply} (or a {@link ControlTopicFollower}) decodes a control record, builds a new
  * snapshot and swaps it in; writers are serialised. A record is applied only if it is valid (as
@@ -32,7 +33,8 @@ import org.slf4j.LoggerFactory;
  * past {@code validUntil} on the injected clock, running or STOPPED, gets the {@link StaleFallback} (the job
  * re-publishes a stopped experiment at every heartbeat, so only a record nobody renews goes stale); a
  * STOPPED experiment gets its winner or a draw from the record's weights ({@link StoppedPick}); otherwise a
- * draw from the current weights, {@link Assignment#HASHED} (same unit, same weights, same arm) or
+ * draw from the current weights, {@link Assignment#HASHED} (sticky: a function of experiment, unit and
+ * current weights that moves few units when the weights change, see {@link ExponentialRace}) or
  * {@link Assignment#RANDOM}.
  */
 public final class AllocationTable {
@@ -88,7 +90,8 @@ public final class AllocationTable {
     /**
      * The arm to serve to {@code unitKey} in {@code experimentId} (see the class comment for the rules).
      * Thread-safe, lock-free, allocation-free; never throws, whatever the arguments (only an injected clock
-     * or uniform source that throws could make it throw).
+     * or uniform source that throws could make it throw). To report what you serve, prefer {@link #assign},
+     * whose answer the {@link OutcomeReporter} takes.
      *
      * @param experimentId the experiment; null or unknown gives the default arm
      * @param unitKey      the randomisation unit (user, device, session id); used in-process only, never
@@ -97,11 +100,37 @@ public final class AllocationTable {
      */
     public String pick(String experimentId, String unitKey) {
         counters.picks.increment();
+        CompiledAllocation allocation = lookup(experimentId);
+        String arm = allocation == null ? null : drawn(allocation, unitKey);
+        return arm == null ? defaultArm : arm;
+    }
+
+    /**
+     * The same choice as {@link #pick}, with what the reporter needs: the experiment, the unit key, the arm
+     * and whether the arm was drawn for the experiment ({@link ArmAssignment#drawn()}). Thread-safe and
+     * lock-free; it allocates the one small result object. Never throws.
+     *
+     * @param experimentId the experiment; null or unknown gives the default arm, not drawn
+     * @param unitKey      the randomisation unit; kept in the result in memory, never sent by this library
+     * @return the assignment, never null
+     */
+    public ArmAssignment assign(String experimentId, String unitKey) {
+        counters.picks.increment();
+        CompiledAllocation allocation = lookup(experimentId);
+        String arm = allocation == null ? null : drawn(allocation, unitKey);
+        return new ArmAssignment(experimentId, unitKey, arm == null ? defaultArm : arm, arm != null);
+    }
+
+    private CompiledAllocation lookup(String experimentId) {
         CompiledAllocation allocation = experimentId == null ? null : snapshot.get(experimentId);
         if (allocation == null) {
             counters.unknownExperimentPicks.increment();
-            return defaultArm;
         }
+        return allocation;
+    }
+
+    /** The arm drawn from the held record, or null (counted) when the policy serves the default arm. */
+    private String drawn(CompiledAllocation allocation, String unitKey) {
         if (clock.millis() > allocation.validUntil()) {
             counters.stalePicks.increment();
             return stale(allocation, unitKey);
@@ -114,8 +143,10 @@ public final class AllocationTable {
     }
 
     private String weighted(CompiledAllocation allocation, String unitKey) {
-        double u = position(allocation, unitKey);
-        return u >= 0 ? allocation.weighted(u) : defaultArm;
+        if (uniformSource != null) {
+            return allocation.weighted(uniformSource.getAsDouble());
+        }
+        return unitKey == null ? missingKey() : allocation.sticky(allocation.unitHash(unitKey));
     }
 
     private String stale(CompiledAllocation allocation, String unitKey) {
@@ -123,23 +154,19 @@ public final class AllocationTable {
             case LAST_WEIGHTS:
                 return weighted(allocation, unitKey);
             case UNIFORM:
-                double u = position(allocation, unitKey);
-                return u >= 0 ? allocation.uniform(u) : defaultArm;
+                if (uniformSource != null) {
+                    return allocation.uniform(uniformSource.getAsDouble());
+                }
+                return unitKey == null ? missingKey() : allocation.stickyUniform(allocation.unitHash(unitKey));
             default:
-                return defaultArm;
+                return null;
         }
     }
 
-    /** The uniform draw in [0, 1) of this pick, or -1 (counted) for a hashed pick without unit key. */
-    private double position(CompiledAllocation allocation, String unitKey) {
-        if (uniformSource != null) {
-            return uniformSource.getAsDouble();
-        }
-        if (unitKey == null) {
-            counters.missingUnitKeyPicks.increment();
-            return -1;
-        }
-        return allocation.positionOf(unitKey);
+    /** Counts a hashed pick without unit key; null: the default arm is served. */
+    private String missingKey() {
+        counters.missingUnitKeyPicks.increment();
+        return null;
     }
 
     /** True when the table holds a record of {@code experimentId}, stale or not. */

@@ -3,64 +3,65 @@ package dev.runoff.client;
 import dev.runoff.records.avro.AllocationUpdate;
 import dev.runoff.records.avro.ArmWeight;
 import dev.runoff.records.avro.ExperimentStatus;
+import java.util.Arrays;
 import java.util.List;
 
 /**
- * One valid control record turned into what a pick needs: arm names, cumulative weights and the hash salt,
- * computed once when the record arrives so that a pick only hashes, compares and indexes. Immutable.
+ * One valid control record turned into what a pick needs, computed once when the record arrives so that a
+ * pick only hashes, compares and indexes: the experiment's hash seed, the sticky race over the record's
+ * weights and over all its arms equally (stale fallback), and cumulative weights for random draws. Immutable.
  */
 final class CompiledAllocation {
 
-    /** Seed of the salt hash; changing it reassigns every unit (it is part of the hash contract). */
-    static final long SALT_SEED = 0x52554E4F46460001L;
+    /** Seed of the experiment hash; changing it reassigns every unit (it is part of the hash contract). */
+    static final long EXPERIMENT_SEED = 0x52554E4F46460001L;
 
     private final AllocationUpdate record;
     private final String[] arms;
     private final double[] cumulative;
-    private final long salt;
+    private final long experimentSeed;
+    private final ExponentialRace weighted;
+    private final ExponentialRace uniform;
     private final boolean stopped;
 
-    private CompiledAllocation(AllocationUpdate record, String[] arms, double[] cumulative, long salt) {
+    private CompiledAllocation(AllocationUpdate record, String[] arms, double[] weights) {
         this.record = record;
         this.arms = arms;
-        this.cumulative = cumulative;
-        this.salt = salt;
+        this.cumulative = cumulative(weights);
+        this.experimentSeed = UnitHash.hash64(EXPERIMENT_SEED, record.getExperimentId());
+        List<String> names = List.of(arms);
+        this.weighted = ExponentialRace.of(experimentSeed, names, weights);
+        double[] equal = new double[arms.length];
+        Arrays.fill(equal, 1.0);
+        this.uniform = ExponentialRace.of(experimentSeed, names, equal);
         this.stopped = record.getStatus() == ExperimentStatus.STOPPED;
     }
 
     /** Compiles a record that {@code RecordCodec.allocationUpdates()} accepted. */
     static CompiledAllocation of(AllocationUpdate record) {
-        List<ArmWeight> weights = record.getWeights();
-        int n = weights.size();
-        String[] arms = new String[n];
-        double[] partial = new double[n];
+        List<ArmWeight> list = record.getWeights();
+        String[] arms = new String[list.size()];
+        double[] weights = new double[list.size()];
+        for (int i = 0; i < arms.length; i++) {
+            arms[i] = list.get(i).getArm();
+            weights[i] = list.get(i).getWeight();
+        }
+        return new CompiledAllocation(record, arms, weights);
+    }
+
+    private static double[] cumulative(double[] weights) {
+        double[] partial = new double[weights.length];
         double sum = 0;
-        for (int i = 0; i < n; i++) {
-            arms[i] = weights.get(i).getArm();
-            sum += weights.get(i).getWeight();
+        for (int i = 0; i < weights.length; i++) {
+            sum += weights[i];
             partial[i] = sum;
         }
         // Dividing by the final partial sum makes the last entry exactly 1.0 (x / x == 1 in IEEE 754), and
         // trailing zero weights repeat it, so every u in [0, 1) finds an arm and no zero-weight arm is chosen.
-        double[] cumulative = new double[n];
-        for (int i = 0; i < n; i++) {
-            cumulative[i] = partial[i] / sum;
+        for (int i = 0; i < weights.length; i++) {
+            partial[i] /= sum;
         }
-        return new CompiledAllocation(record, arms, cumulative, salt(record));
-    }
-
-    /**
-     * Salt of deterministic picks: a hash of the experiment id and of every (arm, weight) pair, bit for bit.
-     * Two records with the same weights (a heartbeat, or the record a newly started replica reads from the
-     * compacted topic) get the same salt, so a unit keeps its arm until the weights change.
-     */
-    private static long salt(AllocationUpdate record) {
-        long h = UnitHash.hash64(SALT_SEED, record.getExperimentId());
-        for (ArmWeight weight : record.getWeights()) {
-            h = UnitHash.mix64(h ^ UnitHash.hash64(SALT_SEED, weight.getArm())) + UnitHash.GOLDEN_GAMMA;
-            h = UnitHash.mix64(h ^ Double.doubleToLongBits(weight.getWeight())) + UnitHash.GOLDEN_GAMMA;
-        }
-        return UnitHash.mix64(h);
+        return partial;
     }
 
     /** The decoded control record; shared, so callers must not modify it. */
@@ -91,12 +92,25 @@ final class CompiledAllocation {
                 && newer.getDefinitionVersion() >= record.getDefinitionVersion();
     }
 
-    /** Deterministic position in [0, 1) of {@code unitKey} under this record's salt. */
-    double positionOf(String unitKey) {
-        return UnitHash.toUnitInterval(UnitHash.hash64(salt, unitKey));
+    /**
+     * Hash of {@code unitKey} under the experiment's seed: a function of (experiment id, unit key) only, the
+     * same for every record of the experiment.
+     */
+    long unitHash(String unitKey) {
+        return UnitHash.hash64(experimentSeed, unitKey);
     }
 
-    /** The arm whose cumulative interval [c(i-1), c(i)) holds {@code u}; binary search, no allocation. */
+    /** The sticky choice from the record's weights ({@link ExponentialRace}). */
+    String sticky(long unitHash) {
+        return weighted.winner(unitHash);
+    }
+
+    /** The sticky choice among all the record's arms with equal weights. */
+    String stickyUniform(long unitHash) {
+        return uniform.winner(unitHash);
+    }
+
+    /** The arm whose cumulative interval [c(i-1), c(i)) holds {@code u} in [0, 1); binary search. */
     String weighted(double u) {
         int lo = 0;
         int hi = cumulative.length - 1;
@@ -111,7 +125,7 @@ final class CompiledAllocation {
         return arms[lo];
     }
 
-    /** Every arm with equal probability. */
+    /** Every arm with equal probability, from {@code u} in [0, 1). */
     String uniform(double u) {
         int index = (int) (u * arms.length);
         return arms[Math.min(index, arms.length - 1)];

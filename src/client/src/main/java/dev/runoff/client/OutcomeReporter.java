@@ -7,6 +7,7 @@ import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.OutcomeEvent;
 import java.time.Clock;
 import java.util.Objects;
+import java.util.Optional;
 import java.util.concurrent.Future;
 import org.apache.kafka.clients.producer.Producer;
 import org.apache.kafka.clients.producer.ProducerRecord;
@@ -21,10 +22,14 @@ import org.apache.kafka.clients.producer.RecordMetadata;
  * id never reaches the record, its key or the broker. The record key is the pseudonym, the record and event
  * timestamps are the injected clock's time.
  *
- * <p>Report an exposure when the arm is actually served, once per serving (not once per pick you discard),
- * and only for experiments the table holds ({@link AllocationTable#contains}): a default arm served for an
- * unknown experiment is not part of any experiment. Give each event an id that stays the same when you
- * retry sending it (a request id, say), so that the job's deduplication drops the retries.
+ * <p>Every event carries the arm the unit was served: exposures, and clicks, conversions and values too, so
+ * that the job can credit an outcome to the unit's counted exposure and reject, with a named reason, one
+ * whose arm disagrees. The easy path is {@link AllocationTable#assign}, whose {@link ArmAssignment} this
+ * reporter takes: it reports an exposure only when the arm was drawn for the experiment (a default arm served
+ * for an unknown experiment is part of no experiment) and sends outcomes with the assignment's arm. Report an
+ * exposure when the arm is actually served, once per serving (not once per pick you discard). Give each event
+ * an id that stays the same when you retry sending it (a request id, say), so that the job's deduplication
+ * drops the retries.
  *
  * <p>Thread-safe if the producer is (a {@code KafkaProducer} is). It does not own the producer.
  */
@@ -59,6 +64,45 @@ public final class OutcomeReporter {
     }
 
     /**
+     * Sends the exposure of an assignment that {@link AllocationTable#assign} made, if it is one: an arm that
+     * was not drawn for the experiment ({@link ArmAssignment#drawn()} false: unknown experiment, missing unit
+     * key, default-arm fallback) is no exposure, and nothing is sent.
+     *
+     * @param served  the assignment served
+     * @param eventId an id unique to this exposure, stable across retries
+     * @return the producer's future of the send, or empty when nothing was sent
+     * @throws RecordRejectedException  when the event breaks the schema's rules (blank or over-long ids...)
+     * @throws IllegalArgumentException when the assignment has no unit key (a random pick made without one)
+     */
+    public Optional<Future<RecordMetadata>> exposure(ArmAssignment served, String eventId) {
+        Objects.requireNonNull(served, "served");
+        return served.drawn()
+                ? Optional.of(exposure(served.experimentId(), served.unitKey(), served.arm(), eventId))
+                : Optional.empty();
+    }
+
+    /**
+     * Sends a CLICK, CONVERSION or VALUE event of the unit of {@code served}, carrying the arm it was served:
+     * the job credits it to the unit's counted exposure and rejects it when that exposure's arm differs. Keep
+     * the assignment of the exposure that led to the outcome (in the session, say, or rebuild it with
+     * {@link ArmAssignment#of}); nothing is sent for an assignment that was not drawn.
+     *
+     * @param eventId an id unique to this outcome, stable across retries
+     * @param type    CLICK, CONVERSION or VALUE
+     * @param value   the outcome's value: required for VALUE, optional for CONVERSION, null for CLICK
+     * @return the producer's future of the send, or empty when nothing was sent
+     * @throws RecordRejectedException  when the event breaks the schema's rules
+     * @throws IllegalArgumentException when {@code type} is EXPOSURE or the assignment has no unit key
+     */
+    public Optional<Future<RecordMetadata>> outcome(ArmAssignment served, String eventId, EventType type,
+                                                    Double value) {
+        Objects.requireNonNull(served, "served");
+        return served.drawn()
+                ? Optional.of(outcome(served.experimentId(), served.unitKey(), served.arm(), eventId, type, value))
+                : Optional.empty();
+    }
+
+    /**
      * Sends the exposure of {@code unitId} to {@code arm}.
      *
      * @param experimentId the experiment
@@ -74,20 +118,18 @@ public final class OutcomeReporter {
     }
 
     /**
-     * Sends a CLICK, CONVERSION or VALUE event of {@code unitId}, without an arm: the job attributes it to
-     * the unit's latest exposure in the experiment.
+     * Sends a CLICK, CONVERSION or VALUE event of {@code unitId} with the arm the unit was served (see
+     * {@link #outcome(ArmAssignment, String, EventType, Double)}).
      *
+     * @param arm   the arm the unit was served when it was exposed; required
      * @param value the outcome's value: required for VALUE, optional for CONVERSION, null for CLICK
      * @throws RecordRejectedException  when the event breaks the schema's rules
-     * @throws IllegalArgumentException when {@code unitId} is null or empty, or {@code type} is EXPOSURE
+     * @throws IllegalArgumentException when {@code unitId} is null or empty, {@code arm} is null or blank, or
+     *                                  {@code type} is EXPOSURE
      */
-    public Future<RecordMetadata> outcome(String experimentId, String unitId, String eventId, EventType type,
-                                          Double value) {
-        if (type == EventType.EXPOSURE) {
-            throw new IllegalArgumentException("type must be CLICK, CONVERSION or VALUE (use exposure(...)), got "
-                    + type);
-        }
-        return send(event(experimentId, unitId, eventId, type, null, value));
+    public Future<RecordMetadata> outcome(String experimentId, String unitId, String arm, String eventId,
+                                          EventType type, Double value) {
+        return send(outcomeEvent(experimentId, unitId, arm, eventId, type, value));
     }
 
     /**
@@ -99,6 +141,23 @@ public final class OutcomeReporter {
      */
     public OutcomeEvent exposureEvent(String experimentId, String unitId, String arm, String eventId) {
         return event(experimentId, unitId, eventId, EventType.EXPOSURE, arm, null);
+    }
+
+    /**
+     * The outcome event {@link #outcome(String, String, String, String, EventType, Double)} would send, built
+     * and checked but not sent.
+     *
+     * @throws RecordRejectedException  when the event breaks the schema's rules
+     * @throws IllegalArgumentException when {@code unitId} is null or empty, {@code arm} is null or blank, or
+     *                                  {@code type} is EXPOSURE
+     */
+    public OutcomeEvent outcomeEvent(String experimentId, String unitId, String arm, String eventId,
+                                     EventType type, Double value) {
+        if (type == EventType.EXPOSURE) {
+            throw new IllegalArgumentException("type must be CLICK, CONVERSION or VALUE (use exposure(...)), got "
+                    + type);
+        }
+        return event(experimentId, unitId, eventId, type, Args.notBlank("arm", arm), value);
     }
 
     private OutcomeEvent event(String experimentId, String unitId, String eventId, EventType type, String arm,

@@ -4,7 +4,9 @@
  *
  * <ul>
  *   <li>{@link dev.runoff.client.AllocationTable}: the latest control record per experiment, in memory,
- *       and {@code pick(experimentId, unitKey)}: lock-free, allocation-free, never throws.</li>
+ *       and {@code pick(experimentId, unitKey)}: lock-free, allocation-free, never throws, sticky per unit
+ *       across weight changes; {@code assign} returns the same choice as an
+ *       {@link dev.runoff.client.ArmAssignment} for the reporter.</li>
  *   <li>{@link dev.runoff.client.ControlTopicFollower}: reads the compacted control topic from the
  *       beginning with manual assignment (no consumer group), waits at start until caught up, then follows
  *       it on a background thread.</li>
@@ -12,13 +14,13 @@
  *       stale weights ({@link dev.runoff.client.StaleFallback}) and the behaviour after STOP
  *       ({@link dev.runoff.client.StoppedPick}).</li>
  *   <li>{@link dev.runoff.client.OutcomeReporter}: writes exposure (and click, conversion, value) events
- *       in the job's schema, with the unit id replaced by a keyed hash
+ *       in the job's schema, each with the arm the unit was served, with the unit id replaced by a keyed hash
  *       ({@link dev.runoff.client.UnitPseudonymizer}).</li>
  *   <li>{@link dev.runoff.client.ServingMetrics}: counters of picks, fallbacks and skipped records.</li>
  * </ul>
  *
  * <p>Two hashes, two purposes: {@link dev.runoff.client.UnitHash} (SplitMix64 mixing, fast, public,
- * in-process only) turns a unit key into a stable position for deterministic picks; the
+ * in-process only) turns a unit key into stable per-arm numbers for deterministic picks; the
  * {@link dev.runoff.client.UnitPseudonymizer} (HMAC-SHA-256 under a secret key) protects the unit id in
  * everything that leaves the process.
  */

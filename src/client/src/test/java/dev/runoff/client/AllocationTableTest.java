@@ -76,18 +76,36 @@ class AllocationTableTest {
     }
 
     @Test
-    void changedWeightsRedrawUnits() {
-        AllocationTable table = table();
-        table.apply("e", avro(running("e", 1, "a", 0.5, "b", 0.5)));
-        String[] before = picks(table, "e", 2_000);
-        table.apply("e", avro(running("e", 2, "a", 0.5000001, "b", 0.4999999)));
-        String[] after = picks(table, "e", 2_000);
-        int changed = 0;
-        for (int i = 0; i < before.length; i++) {
-            changed += before[i].equals(after[i]) ? 0 : 1;
+    void assignMakesThePicksChoiceAndSaysWhetherTheArmWasDrawn() {
+        AllocationTable table = table(p -> p.staleFallback(StaleFallback.DEFAULT_ARM));
+        table.apply("e", avro(running("e", 1, "a", 0.3, "b", 0.3, "c", 0.4)));
+        table.apply("s", avro(stopped("s", 1, "b", "a", 0.0, "b", 1.0)));
+        for (int i = 0; i < 1_000; i++) {
+            ArmAssignment served = table.assign("e", "user-" + i);
+            assertEquals(new ArmAssignment("e", "user-" + i, table.pick("e", "user-" + i), true), served);
         }
-        // independent redraws with p = 1/2 change about half of 2000 units; binomial sd is about 22
-        assertTrue(changed > 850 && changed < 1150, "units that changed arm: " + changed);
+        assertEquals(new ArmAssignment("s", "u", "b", true), table.assign("s", "u"));
+        assertEquals(new ArmAssignment("x", "u", "fallback", false), table.assign("x", "u"));
+        assertEquals(new ArmAssignment("e", null, "fallback", false), table.assign("e", null));
+        clock.set(VALID_UNTIL + 1);
+        assertEquals(new ArmAssignment("e", "u", "fallback", false), table.assign("e", "u"));
+        ServingMetrics metrics = table.metrics();
+        assertEquals(2_004, metrics.picks());
+        assertEquals(1, metrics.unknownExperimentPicks());
+        assertEquals(1, metrics.missingUnitKeyPicks());
+        assertEquals(1, metrics.stalePicks());
+        assertEquals(1, metrics.stoppedPicks());
+    }
+
+    @Test
+    void staleUniformAndLastWeightsAssignmentsAreDrawn() {
+        for (StaleFallback fallback : List.of(StaleFallback.UNIFORM, StaleFallback.LAST_WEIGHTS)) {
+            AllocationTable table = table(p -> p.staleFallback(fallback));
+            table.apply("e", avro(running("e", 1, "a", 0.5, "b", 0.5)));
+            clock.set(VALID_UNTIL + 1);
+            assertTrue(table.assign("e", "u").drawn(), fallback.toString());
+            clock.set(NOW);
+        }
     }
 
     @Test

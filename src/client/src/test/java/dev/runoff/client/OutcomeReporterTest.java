@@ -68,13 +68,51 @@ class OutcomeReporterTest {
     }
 
     @Test
-    void conversionWithValueIsAcceptedWithoutArm() {
-        reporter(Format.AVRO).outcome("e", RAW_UNIT, "order-77", EventType.CONVERSION, 19.99);
+    void conversionOfAnAssignmentCarriesTheServedArm() {
+        ArmAssignment served = ArmAssignment.of("e", RAW_UNIT, "green");
+        assertTrue(reporter(Format.AVRO).outcome(served, "order-77", EventType.CONVERSION, 19.99).isPresent());
         OutcomeEvent event = RecordCodec.outcomeEvents().decode(single().value(), NOW).orThrow();
         assertEquals(EventType.CONVERSION, event.getType());
-        assertNull(event.getArm());
+        assertEquals("green", event.getArm());
         assertEquals(19.99, event.getValue());
         assertEquals(pseudonymizer.pseudonym(RAW_UNIT), event.getUnitId());
+    }
+
+    @Test
+    void exposureAndClickOfATablesAssignmentCarryItsArm() {
+        AllocationTable table = AllocationTable.create(PickPolicy.builder("fallback").build(), clock);
+        table.apply("e", ControlRecords.avro(ControlRecords.running("e", 1, "a", 0.5, "b", 0.5)));
+        ArmAssignment served = table.assign("e", RAW_UNIT);
+        OutcomeReporter reporter = reporter(Format.JSON);
+        assertTrue(reporter.exposure(served, "req-1").isPresent());
+        assertTrue(reporter.outcome(served, "click-1", EventType.CLICK, null).isPresent());
+        List<ProducerRecord<String, byte[]>> history = producer.history();
+        assertEquals(2, history.size());
+        for (ProducerRecord<String, byte[]> sent : history) {
+            OutcomeEvent event = RecordCodec.outcomeEvents().decode(sent.value(), NOW).orThrow();
+            assertEquals(served.arm(), event.getArm());
+            assertEquals(pseudonymizer.pseudonym(RAW_UNIT), event.getUnitId());
+        }
+    }
+
+    @Test
+    void assignmentNotDrawnForTheExperimentSendsNothing() {
+        AllocationTable table = AllocationTable.create(PickPolicy.builder("fallback").build(), clock);
+        ArmAssignment unknown = table.assign("not-held", RAW_UNIT);
+        OutcomeReporter reporter = reporter(Format.AVRO);
+        assertTrue(reporter.exposure(unknown, "req-1").isEmpty());
+        assertTrue(reporter.outcome(unknown, "click-1", EventType.CLICK, null).isEmpty());
+        assertEquals(List.of(), producer.history());
+    }
+
+    @Test
+    void outcomeWithoutArmIsRefused() {
+        OutcomeReporter reporter = reporter(Format.AVRO);
+        IllegalArgumentException e = assertThrows(IllegalArgumentException.class,
+                () -> reporter.outcome("e", RAW_UNIT, null, "ev", EventType.CONVERSION, null));
+        assertTrue(e.getMessage().contains("arm"), e.getMessage());
+        assertThrows(IllegalArgumentException.class, () -> ArmAssignment.of("e", RAW_UNIT, " "));
+        assertEquals(List.of(), producer.history());
     }
 
     @Test
@@ -82,9 +120,9 @@ class OutcomeReporterTest {
         OutcomeReporter reporter = reporter(Format.AVRO);
         assertThrows(RecordRejectedException.class, () -> reporter.exposure("e", RAW_UNIT, "a", " "));
         assertThrows(RecordRejectedException.class, () -> reporter.exposure("e", RAW_UNIT, null, "ev"));
-        assertThrows(RecordRejectedException.class, () -> reporter.outcome("e", RAW_UNIT, "ev", EventType.VALUE, null));
+        assertThrows(RecordRejectedException.class, () -> reporter.outcome("e", RAW_UNIT, "a", "ev", EventType.VALUE, null));
         IllegalArgumentException exposureAsOutcome = assertThrows(IllegalArgumentException.class,
-                () -> reporter.outcome("e", RAW_UNIT, "ev", EventType.EXPOSURE, null));
+                () -> reporter.outcome("e", RAW_UNIT, "a", "ev", EventType.EXPOSURE, null));
         assertTrue(exposureAsOutcome.getMessage().contains("EXPOSURE"));
         assertEquals(List.of(), producer.history());
     }

@@ -19,6 +19,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import dev.runoff.broker.EmbeddedKafkaBroker;
 import dev.runoff.records.Decoded;
 import dev.runoff.records.RecordCodec;
+import dev.runoff.records.avro.AllocationUpdate;
 import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.OutcomeEvent;
 import dev.runoff.client.example.ServingTier;
@@ -168,7 +169,9 @@ class ServingBrokerIT {
                 .topic("ctl-grow").partitionRefresh(Duration.ofMillis(100)).start();
              Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers()))) {
             admin.createPartitions(Map.of("ctl-grow", NewPartitions.increaseTo(3))).all().get();
-            producer.send(new ProducerRecord<>("ctl-grow", 2, "e9", avro(running("e9", 1, "a", 0.0, "b", 1.0)))).get();
+            // valid far beyond the system clock's now, so that the pick below follows the weights, not a stale fallback
+            AllocationUpdate e9 = validUntil(running("e9", 1, "a", 0.0, "b", 1.0), Long.MAX_VALUE);
+            producer.send(new ProducerRecord<>("ctl-grow", 2, "e9", avro(e9))).get();
             Await.until("e9 in the table", WAIT, () -> table.contains("e9"));
             assertEquals("b", table.pick("e9", "u"));
         }
@@ -215,8 +218,9 @@ class ServingBrokerIT {
         Clock clock = Clock.fixed(Instant.ofEpochMilli(NOW), ZoneOffset.UTC);
         byte[] key = "a secret of at least thirty-two bytes!".getBytes(StandardCharsets.UTF_8);
         try (ServingTier tier = new ServingTier(broker.bootstrapServers(), key, clock)) {
-            assertEquals("green", tier.buttonColour("alice", "req-1"));
-            tier.clicked("alice", "click-1");
+            ArmAssignment served = tier.buttonColour("alice", "req-1");
+            assertEquals("green", served.arm());
+            tier.clicked(served, "click-1");
         }
         List<ConsumerRecord<String, byte[]>> records = readAll(OutcomeReporter.DEFAULT_TOPIC, 2);
         assertEquals(2, records.size());
@@ -225,6 +229,7 @@ class ServingBrokerIT {
             OutcomeEvent event = RecordCodec.outcomeEvents().decode(record.value(), NOW).orThrow();
             types.add(event.getType());
             assertEquals(UnitPseudonymizer.withKey(key).pseudonym("alice"), event.getUnitId());
+            assertEquals("green", event.getArm(), "every event carries the served arm");
         }
         types.sort(Comparator.naturalOrder());
         assertEquals(List.of(EventType.EXPOSURE, EventType.CLICK), types);

@@ -42,7 +42,7 @@ class UnitHashTest {
     @Test
     void hashFollowsTheDocumentedAlgorithm() {
         for (String text : SAMPLES) {
-            for (long seed : new long[] {0, 7, CompiledAllocation.SALT_SEED}) {
+            for (long seed : new long[] {0, 7, CompiledAllocation.EXPERIMENT_SEED}) {
                 assertEquals(restated(seed, text), UnitHash.hash64(seed, text), text);
             }
         }
@@ -71,7 +71,7 @@ class UnitHashTest {
         // replica and every release depend on them: if this test fails, every unit would change arm.
         assertEquals(PINNED_EMPTY, UnitHash.hash64(0, ""));
         assertEquals(PINNED_USER, UnitHash.hash64(0, "user-12345678"));
-        assertEquals(PINNED_SALTED, UnitHash.hash64(CompiledAllocation.SALT_SEED, "checkout-button"));
+        assertEquals(PINNED_SALTED, UnitHash.hash64(CompiledAllocation.EXPERIMENT_SEED, "checkout-button"));
     }
 
     @Test

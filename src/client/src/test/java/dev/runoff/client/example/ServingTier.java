@@ -2,6 +2,7 @@ package dev.runoff.client.example;
 
 import dev.runoff.records.avro.EventType;
 import dev.runoff.client.AllocationTable;
+import dev.runoff.client.ArmAssignment;
 import dev.runoff.client.ControlTopicFollower;
 import dev.runoff.client.OutcomeReporter;
 import dev.runoff.client.PickPolicy;
@@ -34,7 +35,7 @@ public final class ServingTier implements AutoCloseable {
     public ServingTier(String bootstrapServers, byte[] unitHashKey, Clock clock) {
         PickPolicy policy = PickPolicy.builder("control")   // unknown experiment: serve "control"
                 .staleFallback(StaleFallback.DEFAULT_ARM)       // job silent past validUntil: "control" too
-                .build();                                       // hashed: a user keeps the arm while weights hold
+                .build();                                       // hashed: sticky per user
         table = AllocationTable.create(policy, clock);
         follower = ControlTopicFollower.builder(table, bootstrapServers)   // topic runoff.allocations
                 .startupTimeout(Duration.ofSeconds(30))
@@ -46,18 +47,16 @@ public final class ServingTier implements AutoCloseable {
                 .build();
     }
 
-    /** On every page view: the button colour to render for this user, with its exposure reported. */
-    public String buttonColour(String userId, String requestId) {
-        String arm = table.pick(EXPERIMENT, userId);   // never throws, allocates nothing
-        if (table.contains(EXPERIMENT)) {              // a default arm outside the experiment is no exposure
-            outcomes.exposure(EXPERIMENT, userId, arm, requestId);
-        }
-        return arm;
+    /** On every page view: the arm to render for this user (its colour is arm()), with its exposure reported. */
+    public ArmAssignment buttonColour(String userId, String requestId) {
+        ArmAssignment served = table.assign(EXPERIMENT, userId);   // sticky per user, never throws
+        outcomes.exposure(served, requestId);   // sent only if the arm was drawn for the experiment
+        return served;                          // keep it (in the session, say) for the user's outcomes
     }
 
-    /** When the user clicks the button: the job attributes the click to the user's latest exposure. */
-    public void clicked(String userId, String clickId) {
-        outcomes.outcome(EXPERIMENT, userId, clickId, EventType.CLICK, null);
+    /** When the user clicks the button: the click carries the arm the user was served. */
+    public void clicked(ArmAssignment served, String clickId) {
+        outcomes.outcome(served, clickId, EventType.CLICK, null);
     }
 
     /** Stops following and flushes the reported events. */
