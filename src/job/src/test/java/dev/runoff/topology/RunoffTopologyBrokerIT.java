@@ -1,5 +1,7 @@
 package dev.runoff.topology;
 
+import dev.runoff.records.Definitions;
+
 import dev.runoff.testkit.TestDefinitions;
 
 import dev.runoff.testkit.Directories;
@@ -158,7 +160,7 @@ class RunoffTopologyBrokerIT {
     private static ExperimentDefinition endless(ExperimentDefinition def) {
         def.setStopping(StoppingSpec.newBuilder(def.getStopping()).setMinTrialsPerArm(1_000_000_000L).build());
         def.setRecomputePeriodMs(1_000);
-        def.setHeartbeatMs(5_000);
+        def.setHeartbeatMs(Definitions.MIN_HEARTBEAT_MS);
         return def;
     }
 
