@@ -1,5 +1,6 @@
 package dev.runoff.decision;
 
+import dev.runoff.records.Definitions;
 import dev.runoff.engine.Evaluation;
 import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.best.ProbabilityBest;
@@ -46,7 +47,7 @@ final class ArmStates {
     /** Pending units are reported for Bernoulli metrics with unit counting, when the state knows them. */
     private static boolean reportsPending(ExperimentState state) {
         return state.pending() != null && state.metric() == Metric.BERNOULLI
-                && state.definition().getCounting() == CountingMode.UNIT;
+                && Definitions.counting(state.definition()) == CountingMode.UNIT;
     }
 
     private static void statistics(ArmState.Builder arm, ArmStats stats) {

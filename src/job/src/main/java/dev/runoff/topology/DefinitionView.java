@@ -29,7 +29,7 @@ record DefinitionView(String experimentId, long version, Set<String> arms, Metri
                 : def.getMetric().getValueEvent();
         return new DefinitionView(def.getExperimentId(), def.getVersion(), Set.copyOf(def.getArms()), metric,
                 def.getMetric().getTrialEvent(), outcome, def.getAttributionWindowMs(),
-                metric == Metric.BERNOULLI && def.getCounting() == CountingMode.UNIT, def.getEarlyOutcomeGraceMs());
+                metric == Metric.BERNOULLI && Definitions.counting(def) == CountingMode.UNIT, Definitions.earlyOutcomeGraceMs(def));
     }
 
     /** The role of an event of type {@code type}, or {@code null} when the metric does not use it. */

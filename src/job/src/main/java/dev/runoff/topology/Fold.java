@@ -123,9 +123,9 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
                     + current.definition().getMetric().getKind() + ", not " + kind
                     + "; the metric of an experiment never changes, start a new experiment with a new id";
         }
-        if (submitted.getCounting() != current.definition().getCounting()) {
-            return "counting: experiment " + EventValidator.quote(id) + " counts " + current.definition().getCounting()
-                    + ", not " + submitted.getCounting()
+        if (Definitions.counting(submitted) != Definitions.counting(current.definition())) {
+            return "counting: experiment " + EventValidator.quote(id) + " counts " + Definitions.counting(current.definition())
+                    + ", not " + Definitions.counting(submitted)
                     + "; the counting of an experiment never changes, start a new experiment with a new id";
         }
         return null;

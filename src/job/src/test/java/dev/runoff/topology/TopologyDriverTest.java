@@ -158,7 +158,7 @@ class TopologyDriverTest {
         job.event("u2", Events.click("attr", "u2", "d2", null, T0 + TestDefinitions.WINDOW_MS + 1));
         job.event("u3", Events.click("attr", "u3", "z1", null, T0));
         // u3's click has no exposure: it waits the early-outcome grace before it is rejected as unattributed
-        job.advance(TestDefinitions.bernoulli("attr", "a", "b").getEarlyOutcomeGraceMs() + 100);
+        job.advance(Definitions.earlyOutcomeGraceMs(TestDefinitions.bernoulli("attr", "a", "b")) + 100);
         assertEquals(List.of(new BernoulliStats(2, 2), new BernoulliStats(1, 0)), job.state("attr").stats());
         List<String> reasons = job.rejected().stream().map(r -> TopologyFixture.header(r, Rejections.REASON_HEADER))
                 .toList();

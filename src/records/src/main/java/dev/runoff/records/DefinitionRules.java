@@ -180,7 +180,9 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
         problems.atLeast("recomputePeriodMs", def.getRecomputePeriodMs(), Definitions.MIN_RECOMPUTE_PERIOD_MS);
         problems.atLeast("heartbeatMs", def.getHeartbeatMs(), Definitions.MIN_HEARTBEAT_MS);
         problems.atLeast("attributionWindowMs", def.getAttributionWindowMs(), 1);
-        problems.atLeast("earlyOutcomeGraceMs", def.getEarlyOutcomeGraceMs(), 0);
+        if (def.getEarlyOutcomeGraceMs() != null) {
+            problems.atLeast("earlyOutcomeGraceMs", def.getEarlyOutcomeGraceMs(), 0);
+        }
         long longestGap = Math.max(def.getRecomputePeriodMs(), def.getHeartbeatMs());
         if (def.getValidForMs() <= longestGap) {
             problems.add("validForMs", Reason.INCONSISTENT, def.getValidForMs() + " must exceed both "

@@ -5,6 +5,7 @@ import dev.runoff.engine.posterior.BetaPrior;
 import dev.runoff.engine.posterior.NormalGammaPrior;
 import dev.runoff.engine.posterior.Prior;
 import dev.runoff.records.avro.BetaParams;
+import dev.runoff.records.avro.CountingMode;
 import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.records.avro.MetricKind;
 import dev.runoff.records.avro.NormalGammaPriorSpec;
@@ -19,6 +20,9 @@ public final class Definitions {
      * Shortest accepted {@code recomputePeriodMs}: one evaluation per second per experiment at most. An
      * evaluation costs up to a few milliseconds (see performance.md) and writes one decision record.
      */
+    /** Early-outcome grace of a definition that leaves {@code earlyOutcomeGraceMs} unset. */
+    public static final long DEFAULT_EARLY_OUTCOME_GRACE_MS = 60_000L;
+
     public static final long MIN_RECOMPUTE_PERIOD_MS = 1_000L;
 
     /**
@@ -62,6 +66,18 @@ public final class Definitions {
     }
 
     /** The engine's metric kind. */
+    /** How the definition counts trials: UNIT when {@code counting} is unset. */
+    public static CountingMode counting(ExperimentDefinition definition) {
+        return definition.getCounting() == null ? CountingMode.UNIT : definition.getCounting();
+    }
+
+    /** The definition's early-outcome grace in milliseconds; {@value #DEFAULT_EARLY_OUTCOME_GRACE_MS} when unset. */
+    public static long earlyOutcomeGraceMs(ExperimentDefinition definition) {
+        Long grace = definition.getEarlyOutcomeGraceMs();
+        return grace == null ? DEFAULT_EARLY_OUTCOME_GRACE_MS : grace;
+    }
+
+    /** The metric kind of {@code definition}. */
     public static Metric metric(ExperimentDefinition definition) {
         return definition.getMetric().getKind() == MetricKind.BERNOULLI ? Metric.BERNOULLI : Metric.VALUE;
     }

@@ -84,14 +84,37 @@ class SchemaCompatibilityTest {
     @Test
     void everyFieldAddedLaterIsNullableWithANullDefaultAndMarkedWhenSet() {
         for (Schema current : List.of(DecisionRecord.getClassSchema(), AllocationUpdate.getClassSchema())) {
-            Schema previous = writer(current.getName());
-            for (Schema.Field field : current.getFields()) {
-                if (previous.getField(field.name()) == null) {
-                    assertEquals(CanonicalJson.WHEN_SET, field.getProp(CanonicalJson.CANONICAL_PROPERTY), field.name());
-                    assertTrue(field.schema().isNullable() && field.defaultVal() == org.apache.avro.JsonProperties.NULL_VALUE,
-                            field.name());
-                }
+            assertAddedFieldsAreWhenSet(current, writer(current.getName()), current.getName());
+        }
+    }
+
+    /** Walks nested records too: a field added inside ArmState or the embedded definition changes hashes as well. */
+    private static void assertAddedFieldsAreWhenSet(Schema current, Schema previous, String path) {
+        for (Schema.Field field : current.getFields()) {
+            Schema.Field before = previous.getField(field.name());
+            String where = path + "." + field.name();
+            if (before == null) {
+                assertEquals(CanonicalJson.WHEN_SET, field.getProp(CanonicalJson.CANONICAL_PROPERTY), where);
+                assertTrue(field.schema().isNullable() && field.defaultVal() == org.apache.avro.JsonProperties.NULL_VALUE,
+                        where);
+                continue;
+            }
+            Schema now = record(field.schema());
+            Schema then = record(before.schema());
+            if (now != null && then != null) {
+                assertAddedFieldsAreWhenSet(now, then, where);
             }
         }
+    }
+
+    /** The record inside a field's schema (itself, a union branch, or array items), or null. */
+    private static Schema record(Schema schema) {
+        return switch (schema.getType()) {
+            case RECORD -> schema;
+            case ARRAY -> record(schema.getElementType());
+            case UNION -> schema.getTypes().stream().map(SchemaCompatibilityTest::record)
+                    .filter(java.util.Objects::nonNull).findFirst().orElse(null);
+            default -> null;
+        };
     }
 }
