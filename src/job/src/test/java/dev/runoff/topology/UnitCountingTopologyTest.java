@@ -102,7 +102,7 @@ class UnitCountingTopologyTest {
     @Test
     void anOutcomeBeforeItsExposureWaitsForItThenAnUnmatchedOneIsUnattributedAfterTheGrace() {
         ExperimentDefinition def = definition("early", "a", "b");
-        def.setEarlyOutcomeGraceMs(2_000);
+        def.setEarlyOutcomeGraceMs(2_000L);
         job.define(def);
         long t = job.clock();
         job.event("u1", Events.click("early", "u1", "c1", null, t));
