@@ -41,7 +41,7 @@ public final class AllocationEngine {
      * Version of the engine's arithmetic, recorded in every evaluation. It changes whenever a change to the
      * engine can alter any output bit for the same input.
      */
-    public static final String VERSION = "1.0";
+    public static final String VERSION = "1.1";
 
     /** Largest number of arms for which {@link EngineConfig.MethodChoice#AUTO} integrates exactly. */
     public static final int EXACT_ARM_LIMIT = 12;

@@ -113,8 +113,10 @@ public final class TopTwo {
     /**
      * Top-two expected improvement (Qin, Klabjan and Russo 2017): the leader maximises the classic expected
      * improvement {@code v_i = E[(theta_i - max_j mu_j)^+]} over the best posterior mean of <em>all</em>
-     * arms, the arm itself included (the paper's EI value, section 2, from the EI of Jones et al. 1998 over
-     * the current best; not over the best <em>other</em> arm); the challenger
+     * arms, the arm itself included (the classic EI of Jones et al. 1998 over the current best, as the paper
+     * uses it; not over the best <em>other</em> arm; section number not checked: the stored copies of the
+     * paper reached only its abstract and reviews, so this follows the issue's reading and memory); the
+     * challenger
      * maximises {@code E[(theta_j - theta_leader)^+]} over {@code j != leader}. The leader gets
      * {@code beta}, the challenger {@code 1 - beta}.
      *

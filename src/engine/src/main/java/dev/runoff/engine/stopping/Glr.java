@@ -20,9 +20,21 @@ import java.util.Objects;
  * variances; with this plug-in the guarantee is approximate (good once each arm has many observations).
  *
  * <p>Where the statistic is undefined the pair contributes 0 (no evidence): an arm without trials, a value
- * arm with fewer than 2 observations, or a value pair whose sample variances are both 0.
+ * arm with fewer than {@link #MIN_VALUE_OBSERVATIONS} observations, or a value pair whose sample variances
+ * are both 0.
  */
 public final class Glr {
+    /**
+     * Observations each value arm needs before its pair carries evidence. The threshold is proven for known
+     * variances; with sample variances from a handful of observations the plug-in statistic is far too
+     * large too often (issue 14: near-tied arms allowed to stop from n = 2 picked the wrong arm in 1.5% of
+     * runs at delta = 0.001). Measured with exactly tied N(0, 1) arms, round robin, delta = 0.001, 4,000
+     * runs of at most 200 observations per arm: stops (half of them wrong) in 122 runs from n = 2, 2 from
+     * n = 5, 0 from n = 10, 20 and 30. Ten is a measured choice, NOT a proven guarantee for unknown
+     * variances (see src/docs/planning-and-stopping.md).
+     */
+    public static final int MIN_VALUE_OBSERVATIONS = 10;
+
     private Glr() {
     }
 
@@ -102,7 +114,7 @@ public final class Glr {
         }
         ValueStats x = (ValueStats) a;
         ValueStats y = (ValueStats) b;
-        if (x.count() < 2 || y.count() < 2 || (x.m2() == 0 && y.m2() == 0)) {
+        if (x.count() < MIN_VALUE_OBSERVATIONS || y.count() < MIN_VALUE_OBSERVATIONS || (x.m2() == 0 && y.m2() == 0)) {
             return 0.0;
         }
         return Divergence.gaussianPairCost(x.mean(), x.sampleVariance(), x.count(),
