@@ -64,6 +64,7 @@ class ProductionFailuresIT {
                 "num.stream.threads", "1", "runoff.http.port", String.valueOf(Ports.free()),
                 "runoff.topic.outcomes", app + ".outcomes", "runoff.topic.rejected", app + ".rejected",
                 "consumer.auto.offset.reset", "earliest"));
+        values.put("runoff.signing.required", "false");
         values.put("consumer.session.timeout.ms", "6000");
         values.put("consumer.heartbeat.interval.ms", "1000");
         for (String topic : List.of("experiments", "experiments.accepted", "allocations", "decisions")) {

@@ -1,5 +1,7 @@
 package dev.runoff.topology;
 
+import dev.runoff.engine.stats.BernoulliStats;
+
 import static dev.runoff.topology.TopologyFixture.T0;
 import static org.junit.jupiter.api.Assertions.assertArrayEquals;
 import static org.junit.jupiter.api.Assertions.assertEquals;
@@ -56,7 +58,8 @@ class RejectionCodesTest {
 
     @Test
     void statisticsForAnExperimentThatEndedBeforeTheFlushAreDeltaUnknownExperiment() {
-        job.define(TestDefinitions.bernoulli("gone", "a", "b"));
+        // per-exposure counting: the exposure is a trial at once, so the flushed statistics hold it
+        job.define(TestDefinitions.perExposure(TestDefinitions.bernoulli("gone", "a", "b")));
         job.advance(100);
         job.rejected();
         job.event("u1", Events.exposure("gone", "u1", "x1", "a", job.clock()));
@@ -79,10 +82,13 @@ class RejectionCodesTest {
 
     @Test
     void statisticsOfTheOtherMetricKindAreDeltaMetricMismatch() {
-        job.define(TestDefinitions.bernoulli("kind", "a", "b"));
-        job.advance(100);
-        job.event("u1", Events.exposure("kind", "u1", "x1", "a", job.clock()));
+        // A definition's metric kind can no longer change (refused as metric-change), so only an internal record
+        // the job did not write can carry statistics of the other kind: piped straight onto the repartition topic.
         job.define(TestDefinitions.value("kind", "a", "b"));
+        job.advance(100);
+        StageTwo delta = StageTwo.delta(new ArmDelta("kind", "a", 1, new BernoulliStats(1, 0), 0));
+        job.rawInput("runoff-ttd-by-experiment-repartition").pipeInput(TopologyFixture.utf8("kind"),
+                StageTwo.SERDE.serializer().serialize("by-experiment", delta));
         job.advance(200);
         only("delta-metric-mismatch", "BERNOULLI statistics for an experiment whose metric is VALUE");
     }
