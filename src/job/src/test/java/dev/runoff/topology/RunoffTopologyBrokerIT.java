@@ -75,8 +75,9 @@ class RunoffTopologyBrokerIT {
 
     @Test
     void foldedCountsEqualTheProducedTruthExactlyOnce() throws Exception {
-        // Unit counting with a 3 s conversion window: each unit has one exposure and at most one click 100 ms
-        // later, so the counts equal the produced truth once the windows have closed.
+        // Unit counting with a 15 s conversion window: each unit has one exposure and at most one click 100 ms
+        // later (all stamped when production starts), so the counts equal the produced truth once the windows
+        // have closed; the window covers the time the test takes to produce and the job to read the events.
         List<ExperimentDefinition> definitions = List.of(endless(short3s(TestDefinitions.bernoulli("hero", "a", "b"))),
                 endless(short3s(TestDefinitions.bernoulli("cta", "red", "green", "blue"))),
                 endless(short3s(TestDefinitions.bernoulli("menu", "w", "x", "y", "z"))), endless(TestDefinitions.value("price", "low", "high")));
@@ -212,7 +213,7 @@ class RunoffTopologyBrokerIT {
     }
 
     private static ExperimentDefinition short3s(ExperimentDefinition def) {
-        return TestDefinitions.withWindow(def, 3_000);
+        return TestDefinitions.withWindow(def, 15_000);
     }
 
     private static void send(KafkaProducer<String, byte[]> producer, SplittableRandom random, Truth truth, String key,
