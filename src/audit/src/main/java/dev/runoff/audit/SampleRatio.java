@@ -99,7 +99,7 @@ public final class SampleRatio {
         }
         long[] observed = new long[arms.size()];
         for (int i = 0; i < observed.length; i++) {
-            observed[i] = after.getArms().get(i).getTrials() - before.getArms().get(i).getTrials();
+            observed[i] = exposed(after.getArms().get(i)) - exposed(before.getArms().get(i));
         }
         double[] weights = weights(before);
         double[] earlier = previous == null || !names(previous).equals(arms) ? null : weights(previous);
@@ -248,5 +248,14 @@ public final class SampleRatio {
                     + Arrays.toString(previousWeights) + ", lag=" + lagShare + ", chi2=" + statistic
                     + ", p=" + pValue + (note == null ? "" : ", " + note) + "]";
         }
+    }
+
+    /**
+     * Units (or exposures) an arm has been served so far: its trials, plus with unit counting its pending
+     * units, whose windows have not closed. A unit is pending from its first exposure, so the difference
+     * between two records is the new units served between them, whenever their windows close.
+     */
+    private static long exposed(ArmState arm) {
+        return arm.getTrials() + (arm.getPending() == null ? 0 : arm.getPending());
     }
 }

@@ -27,7 +27,7 @@ public final class DemoScenario {
      * Conversion window of the demo's definition: short, so that units are counted (their windows close) a
      * few seconds after their exposure and the demo still ends in about a minute.
      */
-    public static final long CONVERSION_WINDOW_MS = 2_000L;
+    public static final long CONVERSION_WINDOW_MS = 500L;
 
     /** Layout names, in definition order. */
     static final List<String> LAYOUTS = List.of("classic-grid", "flexible-bundle", "compact-list",

@@ -136,16 +136,18 @@ public record ExperimentState(ExperimentDefinition definition, List<ArmStats> st
 
     /**
      * This state with {@code delta} merged into arm {@code index}'s statistics and {@code pendingDelta} added
-     * to its pending units (never below 0), marked dirty, started at {@code now} if it had not started.
+     * to its pending units (never below 0), started at {@code now} if it had not started; marked dirty when
+     * the statistics changed (a change of pending units alone brings no new information to evaluate).
      */
     public ExperimentState withDelta(int index, ArmStats delta, long pendingDelta, long now) {
         List<ArmStats> merged = new ArrayList<>(stats);
         merged.set(index, ArmStats.merge(stats.get(index), delta));
         long[] waiting = pending == null ? new long[stats.size()] : pending.clone();
         waiting[index] = Math.max(0, waiting[index] + pendingDelta);
+        boolean counted = delta.trials() > 0 || delta instanceof BernoulliStats b && b.successes() > 0;
         return new ExperimentState(definition, merged, stop, decisionSequence, allocationSequence, lastHash,
-                lastWeights, startedAt < 0 ? now : startedAt, lastComputedAt, lastPublishedAt, true, due, waiting,
-                armSince);
+                lastWeights, startedAt < 0 ? now : startedAt, lastComputedAt, lastPublishedAt, dirty || counted, due,
+                waiting, armSince);
     }
 
     /**

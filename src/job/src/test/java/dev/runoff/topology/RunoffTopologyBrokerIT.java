@@ -77,9 +77,12 @@ class RunoffTopologyBrokerIT {
 
     @Test
     void foldedCountsEqualTheProducedTruthExactlyOnce() throws Exception {
-        List<ExperimentDefinition> definitions = List.of(endless(TestDefinitions.bernoulli("hero", "a", "b")),
-                endless(TestDefinitions.bernoulli("cta", "red", "green", "blue")),
-                endless(TestDefinitions.bernoulli("menu", "w", "x", "y", "z")), endless(TestDefinitions.value("price", "low", "high")));
+        // Unit counting with a 15 s conversion window: each unit has one exposure and at most one click 100 ms
+        // later (all stamped when production starts), so the counts equal the produced truth once the windows
+        // have closed; the window covers the time the test takes to produce and the job to read the events.
+        List<ExperimentDefinition> definitions = List.of(endless(short3s(TestDefinitions.bernoulli("hero", "a", "b"))),
+                endless(short3s(TestDefinitions.bernoulli("cta", "red", "green", "blue"))),
+                endless(short3s(TestDefinitions.bernoulli("menu", "w", "x", "y", "z"))), endless(TestDefinitions.value("price", "low", "high")));
         JobCounters counters = new JobCounters();
         Properties props = RunoffTopology.streamsConfig(SETTINGS, counters, Map.of(
                 StreamsConfig.APPLICATION_ID_CONFIG, "runoff-e2e",
@@ -209,6 +212,10 @@ class RunoffTopologyBrokerIT {
             producer.send(new ProducerRecord<>(SETTINGS.outcomesTopic(), "bad-" + i, bad));
         }
         return truth;
+    }
+
+    private static ExperimentDefinition short3s(ExperimentDefinition def) {
+        return TestDefinitions.withWindow(def, 15_000);
     }
 
     private static void send(KafkaProducer<String, byte[]> producer, SplittableRandom random, Truth truth, String key,

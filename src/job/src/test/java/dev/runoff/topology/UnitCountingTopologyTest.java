@@ -58,6 +58,10 @@ class UnitCountingTopologyTest {
         job.event("u1", Events.click("units", "u1", "c1", null, t + 200));
         job.event("u2", Events.exposure("units", "u2", "y1", "b", t));
         job.advance(TestDefinitions.RECOMPUTE_MS + 100);
+        assertEquals(List.of(), job.decisions(), "pending units alone bring nothing new to evaluate");
+        job.define(TestDefinitions.withBeta(TestDefinitions.withWindow(TestDefinitions.bernoulli("units", "a", "b"),
+                window), 0.6));
+        job.advance(150);
         assertEquals(List.of(BernoulliStats.EMPTY, BernoulliStats.EMPTY), job.state("units").stats(),
                 "nothing is counted while the windows are open");
         assertEquals(List.of(1L, 1L), pending(job.state("units")));
