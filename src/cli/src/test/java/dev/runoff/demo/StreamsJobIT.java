@@ -128,7 +128,7 @@ class StreamsJobIT {
                 assertEquals(200, Http.get(j.httpPort(), "/health").statusCode());
             }
             DemoScenario scenario = new DemoScenario(2);
-            new DefinitionsClient(first, Duration.ofSeconds(30)).put(scenario.definition(300, 1_000_000, 0.05, 20),
+            new DefinitionsClient(first, Duration.ofSeconds(30)).put(scenario.definition(1_000, 1_000_000, 0.05, 20),
                     Format.AVRO);
             // events for an experiment an instance does not know yet are rejected: wait until both know it
             Await.until("the definition accepted by both instances", TIMEOUT,

@@ -220,6 +220,15 @@ class DeployTest {
         assertTrue(ref.get("optional").asBoolean(), "no Secret: no token, the job still starts");
     }
 
+    @Test
+    void eachPodJoinsTheGroupAsAStaticMemberNamedAfterItself() {
+        Map<String, String> env = env(container(manifest("StatefulSet/runoff")));
+        // Kubernetes expands $(POD_NAME) from the earlier variable (dependent environment variables)
+        assertEquals("$(POD_NAME)", env.get("KAFKA_GROUP_INSTANCE_ID"));
+        assertEquals("group.instance.id", ConfigSources.keyOf("KAFKA_GROUP_INSTANCE_ID"));
+        assertEquals("10000", config.getProperty("consumer.session.timeout.ms"));
+    }
+
     private static List<String> fieldNames(JsonNode node) {
         List<String> names = new ArrayList<>();
         node.fieldNames().forEachRemaining(names::add);

@@ -44,7 +44,8 @@ class HeartbeatRateTest {
 
     @Test
     void newDataIsEvaluatedAtMostOncePerRecomputePeriod() {
-        ExperimentDefinition def = TestDefinitions.bernoulli("busy", "a", "b");
+        // per-exposure counting: each exposure is a trial at once, so new data keeps arriving for 10 s
+        ExperimentDefinition def = TestDefinitions.perExposure(TestDefinitions.bernoulli("busy", "a", "b"));
         def.setRecomputePeriodMs(Definitions.MIN_RECOMPUTE_PERIOD_MS);
         def.setHeartbeatMs(TEN_MINUTES);
         def.setValidForMs(2 * TEN_MINUTES);
