@@ -1,5 +1,7 @@
 package dev.runoff.cli;
 
+import dev.runoff.testkit.Await;
+
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
@@ -90,6 +92,9 @@ class ClusterCommandsIT {
             ConfigResource decisions = new ConfigResource(ConfigResource.Type.TOPIC, "runoff.decisions");
             admin.incrementalAlterConfigs(Map.of(decisions, List.of(new AlterConfigOp(
                     new ConfigEntry("retention.ms", "1000"), AlterConfigOp.OpType.SET)))).all().get(30, TimeUnit.SECONDS);
+            // the change reaches the broker's metadata a moment after the controller accepted it (KRaft)
+            Await.until("retention.ms 1000 visible on the broker", Duration.ofSeconds(30),
+                    () -> "1000".equals(decisionsRetention(admin)));
             CliRun repair = topicsCreate();
             assertEquals(0, repair.exitCode(), repair.err());
             assertTrue(repair.out().lines().anyMatch(l -> l.startsWith("updated") && l.contains("runoff.decisions")
@@ -194,6 +199,14 @@ class ClusterCommandsIT {
 
     private static String resource(String name) {
         return Path.of("src", "test", "resources", "definitions", name).toString();
+    }
+
+    private static String decisionsRetention(Admin admin) {
+        try {
+            return value(describe(admin, List.of("runoff.decisions")), "runoff.decisions", "retention.ms");
+        } catch (Exception e) {
+            throw new AssertionError("could not describe runoff.decisions", e);
+        }
     }
 
     private static Map<String, Config> describe(Admin admin, Collection<String> topics) throws Exception {
