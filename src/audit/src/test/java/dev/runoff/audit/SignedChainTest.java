@@ -1,5 +1,7 @@
 package dev.runoff.audit;
 
+import dev.runoff.testkit.SeededRandom;
+
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertNotEquals;
@@ -10,7 +12,6 @@ import dev.runoff.records.RecordSignatures;
 import dev.runoff.records.SignatureVerifier;
 import dev.runoff.records.avro.Decision;
 import dev.runoff.records.avro.DecisionRecord;
-import java.security.SecureRandom;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.Set;
@@ -33,22 +34,12 @@ class SignedChainTest {
 
     @BeforeAll
     static void runJob() {
-        job = Ed25519.generate("job-1", seeded(1));
-        next = Ed25519.generate("job-2", seeded(2));
+        job = Ed25519.generate("job-1", SeededRandom.secure(1));
+        next = Ed25519.generate("job-2", SeededRandom.secure(2));
         genuine = signed(SimulatedJob.run(SimulatedJob.definition("checkout", ARMS, 0), RATES, 40, 600, 11), job,
                 job, Integer.MAX_VALUE);
     }
 
-    /** A deterministic SecureRandom, so that the keys (and thus the signatures) are the same on every run. */
-    static SecureRandom seeded(long seed) {
-        try {
-            SecureRandom random = SecureRandom.getInstance("SHA1PRNG");
-            random.setSeed(seed);
-            return random;
-        } catch (java.security.NoSuchAlgorithmException e) {
-            throw new IllegalStateException(e);
-        }
-    }
 
     /** {@code records} signed by {@code first} before index {@code switchAt}, by {@code second} from there on. */
     static List<DecisionRecord> signed(List<DecisionRecord> records, Ed25519.Pair first, Ed25519.Pair second,

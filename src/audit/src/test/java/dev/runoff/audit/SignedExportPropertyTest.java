@@ -1,5 +1,7 @@
 package dev.runoff.audit;
 
+import dev.runoff.testkit.SeededRandom;
+
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertNotEquals;
@@ -46,7 +48,7 @@ class SignedExportPropertyTest {
 
     @BeforeAll
     static void export() throws Exception {
-        Ed25519.Pair job = Ed25519.generate("job-1", SignedChainTest.seeded(7));
+        Ed25519.Pair job = Ed25519.generate("job-1", SeededRandom.secure(7));
         keys = SignatureVerifier.of(List.of(job.verification()));
         export = lines(SignedChainTest.signed(SimulatedJob.run(SimulatedJob.definition("checkout", ARMS, 0),
                 new double[] {0.04, 0.05, 0.09}, 12, 600, 11), job, job, Integer.MAX_VALUE));

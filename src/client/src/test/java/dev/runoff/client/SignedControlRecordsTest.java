@@ -1,5 +1,7 @@
 package dev.runoff.client;
 
+import dev.runoff.testkit.SeededRandom;
+
 import static dev.runoff.client.ControlRecords.NOW;
 import static dev.runoff.client.ControlRecords.VALID_UNTIL;
 import static dev.runoff.client.ControlRecords.avro;
@@ -14,7 +16,6 @@ import dev.runoff.records.Ed25519;
 import dev.runoff.records.RecordSignatures;
 import dev.runoff.records.SignatureVerifier;
 import dev.runoff.records.avro.AllocationUpdate;
-import java.security.SecureRandom;
 import java.util.List;
 import org.junit.jupiter.api.Test;
 
@@ -22,22 +23,13 @@ import org.junit.jupiter.api.Test;
 class SignedControlRecordsTest {
 
     private final MutableClock clock = new MutableClock(NOW);
-    private final Ed25519.Pair job = Ed25519.generate("job-1", seeded(1));
-    private final Ed25519.Pair rotated = Ed25519.generate("job-2", seeded(2));
-    private final Ed25519.Pair forger = Ed25519.generate("job-1", seeded(3));
+    private final Ed25519.Pair job = Ed25519.generate("job-1", SeededRandom.secure(1));
+    private final Ed25519.Pair rotated = Ed25519.generate("job-2", SeededRandom.secure(2));
+    private final Ed25519.Pair forger = Ed25519.generate("job-1", SeededRandom.secure(3));
     private final AllocationTable table = AllocationTable.create(
             PickPolicy.builder("fallback").staleFallback(StaleFallback.DEFAULT_ARM).build(), clock,
             SignatureVerifier.of(List.of(job.verification(), rotated.verification())));
 
-    private static SecureRandom seeded(long seed) {
-        try {
-            SecureRandom random = SecureRandom.getInstance("SHA1PRNG");
-            random.setSeed(seed);
-            return random;
-        } catch (java.security.NoSuchAlgorithmException e) {
-            throw new IllegalStateException(e);
-        }
-    }
 
     private AllocationUpdate byJob(AllocationUpdate record) {
         return RecordSignatures.sign(record, job.signing());
@@ -59,7 +51,7 @@ class SignedControlRecordsTest {
         List<AllocationUpdate> forged = List.of(
                 flip,
                 RecordSignatures.sign(flip, forger.signing()),
-                RecordSignatures.sign(flip, Ed25519.generate("other", seeded(4)).signing()),
+                RecordSignatures.sign(flip, Ed25519.generate("other", SeededRandom.secure(4)).signing()),
                 AllocationUpdate.newBuilder(byJob(running("e", 2, "a", 1.0, "b", 0.0)))
                         .setWeights(flip.getWeights()).build(),
                 RecordSignatures.sign(version(flip, Long.MAX_VALUE), forger.signing()),

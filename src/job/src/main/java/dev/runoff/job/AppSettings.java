@@ -75,33 +75,14 @@ public record AppSettings(int httpPort, long rocksDbCacheBytes, long memtableByt
             count[0]++;
             problems.accept(message);
         };
-        long port = whole(values, HTTP_PORT_KEY, HTTP_PORT, 0, 65_535, counting);
-        long cache = whole(values, ROCKSDB_CACHE_KEY, ROCKSDB_CACHE_BYTES, MEBIBYTE, Long.MAX_VALUE, counting);
-        long memtables = whole(values, MEMTABLE_KEY, MEMTABLE_BYTES, 1, Long.MAX_VALUE, counting);
-        long timeout = whole(values, SHUTDOWN_TIMEOUT_KEY, SHUTDOWN_TIMEOUT_MS, 1, Long.MAX_VALUE, counting);
+        long port = SettingValues.whole(values, HTTP_PORT_KEY, HTTP_PORT, 0, 65_535, counting);
+        long cache = SettingValues.whole(values, ROCKSDB_CACHE_KEY, ROCKSDB_CACHE_BYTES, MEBIBYTE, Long.MAX_VALUE, counting);
+        long memtables = SettingValues.whole(values, MEMTABLE_KEY, MEMTABLE_BYTES, 1, Long.MAX_VALUE, counting);
+        long timeout = SettingValues.whole(values, SHUTDOWN_TIMEOUT_KEY, SHUTDOWN_TIMEOUT_MS, 1, Long.MAX_VALUE, counting);
         if (count[0] == 0 && memtables >= cache) {
             counting.accept(MEMTABLE_KEY + " must be less than " + ROCKSDB_CACHE_KEY + " = " + cache + ", got "
                     + memtables);
         }
         return count[0] == 0 ? new AppSettings((int) port, cache, memtables, timeout) : null;
-    }
-
-    private static long whole(Map<String, String> values, String key, long fallback, long min, long max,
-                              Consumer<String> problems) {
-        String text = values.get(key);
-        if (text == null) {
-            return fallback;
-        }
-        try {
-            long value = Long.parseLong(text.trim());
-            if (value < min || value > max) {
-                String range = max == Long.MAX_VALUE ? ">= " + min : "in [" + min + ", " + max + "]";
-                problems.accept(key + " must be " + range + ", got " + value);
-            }
-            return value;
-        } catch (NumberFormatException e) {
-            problems.accept(key + " must be a whole number, got '" + text + "'");
-            return fallback;
-        }
     }
 }

@@ -95,8 +95,8 @@ public record SafetySettings(String httpBindAddress, Optional<String> httpToken,
         };
         String address = values.getOrDefault(BIND_ADDRESS_KEY, BIND_ADDRESS);
         Optional<String> token = token(values, counting);
-        long max = whole(values, REPLACEMENTS_KEY, MAX_REPLACEMENTS, 0, 1_000, counting);
-        long window = whole(values, REPLACEMENT_WINDOW_KEY, REPLACEMENT_WINDOW_MS, 1, Long.MAX_VALUE, counting);
+        long max = SettingValues.whole(values, REPLACEMENTS_KEY, MAX_REPLACEMENTS, 0, 1_000, counting);
+        long window = SettingValues.whole(values, REPLACEMENT_WINDOW_KEY, REPLACEMENT_WINDOW_MS, 1, Long.MAX_VALUE, counting);
         boolean accepted = flag(values, AT_LEAST_ONCE_KEY, counting);
         if (atLeastOnce(kafka) && !accepted) {
             counting.accept(StreamsConfig.PROCESSING_GUARANTEE_CONFIG + "=" + AT_LEAST_ONCE + " gives up the job's "
@@ -150,24 +150,6 @@ public record SafetySettings(String httpBindAddress, Optional<String> httpToken,
         return Boolean.parseBoolean(text);
     }
 
-    private static long whole(Map<String, String> values, String key, long fallback, long min, long max,
-                              Consumer<String> problems) {
-        String text = values.get(key);
-        if (text == null) {
-            return fallback;
-        }
-        try {
-            long value = Long.parseLong(text.trim());
-            if (value < min || value > max) {
-                String range = max == Long.MAX_VALUE ? ">= " + min : "in [" + min + ", " + max + "]";
-                problems.accept(key + " must be " + range + ", got " + value);
-            }
-            return value;
-        } catch (NumberFormatException e) {
-            problems.accept(key + " must be a whole number, got '" + text + "'");
-            return fallback;
-        }
-    }
 
     /** The settings with the token hidden. */
     @Override
