@@ -224,7 +224,7 @@ final class AuditCommand implements Runnable {
             }
             if (invalid > 0) {
                 PrintWriter err = spec.commandLine().getErr();
-                err.println("audit report: " + invalid + " invalid record(s) left out; run 'runoff audit verify'");
+                err.println("audit report: " + invalid + " invalid record(s) left out; run 'java -jar target/runoff.jar audit verify'");
                 err.flush();
             }
             return 0;

@@ -71,7 +71,7 @@ final class DemoCommand implements Callable<Integer> {
 
     @Option(names = "--export-decisions", paramLabel = "FILE",
             description = "Write the decision records as canonical JSON lines, for offline audit, and the run's"
-                    + " public key as FILE.pub.pem (runoff audit verify --file FILE --public-key FILE.pub.pem).")
+                    + " public key as FILE.pub.pem (java -jar target/runoff.jar audit verify --file FILE --public-key FILE.pub.pem).")
     private Path exportDecisions;
 
     @Option(names = "--json", description = "JSON lines (one per period, then a summary) instead of tables.")

@@ -218,7 +218,7 @@ public final class Demo {
             export(records, exported);
             Path publicKey = publicKeyFile(exported);
             writePublicKey(keys.verification(), publicKey);
-            report.note("decision records signed with this run's key '" + KEY_ID + "'; check them with: runoff audit "
+            report.note("decision records signed with this run's key '" + KEY_ID + "'; check them with: java -jar target/runoff.jar audit "
                     + "verify --file " + exported + " --public-key " + publicKey);
         }
         double[] predicted = DemoSummary.predictions(scenario.rates(), options.delta());
