@@ -141,8 +141,11 @@ public final class SampleRatio {
         Map<double[], Long> out = new LinkedHashMap<>();
         for (int j = history.size() - 1; j >= 0 && out.size() < MAX_CANDIDATES; j--) {
             DecisionRecord r = history.get(j);
-            if (names(r).equals(arms) && r.getStreamTime() <= after.getStreamTime()
-                    && validUntil(r) >= before.getStreamTime()) {
+            boolean valid = validUntil(r) >= before.getStreamTime();
+            if (!valid && r.getDefinitionVersion() == before.getDefinitionVersion()) {
+                break; // same validForMs and earlier stream times: every older record of this version expired too
+            }
+            if (valid && names(r).equals(arms) && r.getStreamTime() <= after.getStreamTime()) {
                 double[] w = weights(r);
                 if (out.keySet().stream().noneMatch(v -> Arrays.equals(v, w))) {
                     out.put(w, r.getSequence());
