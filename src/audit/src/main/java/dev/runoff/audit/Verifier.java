@@ -87,8 +87,12 @@ public final class Verifier {
         Recomputation.Result recomputed = recomputation.check(entries);
         findings.addAll(recomputed.findings());
         List<SampleRatio.Period> periods = new ArrayList<>();
+        List<DecisionRecord> history = new ArrayList<>();
         for (int i = 1; i < entries.size(); i++) {
-            SampleRatio.Period period = period(i < 2 ? null : entries.get(i - 2), entries.get(i - 1), entries.get(i));
+            if (entries.get(i - 1).isValid()) {
+                history.add(entries.get(i - 1).record());
+            }
+            SampleRatio.Period period = period(history, entries.get(i - 1), entries.get(i));
             if (period != null) {
                 periods.add(period);
                 if (period.outcome() == SampleRatio.Outcome.FLAGGED) {
@@ -115,10 +119,11 @@ public final class Verifier {
     }
 
     /**
-     * The period between two records read one after the other, or null when either is invalid; the record read
-     * before them ({@code previous}, may be null) lends its weights when it is valid and consecutive.
+     * The period between two records read one after the other, or null when either is invalid; the valid
+     * records read before {@code after} ({@code history}, the last being {@code before}) lend the weight
+     * vectors still valid in the period.
      */
-    private SampleRatio.Period period(Entry previous, Entry before, Entry after) {
+    private SampleRatio.Period period(List<DecisionRecord> history, Entry before, Entry after) {
         if (!before.isValid() || !after.isValid()) {
             return null;
         }
@@ -126,11 +131,9 @@ public final class Verifier {
         DecisionRecord b = after.record();
         if (b.getSequence() != a.getSequence() + 1) {
             return new SampleRatio.Period(a.getSequence(), b.getSequence(), null, null, null, null, null, null,
-                    SampleRatio.Outcome.SKIPPED, "the records are not consecutive");
+                    null, null, null, null, SampleRatio.Outcome.SKIPPED, "the records are not consecutive");
         }
-        boolean lagKnown = previous != null && previous.isValid()
-                && previous.record().getSequence() + 1 == a.getSequence();
-        return sampleRatio.test(lagKnown ? previous.record() : null, a, b);
+        return sampleRatio.test(history, b);
     }
 
     private String describe(DecisionRecord after, SampleRatio.Period period) {
@@ -144,9 +147,13 @@ public final class Verifier {
             text.append(" and previous weights ")
                     .append(pairs(arms, Arrays.stream(period.previousWeights()).mapToObj(Verifier::number).toList()));
         }
+        if (period.candidates() != null && period.candidates() > 1) {
+            text.append(" among ").append(period.candidates()).append(" weight vectors valid in the period");
+        }
         if (period.pValue() != null) {
-            text.append(String.format(Locale.ROOT, "; chi-square %.4g, p = %.3g < alpha %s", period.statistic(),
-                    period.pValue(), number(sampleRatio.alpha())));
+            text.append(String.format(Locale.ROOT, "; chi-square %.4g (certified minimum >= %.4g), p = %.3g < alpha %s",
+                    period.statistic(), Math.max(0.0, period.statistic() - period.gap()), period.pValue(),
+                    number(sampleRatio.alpha())));
         }
         return text.toString();
     }

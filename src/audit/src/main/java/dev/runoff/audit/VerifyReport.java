@@ -72,7 +72,8 @@ public final class VerifyReport {
         out.append("  sample ratio (chi-square, alpha ").append(alpha).append("): ")
                 .append(audit.count(SampleRatio.Outcome.PASSED) + audit.count(SampleRatio.Outcome.FLAGGED))
                 .append(" periods tested, ").append(audit.count(SampleRatio.Outcome.FLAGGED)).append(" flagged, ")
-                .append(audit.count(SampleRatio.Outcome.SKIPPED)).append(" skipped\n");
+                .append(audit.count(SampleRatio.Outcome.SKIPPED)).append(" skipped")
+                .append(candidates(audit)).append('\n');
         List<SampleRatio.Period> skipped = audit.periods().stream()
                 .filter(p -> p.outcome() == SampleRatio.Outcome.SKIPPED).toList();
         for (int i = 0; i < Math.min(skipped.size(), TEXT_SKIPPED); i++) {
@@ -83,6 +84,13 @@ public final class VerifyReport {
         if (skipped.size() > TEXT_SKIPPED) {
             out.append("    ... and ").append(skipped.size() - TEXT_SKIPPED).append(" more skipped periods\n");
         }
+    }
+
+    /** {@code "; up to K weight vectors per period"} when some tested period had more than one candidate. */
+    private static String candidates(ExperimentAudit audit) {
+        int most = audit.periods().stream().filter(p -> p.outcome() != SampleRatio.Outcome.SKIPPED)
+                .mapToInt(p -> p.candidates() == null ? 0 : p.candidates()).max().orElse(0);
+        return most > 1 ? "; up to " + most + " valid weight vectors per period" : "";
     }
 
     /** {@code {"verified": bool, "alpha": a, "experiments": [...]}} with every finding and period. */
@@ -126,9 +134,20 @@ public final class VerifyReport {
         map.put("weights", p.weights());
         map.put("previousWeights", p.previousWeights());
         map.put("lagShare", p.lagShare());
+        map.put("candidates", p.candidates());
+        map.put("mixture", p.mixture() == null ? null : p.mixture().stream().map(VerifyReport::component).toList());
+        map.put("fittedShares", p.fittedShares());
         map.put("chiSquare", p.statistic());
+        map.put("dualityGap", p.gap());
         map.put("pValue", p.pValue());
         map.put("note", p.note());
+        return map;
+    }
+
+    private static Map<String, Object> component(SampleRatio.Component c) {
+        Map<String, Object> map = new LinkedHashMap<>();
+        map.put("sequence", c.sequence());
+        map.put("share", c.share());
         return map;
     }
 

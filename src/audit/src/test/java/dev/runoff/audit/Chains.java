@@ -103,7 +103,7 @@ final class Chains {
         }
     }
 
-    private static DecisionRecord record(ExperimentDefinition def, long sequence, long time, long[] trials,
+    static DecisionRecord record(ExperimentDefinition def, long sequence, long time, long[] trials,
                                          long[] successes, double[] weights, boolean stop) {
         List<ArmState> arms = new ArrayList<>();
         for (int i = 0; i < trials.length; i++) {

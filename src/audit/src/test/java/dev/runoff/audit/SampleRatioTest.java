@@ -89,25 +89,25 @@ class SampleRatioTest {
         assertEquals(PERIODS - 1, audit.count(SampleRatio.Outcome.FLAGGED), audit.periods().toString());
         Finding last = audit.findings().stream().filter(f -> f.check() == Check.SAMPLE_RATIO)
                 .reduce((a, b) -> b).orElseThrow();
-        assertTrue(last.message().contains("best lag share") && last.message().contains("previous weights"),
+        assertTrue(last.message().contains("follow no mix of the 3 weight vectors") && last.message().contains("best mix"),
                 last.message());
     }
 
     @Test
-    void fittedLagShareCostsOneDegreeOfFreedom() {
+    void fittedMixtureKeepsThePlainDegreesOfFreedom() {
         // Worked by hand: previous weights (1/2, 1/2, 0), current (0, 1/2, 1/2), observed (30, 60, 10). The
         // mixture is (l/2, 1/2, (1-l)/2); Pearson's statistic 2*30^2/(100 l) + 2*10^2/(100 (1-l)) + const is
         // least at l = 30 / (30 + 10) = 0.75, where the expected counts are (37.5, 50, 12.5) and the statistic
-        // is 7.5^2/37.5 + 10^2/50 + 2.5^2/12.5 = 1.5 + 2 + 0.5 = 4.0. Three cells, one fitted parameter: 1
-        // degree of freedom (Cramér 1946), P(chi-square_1 > 4.0) = 0.0455 (from memory); with the 2 degrees of
-        // freedom of a fixed-weight test it would be exp(-4/2) = 0.1353 (chi-square_2 survival, exact).
+        // is 7.5^2/37.5 + 10^2/50 + 2.5^2/12.5 = 1.5 + 2 + 0.5 = 4.0. The test keeps the cells - 1 = 2 degrees
+        // of freedom of the plain test (conservative, see SampleRatio): P(chi-square_2 > 4.0) = exp(-4/2) =
+        // 0.1353 (chi-square_2 survival, exact). Until the contract allowed any valid vector this case used
+        // 1 degree of freedom (Cramér 1946) and p = 0.0455.
         SampleRatio.Period p = afterChange(new double[] {0.5, 0.5, 0.0}, new double[] {0.0, 0.5, 0.5},
                 new long[] {30, 60, 10});
-        assertEquals(0.75, p.lagShare(), 1e-8);
-        assertEquals(4.0, p.statistic(), 1e-12);
-        assertEquals(0.0455, p.pValue(), 5e-5);
-        assertEquals(1, SampleRatio.degreesOfFreedom(3, true));
-        assertEquals(2, SampleRatio.degreesOfFreedom(3, false));
+        assertEquals(0.75, p.lagShare(), 1e-6);
+        assertEquals(4.0, p.statistic(), 1e-9);
+        assertEquals(StrictMath.exp(-2.0), p.pValue(), 1e-6);
+        assertEquals(2, p.candidates());
     }
 
     @Test
