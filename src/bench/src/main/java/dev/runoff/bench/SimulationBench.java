@@ -27,7 +27,7 @@ import org.openjdk.jmh.annotations.State;
 @OutputTimeUnit(TimeUnit.MILLISECONDS)
 public class SimulationBench {
     private static final ArmModel ARMS = ArmModel.bernoulli(0.1, 0.2, 0.3, 0.4, 0.5);
-    private static final StoppingConfig STOPPING = StoppingConfig.glr(0.01).withMaxTotalTrials(20_240);
+    private static final StoppingConfig STOPPING = StoppingConfig.glr(0.01).withBudgetTrials(20_240);
 
     private long seed;
 

@@ -230,7 +230,7 @@ final class PlanCommand implements Callable<Integer> {
     /** The simulation of {@code stoppingRule}; with an indifference zone its epsilon is {@code --epsilon}. */
     private SimulationConfig simulationConfig(ArmModel arms, PlanFigures plan, Rule stoppingRule) {
         StoppingConfig base = epsilon > 0 ? StoppingConfig.indifference(delta, epsilon) : StoppingConfig.glr(delta);
-        StoppingConfig stop = base.withRule(stoppingRule).withMaxTotalTrials(budget(plan));
+        StoppingConfig stop = base.withRule(stoppingRule).withBudgetTrials(budget(plan));
         EngineConfig engine = EngineConfig.defaults(arms.metric()).withRule(rule).withBeta(beta);
         return new SimulationConfig(arms, engine, stop, batch, replications, seed, epsilon);
     }

@@ -100,7 +100,7 @@ public record StoppingConfig(Rule rule, double delta, GlrThreshold glrThreshold,
     }
 
     /** This configuration with a trial budget. */
-    public StoppingConfig withMaxTotalTrials(long trials) {
+    public StoppingConfig withBudgetTrials(long trials) {
         return new StoppingConfig(rule, delta, glrThreshold, z, epsilon, minTrialsPerArm, minDuration, trials,
                 deadline);
     }

@@ -32,7 +32,7 @@ class SimulationTest {
     }
 
     private static SimulationConfig small(int replications, long seed) {
-        return config(THREE, MONTE_CARLO, StoppingConfig.glr(0.05).withMaxTotalTrials(5000), 10, replications, seed);
+        return config(THREE, MONTE_CARLO, StoppingConfig.glr(0.05).withBudgetTrials(5000), 10, replications, seed);
     }
 
     @Test
@@ -86,7 +86,7 @@ class SimulationTest {
     @Test
     void aRunThatCannotStopEndsExactlyAtTheBudgetPickingTheLargestAlpha() {
         // delta = 1e-100 puts the GLR threshold near 240, far above anything 1,234 trials can reach.
-        SimulationConfig c = config(THREE, MONTE_CARLO, StoppingConfig.glr(1e-100).withMaxTotalTrials(1234), 100, 4,
+        SimulationConfig c = config(THREE, MONTE_CARLO, StoppingConfig.glr(1e-100).withBudgetTrials(1234), 100, 4,
                 9L);
         SimulationResult r = Simulation.run(c, 2, SimulationProgress.NONE);
         for (SimulationRun run : r.ruleRuns()) {
@@ -101,7 +101,7 @@ class SimulationTest {
     @Test
     void uniformRuleIsItsOwnBaseline() {
         SimulationConfig c = config(THREE, MONTE_CARLO.withRule(AllocationMethod.UNIFORM),
-                StoppingConfig.glr(0.05).withMaxTotalTrials(5000), 10, 4, 4L);
+                StoppingConfig.glr(0.05).withBudgetTrials(5000), 10, 4, 4L);
         AtomicInteger calls = new AtomicInteger();
         SimulationResult r = Simulation.run(c, Runnable::run, (done, total) -> {
             calls.incrementAndGet();
@@ -132,7 +132,7 @@ class SimulationTest {
         for (ArmModel arms : List.of(THREE, value)) {
             EngineConfig engine = EngineConfig.defaults(arms.metric()).withMethod(EngineConfig.MethodChoice.MONTE_CARLO)
                     .withDraws(500);
-            SimulationConfig c = config(arms, engine, StoppingConfig.glr(0.05).withMaxTotalTrials(100_000), 10, 10,
+            SimulationConfig c = config(arms, engine, StoppingConfig.glr(0.05).withBudgetTrials(100_000), 10, 10,
                     11L);
             SimulationResult r = Simulation.run(c, 2, SimulationProgress.NONE);
             double bound = OptimalAllocation.optimal(arms).lowerBoundTrials(0.05);
@@ -145,7 +145,7 @@ class SimulationTest {
 
     @Test
     void configRejectsWhatTheSimulationCannotRun() {
-        StoppingConfig glr = StoppingConfig.glr(0.05).withMaxTotalTrials(100);
+        StoppingConfig glr = StoppingConfig.glr(0.05).withBudgetTrials(100);
         EngineConfig engine = EngineConfig.defaults(Metric.BERNOULLI);
         assertThrows(IllegalArgumentException.class, () -> config(THREE, engine, StoppingConfig.glr(0.05), 10, 1, 1));
         ArmModel values = ArmModel.gaussianStddevs(new double[] {1, 0}, new double[] {1, 1});
@@ -168,7 +168,7 @@ class SimulationTest {
     void everyStoppingRuleRunsAndCompareKeepsTheirOrderOnTheSameSeeds() {
         // Well-separated arms (0.2, 0.5, 0.8), delta 0.05, epsilon 0.01 for the indifference rule: every rule
         // stops by itself well before the budget and names the best arm.
-        StoppingConfig stop = StoppingConfig.indifference(0.05, 0.01).withMaxTotalTrials(20_000);
+        StoppingConfig stop = StoppingConfig.indifference(0.05, 0.01).withBudgetTrials(20_000);
         SimulationConfig c = config(THREE, EngineConfig.defaults(Metric.BERNOULLI), stop, 20, 6, 3);
         List<Rule> rules = List.of(Rule.MIXTURE, Rule.INDIFFERENCE, Rule.GLR, Rule.GLR_HEURISTIC, Rule.POSTERIOR);
         List<StoppingComparison> rows = Simulation.compare(c, rules, Runnable::run, SimulationProgress.NONE);

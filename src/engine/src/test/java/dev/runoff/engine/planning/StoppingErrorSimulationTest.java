@@ -37,7 +37,7 @@ class StoppingErrorSimulationTest {
         EngineConfig engine = EngineConfig.defaults(Metric.BERNOULLI).withRule(AllocationMethod.UNIFORM)
                 .withMethod(EngineConfig.MethodChoice.MONTE_CARLO).withDraws(1);
         SimulationConfig c = new SimulationConfig(ArmModel.bernoulli(0.5, 0.45), engine,
-                StoppingConfig.glr(DELTA).withMaxTotalTrials(1_000_000), 100, 400, 77L, 0.0);
+                StoppingConfig.glr(DELTA).withBudgetTrials(1_000_000), 100, 400, 77L, 0.0);
         SimulationSummary s = Simulation.run(c, 2, SimulationProgress.NONE).rule();
         System.out.println("GLR, rates 0.5 and 0.45, delta 0.1: " + s);
         assertEquals(0, s.budgetStops(), s.toString());
@@ -53,7 +53,7 @@ class StoppingErrorSimulationTest {
         EngineConfig engine = EngineConfig.defaults(Metric.BERNOULLI).withRule(AllocationMethod.UNIFORM)
                 .withMethod(EngineConfig.MethodChoice.MONTE_CARLO).withDraws(1);
         SimulationConfig c = new SimulationConfig(ArmModel.bernoulli(0.45, 0.5), engine,
-                StoppingConfig.glr(DELTA).withRule(Rule.MIXTURE).withMaxTotalTrials(1_000_000), 100, 400, 77L, 0.0);
+                StoppingConfig.glr(DELTA).withRule(Rule.MIXTURE).withBudgetTrials(1_000_000), 100, 400, 77L, 0.0);
         SimulationSummary s = Simulation.run(c, 2, SimulationProgress.NONE).rule();
         System.out.println("mixture, rates 0.45 and 0.5, delta 0.1: " + s);
         assertEquals(0, s.budgetStops(), s.toString());
@@ -67,7 +67,7 @@ class StoppingErrorSimulationTest {
         EngineConfig engine = EngineConfig.defaults(Metric.BERNOULLI).withRule(AllocationMethod.UNIFORM)
                 .withMethod(EngineConfig.MethodChoice.MONTE_CARLO).withDraws(1);
         SimulationConfig c = new SimulationConfig(ArmModel.bernoulli(0.4, 0.5, 0.6), engine,
-                StoppingConfig.glr(0.2).withRule(Rule.MIXTURE).withMaxTotalTrials(1_000_000), 5, 200, 5L, 0.0);
+                StoppingConfig.glr(0.2).withRule(Rule.MIXTURE).withBudgetTrials(1_000_000), 5, 200, 5L, 0.0);
         SimulationSummary s = Simulation.run(c, 2, SimulationProgress.NONE).rule();
         System.out.println("mixture, rates 0.4, 0.5 and 0.6, delta 0.2, batch 5: " + s);
         assertEquals(0, s.budgetStops(), s.toString());
@@ -89,7 +89,7 @@ class StoppingErrorSimulationTest {
         for (int i = 0; i < 300; i++) {
             ArmModel arms = ArmModel.bernoulli(openUnit(prior), openUnit(prior));
             SimulationConfig c = new SimulationConfig(arms, engine,
-                    StoppingConfig.posterior(DELTA).withMaxTotalTrials(500), 25, 1, i, 0.0);
+                    StoppingConfig.posterior(DELTA).withBudgetTrials(500), 25, 1, i, 0.0);
             SimulationRun run = Simulation.run(c, Runnable::run, SimulationProgress.NONE).ruleRuns().get(0);
             if (!run.budgetStop()) {
                 stops++;

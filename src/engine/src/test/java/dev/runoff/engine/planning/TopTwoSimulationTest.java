@@ -28,7 +28,7 @@ class TopTwoSimulationTest {
         // standard error of the ratio of means near 0.40 * sqrt(2 * 0.06 / 6) = 6%, about 0.03 here.
         // Tolerances: the ratio must be below 0.75 and within 0.15 (5 standard errors) of T_beta / T_uniform.
         SimulationConfig c = new SimulationConfig(ARMS, EngineConfig.defaults(Metric.BERNOULLI),
-                StoppingConfig.glr(0.01).withMaxTotalTrials(200_000), 250, 6, 2024L, 0.0);
+                StoppingConfig.glr(0.01).withBudgetTrials(200_000), 250, 6, 2024L, 0.0);
         SimulationResult r = Simulation.run(c, 2, SimulationProgress.NONE);
         ArmModel model = ARMS;
         double asymptotic = OptimalAllocation.betaOptimal(model, 0.5).characteristicTime()
@@ -61,7 +61,7 @@ class TopTwoSimulationTest {
     /** Max over min of log(1/alpha_j) over the suboptimal arms after one run of 2,000 trials. */
     private static double evidenceRatio(AllocationMethod rule, long seed) {
         SimulationConfig c = new SimulationConfig(ARMS, EngineConfig.defaults(Metric.BERNOULLI).withRule(rule),
-                StoppingConfig.glr(1e-100).withMaxTotalTrials(2000), 100, 1, seed, 0.0);
+                StoppingConfig.glr(1e-100).withBudgetTrials(2000), 100, 1, seed, 0.0);
         SimulationRun run = Simulation.run(c, Runnable::run, SimulationProgress.NONE).ruleRuns().get(0);
         assertTrue(run.budgetStop(), run.toString());
         double[] alpha = run.alpha();

@@ -253,7 +253,7 @@ class StoppingCheckTest {
     @Test
     void spentTrialBudgetStopsWithTheBestArmByAlpha() {
         // Rule does not fire (Z = 6.04 < 9.39); 300 trials reach the budget of 300.
-        StoppingConfig config = StoppingConfig.glr(0.05).withMaxTotalTrials(300);
+        StoppingConfig config = StoppingConfig.glr(0.05).withBudgetTrials(300);
         Verdict d = StoppingCheck.decide(moderateGap(), exact(0.3, 0.7), ONE_DAY, config);
         assertEquals(Verdict.Action.STOP, d.action());
         assertEquals(VerdictReason.BUDGET, d.reason());
@@ -263,7 +263,7 @@ class StoppingCheckTest {
         assertTrue(d.guards().trialBudgetSpent());
         assertEquals(Math.log(2.0 * 300 / 0.05), d.threshold(), 1e-12);
         assertEquals(VerdictReason.BELOW_THRESHOLD, StoppingCheck.decide(moderateGap(), exact(0.3, 0.7), ONE_DAY,
-                config.withMaxTotalTrials(301)).reason());
+                config.withBudgetTrials(301)).reason());
     }
 
     @Test
@@ -279,7 +279,7 @@ class StoppingCheckTest {
 
     @Test
     void budgetOverridesGuardsButAFiringRuleKeepsItsOwnReason() {
-        StoppingConfig config = StoppingConfig.glr(0.05).withMaxTotalTrials(4000);
+        StoppingConfig config = StoppingConfig.glr(0.05).withBudgetTrials(4000);
         assertEquals(VerdictReason.GLR, StoppingCheck.decide(largeGap(), exact(0.999, 0.001), ONE_DAY, config).reason());
         assertEquals(VerdictReason.BUDGET, StoppingCheck.decide(largeGap(), exact(0.999, 0.001), ONE_DAY,
                 config.withMinTrialsPerArm(10_000)).reason());

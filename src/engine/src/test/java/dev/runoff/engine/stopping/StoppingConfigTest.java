@@ -41,7 +41,7 @@ class StoppingConfigTest {
         assertEquals("minTrialsPerArm must be >= 0, got -5", message(() -> c.withMinTrialsPerArm(-5)));
         assertEquals("minDuration must not be negative, got PT-1S",
                 message(() -> c.withMinDuration(Duration.ofSeconds(-1))));
-        assertEquals("budgetTrials must be >= 1, got 0", message(() -> c.withMaxTotalTrials(0)));
+        assertEquals("budgetTrials must be >= 1, got 0", message(() -> c.withBudgetTrials(0)));
         assertThrows(NullPointerException.class, () -> c.withDeadline(null));
     }
 
