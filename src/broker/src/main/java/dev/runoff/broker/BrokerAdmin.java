@@ -2,6 +2,7 @@ package dev.runoff.broker;
 
 import java.time.Duration;
 import java.util.Collection;
+import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.concurrent.ExecutionException;
@@ -12,26 +13,46 @@ import org.apache.kafka.clients.admin.AdminClientConfig;
 import org.apache.kafka.clients.admin.DescribeClusterOptions;
 import org.apache.kafka.clients.admin.DescribeClusterResult;
 import org.apache.kafka.clients.admin.NewTopic;
+import org.apache.kafka.clients.admin.ScramCredentialInfo;
+import org.apache.kafka.clients.admin.ScramMechanism;
+import org.apache.kafka.clients.admin.UserScramCredentialUpsertion;
 import org.apache.kafka.common.KafkaFuture;
 import org.apache.kafka.common.Node;
 import org.apache.kafka.common.errors.TopicExistsException;
 import org.apache.kafka.common.utils.Time;
 
 /**
- * Short-lived admin-client calls against the embedded broker: the readiness probe and topic creation.
- * Each call opens and closes its own client, so no connection outlives a broker restart.
+ * Short-lived admin-client calls against the embedded broker: the readiness probe, topic creation and SCRAM
+ * users. Each call opens and closes its own client, so no connection outlives a broker restart.
  */
 final class BrokerAdmin {
     private static final long PROBE_PAUSE_MS = 100;
+    /** Iterations of a new SCRAM credential: Kafka's minimum, 4096 (Kafka documentation, SASL/SCRAM). */
+    private static final int SCRAM_ITERATIONS = 4096;
 
     private final String bootstrapServers;
+    private final Map<String, String> security;
     private final Duration timeout;
     private final Time time;
 
-    BrokerAdmin(String bootstrapServers, Duration timeout, Time time) {
+    /**
+     * @param security client properties that reach a secured listener (empty for plaintext)
+     */
+    BrokerAdmin(String bootstrapServers, Map<String, String> security, Duration timeout, Time time) {
         this.bootstrapServers = bootstrapServers;
+        this.security = Map.copyOf(security);
         this.timeout = timeout;
         this.time = time;
+    }
+
+    /** Creates or replaces the SCRAM credential of {@code user} for {@code mechanism}. */
+    void upsertScramUser(String mechanism, String user, String password) {
+        ScramCredentialInfo info = new ScramCredentialInfo(ScramMechanism.fromMechanismName(mechanism),
+                SCRAM_ITERATIONS);
+        try (Admin admin = open()) {
+            await(admin.alterUserScramCredentials(List.of(new UserScramCredentialUpsertion(user, info, password)))
+                    .all(), "add SCRAM user '" + user + "'");
+        }
     }
 
     /**
@@ -81,10 +102,11 @@ final class BrokerAdmin {
 
     private Admin open() {
         int timeoutMs = (int) Math.min(Integer.MAX_VALUE, timeout.toMillis());
-        return Admin.create(Map.of(
-                AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, bootstrapServers,
-                AdminClientConfig.DEFAULT_API_TIMEOUT_MS_CONFIG, timeoutMs,
-                AdminClientConfig.REQUEST_TIMEOUT_MS_CONFIG, timeoutMs));
+        Map<String, Object> props = new HashMap<>(security);
+        props.put(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, bootstrapServers);
+        props.put(AdminClientConfig.DEFAULT_API_TIMEOUT_MS_CONFIG, timeoutMs);
+        props.put(AdminClientConfig.REQUEST_TIMEOUT_MS_CONFIG, timeoutMs);
+        return Admin.create(props);
     }
 
     private <T> T await(KafkaFuture<T> future, String what) {

@@ -63,8 +63,12 @@ record BrokerPorts(int broker, int controller) {
 
     @Override
     public String toString() {
-        return CLIENT_LISTENER + " " + HOST + ":" + broker + ", "
-                + CONTROLLER_LISTENER + " " + HOST + ":" + controller;
+        return describe(CLIENT_LISTENER);
+    }
+
+    /** Both listeners with their addresses, the client listener under {@code clientListener}. */
+    String describe(String clientListener) {
+        return clientListener + " " + HOST + ":" + broker + ", " + CONTROLLER_LISTENER + " " + HOST + ":" + controller;
     }
 
     private static void probe(String listener, int port) throws BindFailure {

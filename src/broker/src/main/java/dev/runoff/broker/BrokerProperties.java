@@ -26,13 +26,18 @@ final class BrokerProperties {
      *
      * @param logDirectory the directory holding both the metadata log and the topic data
      * @param ports the listener ports
+     * @param security how the client listener is secured, or {@code null} for plaintext
      * @param overrides properties that replace or add to the defaults (applied last)
      * @return a new mutable map, in a stable order
      */
-    static Map<String, String> of(Path logDirectory, BrokerPorts ports, Map<String, String> overrides) {
+    static Map<String, String> of(Path logDirectory, BrokerPorts ports, BrokerSecurity security,
+                                  Map<String, String> overrides) {
         Map<String, String> props = new LinkedHashMap<>();
         props.putAll(roles(ports));
-        props.putAll(listeners(ports));
+        props.putAll(listeners(ports, clientListener(security)));
+        if (security != null) {
+            props.putAll(security.serverProperties());
+        }
         props.put("log.dirs", logDirectory.toAbsolutePath().toString());
         props.putAll(singleReplicaInternalTopics());
         props.put("group.initial.rebalance.delay.ms", "0");
@@ -49,14 +54,21 @@ final class BrokerProperties {
                 "controller.quorum.voters", NODE_ID + "@" + BrokerPorts.HOST + ":" + ports.controller());
     }
 
-    private static Map<String, String> listeners(BrokerPorts ports) {
-        String client = BrokerPorts.CLIENT_LISTENER;
+    /**
+     * The name of the client listener, which is also its security protocol: {@code PLAINTEXT}, {@code SSL} or
+     * {@code SASL_SSL}. It is the inter-broker listener too, so with SCRAM the broker authenticates to itself.
+     */
+    static String clientListener(BrokerSecurity security) {
+        return security == null ? BrokerPorts.CLIENT_LISTENER : security.protocol();
+    }
+
+    private static Map<String, String> listeners(BrokerPorts ports, String client) {
         String controller = BrokerPorts.CONTROLLER_LISTENER;
         return Map.of(
                 "listeners", client + "://" + ports.bootstrapServers()
                         + "," + controller + "://" + BrokerPorts.HOST + ":" + ports.controller(),
                 "advertised.listeners", client + "://" + ports.bootstrapServers(),
-                "listener.security.protocol.map", client + ":PLAINTEXT," + controller + ":PLAINTEXT",
+                "listener.security.protocol.map", client + ":" + client + "," + controller + ":PLAINTEXT",
                 "controller.listener.names", controller,
                 "inter.broker.listener.name", client);
     }

@@ -13,7 +13,8 @@ import org.slf4j.LoggerFactory;
 
 /**
  * A single-node KRaft Kafka broker (broker and controller roles in one {@code KafkaRaftServer}) running
- * inside this JVM, listening on 127.0.0.1 only.
+ * inside this JVM, listening on 127.0.0.1 only. The client listener is plaintext unless a
+ * {@link BrokerSecurity} secures it with TLS or SASL/SCRAM over TLS.
  *
  * <p>Typical use:
  * <pre>{@code
@@ -42,6 +43,7 @@ public final class EmbeddedKafkaBroker implements AutoCloseable {
 
     private final Path logDirectory;
     private final Map<String, String> overrides;
+    private final BrokerSecurity security;
     private final Duration startTimeout;
     private final Time time;
     private BrokerPorts ports;
@@ -52,6 +54,7 @@ public final class EmbeddedKafkaBroker implements AutoCloseable {
     private EmbeddedKafkaBroker(Builder builder) {
         this.logDirectory = builder.logDirectory;
         this.overrides = Map.copyOf(builder.overrides);
+        this.security = builder.security;
         this.startTimeout = builder.startTimeout;
         this.time = builder.time;
         this.ports = builder.ports;
@@ -84,11 +87,13 @@ public final class EmbeddedKafkaBroker implements AutoCloseable {
                     + bootstrapServers());
         }
         long began = time.milliseconds();
-        boolean formatted = StorageFormat.formatIfAbsent(logDirectory);
+        boolean formatted = StorageFormat.formatIfAbsent(logDirectory,
+                security == null ? java.util.List.of() : security.scramArguments());
         server = launchWithOneRetry();
         portsFixed = true;
         clusterId = awaitReady();
-        LOG.info("Kafka broker started in {} ms on {} ({}, {})", time.milliseconds() - began, ports,
+        LOG.info("Kafka broker started in {} ms on {} ({}, {}, {})", time.milliseconds() - began,
+                ports.describe(BrokerProperties.clientListener(security)), security == null ? "PLAINTEXT" : security,
                 formatted ? "formatted " + logDirectory : "reused " + logDirectory, "cluster " + clusterId);
         return this;
     }
@@ -126,6 +131,36 @@ public final class EmbeddedKafkaBroker implements AutoCloseable {
             throw new IllegalStateException("broker on " + logDirectory + " has no port yet: start it first");
         }
         return ports.bootstrapServers();
+    }
+
+    /**
+     * The security of the client listener, or {@code null} when it is plaintext. Its
+     * {@link BrokerSecurity#clientProperties} tell a client how to connect.
+     */
+    public BrokerSecurity security() {
+        return security;
+    }
+
+    /**
+     * Creates or replaces a SCRAM user (through the Admin API's {@code alterUserScramCredentials}, 4096
+     * iterations) for the mechanism of this broker's {@link BrokerSecurity}.
+     *
+     * @throws IllegalStateException if the broker is not running or its listener does not use SCRAM
+     * @throws IllegalArgumentException naming a user or password outside {@code [A-Za-z0-9._~-]+}
+     * @throws EmbeddedBrokerException if the broker refuses
+     */
+    public void addScramUser(String user, String password) {
+        if (security == null || security.scramMechanism() == null) {
+            throw new IllegalStateException("broker on " + logDirectory + " does not use SASL/SCRAM: cannot add user '"
+                    + user + "'");
+        }
+        BrokerSecurity.checkToken("user", user, true);
+        BrokerSecurity.checkToken("password", password, false);
+        if (!isRunning()) {
+            throw new IllegalStateException("broker on " + logDirectory + " is not running: cannot add user '"
+                    + user + "'");
+        }
+        admin().upsertScramUser(security.scramMechanism(), user, password);
     }
 
     /** Tells whether the broker is running. */
@@ -188,7 +223,12 @@ public final class EmbeddedKafkaBroker implements AutoCloseable {
             throw new IllegalStateException("broker on " + logDirectory + " is not running: cannot create topic '"
                     + name + "'");
         }
-        return new BrokerAdmin(bootstrapServers(), startTimeout, time);
+        return admin();
+    }
+
+    private BrokerAdmin admin() {
+        Map<String, String> client = security == null ? Map.of() : security.brokerClientProperties();
+        return new BrokerAdmin(ports.bootstrapServers(), client, startTimeout, time);
     }
 
     private KafkaRaftServer launchWithOneRetry() {
@@ -232,7 +272,7 @@ public final class EmbeddedKafkaBroker implements AutoCloseable {
     }
 
     private KafkaRaftServer launch() {
-        Map<String, String> props = BrokerProperties.of(logDirectory, ports, overrides);
+        Map<String, String> props = BrokerProperties.of(logDirectory, ports, security, overrides);
         KafkaRaftServer candidate = new KafkaRaftServer(new KafkaConfig(props, false), time);
         try {
             candidate.startup();
@@ -245,7 +285,7 @@ public final class EmbeddedKafkaBroker implements AutoCloseable {
 
     private String awaitReady() {
         try {
-            return new BrokerAdmin(ports.bootstrapServers(), startTimeout, time).awaitNode(BrokerProperties.NODE_ID);
+            return admin().awaitNode(BrokerProperties.NODE_ID);
         } catch (RuntimeException e) {
             KafkaRaftServer failed = server;
             server = null;
@@ -268,6 +308,7 @@ public final class EmbeddedKafkaBroker implements AutoCloseable {
         private final Path logDirectory;
         private final Map<String, String> overrides = new LinkedHashMap<>();
         private BrokerPorts ports;
+        private BrokerSecurity security;
         private Duration startTimeout = Duration.ofSeconds(60);
         private Time time = Time.SYSTEM;
 
@@ -295,6 +336,15 @@ public final class EmbeddedKafkaBroker implements AutoCloseable {
                 throw new IllegalArgumentException("broker property name must not be blank, got '" + name + "'");
             }
             overrides.put(name, Objects.requireNonNull(value, () -> "value of broker property " + name));
+            return this;
+        }
+
+        /**
+         * Secures the client listener with TLS, or SASL/SCRAM over TLS (default: plaintext). The listener is
+         * then named after its protocol ({@code SSL} or {@code SASL_SSL}) and plaintext clients are refused.
+         */
+        public Builder security(BrokerSecurity listenerSecurity) {
+            this.security = Objects.requireNonNull(listenerSecurity, "security");
             return this;
         }
 

@@ -6,6 +6,7 @@ import java.io.PrintStream;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
+import java.util.List;
 import org.apache.kafka.common.Uuid;
 import org.apache.kafka.metadata.storage.Formatter;
 import org.slf4j.Logger;
@@ -30,14 +31,16 @@ final class StorageFormat {
      * with a new random cluster id, unless it already holds {@code meta.properties}.
      *
      * @param logDirectory the directory; created when missing
+     * @param scramArguments SCRAM credentials to write into the metadata log, in the form of the formatter's
+     *                       {@code --add-scram} option ({@code SCRAM-SHA-512=[name=u,password=p]}); may be empty
      * @return {@code true} if the directory was formatted now, {@code false} if it was already formatted
      */
-    static boolean formatIfAbsent(Path logDirectory) {
+    static boolean formatIfAbsent(Path logDirectory, List<String> scramArguments) {
         if (Files.exists(logDirectory.resolve(META_PROPERTIES))) {
             return false;
         }
         createDirectory(logDirectory);
-        format(logDirectory.toAbsolutePath().toString());
+        format(logDirectory.toAbsolutePath().toString(), scramArguments);
         return true;
     }
 
@@ -49,7 +52,7 @@ final class StorageFormat {
         }
     }
 
-    private static void format(String directory) {
+    private static void format(String directory, List<String> scramArguments) {
         ByteArrayOutputStream output = new ByteArrayOutputStream();
         try (PrintStream out = new PrintStream(output, true, StandardCharsets.UTF_8)) {
             new Formatter()
@@ -59,6 +62,7 @@ final class StorageFormat {
                     .setControllerListenerName(BrokerPorts.CONTROLLER_LISTENER)
                     .addDirectory(directory)
                     .setMetadataLogDirectory(directory)
+                    .setScramArguments(scramArguments)
                     .run();
         } catch (Exception e) {
             throw new EmbeddedBrokerException("could not format broker log directory " + directory
