@@ -27,7 +27,7 @@ import org.apache.kafka.common.utils.Time;
  */
 final class BrokerAdmin {
     private static final long PROBE_PAUSE_MS = 100;
-    /** Iterations of a new SCRAM credential: Kafka's minimum, 4096 (Kafka documentation, SASL/SCRAM). */
+    /** Iterations of a new SCRAM credential: 4096, the default of Kafka's SCRAM tools (Kafka SCRAM docs). */
     private static final int SCRAM_ITERATIONS = 4096;
 
     private final String bootstrapServers;

@@ -67,7 +67,8 @@ class TlsListenerIT {
                 new StringDeserializer(),
                 new StringDeserializer())) {
             consumer.assign(List.of(new TopicPartition("tls-tx", 0)));
-            assertEquals(List.of("over TLS"), BrokerTestSupport.values(BrokerTestSupport.pollAtLeast(consumer, 1, WAIT)));
+            assertEquals(List.of("over TLS"),
+                    BrokerTestSupport.values(BrokerTestSupport.pollAtLeast(consumer, 1, WAIT)));
         }
     }
 

@@ -229,6 +229,49 @@ class DeployTest {
         assertEquals("10000", config.getProperty("consumer.session.timeout.ms"));
     }
 
+    @Test
+    void kafkaCredentialsComeFromASecretInBothTheJobAndTheTopicsJob() {
+        // the properties that SecuredClusterIT (src/cli) runs the job, the CLI and the client library with
+        assertEquals("SASL_SSL", config.getProperty("security.protocol"));
+        assertEquals("SCRAM-SHA-512", config.getProperty("sasl.mechanism"));
+        assertEquals("PEM", config.getProperty("ssl.truststore.type"));
+        assertFalse(config.stringPropertyNames().contains("sasl.jaas.config"), "no password in the ConfigMap");
+        assertEquals("sasl.jaas.config", ConfigSources.keyOf("KAFKA_SASL_JAAS_CONFIG"));
+        for (String workload : List.of("StatefulSet/runoff", "Job/runoff-topics")) {
+            JsonNode pod = manifest(workload).get("spec").get("template").get("spec");
+            JsonNode c = container(manifest(workload));
+            JsonNode ref = envEntry(c, "KAFKA_SASL_JAAS_CONFIG").get("valueFrom").get("secretKeyRef");
+            assertEquals("runoff-kafka-client", ref.get("name").asText(), workload);
+            assertEquals("sasl.jaas.config", ref.get("key").asText(), workload);
+            assertFalse(ref.path("optional").asBoolean(false),
+                    workload + ": without credentials the job must not start");
+            JsonNode volume = named(pod.get("volumes"), "kafka-client");
+            assertEquals("runoff-kafka-client", volume.get("secret").get("secretName").asText(), workload);
+            assertEquals(List.of("ca.crt"), volume.get("secret").get("items").findValuesAsText("key"),
+                    workload + ": only the certificate is mounted, the JAAS line stays out of the file system");
+            String mount = named(c.get("volumeMounts"), "kafka-client").get("mountPath").asText();
+            String path = volume.get("secret").get("items").get(0).get("path").asText();
+            assertEquals(config.getProperty("ssl.truststore.location"), mount + "/" + path, workload);
+            // Kubernetes: Secret files are owned by root and the pod's fsGroup; mode 0440 leaves others out
+            assertEquals(pod.get("securityContext").get("runAsGroup").asLong(),
+                    pod.get("securityContext").path("fsGroup").asLong(-1),
+                    workload + ": fsGroup lets the user read it");
+        }
+    }
+
+    private static JsonNode envEntry(JsonNode container, String name) {
+        return named(container.get("env"), name);
+    }
+
+    private static JsonNode named(JsonNode array, String name) {
+        for (JsonNode n : array) {
+            if (n.get("name").asText().equals(name)) {
+                return n;
+            }
+        }
+        throw new AssertionError("no entry named " + name + " in " + array);
+    }
+
     private static List<String> fieldNames(JsonNode node) {
         List<String> names = new ArrayList<>();
         node.fieldNames().forEachRemaining(names::add);
