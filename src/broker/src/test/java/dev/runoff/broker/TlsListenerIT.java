@@ -76,7 +76,7 @@ class TlsListenerIT {
     void aPlaintextClientIsRefusedWithinItsTimeout() {
         long began = System.nanoTime();
         Throwable cause = describeCluster(Map.of());
-        // Kafka clients: a plaintext client cannot complete a request on a TLS port and times out
+        // Kafka clients (from memory): a plaintext client cannot complete a request on a TLS port and times out
         assertInstanceOf(TimeoutException.class, cause, String.valueOf(cause));
         assertTrue(System.nanoTime() - began < TimeUnit.SECONDS.toNanos(15), "refusal took too long");
     }
@@ -85,7 +85,8 @@ class TlsListenerIT {
     void aClientThatDoesNotTrustTheCertificateFailsTheHandshake() {
         Map<String, String> untrusting = Map.of("security.protocol", "SSL");
         Throwable cause = describeCluster(untrusting);
-        // Kafka clients report a failed TLS handshake as SslAuthenticationException (JDK default trust store)
+        // Kafka clients report a failed TLS handshake as SslAuthenticationException (from memory); the client
+        // trusts only the JDK's default certificates here
         assertInstanceOf(SslAuthenticationException.class, cause, String.valueOf(cause));
     }
 

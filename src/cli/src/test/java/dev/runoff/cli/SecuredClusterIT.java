@@ -9,10 +9,13 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import dev.runoff.broker.BrokerSecurity;
 import dev.runoff.broker.EmbeddedKafkaBroker;
 import dev.runoff.client.AllocationTable;
+import dev.runoff.client.ArmAssignment;
 import dev.runoff.client.ControlTopicFollower;
 import dev.runoff.client.OutcomeReporter;
 import dev.runoff.client.PickPolicy;
 import dev.runoff.client.UnitPseudonymizer;
+import dev.runoff.records.Ed25519;
+import dev.runoff.records.Pem;
 import dev.runoff.records.RecordCodec;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
@@ -22,6 +25,8 @@ import dev.runoff.testkit.Directories;
 import dev.runoff.testkit.RepositoryFiles;
 import dev.runoff.testkit.TestCertificates;
 import java.io.IOException;
+import java.io.StringReader;
+import java.io.Writer;
 import java.net.ServerSocket;
 import java.net.URI;
 import java.net.http.HttpClient;
@@ -30,13 +35,17 @@ import java.net.http.HttpResponse;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
+import java.security.SecureRandom;
 import java.time.Clock;
 import java.time.Duration;
 import java.util.ArrayList;
+import java.util.Comparator;
 import java.util.HashMap;
+import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
+import java.util.Properties;
 import java.util.concurrent.ExecutionException;
 import java.util.concurrent.TimeUnit;
 import org.apache.kafka.clients.admin.Admin;
@@ -88,7 +97,7 @@ class SecuredClusterIT {
         broker.addScramUser(USER, PASSWORD);
         security = listener.clientProperties(USER, PASSWORD);
         clientConfig = properties("client.properties", security);
-        Map<String, String> job = new java.util.LinkedHashMap<>(security);
+        Map<String, String> job = new LinkedHashMap<>(security);
         job.put("bootstrap.servers", broker.bootstrapServers());
         jobConfig = properties("job.properties", job);
     }
@@ -101,13 +110,13 @@ class SecuredClusterIT {
     @Test
     void aPlaintextClientIsRefusedWithinItsTimeoutAndAWrongPasswordIsRefusedAtOnce() throws IOException {
         long began = System.nanoTime();
-        // Kafka clients: a plaintext client gets no answer from a TLS port and times out
+        // Kafka clients (from memory): a plaintext client gets no answer from a TLS port and times out
         assertInstanceOf(TimeoutException.class, describeCluster(Map.of()));
         assertTrue(System.nanoTime() - began < TimeUnit.SECONDS.toNanos(20), "refusal took too long");
 
         Map<String, String> wrong = new HashMap<>(security);
         wrong.put("sasl.jaas.config", wrong.get("sasl.jaas.config").replace(PASSWORD, "not-" + PASSWORD));
-        // Kafka clients report a failed SCRAM exchange as SaslAuthenticationException
+        // Kafka clients report a failed SCRAM exchange as SaslAuthenticationException (from memory)
         assertInstanceOf(SaslAuthenticationException.class, describeCluster(wrong));
 
         CliRun plain = CliRun.of("topics", "create", "--bootstrap-server", broker.bootstrapServers(),
@@ -143,9 +152,9 @@ class SecuredClusterIT {
     void theJobFoldsWhatTheClientLibraryReportsAndAuditVerifiesItsDecisions() throws Exception {
         assertEquals(0, topicsCreate().exitCode());
         int port = freePort();
-        Path key = Files.writeString(dir.resolve("signing.pem"), dev.runoff.records.Pem.write(
-                dev.runoff.records.Ed25519.generate("secured", new java.security.SecureRandom()).signing()));
-        Map<String, String> run = new java.util.LinkedHashMap<>(security);
+        Path key = Files.writeString(dir.resolve("signing.pem"), Pem.write(
+                Ed25519.generate("secured", new SecureRandom()).signing()));
+        Map<String, String> run = new LinkedHashMap<>(security);
         run.remove("sasl.jaas.config");
         run.put("bootstrap.servers", broker.bootstrapServers());
         run.put("application.id", "secured-job");
@@ -170,7 +179,7 @@ class SecuredClusterIT {
                                 StandardCharsets.UTF_8))).build();
                 int sent = 0;
                 for (int i = 0; i < UNITS; i++) {
-                    var served = table.assign(EXPERIMENT, "unit-" + i);
+                    ArmAssignment served = table.assign(EXPERIMENT, "unit-" + i);
                     sent += reporter.exposure(served, "exposure-" + i).isPresent() ? 1 : 0;
                     if (i % 3 == 0) {
                         reporter.outcome(served, "click-" + i, EventType.CLICK, null);
@@ -204,8 +213,8 @@ class SecuredClusterIT {
         int marker = docs.indexOf("<!-- secured-client-properties -->");
         assertTrue(marker >= 0, "operations.md has no secured-client-properties block");
         int open = docs.indexOf("```\n", marker) + 4;
-        java.util.Properties shown = new java.util.Properties();
-        shown.load(new java.io.StringReader(docs.substring(open, docs.indexOf("```", open))));
+        Properties shown = new Properties();
+        shown.load(new StringReader(docs.substring(open, docs.indexOf("```", open))));
         assertEquals(security.keySet(), shown.stringPropertyNames());
         for (String key : List.of("security.protocol", "sasl.mechanism", "ssl.truststore.type")) {
             assertEquals(security.get(key), shown.getProperty(key), key);
@@ -272,7 +281,7 @@ class SecuredClusterIT {
     }
 
     private static Optional<DecisionRecord> latest(List<DecisionRecord> records) {
-        return records.stream().max(java.util.Comparator.comparingLong(DecisionRecord::getSequence));
+        return records.stream().max(Comparator.comparingLong(DecisionRecord::getSequence));
     }
 
     private static long total(DecisionRecord d) {
@@ -326,10 +335,10 @@ class SecuredClusterIT {
     }
 
     private static Path properties(String name, Map<String, String> values) throws IOException {
-        java.util.Properties props = new java.util.Properties();
+        Properties props = new Properties();
         props.putAll(values);
         Path file = dir.resolve(name);
-        try (var out = Files.newBufferedWriter(file, StandardCharsets.UTF_8)) {
+        try (Writer out = Files.newBufferedWriter(file, StandardCharsets.UTF_8)) {
             props.store(out, null);
         }
         return file;
