@@ -33,13 +33,28 @@ class InformationDirectedTest {
     }
 
     @Test
-    void theSplitOfAPairFollowsThePosteriorVariancesOfTheMeans() {
-        // Beta(a, b) variance ab / ((a + b)^2 (a + b + 1)) (standard fact): Beta(11, 91) and Beta(31, 271).
-        double va = 11.0 * 91 / (102.0 * 102 * 103);
-        double vb = 31.0 * 271 / (302.0 * 302 * 303);
+    void rateArmsUseTheAuthorsCoinOnTheBernoulliGlrCost() {
+        // The selection coin of the authors' code (github.com/zihaophys/topk_colt23, algorithm.jl, "toss a
+        // biased optimized coin"): p_I d(mu_I, m) / (p_I d(mu_I, m) + p_J d(mu_J, m)), m the p-weighted mean,
+        // d the Bernoulli KL. Beta(11, 91) and Beta(31, 271): means 11/102 and 31/302, counts 102 and 302,
+        // m = 42/404; KL written out here.
+        double m = 42.0 / 404;
+        double cx = 102 * kl(11.0 / 102, m);
+        double cy = 302 * kl(31.0 / 302, m);
         List<Posterior> ps = List.of(new BetaPosterior(11, 91), new BetaPosterior(31, 271));
-        assertArrayEquals(new double[] {va / (va + vb), vb / (va + vb)},
+        assertArrayEquals(new double[] {cx / (cx + cy), cy / (cx + cy)},
                 InformationDirected.weights(ps, new double[] {0.3, 0.7}), 1e-12);
+    }
+
+    @Test
+    void equalMeansTakeTheLimitOfTheCoin() {
+        // Both parts of the cost are 0; the limit as the means meet is p_J / (p_I + p_J) = 80 / 120.
+        assertEquals(80.0 / 120, InformationDirected.pairShare(new BetaPosterior(10, 30), new BetaPosterior(20, 60)),
+                1e-15);
+    }
+
+    private static double kl(double p, double q) {
+        return p * Math.log(p / q) + (1 - p) * Math.log((1 - p) / (1 - q));
     }
 
     @Test
