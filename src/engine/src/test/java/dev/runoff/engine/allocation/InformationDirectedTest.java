@@ -47,6 +47,19 @@ class InformationDirectedTest {
     }
 
     @Test
+    void forTwoRateArmsTheCoinKeepsTheOptimalAllocationInPlace() {
+        // Two Bernoulli arms: w* of Garivier & Kaufmann (2016) maximises w_1 d(mu_1, m) + w_2 d(mu_2, m), so
+        // (envelope theorem) d(mu_1, m) = d(mu_2, m) there, and the coin measures arm 1 with probability w_1:
+        // the allocation is a fixed point. Counts 10^6 w*, posterior means exactly 0.12 and 0.1.
+        double[] w = OptimalAllocation.optimal(ArmModel.bernoulli(0.12, 0.1)).weights();
+        double n1 = 1e6 * w[0];
+        double n2 = 1e6 * w[1];
+        double share = InformationDirected.pairShare(new BetaPosterior(0.12 * n1, 0.88 * n1),
+                new BetaPosterior(0.1 * n2, 0.9 * n2));
+        assertEquals(w[0], share, 1e-6, "w* = " + java.util.Arrays.toString(w));
+    }
+
+    @Test
     void equalMeansTakeTheLimitOfTheCoin() {
         // Both parts of the cost are 0; the limit as the means meet is p_J / (p_I + p_J) = 80 / 120.
         assertEquals(80.0 / 120, InformationDirected.pairShare(new BetaPosterior(10, 30), new BetaPosterior(20, 60)),
