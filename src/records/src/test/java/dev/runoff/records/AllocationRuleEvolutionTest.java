@@ -5,16 +5,9 @@ import static org.junit.jupiter.api.Assertions.assertSame;
 
 import dev.runoff.records.avro.AllocationRule;
 import dev.runoff.records.avro.ExperimentDefinition;
-import java.io.ByteArrayOutputStream;
 import java.util.ArrayList;
 import java.util.List;
 import org.apache.avro.Schema;
-import org.apache.avro.generic.GenericData;
-import org.apache.avro.generic.GenericDatumReader;
-import org.apache.avro.generic.GenericDatumWriter;
-import org.apache.avro.io.BinaryEncoder;
-import org.apache.avro.io.DecoderFactory;
-import org.apache.avro.io.EncoderFactory;
 import org.junit.jupiter.api.Test;
 
 /**
@@ -37,15 +30,7 @@ class AllocationRuleEvolutionTest {
         Schema reader = AllocationRule.getClassSchema();
         List<String> symbols = new ArrayList<>(reader.getEnumSymbols());
         symbols.add("SOME_LATER_RULE");
-        Schema writer = Schema.createEnum(reader.getName(), reader.getDoc(), reader.getNamespace(), symbols,
-                "TOP_TWO_THOMPSON");
-        ByteArrayOutputStream bytes = new ByteArrayOutputStream();
-        BinaryEncoder encoder = EncoderFactory.get().binaryEncoder(bytes, null);
-        new GenericDatumWriter<Object>(writer).write(new GenericData.EnumSymbol(writer, "SOME_LATER_RULE"), encoder);
-        encoder.flush();
-        Object read = new GenericDatumReader<Object>(writer, reader)
-                .read(null, DecoderFactory.get().binaryDecoder(bytes.toByteArray(), null));
-        assertEquals("TOP_TWO_THOMPSON", read.toString());
+        assertEquals("TOP_TWO_THOMPSON", EnumResolution.read(reader, symbols, "TOP_TWO_THOMPSON", "SOME_LATER_RULE"));
     }
 
     @Test
