@@ -32,7 +32,8 @@ record PlanFigures(ArmModel arms, double delta, double epsilon, AllocationMethod
         ArmModel model = arms;
         TargetAllocation uniform = OptimalAllocation.uniform(model);
         TargetAllocation target = rule == AllocationMethod.UNIFORM ? uniform
-                : beta > 0 && beta < 1 ? OptimalAllocation.betaOptimal(model, beta) : null;
+                : rule != AllocationMethod.TOP_TWO_ADAPTIVE && beta > 0 && beta < 1
+                        ? OptimalAllocation.betaOptimal(model, beta) : null;
         return new PlanFigures(arms, delta, epsilon, rule, beta, OptimalAllocation.optimal(model), target, uniform);
     }
 

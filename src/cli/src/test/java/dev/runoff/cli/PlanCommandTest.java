@@ -113,6 +113,16 @@ class PlanCommandTest {
     }
 
     @Test
+    void theAdaptiveLeaderShareIsSimulatedWithoutABetaOptimalColumn() {
+        EvaluateCommandTest.Run r = run(small("--rule", "top-two-adaptive"));
+        assertEquals(0, r.exitCode(), r.err());
+        List<String> lines = r.out().lines().toList();
+        assertTrue(lines.stream().anyMatch(l -> l.matches("arm +rate +optimal +uniform")), r.out());
+        assertFalse(r.out().contains("beta-optimal"), r.out());
+        assertTrue(lines.stream().anyMatch(l -> l.matches(" +top-two-adaptive +uniform")), r.out());
+    }
+
+    @Test
     void defaultBudgetIsTwentyTimesThePredictedTrialsForSmallDelta() throws Exception {
         JsonNode root = json(run("plan", "--rates", "0.7,0.4,0.3", "--delta", "0.01", "--simulate", "1", "--json"));
         assertEquals(20 * root.get("predictedTrials").asLong(), root.get("simulation").get("budgetTrials").asLong());

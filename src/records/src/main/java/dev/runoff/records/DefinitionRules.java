@@ -65,8 +65,8 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
             if (!bernoulli) {
                 problems.add("prior", Reason.INCONSISTENT, "a Beta prior (a, b) needs kind BERNOULLI");
             }
-            problems.positive("prior.a", beta.getA());
-            problems.positive("prior.b", beta.getB());
+            atLeastShape("prior.a", beta.getA(), problems);
+            atLeastShape("prior.b", beta.getB(), problems);
         } else if (prior instanceof NormalGammaPriorSpec normalGamma) {
             if (bernoulli) {
                 problems.add("prior", Reason.INCONSISTENT,
@@ -75,6 +75,14 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
             problems.positive("prior.kappa0", normalGamma.getKappa0());
             problems.positive("prior.alpha0", normalGamma.getAlpha0());
             problems.positive("prior.beta0", normalGamma.getBeta0());
+        }
+    }
+
+    /** A Beta prior shape of at least {@link Definitions#MIN_BETA_PRIOR_SHAPE} (NaN fails). */
+    private static void atLeastShape(String field, double shape, Problems problems) {
+        if (!(shape >= Definitions.MIN_BETA_PRIOR_SHAPE)) {
+            problems.add(field, Reason.OUT_OF_RANGE, "must be >= " + Definitions.MIN_BETA_PRIOR_SHAPE
+                    + " (smaller Beta shapes lose probability mass in the exact P(best) integration), got " + shape);
         }
     }
 

@@ -63,7 +63,12 @@ class DefinitionValidationTest {
                         d -> d.getMetric().setPrior(new NormalGammaPriorSpec(0.0, 1.0, 1.0, 1.0)), "metric.prior",
                         Reason.INCONSISTENT, "needs kind VALUE"),
                 broken("negative prior parameter", d -> d.getMetric().setPrior(new BetaParams(-1.0, 1.0)),
-                        "metric.prior.a", Reason.OUT_OF_RANGE, "must be > 0, got -1.0"),
+                        "metric.prior.a", Reason.OUT_OF_RANGE, "must be >= 0.03"),
+                // the shape floor: exact integration loses mass below 0.03 (measured on main, issue 14)
+                broken("prior shape below the integration floor",
+                        d -> d.getMetric().setPrior(new BetaParams(1.0, 0.029)), "metric.prior.b",
+                        Reason.OUT_OF_RANGE, "must be >= 0.03 (smaller Beta shapes lose probability mass in the "
+                                + "exact P(best) integration), got 0.029"),
                 broken("expected improvement on a bernoulli metric",
                         d -> d.getAllocation().setRule(AllocationRule.TOP_TWO_EI), "allocation.rule",
                         Reason.INCONSISTENT, "TOP_TWO_EI needs metric.kind VALUE"),
@@ -126,6 +131,13 @@ class DefinitionValidationTest {
         assertSame(def, Definitions.validate(def, Samples.NOW).orThrow());
         ExperimentDefinition value = Samples.valueMetric();
         assertSame(value, Definitions.validate(value, Samples.NOW).orThrow());
+    }
+
+    @Test
+    void aBetaPriorAtTheShapeFloorIsAccepted() {
+        ExperimentDefinition def = Samples.bernoulli();
+        def.getMetric().setPrior(new BetaParams(Definitions.MIN_BETA_PRIOR_SHAPE, Definitions.MIN_BETA_PRIOR_SHAPE));
+        assertSame(def, Definitions.validate(def, Samples.NOW).orThrow());
     }
 
     @Test

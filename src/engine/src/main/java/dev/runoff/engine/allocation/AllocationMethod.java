@@ -1,8 +1,6 @@
 package dev.runoff.engine.allocation;
 
 import dev.runoff.engine.core.Names;
-
-
 import dev.runoff.engine.posterior.Posterior;
 import java.util.Arrays;
 import java.util.List;
@@ -19,7 +17,12 @@ public enum AllocationMethod {
     /** Top-two expected improvement ({@link TopTwo#expectedImprovement}). */
     TOP_TWO_EI(true, (posteriors, alpha, beta) -> TopTwo.expectedImprovement(posteriors, beta)),
     /** Equal weights. */
-    UNIFORM(false, (posteriors, alpha, beta) -> TopTwo.uniform(posteriors.size()));
+    UNIFORM(false, (posteriors, alpha, beta) -> TopTwo.uniform(posteriors.size())),
+    /**
+     * Top-two Thompson sampling whose leader share adapts to the pair ({@link InformationDirected}); beta is
+     * ignored.
+     */
+    TOP_TWO_ADAPTIVE(false, (posteriors, alpha, beta) -> InformationDirected.weights(posteriors, alpha));
 
     private final boolean needsMeans;
     private final Formula formula;
@@ -34,7 +37,7 @@ public enum AllocationMethod {
      *
      * @param posteriors each arm's posterior
      * @param alpha      probability that each arm is best, in the same order
-     * @param beta       share of the leader, in [0, 1] (ignored by {@link #UNIFORM})
+     * @param beta       share of the leader, in [0, 1] (ignored by {@link #UNIFORM} and {@link #TOP_TWO_ADAPTIVE})
      */
     public double[] weights(List<? extends Posterior> posteriors, double[] alpha, double beta) {
         return formula.weights(posteriors, alpha, beta);

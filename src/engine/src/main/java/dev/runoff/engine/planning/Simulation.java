@@ -119,6 +119,47 @@ public final class Simulation {
         return rows;
     }
 
+    /**
+     * Runs each allocation rule on the same replication seeds with the configured engine and stopping rule
+     * (the engine's own rule is replaced), with no uniform baseline. Run i of every rule starts from the same
+     * seed and, as the n-th outcome of an arm does not depend on the rule, sees the same outcomes: the
+     * comparison is paired run by run.
+     *
+     * @param config      what to simulate
+     * @param rules       the allocation rules, at least one
+     * @param parallelism number of threads, {@code >= 1}
+     * @return per rule, in the order given, its runs in replication order
+     */
+    public static List<List<SimulationRun>> pairedRuns(SimulationConfig config, List<AllocationMethod> rules,
+                                                       int parallelism) {
+        Objects.requireNonNull(config, "config");
+        if (rules.isEmpty() || parallelism < 1) {
+            throw new IllegalArgumentException("need at least one allocation rule and one thread, got "
+                    + rules.size() + " rules and " + parallelism + " threads");
+        }
+        ExecutorService pool = Executors.newFixedThreadPool(parallelism, daemonThreads());
+        try {
+            Submitter submit = new Submitter(pool, SimulationProgress.NONE, config.replications() * rules.size());
+            List<List<CompletableFuture<SimulationRun>>> futures = new ArrayList<>();
+            for (AllocationMethod rule : rules) {
+                SimulationReplication replication = new SimulationReplication(config, config.engine().withRule(rule));
+                List<CompletableFuture<SimulationRun>> runs = new ArrayList<>();
+                for (int r = 0; r < config.replications(); r++) {
+                    runs.add(submit.run(replication, replicationSeed(config.seed(), r)));
+                }
+                futures.add(runs);
+            }
+            List<CompletableFuture<SimulationRun>> all = futures.stream().flatMap(List::stream).toList();
+            List<List<SimulationRun>> out = new ArrayList<>();
+            for (List<CompletableFuture<SimulationRun>> runs : futures) {
+                out.add(joinAll(runs, all));
+            }
+            return out;
+        } finally {
+            pool.shutdownNow();
+        }
+    }
+
     /** {@link #compare(SimulationConfig, List, Executor, SimulationProgress)} on a pool of daemon threads. */
     public static List<StoppingComparison> compare(SimulationConfig config, List<Rule> rules, int parallelism,
                                                    SimulationProgress progress) {

@@ -187,7 +187,7 @@ class TopTwoTest {
             assertEquals(r, AllocationMethod.fromCliName(r.cliName()));
         }
         assertMessage("unknown rule 'thompson', expected one of top-two-thompson, top-two-probability, "
-                + "top-two-value, top-two-ei, uniform", () -> AllocationMethod.fromCliName("thompson"));
+                + "top-two-value, top-two-ei, uniform, top-two-adaptive", () -> AllocationMethod.fromCliName("thompson"));
     }
 
     private static void assertMessage(String expected, Runnable call) {

@@ -99,6 +99,19 @@ class SimulationTest {
     }
 
     @Test
+    void pairedRunsGiveEachRuleTheRunsItHasOnTheSameSeeds() {
+        SimulationConfig c = small(5, 9L);
+        SimulationResult alone = Simulation.run(c, 2, SimulationProgress.NONE);
+        List<List<SimulationRun>> paired = Simulation.pairedRuns(c,
+                List.of(AllocationMethod.UNIFORM, AllocationMethod.TOP_TWO_THOMPSON), 2);
+        assertEquals(alone.baselineRuns(), paired.get(0));
+        assertEquals(alone.ruleRuns(), paired.get(1));
+        assertEquals("need at least one allocation rule and one thread, got 0 rules and 2 threads",
+                assertThrows(IllegalArgumentException.class, () -> Simulation.pairedRuns(c, List.of(), 2))
+                        .getMessage());
+    }
+
+    @Test
     void uniformRuleIsItsOwnBaseline() {
         SimulationConfig c = config(THREE, MONTE_CARLO.withRule(AllocationMethod.UNIFORM),
                 StoppingConfig.glr(0.05).withBudgetTrials(5000), 10, 4, 4L);

@@ -31,15 +31,18 @@ class StoppingErrorSimulationTest {
     void glrRuleIsDeltaCorrectOnCloseArms() {
         // Garivier & Kaufmann (2016), section 3: with the threshold log(2t(K-1)/delta) the GLR rule picks a wrong
         // arm with probability at most delta, whatever the sampling rule; checking it only every 100 trials can
-        // only lower that. Close arms (0.5 and 0.45) at delta = 0.1, 400 runs. The engine samples the two arms
-        // uniformly, which for two arms is exactly what top-two Thompson sampling with beta 1/2 does too; alpha
-        // then only matters for budget stops (there are none), so one Monte Carlo draw keeps the test fast.
+        // only lower that. Close arms (0.45 and 0.5) at delta = 0.1, 400 runs. The best arm comes last, so that
+        // a rule stopping before any evidence (which names arm 0 on ties) is caught: a broken rule that stops at
+        // once naming arm 0 got 400 of 400 runs wrong here, and 0 of 400 with the best arm first (tried by hand,
+        // issue 14). The engine samples the two arms uniformly, which for two arms is
+        // exactly what top-two Thompson sampling with beta 1/2 does too; alpha then only matters for budget
+        // stops (there are none), so one Monte Carlo draw keeps the test fast.
         EngineConfig engine = EngineConfig.defaults(Metric.BERNOULLI).withRule(AllocationMethod.UNIFORM)
                 .withMethod(EngineConfig.MethodChoice.MONTE_CARLO).withDraws(1);
-        SimulationConfig c = new SimulationConfig(ArmModel.bernoulli(0.5, 0.45), engine,
+        SimulationConfig c = new SimulationConfig(ArmModel.bernoulli(0.45, 0.5), engine,
                 StoppingConfig.glr(DELTA).withBudgetTrials(1_000_000), 100, 400, 77L, 0.0);
         SimulationSummary s = Simulation.run(c, 2, SimulationProgress.NONE).rule();
-        System.out.println("GLR, rates 0.5 and 0.45, delta 0.1: " + s);
+        System.out.println("GLR, rates 0.45 and 0.5, delta 0.1: " + s);
         assertEquals(0, s.budgetStops(), s.toString());
         assertTrue(lowerBound(s.errors(), s.replications()) <= DELTA, s.toString());
     }
