@@ -56,14 +56,14 @@ class DemoCommandIT {
         assertEquals(trials, summary.get("trials").asLong());
 
         // the visitors, served through the client library: about a third of the visits by returning visitors
-        // (the generator draws a return with probability 1/3: 6 binomial standard errors), none of them shown
-        // another layout while theirs had weight (counted from what the client served), and the visitors still
-        // pending at the STOP as the STOP record says
+        // (the generator draws a return with probability 1/3: 6 binomial standard errors), and the visitors still
+        // pending at the STOP as the STOP record says. (Returning visitors shown another layout while theirs had
+        // weight are not checked here: with two layouts top-two sampling at beta 1/2 publishes 1/2 each until
+        // the STOP, so nobody could move; ReturningUnitsKeepTheirArmAndCountOnceIT checks it on three arms.)
         long visits = summary.get("visits").asLong();
         long returning = summary.get("returningVisits").asLong();
         assertEquals(visits - returning, summary.get("visitorsSent").asLong(), summary.toString());
         assertEquals(1.0 / 3, returning / (double) visits, 6 * Math.sqrt((2.0 / 9) / visits), summary.toString());
-        assertEquals(0, summary.get("switchedWhileWeighted").asLong(), summary.toString());
         assertTrue(summary.get("bookingsSent").asLong() > 0, summary.toString());
         long pending = 0;
         for (JsonNode arm : lastPeriod.get("arms")) {
