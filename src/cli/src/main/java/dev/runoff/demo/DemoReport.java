@@ -15,8 +15,9 @@ import java.util.Locale;
 
 /**
  * What the demo shows: per decision, each arm's counted visitors, pending visitors (booking window still open),
- * bookings, observed rate, P(best) and weight (number and bar) with the decision; at the end, the summary. As tables for a terminal, or as JSON lines
- * ({@code "type":"period"} then one {@code "type":"summary"}) for scripts.
+ * bookings, observed rate, P(best) and weight (number and bar) with the decision; at the end, the summary. As
+ * tables for a terminal, or as JSON lines ({@code "type":"period"} then one {@code "type":"summary"}) for
+ * scripts.
  */
 final class DemoReport {
 
