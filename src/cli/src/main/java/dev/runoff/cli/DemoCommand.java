@@ -43,8 +43,9 @@ final class DemoCommand implements Callable<Integer> {
     @Option(names = "--arms", defaultValue = "5", paramLabel = "N", description = "Layouts in play, 2 to 5 (default: ${DEFAULT-VALUE}).")
     private int arms;
 
-    @Option(names = "--visitors", defaultValue = "2000", paramLabel = "N",
-            description = "Visitors per period: more visitors, fewer periods (default: ${DEFAULT-VALUE}).")
+    @Option(names = "--visitors", defaultValue = "3000", paramLabel = "N",
+            description = "Visits per period, about a third by returning visitors: more visits, fewer periods"
+                    + " (default: ${DEFAULT-VALUE}).")
     private int visitors;
 
     @Option(names = "--period-ms", defaultValue = "1000", paramLabel = "MS",

@@ -9,6 +9,7 @@ import dev.runoff.job.TopicCreator;
 import dev.runoff.job.TopicSpec;
 
 import dev.runoff.broker.EmbeddedKafkaBroker;
+import dev.runoff.client.UnitPseudonymizer;
 import dev.runoff.engine.planning.SimulationResult;
 import dev.runoff.records.CanonicalJson;
 import dev.runoff.records.Format;
@@ -17,8 +18,6 @@ import dev.runoff.records.HashChain;
 import dev.runoff.records.Pem;
 import dev.runoff.records.RecordSigner;
 import dev.runoff.records.VerificationKey;
-import dev.runoff.records.avro.AllocationUpdate;
-import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.ExperimentDefinition;
 import java.io.IOException;
@@ -37,14 +36,16 @@ import java.util.List;
 import java.util.Map;
 import java.util.Optional;
 import java.util.stream.Stream;
+import org.apache.commons.rng.simple.RandomSource;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.streams.KafkaStreams;
 import org.apache.kafka.streams.StreamsConfig;
 
 /**
  * The zero-set-up demo: an in-JVM single-node Kafka broker under a temporary directory (deleted at the end),
- * the job's topics, the job itself, the ferry scenario's experiment, and synthetic visitors drawn from the
- * weights the job publishes, period after period, until the job decides STOP (or the budget ends it).
+ * the job's topics, the job itself, the ferry scenario's experiment, and synthetic visitors (a third of them
+ * returning) served through the client library from the weights the job publishes, with bookings that come
+ * after a delay, until the job decides STOP (or the budget ends it).
  * Everything is closed in reverse order at the end, or by a shutdown hook on Ctrl-C.
  */
 public final class Demo {
@@ -52,6 +53,14 @@ public final class Demo {
     /** Partitions of the demo's topics (two, so the job's repartitioning is exercised). */
     static final int PARTITIONS = 2;
     private static final Duration START_TIMEOUT = Duration.ofSeconds(90);
+    /** Slices of visits per recompute period: visitors arrive spread over time, not in one burst. */
+    static final int SLICES = 10;
+    /** The job's application id, also its consumer group. */
+    private static final String APPLICATION_ID = "runoff-demo";
+    /** How far, in slices of visits, the job may fall behind its input before the visitors pause. */
+    private static final long LAG_SLICES = 2;
+    /** Longest wait for a decision between two sends of due bookings. */
+    private static final long DECISION_POLL_MS = 20;
     /** How long the summary waits for an unfinished planner simulation after the STOP. */
     static final Duration SIMULATION_PATIENCE = Duration.ofSeconds(5);
 
@@ -109,8 +118,8 @@ public final class Demo {
         DemoScenario scenario = new DemoScenario(options.arms());
         ExperimentDefinition definition = scenario.definition(options.periodMs(), options.budget(), options.delta(),
                 options.warmUp());
-        DemoSimulation simulation = closer.register(DemoSimulation.start(definition, scenario.rates(),
-                options.visitorsPerPeriod(), options.seed()));
+        DemoSimulation simulation = closer.register(DemoSimulation.start(definition, scenario.countedRates(),
+                (int) options.newVisitorsPerPeriod(), options.seed()));
         JobConfig config = startCluster();
         StreamsJob job = closer.register(StreamsJob.start(config, RecordSigner.with(keys.signing())));
         Waiting.until("the job reaching RUNNING", START_TIMEOUT, () -> {
@@ -124,15 +133,29 @@ public final class Demo {
         new DefinitionsClient(config, Duration.ofSeconds(30)).put(definition, Format.AVRO);
         report.note("experiment " + DemoScenario.EXPERIMENT_ID + ": a ferry operator's booking page tests "
                 + scenario.layouts().size() + " fare-table layouts " + scenario.layouts()
-                + "; true booking rates hidden");
+                + "; true booking rates hidden; a third of the visits are by returning visitors, served through the"
+                + " client library (sticky layouts); bookings come after a delay, counted within a "
+                + DemoScenario.CONVERSION_WINDOW_MS + " ms window");
         // until the job validates the experiment's events, it would reject the first visitors as unknown
         Waiting.until("the job accepting the demo experiment", START_TIMEOUT,
                 () -> job.accepts(DemoScenario.EXPERIMENT_ID));
         DemoFeed feed = closer.register(new DemoFeed(config, DemoScenario.EXPERIMENT_ID, clock));
-        TrafficGenerator visitors = new TrafficGenerator(DemoScenario.EXPERIMENT_ID, scenario.layouts(),
-                scenario.rates(), options.seed());
-        List<DecisionRecord> records = loop(feed, visitors, scenario);
-        return finish(records, visitors, scenario, config, simulation.await(SIMULATION_PATIENCE).orElse(null));
+        TrafficGenerator visitors = new TrafficGenerator(scenario.rates(), DemoScenario.RETURNING_SHARE,
+                DemoScenario.BOOKING_DELAY_MEAN_MS, options.seed());
+        DemoServingTier serving = closer.register(new DemoServingTier(config, DemoScenario.EXPERIMENT_ID,
+                scenario.layouts(), visitors, clock, pseudonymKey(options.seed())));
+        Waiting.until("weights for " + DemoScenario.EXPERIMENT_ID + " in the serving tier's table", START_TIMEOUT,
+                serving::ready);
+        JobLag lag = closer.register(new JobLag(config, APPLICATION_ID));
+        List<DecisionRecord> records = loop(feed, serving, lag);
+        return finish(records, visitors, serving, scenario, config, simulation.await(SIMULATION_PATIENCE).orElse(null));
+    }
+
+    /** The key of the demo's unit pseudonyms, drawn from the run's seed. */
+    private static byte[] pseudonymKey(long seed) {
+        byte[] key = new byte[UnitPseudonymizer.MIN_KEY_BYTES];
+        RandomSource.SPLIT_MIX_64.create(seed).nextBytes(key);
+        return key;
     }
 
     private JobConfig startCluster() {
@@ -156,7 +179,7 @@ public final class Demo {
     private Map<String, String> demoSettings(String bootstrap, Path stateDir) {
         Map<String, String> s = new LinkedHashMap<>();
         s.put(StreamsConfig.BOOTSTRAP_SERVERS_CONFIG, bootstrap);
-        s.put(StreamsConfig.APPLICATION_ID_CONFIG, "runoff-demo");
+        s.put(StreamsConfig.APPLICATION_ID_CONFIG, APPLICATION_ID);
         s.put(StreamsConfig.STATE_DIR_CONFIG, stateDir.toString());
         s.put(StreamsConfig.NUM_STREAM_THREADS_CONFIG, "1");
         s.put(StreamsConfig.COMMIT_INTERVAL_MS_CONFIG, "100");
@@ -170,46 +193,49 @@ public final class Demo {
     }
 
     /**
-     * Sends one batch of visitors drawn from the weights of the latest decision, then reads decisions until the
-     * job has counted every visitor sent, so that each batch follows the weights in force when it was served
-     * and is folded before the next one is drawn (the audit's sample-ratio check relies on it).
+     * Serves the visits spread over time, {@link #SLICES} slices per recompute period, sends each booking when
+     * its delay has passed, and reads the decisions as they come, until a STOP or the time limit. Serving does
+     * not wait for decisions: visits follow whatever weights the serving tier's table holds, as in production,
+     * so at any decision the latest visitors are still pending (their booking windows open). Only when the job's
+     * consumers fall behind their input by more than {@link #LAG_SLICES} slices of visits (a loaded machine) do
+     * the visitors pause until it catches up: the job closes booking windows on its wall clock, so a backlog
+     * longer than the window would turn bookings made in time into {@code late-outcome} rejections.
      */
-    private List<DecisionRecord> loop(DemoFeed feed, TrafficGenerator visitors, DemoScenario scenario)
+    private List<DecisionRecord> loop(DemoFeed feed, DemoServingTier serving, JobLag lag)
             throws InterruptedException {
-        AllocationUpdate control = feed.awaitControl(START_TIMEOUT);
         long began = clock.millis();
         long deadline = began + options.maxMs();
-        Duration wait = Duration.ofMillis(options.periodMs() * 3 + 5_000);
+        long sliceMs = options.periodMs() / SLICES;
+        long allowance = LAG_SLICES * options.visitsPerPeriod() / SLICES;
         List<DecisionRecord> records = new ArrayList<>();
+        long nextSlice = began;
+        long slice = 0;
         while (clock.millis() < deadline) {
-            long decided = records.isEmpty() ? 0 : records.get(records.size() - 1).getSequence();
-            control = Optional.ofNullable(feed.awaitControl(decided, wait)).orElse(control);
-            feed.send(visitors.next(options.visitorsPerPeriod(), DemoFeed.weights(control, scenario.layouts()),
-                    clock.millis()));
-            while (clock.millis() < deadline) {
-                DecisionRecord d = feed.nextDecision(wait);
-                if (d == null) {
-                    break;
+            long now = clock.millis();
+            if (now >= nextSlice) {
+                if (lag.records() <= allowance) {
+                    slice++;
+                    serving.serve((int) (options.visitsPerPeriod() * slice / SLICES
+                            - options.visitsPerPeriod() * (slice - 1) / SLICES));
                 }
+                nextSlice = Math.max(nextSlice + sliceMs, now);
+            }
+            serving.sendDue();
+            DecisionRecord d = feed.nextDecision(Duration.ofMillis(Math.max(1, Math.min(DECISION_POLL_MS,
+                    nextSlice - clock.millis()))));
+            if (d != null) {
                 records.add(d);
                 report.period(records.size(), clock.millis() - began, d);
                 if ("STOP".equals(d.getDecision().name())) {
                     return records;
-                }
-                if (counted(d) >= visitors.visitors()) {
-                    break;
                 }
             }
         }
         return records;
     }
 
-    private static long counted(DecisionRecord d) {
-        return d.getArms().stream().mapToLong(ArmState::getTrials).sum();
-    }
-
-    private DemoSummary finish(List<DecisionRecord> records, TrafficGenerator visitors, DemoScenario scenario,
-                               JobConfig config, SimulationResult simulated) {
+    private DemoSummary finish(List<DecisionRecord> records, TrafficGenerator visitors, DemoServingTier serving,
+                               DemoScenario scenario, JobConfig config, SimulationResult simulated) {
         DecisionRecord last = records.isEmpty() ? null : records.get(records.size() - 1);
         long elapsed = last == null ? 0 : last.getStreamTime() - records.get(0).getStreamTime();
         boolean intact = HashChain.firstBreak(records).isEmpty();
@@ -221,8 +247,11 @@ public final class Demo {
             report.note("decision records signed with this run's key '" + KEY_ID + "'; check them with: java -jar target/runoff.jar audit "
                     + "verify --file " + exported + " --public-key " + publicKey);
         }
-        double[] predicted = DemoSummary.predictions(scenario.rates(), options.delta());
-        DemoSummary summary = new DemoSummary(last, records.size(), elapsed, visitors.visitors(), scenario.trueBest(),
+        double[] predicted = DemoSummary.predictions(scenario.countedRates(), options.delta());
+        DemoSummary.Traffic traffic = new DemoSummary.Traffic(visitors.visitors(), visitors.visits(),
+                visitors.returningVisits(), serving.switchedWhileWeighted(), serving.keptPicks(),
+                serving.bookingsSent());
+        DemoSummary summary = new DemoSummary(last, records.size(), elapsed, traffic, scenario.trueBest(),
                 scenario.rates(), predicted[0], predicted[1], predicted[2], simulated, intact, config.topology().decisionsTopic(),
                 exported);
         report.summary(summary, options);

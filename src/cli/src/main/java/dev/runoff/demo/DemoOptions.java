@@ -9,7 +9,7 @@ import java.nio.file.Path;
  *
  * @param seed              seed of the traffic generator
  * @param arms              layouts in play, 2 to {@link DemoScenario#MAX_ARMS}
- * @param visitorsPerPeriod visitors generated between two decisions
+ * @param visitsPerPeriod   visits served per recompute period, about a third by returning visitors
  * @param periodMs          how often the job recomputes the weights (the definition's recomputePeriodMs)
  * @param delta             error probability of the stopping rule
  * @param budget            trial budget of the experiment
@@ -19,7 +19,7 @@ import java.nio.file.Path;
  * @param exportDecisions   file for the decision records as JSON lines, or {@code null}
  * @param json              JSON lines on standard output instead of tables
  */
-public record DemoOptions(long seed, int arms, int visitorsPerPeriod, long periodMs, double delta, long budget,
+public record DemoOptions(long seed, int arms, int visitsPerPeriod, long periodMs, double delta, long budget,
                           long warmUp, long maxMs, int httpPort, Path exportDecisions, boolean json) {
 
     /** Checks every setting; the message names the option and the value. */
@@ -27,7 +27,7 @@ public record DemoOptions(long seed, int arms, int visitorsPerPeriod, long perio
         if (arms < 2 || arms > DemoScenario.MAX_ARMS) {
             throw new IllegalArgumentException("--arms must be in [2, " + DemoScenario.MAX_ARMS + "], got " + arms);
         }
-        positive("--visitors", visitorsPerPeriod);
+        positive("--visitors", visitsPerPeriod);
         if (periodMs < Definitions.MIN_RECOMPUTE_PERIOD_MS) {
             throw new IllegalArgumentException("--period-ms must be >= " + Definitions.MIN_RECOMPUTE_PERIOD_MS
                     + " (the shortest recomputePeriodMs a definition may have), got " + periodMs);
@@ -44,6 +44,11 @@ public record DemoOptions(long seed, int arms, int visitorsPerPeriod, long perio
         if (httpPort < 0 || httpPort > 65_535) {
             throw new IllegalArgumentException("--http-port must be in [0, 65535], got " + httpPort);
         }
+    }
+
+    /** The new visitors expected per period: the visits less the returning share. */
+    public long newVisitorsPerPeriod() {
+        return Math.max(1, Math.round(visitsPerPeriod * (1 - DemoScenario.RETURNING_SHARE)));
     }
 
     private static void positive(String option, long value) {

@@ -14,9 +14,10 @@ import java.util.List;
 import java.util.Locale;
 
 /**
- * What the demo shows: per decision, each arm's trials, bookings, observed rate, P(best) and weight (number
- * and bar) with the decision; at the end, the summary. As tables for a terminal, or as JSON lines
- * ({@code "type":"period"} then one {@code "type":"summary"}) for scripts.
+ * What the demo shows: per decision, each arm's counted visitors, pending visitors (booking window still open),
+ * bookings, observed rate, P(best) and weight (number and bar) with the decision; at the end, the summary. As
+ * tables for a terminal, or as JSON lines ({@code "type":"period"} then one {@code "type":"summary"}) for
+ * scripts.
  */
 final class DemoReport {
 
@@ -63,20 +64,21 @@ final class DemoReport {
             line.put("threshold", d.getThreshold());
             ArrayNode arms = line.putArray("arms");
             for (ArmState a : d.getArms()) {
-                arms.addObject().put("arm", a.getArm()).put("trials", a.getTrials())
+                arms.addObject().put("arm", a.getArm()).put("trials", a.getTrials()).put("pending", a.getPending())
                         .put("successes", a.getSuccesses()).put("pBest", a.getAlpha()).put("weight", a.getWeight());
             }
             print(line);
             return;
         }
         out.printf(Locale.ROOT, "%nperiod %d  %.1f s  %s%n", period, elapsedMs / 1000.0, decision(d));
-        out.printf(Locale.ROOT, "  %-16s %9s %9s %7s %8s  %s%n", "layout", "visitors", "bookings", "rate", "P(best)",
-                "weight");
+        out.printf(Locale.ROOT, "  %-16s %9s %8s %9s %7s %8s  %s%n", "layout", "visitors", "pending", "bookings",
+                "rate", "P(best)", "weight");
         for (ArmState a : d.getArms()) {
             long s = a.getSuccesses() == null ? 0 : a.getSuccesses();
             String rate = a.getTrials() == 0 ? "-" : String.format(Locale.ROOT, "%.2f%%", 100.0 * s / a.getTrials());
-            out.printf(Locale.ROOT, "  %-16s %,9d %,9d %7s %8.4f  %5.3f %s%n", a.getArm(), a.getTrials(), s, rate,
-                    a.getAlpha(), a.getWeight(), bar(a.getWeight(), blocks));
+            long pending = a.getPending() == null ? 0 : a.getPending();
+            out.printf(Locale.ROOT, "  %-16s %,9d %,8d %,9d %7s %8.4f  %5.3f %s%n", a.getArm(), a.getTrials(), pending,
+                    s, rate, a.getAlpha(), a.getWeight(), bar(a.getWeight(), blocks));
         }
         out.flush();
     }
@@ -102,6 +104,7 @@ final class DemoReport {
         out.printf(Locale.ROOT, "  traffic spent: %,d visitors counted at the last decision (%,d sent)%s%n", s.trials(),
                 s.visitorsSent(), s.stopped() ? String.format(Locale.ROOT, ", %,d (%.0f%%) of them on %s",
                         s.winnerTrials(), 100.0 * s.winnerTrials() / Math.max(1, s.trials()), s.winner()) : "");
+        traffic(s);
         simulated(s, o);
         out.printf(Locale.ROOT, "  asymptotic leading term T*(w) log(1/delta) (Garivier & Kaufmann 2016; below what a"
                 + " finite delta needs): uniform %,.0f; optimal %,.0f; top-two target (beta 1/2) %,.0f%n",
@@ -111,6 +114,18 @@ final class DemoReport {
                         ? "; the demo broker is deleted at exit (--export-decisions FILE keeps them)"
                         : ", exported to " + s.exported());
         out.flush();
+    }
+
+    /** Who came, who came back and what they saw, and what the last decision did not know yet. */
+    private void traffic(DemoSummary s) {
+        DemoSummary.Traffic t = s.traffic();
+        out.printf(Locale.ROOT, "  visitors: %,d in %,d visits; %,d returning visits (%.0f%%); returning visitors shown"
+                + " another layout than before while theirs had weight: %,d (the sticky assigner kept %,d on a layout"
+                + " the current weights alone would have changed)%n", t.visitors(), t.visits(), t.returningVisits(),
+                100.0 * t.returningVisits() / Math.max(1, t.visits()), t.switchedWhileWeighted(), t.keptPicks());
+        out.printf(Locale.ROOT, "  bookings: %,d sent, after delays; visitors still pending at the %s (booking window"
+                + " of %d ms open, not yet counted): %,d%n", t.bookingsSent(), s.stopped() ? "STOP" : "last decision",
+                DemoScenario.CONVERSION_WINDOW_MS, s.pendingAtLast());
     }
 
     /** The planner simulation's visitors to STOP, beside this run's. */
@@ -124,8 +139,8 @@ final class DemoReport {
         SimulationSummary rule = sim.rule();
         SimulationSummary uniform = sim.baseline();
         out.printf(Locale.ROOT, "  simulated visitors to STOP for these hidden rates at delta %s (planner simulation, %d"
-                + " runs; same rule, GLR threshold, warm-up, %,d visitors per evaluation):%n", o.delta(),
-                rule.replications(), o.visitorsPerPeriod());
+                + " runs; same rule, GLR threshold, warm-up, %,d new visitors per evaluation):%n", o.delta(),
+                rule.replications(), o.newVisitorsPerPeriod());
         out.printf(Locale.ROOT, "    %s: median %,.0f (mean %,.0f); uniform split: median %,.0f (mean %,.0f);"
                 + " uniform / %s = %.2fx (medians)%n", rule.rule(), rule.medianTrials(), rule.meanTrials(),
                 uniform.medianTrials(), uniform.meanTrials(), rule.rule(), medianRatio(sim));
@@ -149,6 +164,11 @@ final class DemoReport {
         line.put("winnerTrials", s.stopped() ? s.winnerTrials() : null);
         line.put("decisions", s.periods()).put("elapsedMs", s.elapsedMs()).put("trials", s.trials())
                 .put("visitorsSent", s.visitorsSent()).put("delta", o.delta()).put("seed", o.seed());
+        DemoSummary.Traffic t = s.traffic();
+        line.put("visits", t.visits()).put("returningVisits", t.returningVisits())
+                .put("switchedWhileWeighted", t.switchedWhileWeighted()).put("keptPicks", t.keptPicks())
+                .put("bookingsSent", t.bookingsSent())
+                .put("pendingAtLast", s.pendingAtLast());
         ObjectNode predicted = line.putObject("predictedTrials");
         predicted.put("uniform", s.predictedUniform()).put("optimal", s.predictedOptimal())
                 .put("topTwoBetaHalf", s.predictedTopTwo());

@@ -16,7 +16,7 @@ import java.util.List;
 /**
  * The demo's invented scenario: a ferry operator's booking page tests fare-table layouts. Each visitor sees
  * one layout (an EXPOSURE) and books a crossing (a CONVERSION) with the layout's true booking rate, which
- * only the traffic generator knows. The arms are listed so that any prefix of them contains the best one,
+ * only the traffic generator knows, after a delay; a third of the visits are by visitors who came before. The arms are listed so that any prefix of them contains the best one,
  * with a clear gap, so a shortened demo still has a winner to find.
  */
 public final class DemoScenario {
@@ -25,9 +25,18 @@ public final class DemoScenario {
     public static final String EXPERIMENT_ID = "ferry-fare-tables";
     /**
      * Conversion window of the demo's definition: short, so that units are counted (their windows close) a
-     * few seconds after their exposure and the demo still ends in about a minute.
+     * few seconds after their exposure and the demo still ends in about a minute, yet long against the job's
+     * lag on a busy machine: the job closes a unit's window on its wall clock, so a booking it reads after that
+     * (behind a backlog) is rejected as {@code late-outcome} even when it was stamped inside the window.
      */
-    public static final long CONVERSION_WINDOW_MS = 500L;
+    public static final long CONVERSION_WINDOW_MS = 4_000L;
+    /** Share of visits by visitors who came before. */
+    public static final double RETURNING_SHARE = 1.0 / 3;
+    /**
+     * Mean delay from a visit to its booking (exponential): about one booking in twelve (e^-2.5) arrives after
+     * the {@link #CONVERSION_WINDOW_MS} window and counts for nothing.
+     */
+    public static final double BOOKING_DELAY_MEAN_MS = 1_600.0;
 
     /** Layout names, in definition order. */
     static final List<String> LAYOUTS = List.of("classic-grid", "flexible-bundle", "compact-list",
@@ -60,6 +69,19 @@ public final class DemoScenario {
     public double[] rates() {
         double[] r = new double[arms];
         System.arraycopy(RATES, 0, r, 0, arms);
+        return r;
+    }
+
+    /**
+     * The rates the job can see: a booking counts only within the conversion window, so each layout's
+     * counted rate is its booking rate times P(delay <= window) = 1 - exp(-window / mean delay).
+     */
+    public double[] countedRates() {
+        double inWindow = 1 - Math.exp(-CONVERSION_WINDOW_MS / BOOKING_DELAY_MEAN_MS);
+        double[] r = rates();
+        for (int i = 0; i < r.length; i++) {
+            r[i] *= inWindow;
+        }
         return r;
     }
 

@@ -14,7 +14,7 @@ import java.util.List;
  * @param last              the last decision record (a STOP unless the demo gave up)
  * @param periods           decision records seen
  * @param elapsedMs         wall time from the first weights to the last decision
- * @param visitorsSent      visitors the generator sent (some may not be counted in {@code last} yet)
+ * @param traffic           what the serving tier served: visitors, visits, returning visits, switches, bookings
  * @param trueBest          the layout with the highest hidden rate
  * @param rates             the hidden rates, in arm order
  * @param predictedUniform  planner prediction of the trials a uniform split needs at the run's delta
@@ -26,9 +26,25 @@ import java.util.List;
  * @param decisionsTopic    where the job wrote the decision records
  * @param exported          file the records were exported to, or {@code null}
  */
-public record DemoSummary(DecisionRecord last, int periods, long elapsedMs, long visitorsSent, String trueBest,
+public record DemoSummary(DecisionRecord last, int periods, long elapsedMs, Traffic traffic, String trueBest,
                           double[] rates, double predictedUniform, double predictedOptimal, double predictedTopTwo,
                           SimulationResult simulated, boolean chainIntact, String decisionsTopic, Path exported) {
+
+    /**
+     * What the demo's serving tier did.
+     *
+     * @param visitors              distinct visitors served (some may not be counted in the last decision yet)
+     * @param visits                visits served, returning ones included
+     * @param returningVisits       visits by visitors who came before
+     * @param switchedWhileWeighted returning visits served another layout than the visitor's previous one while
+     *                              that layout still had weight (sticky assignment promises 0)
+     * @param keptPicks             returning visits the sticky assigner kept on a layout that the table's
+     *                              draw from the current weights alone would have changed
+     * @param bookingsSent          bookings sent (inside or after the conversion window)
+     */
+    public record Traffic(long visitors, long visits, long returningVisits, long switchedWhileWeighted,
+                          long keptPicks, long bookingsSent) {
+    }
 
     /** Copies the rates. */
     public DemoSummary {
@@ -53,6 +69,20 @@ public record DemoSummary(DecisionRecord last, int periods, long elapsedMs, long
     /** Trials the job counted at the last decision, over all arms. */
     public long trials() {
         return last == null ? 0 : last.getArms().stream().mapToLong(ArmState::getTrials).sum();
+    }
+
+    /** Visitors sent: distinct visitors served. */
+    public long visitorsSent() {
+        return traffic.visitors();
+    }
+
+    /**
+     * Units the last decision knew of but had not counted yet, their conversion windows still open (the
+     * decision record's pending counts, over all arms; 0 without a record or under per-exposure counting).
+     */
+    public long pendingAtLast() {
+        return last == null ? 0 : last.getArms().stream().mapToLong(a -> a.getPending() == null ? 0 : a.getPending())
+                .sum();
     }
 
     /** Trials of the winner at the last decision (0 without a winner). */

@@ -64,9 +64,9 @@ class AuditEndToEndIT {
     private static final int MAX_ROUNDS = 12;
     private static final Duration WAIT = Duration.ofSeconds(60);
     /**
-     * Recompute period of the experiment: long against the time the job takes to fold a round (measured at about
-     * 2 s on a loaded 2-core machine), so that each decision counts whole rounds and each round was served with
-     * the weights of the decision before it.
+     * Recompute period of the experiment. A decision may count part of a round when the job folds it across a
+     * recompute (a loaded machine): each round is still drawn from the weights of a decision that counted every
+     * earlier round, and the sample-ratio check accepts any mix of the weight vectors still valid in a period.
      */
     private static final long RECOMPUTE_MS = 4_000;
     private static final TopologySettings SETTINGS = TopologySettings.fromMap(Map.of(
@@ -257,25 +257,29 @@ class AuditEndToEndIT {
     }
 
     /**
-     * Reads the next decision and requires it to count {@code trials} trials in all: a decision that counted
-     * part of a round would make the round's exposures straddle two weight sets, which the sample-ratio check
-     * rightly flags.
+     * Reads decisions until one counts {@code trials} trials in all (or a STOP comes): every decision read counts
+     * no fewer trials than the one before and no more than were sent; one may count part of a round, when the
+     * job folded the round across a recompute.
      */
     private static void awaitDecisionWithTrials(KafkaConsumer<byte[], byte[]> consumer, List<DecisionRecord> seen,
                                                 long trials) {
-        int before = seen.size();
         for (int i = 0; i < WAIT.toMillis() / 200; i++) {
             for (ConsumerRecord<byte[], byte[]> r : consumer.poll(Duration.ofMillis(200))) {
-                seen.add(RecordCodec.decisionRecords().decode(r.value(), 0).orThrow());
+                DecisionRecord d = RecordCodec.decisionRecords().decode(r.value(), 0).orThrow();
+                long counted = counted(d);
+                assertTrue(counted <= trials && (seen.isEmpty() || counted >= counted(last(seen))), "decision "
+                        + d.getSequence() + " counted " + counted + " trials; sent " + trials);
+                seen.add(d);
             }
-            if (seen.size() > before) {
-                long counted = last(seen).getArms().stream().mapToLong(ArmState::getTrials).sum();
-                assertEquals(trials, counted, "decision " + last(seen).getSequence() + " counted part of a round:"
-                        + " the job took longer than the recompute period (" + RECOMPUTE_MS + " ms) to fold it");
+            if (!seen.isEmpty() && (counted(last(seen)) == trials || last(seen).getDecision() == Decision.STOP)) {
                 return;
             }
         }
         throw new AssertionError("no decision counting " + trials + " trials within " + WAIT + "; seen " + seen.size());
+    }
+
+    private static long counted(DecisionRecord d) {
+        return d.getArms().stream().mapToLong(ArmState::getTrials).sum();
     }
 
     private static Path exportTopic(Path file) throws IOException {

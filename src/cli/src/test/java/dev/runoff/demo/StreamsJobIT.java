@@ -31,7 +31,10 @@ import dev.runoff.broker.EmbeddedKafkaBroker;
 import dev.runoff.records.Format;
 import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.OutcomeEvent;
+import dev.runoff.records.RecordCodec;
 import java.net.http.HttpResponse;
+import java.nio.charset.StandardCharsets;
+import java.util.ArrayList;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Clock;
@@ -42,7 +45,12 @@ import java.util.Optional;
 import java.util.Set;
 import java.util.TreeSet;
 import java.util.concurrent.CopyOnWriteArrayList;
+import org.apache.commons.rng.UniformRandomProvider;
+import org.apache.commons.rng.simple.RandomSource;
 import org.apache.kafka.clients.admin.Admin;
+import org.apache.kafka.clients.producer.KafkaProducer;
+import org.apache.kafka.clients.producer.ProducerRecord;
+import org.apache.kafka.common.serialization.ByteArraySerializer;
 import org.apache.kafka.streams.KafkaStreams;
 import org.apache.logging.log4j.LogManager;
 import org.apache.logging.log4j.core.LogEvent;
@@ -133,14 +141,11 @@ class StreamsJobIT {
             // events for an experiment an instance does not know yet are rejected: wait until both know it
             Await.until("the definition accepted by both instances", TIMEOUT,
                     () -> jobs.stream().allMatch(j -> j.accepts(ID)) && holder(jobs) != null);
-            List<OutcomeEvent> events = new TrafficGenerator(ID, scenario.layouts(), scenario.rates(), 5)
-                    .next(400, new double[] {0.5, 0.5}, Clock.systemUTC().millis());
+            List<OutcomeEvent> events = visitors(400, scenario, Clock.systemUTC().millis());
             long[][] truth = truth(events, scenario.layouts());
-            try (DemoFeed feed = new DemoFeed(first, ID, Clock.systemUTC())) {
-                feed.send(events);
-                feed.send(List.of(OutcomeEvent.newBuilder().setExperimentId("no-such-experiment").setUnitId("u")
-                        .setEventId("bad-1").setType(EventType.EXPOSURE).setTimestamp(1).setArm("a").build()));
-            }
+            send(first, events);
+            send(first, List.of(OutcomeEvent.newBuilder().setExperimentId("no-such-experiment").setUnitId("u")
+                    .setEventId("bad-1").setType(EventType.EXPOSURE).setTimestamp(1).setArm("a").build()));
             Await.until("the folded counts of all 400 visitors", TIMEOUT, () -> holder(jobs) != null
                     && totalTrials(Http.get(holder(jobs).httpPort(), "/experiments/" + ID)) == 400);
             StreamsJob holder = holder(jobs);
@@ -187,6 +192,41 @@ class StreamsJobIT {
                     decisionLines.get(0));
         } finally {
             decisionLogger.removeAppender(capture);
+        }
+    }
+
+    /**
+     * {@code count} visitors at time {@code now}, seeded: an EXPOSURE each to a layout drawn uniformly, and a
+     * CONVERSION (without arm) for those who book at the layout's hidden rate.
+     */
+    private static List<OutcomeEvent> visitors(int count, DemoScenario scenario, long now) {
+        UniformRandomProvider rng = RandomSource.SPLIT_MIX_64.create(5);
+        List<OutcomeEvent> events = new ArrayList<>();
+        for (int n = 1; n <= count; n++) {
+            int arm = rng.nextInt(scenario.layouts().size());
+            events.add(event("visitor-" + n, n + "-x", EventType.EXPOSURE, now, scenario.layouts().get(arm)));
+            if (rng.nextDouble() < scenario.rates()[arm]) {
+                events.add(event("visitor-" + n, n + "-b", EventType.CONVERSION, now, null));
+            }
+        }
+        return events;
+    }
+
+    private static OutcomeEvent event(String unit, String eventId, EventType type, long now, String arm) {
+        return OutcomeEvent.newBuilder().setExperimentId(ID).setUnitId(unit).setEventId(eventId).setType(type)
+                .setTimestamp(now).setArm(arm).build();
+    }
+
+    /** Sends {@code events} keyed by unit id and waits until the broker has them all. */
+    private static void send(JobConfig config, List<OutcomeEvent> events) {
+        try (KafkaProducer<byte[], byte[]> producer = new KafkaProducer<>(
+                config.clientProperties(JobConfig.Client.PRODUCER), new ByteArraySerializer(),
+                new ByteArraySerializer())) {
+            for (OutcomeEvent e : events) {
+                producer.send(new ProducerRecord<>(config.topology().outcomesTopic(),
+                        e.getUnitId().getBytes(StandardCharsets.UTF_8), RecordCodec.outcomeEvents().encode(e)));
+            }
+            producer.flush();
         }
     }
 

@@ -284,6 +284,30 @@ public final class AllocationTable {
         return key.length() > LOGGED_KEY_CHARS ? key.substring(0, LOGGED_KEY_CHARS) + "..." : key;
     }
 
+    /**
+     * Whether a pick for {@code experimentId} made now may serve {@code arm} as one drawn for the experiment:
+     * the arm has weight in what the table draws from now (the held record; while stale, all its arms under
+     * the {@link StaleFallback#UNIFORM} fallback, its weights under {@link StaleFallback#LAST_WEIGHTS}, none
+     * under {@link StaleFallback#DEFAULT_ARM}; once STOPPED, only the winner under {@link StoppedPick#WINNER}).
+     */
+    boolean servable(String experimentId, String arm) {
+        CompiledAllocation allocation = experimentId == null ? null : snapshot.get(experimentId);
+        if (allocation == null) {
+            return false;
+        }
+        if (clock.millis() > allocation.validUntil()) {
+            return switch (staleFallback) {
+                case UNIFORM -> allocation.lists(arm);
+                case LAST_WEIGHTS -> allocation.weight(arm) > 0;
+                default -> false;
+            };
+        }
+        if (allocation.stopped() && winnerAfterStop) {
+            return arm.equals(allocation.winner());
+        }
+        return allocation.weight(arm) > 0;
+    }
+
     /** The live counters, for the follower's poll errors. */
     Counters counters() {
         return counters;

@@ -110,6 +110,21 @@ final class CompiledAllocation {
         return uniform.winner(unitHash);
     }
 
+    /** The record's weight of {@code arm}; 0 for an arm the record does not list. */
+    double weight(String arm) {
+        for (ArmWeight w : record.getWeights()) {
+            if (w.getArm().equals(arm)) {
+                return w.getWeight();
+            }
+        }
+        return 0.0;
+    }
+
+    /** Whether the record lists {@code arm}. */
+    boolean lists(String arm) {
+        return Arrays.asList(arms).contains(arm);
+    }
+
     /** The arm whose cumulative interval [c(i-1), c(i)) holds {@code u} in [0, 1); binary search. */
     String weighted(double u) {
         int lo = 0;

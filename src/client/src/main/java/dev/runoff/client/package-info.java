@@ -7,6 +7,8 @@
  *       and {@code pick(experimentId, unitKey)}: lock-free, allocation-free, never throws, sticky per unit
  *       across weight changes; {@code assign} returns the same choice as an
  *       {@link dev.runoff.client.ArmAssignment} for the reporter.</li>
+ *   <li>{@link dev.runoff.client.StickyAssigner}: in front of the table, keeps a returning unit on the arm
+ *       it was served as long as that arm has weight (a bounded memory of the arm served per unit).</li>
  *   <li>{@link dev.runoff.client.ControlTopicFollower}: reads the compacted control topic from the
  *       beginning with manual assignment (no consumer group), waits at start until caught up, then follows
  *       it on a background thread.</li>
