@@ -46,8 +46,11 @@ class TrafficGeneratorTest {
         long[] exposures = new long[3];
         long[] bookings = new long[3];
         String lastArmOfUnit = null;
+        // one codec for every event, and the message built only on failure: building a codec per event and
+        // every event's text cost most of this test's time
+        RecordCodec<OutcomeEvent> codec = RecordCodec.outcomeEvents();
         for (OutcomeEvent e : events) {
-            assertTrue(RecordCodec.outcomeEvents().validate(e, 1_000).isValid(), e.toString());
+            assertTrue(codec.validate(e, 1_000).isValid(), e::toString);
             if (e.getType() == EventType.EXPOSURE) {
                 lastArmOfUnit = e.getArm();
                 exposures[ARMS.indexOf(lastArmOfUnit)]++;
