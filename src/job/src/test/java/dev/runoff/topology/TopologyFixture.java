@@ -41,6 +41,11 @@ final class TopologyFixture implements AutoCloseable {
             TopologySettings.FLUSH_INTERVAL_KEY, 100, TopologySettings.ALLOCATE_INTERVAL_KEY, 100,
             TopologySettings.DEDUPE_WINDOW_KEY, 3_600_000));
 
+    /** One codec per record type for every fixture: building a codec parses schemas. */
+    private static final RecordCodec<ExperimentDefinition> DEFINITIONS = RecordCodec.definitions();
+    private static final RecordCodec<DecisionRecord> DECISIONS = RecordCodec.decisionRecords();
+    private static final RecordCodec<AllocationUpdate> ALLOCATIONS = RecordCodec.allocationUpdates();
+
     private final TopologySettings settings;
     private final JobCounters counters = new JobCounters();
     private final TopologyTestDriver driver;
@@ -94,7 +99,7 @@ final class TopologyFixture implements AutoCloseable {
 
     /** Submits {@code definition} keyed by its id, in Avro single-object encoding, at the current time. */
     void define(ExperimentDefinition definition) {
-        experiments.pipeInput(utf8(definition.getExperimentId()), RecordCodec.definitions().encode(definition),
+        experiments.pipeInput(utf8(definition.getExperimentId()), DEFINITIONS.encode(definition),
                 clock);
     }
 
@@ -134,12 +139,12 @@ final class TopologyFixture implements AutoCloseable {
 
     /** Decision records published since the last call, each checked valid by the records package. */
     List<DecisionRecord> decisions() {
-        return decode(decisions, RecordCodec.decisionRecords());
+        return decode(decisions, DECISIONS);
     }
 
     /** Control records published since the last call (tombstones as {@code null}), each checked valid. */
     List<AllocationUpdate> allocations() {
-        return decode(allocations, RecordCodec.allocationUpdates());
+        return decode(allocations, ALLOCATIONS);
     }
 
     /** Raw control records since the last call. */
@@ -149,7 +154,7 @@ final class TopologyFixture implements AutoCloseable {
 
     /** Accepted definitions since the last call (tombstones as {@code null}). */
     List<ExperimentDefinition> accepted() {
-        return decode(accepted, RecordCodec.definitions());
+        return decode(accepted, DEFINITIONS);
     }
 
     /** Rejected records since the last call. */
