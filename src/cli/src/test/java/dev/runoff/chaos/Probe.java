@@ -37,6 +37,12 @@ final class Probe {
 
     /** Sends probes until every experiment of {@code ids} answers {@code unknown-arm}; the probes sent. */
     static int untilAccepted(String bootstrap, Set<String> ids, Duration timeout) throws InterruptedException {
+        return untilAccepted(bootstrap, "runoff.outcomes", ids, timeout);
+    }
+
+    /** As {@link #untilAccepted(String, Set, Duration)}, sending the probes to {@code outcomes}. */
+    static int untilAccepted(String bootstrap, String outcomes, Set<String> ids, Duration timeout)
+            throws InterruptedException {
         Set<String> known = new HashSet<>();
         int sent = 0;
         long deadline = System.nanoTime() + timeout.toNanos();
@@ -50,7 +56,7 @@ final class Probe {
                 for (String id : ids) {
                     if (!known.contains(id)) {
                         String key = KEY_PREFIX + sent++;
-                        producer.send(new ProducerRecord<>("runoff.outcomes", key, ("{\"experimentId\":\"" + id
+                        producer.send(new ProducerRecord<>(outcomes, key, ("{\"experimentId\":\"" + id
                                 + "\",\"unitId\":\"" + key + "\",\"eventId\":\"" + key + "\",\"type\":\"EXPOSURE\","
                                 + "\"timestamp\":" + System.currentTimeMillis() + ",\"arm\":\"no-such-arm\"}")
                                 .getBytes(StandardCharsets.UTF_8)));

@@ -14,6 +14,9 @@ import java.util.Arrays;
 import java.util.List;
 import java.util.Locale;
 import java.util.Map;
+import org.apache.kafka.clients.admin.Admin;
+import org.apache.kafka.clients.admin.AdminClientConfig;
+import org.apache.kafka.clients.admin.NewTopic;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerConfig;
 import org.apache.kafka.clients.producer.ProducerRecord;
@@ -24,7 +27,7 @@ import org.junit.jupiter.api.condition.EnabledIfSystemProperty;
 
 /**
  * Restore time against state size: one instance (one stream thread, six input partitions, no standby) folds
- * N units of one experiment, is killed with SIGKILL and restarted, then stopped with SIGTERM and restarted; each
+ * N units of one experiment (an application id and an outcomes topic of its own), is killed with SIGKILL and restarted, then stopped with SIGTERM and restarted; each
  * restart's restores are read from its log (RestoreLog lines). Once with Kafka Streams' default stores and
  * once with {@code enable.transactional.statestores=true} (Kafka Streams 4.4, KIP-892: under exactly-once a
  * crash no longer wipes the stores). Runs only when asked:
@@ -63,20 +66,24 @@ class RestoreSizeIT {
                 + " {\"rule\": \"TOP_TWO_THOMPSON\", \"warmUpTrials\": 1000000000}, \"stopping\": {\"rule\": \"GLR\","
                 + " \"delta\": 0.05, \"minTrialsPerArm\": 1000000000}, \"recomputePeriodMs\": 1000,"
                 + " \"heartbeatMs\": 10000, \"counting\": \"EXPOSURE\"}");
+        String outcomes = app + ".outcomes";
+        try (Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, cluster.bootstrap()))) {
+            admin.createTopics(List.of(new NewTopic(outcomes, 6, (short) 1))).all().get();
+        }
         JobInstance job = cluster.instance(app, Map.of("num.standby.replicas", "0",
                 "enable.transactional.statestores", String.valueOf(transactional),
-                "consumer.auto.offset.reset", "latest"));
+                "runoff.topic.outcomes", outcomes));
         job.start();
         assertTrue(job.awaitReady(TIMEOUT) > 0, app + " never ready");
         ChaosCluster.awaitKnown(job, List.of(app), TIMEOUT);
-        Probe.untilAccepted(cluster.bootstrap(), java.util.Set.of(app), TIMEOUT);
+        Probe.untilAccepted(cluster.bootstrap(), outcomes, java.util.Set.of(app), TIMEOUT);
         long fed = System.nanoTime();
         try (KafkaProducer<String, byte[]> producer = new KafkaProducer<>(Map.of(
                 ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, cluster.bootstrap(), ProducerConfig.LINGER_MS_CONFIG, 20,
                 ProducerConfig.BATCH_SIZE_CONFIG, 262_144), new StringSerializer(), new ByteArraySerializer())) {
             for (int u = 0; u < units; u++) {
                 String unit = "u" + u;
-                producer.send(new ProducerRecord<>("runoff.outcomes", unit, ("{\"experimentId\":\"" + app
+                producer.send(new ProducerRecord<>(outcomes, unit, ("{\"experimentId\":\"" + app
                         + "\",\"unitId\":\"" + unit + "\",\"eventId\":\"" + unit + "\",\"type\":\"EXPOSURE\","
                         + "\"timestamp\":" + System.currentTimeMillis() + ",\"arm\":\"" + (u % 2 == 0 ? "a" : "b")
                         + "\"}").getBytes(StandardCharsets.UTF_8)));
