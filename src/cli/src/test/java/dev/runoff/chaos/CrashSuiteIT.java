@@ -65,12 +65,8 @@ class CrashSuiteIT {
         SplittableRandom schedule = new SplittableRandom(SEED ^ 0x5DEECE66DL);
         ChaosFeed feed = new ChaosFeed(SEED, EXPERIMENTS, UNITS, "runoff.outcomes", System.currentTimeMillis());
         List<ProducerRecord<String, byte[]>> records = feed.records();
-        int n = records.size();
-        int scaleUp = n / 10;
-        int[] kills = {at(schedule, n, 0.25, 0.35), at(schedule, n, 0.50, 0.55), at(schedule, n, 0.70, 0.80)};
-        int burstEnd = kills[1] + n / 7;
-        int scaleDown = n * 88 / 100;
-        List<Kill> done = new ArrayList<>();
+        Points points = Points.draw(records.size(), schedule);
+        List<Kill> done;
         try (ChaosCluster cluster = new ChaosCluster(dir, 6)) {
             EXPERIMENTS.forEach((id, arms) -> put(cluster, id, arms));
             List<JobInstance> all = new ArrayList<>();
@@ -81,45 +77,15 @@ class CrashSuiteIT {
             assertTrue(all.get(0).awaitReady(READY) > 0, "first instance never ready: " + Files.readString(all.get(0).log()));
             ChaosCluster.awaitKnown(all.get(0), EXPERIMENTS.keySet(), READY);
             int probes = Probe.untilAccepted(cluster.bootstrap(), EXPERIMENTS.keySet(), READY);
-            List<JobInstance> running = new ArrayList<>(List.of(all.get(0)));
             try (DecisionWatch watch = new DecisionWatch(cluster.bootstrap(), "runoff.decisions");
                  KafkaProducer<String, byte[]> producer = producer(cluster.bootstrap())) {
                 long feedStart = System.nanoTime();
-                int sent = 0;
-                long tick = System.nanoTime();
-                while (sent < n) {
-                    int upTo = sent >= kills[1] && sent < burstEnd ? burstEnd : Math.min(n, sent + RATE / 10);
-                    for (int i = sent; i < upTo; i++) {
-                        producer.send(records.get(i));
-                        sent = i + 1;
-                        if (sent == scaleUp) {
-                            all.get(1).start();
-                            all.get(2).start();
-                            running.addAll(all.subList(1, 3));
-                        } else if (KILLS && (sent == kills[0] || sent == burstEnd || sent == kills[2])) {
-                            producer.flush();
-                            if (sent == burstEnd) {
-                                Thread.sleep(1_000);
-                            }
-                            awaitAllReady(running);
-                            done.add(kill(running.get(schedule.nextInt(running.size())), sent == burstEnd));
-                        } else if (sent == scaleDown) {
-                            awaitAllReady(running);
-                            JobInstance leaving = running.remove(schedule.nextInt(running.size()));
-                            System.out.printf("scale 3 -> 2: SIGTERM %s, exit code %d%n", leaving.name(), leaving.stop());
-                        }
-                    }
-                    tick += 100_000_000L;
-                    long wait = tick - System.nanoTime();
-                    if (wait > 0) {
-                        Thread.sleep(wait / 1_000_000);
-                    }
-                }
-                producer.flush();
+                List<JobInstance> running = new ArrayList<>(List.of(all.get(0)));
+                done = feed(records, producer, points, all, running, schedule);
                 double fedSeconds = (System.nanoTime() - feedStart) / 1e9;
                 Map<String, List<DecisionRecord>> chains = awaitTruth(watch, feed);
                 double totalSeconds = (System.nanoTime() - feedStart) / 1e9;
-                report(done, watch, n, fedSeconds, totalSeconds, feed);
+                report(done, watch, records.size(), fedSeconds, totalSeconds, feed);
                 for (JobInstance instance : running) {
                     // POSIX: a process ended by a signal reports 128 + the signal number (SIGTERM = 15); the hook closed the job
                     assertEquals(143, instance.stop(), instance.name() + " stopped on SIGTERM");
@@ -135,6 +101,67 @@ class CrashSuiteIT {
             assertEquals(3, done.size(), "three kills");
             assertTrue(done.stream().anyMatch(Kill::burst), "one kill during the burst");
         }
+    }
+
+    /**
+     * Where the schedule acts, as positions in the feed: scale 1 -> 3, the three kills (the second right after a
+     * burst that ends at {@code burstEnd}), scale 3 -> 2.
+     */
+    private record Points(int scaleUp, int firstKill, int burstStart, int burstEnd, int lastKill, int scaleDown) {
+
+        static Points draw(int n, SplittableRandom random) {
+            int firstKill = at(random, n, 0.25, 0.35);
+            int burstStart = at(random, n, 0.50, 0.55);
+            int lastKill = at(random, n, 0.70, 0.80);
+            return new Points(n / 10, firstKill, burstStart, burstStart + n / 7, lastKill, n * 88 / 100);
+        }
+
+        boolean kill(int sent) {
+            return sent == firstKill || sent == burstEnd || sent == lastKill;
+        }
+
+        /** Sent so far -> send up to: {@code rate / 10} a tick, the whole burst at once. */
+        int upTo(int sent, int n) {
+            return sent >= burstStart && sent < burstEnd ? burstEnd : Math.min(n, sent + RATE / 10);
+        }
+    }
+
+    /** Sends every record at {@link #RATE} a second, acting at the schedule's points; the kills done. */
+    private static List<Kill> feed(List<ProducerRecord<String, byte[]>> records, KafkaProducer<String, byte[]> producer,
+                                   Points points, List<JobInstance> all, List<JobInstance> running,
+                                   SplittableRandom schedule) throws InterruptedException {
+        List<Kill> done = new ArrayList<>();
+        int n = records.size();
+        int sent = 0;
+        long tick = System.nanoTime();
+        while (sent < n) {
+            for (int upTo = points.upTo(sent, n); sent < upTo; ) {
+                producer.send(records.get(sent++));
+                if (sent == points.scaleUp()) {
+                    all.get(1).start();
+                    all.get(2).start();
+                    running.addAll(all.subList(1, 3));
+                } else if (KILLS && points.kill(sent)) {
+                    producer.flush();
+                    if (sent == points.burstEnd()) {
+                        Thread.sleep(1_000);
+                    }
+                    awaitAllReady(running);
+                    done.add(kill(running.get(schedule.nextInt(running.size())), sent == points.burstEnd()));
+                } else if (sent == points.scaleDown()) {
+                    awaitAllReady(running);
+                    JobInstance leaving = running.remove(schedule.nextInt(running.size()));
+                    System.out.printf("scale 3 -> 2: SIGTERM %s, exit code %d%n", leaving.name(), leaving.stop());
+                }
+            }
+            tick += 100_000_000L;
+            long wait = tick - System.nanoTime();
+            if (wait > 0) {
+                Thread.sleep(wait / 1_000_000);
+            }
+        }
+        producer.flush();
+        return done;
     }
 
     /**
