@@ -84,6 +84,7 @@ public final class StreamsJob implements AutoCloseable {
                 safety.replacementWindowMs(), System::currentTimeMillis, metrics::threadReplaced,
                 c -> cause.compareAndSet(null, c)));
         streams.setStateListener(job::stateChanged);
+        streams.setGlobalStateRestoreListener(new RestoreLog(System::nanoTime));
         LOG.info("event=job-starting application.id={} bootstrap.servers={} http={}:{} http.token={} signing.key.id={}"
                 + " topics={}", config.applicationId(), config.bootstrapServers(), safety.httpBindAddress(), http.port(),
                 safety.httpToken().isPresent() ? "required" : "none",
