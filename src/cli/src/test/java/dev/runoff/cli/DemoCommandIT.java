@@ -47,6 +47,11 @@ class DemoCommandIT {
         assertEquals(periods + 1, lines.size(), "one line per decision and the summary");
         JsonNode lastPeriod = lines.get(lines.size() - 2);
         assertEquals("STOP", lastPeriod.get("decision").asText());
+        for (JsonNode period : lines.subList(0, lines.size() - 1)) {
+            assertEquals("MONTE_CARLO", period.get("method").asText(), "the default estimator: " + period);
+            assertTrue(period.get("draws").asInt() >= 10_000, period.toString());
+            assertTrue(period.get("arms").get(0).has("pBestStandardError"), period.toString());
+        }
         long trials = 0;
         for (JsonNode arm : lastPeriod.get("arms")) {
             trials += arm.get("trials").asLong();
@@ -86,6 +91,8 @@ class DemoCommandIT {
         assertEquals(0, verified.exitCode(), verified.out() + verified.err());
         assertTrue(verified.out().contains("Authorship: every signature checked against key(s) [demo]"),
                 verified.out());
+        CliRun crossChecked = CliRun.of("audit", "verify", "--file", export.toString(), "--cross-check");
+        assertEquals(0, crossChecked.exitCode(), crossChecked.out() + crossChecked.err());
 
         // the planner's figures for the hidden rates 3% and 5% at delta 0.05, computed here from the planner
         ArmModel model = ArmModel.bernoulli(0.030, 0.050);

@@ -19,7 +19,8 @@ import org.junit.jupiter.api.Test;
  * The job's default estimator against reference values computed outside Java: mpmath 1.3.0 quadrature at 30
  * digits of {@code alpha_i = integral f_i(x) prod_{j != i} F_j(x) dx} (Beta densities and
  * {@code mpmath.betainc(regularized=True)}; the Student-t CDF through its incomplete-beta form), by a
- * script run for this test, values copied to 17 digits.
+ * script run for this test, values copied to 17 digits; the twenty-arm case by numpy/scipy quadrature (its
+ * comment says how).
  *
  * <p>Tolerances: an arm that won draws must lie within 4 of its own recorded standard errors of the
  * reference, plus 1e-12 for the reference (a correct estimator misses by the normal approximation with
@@ -90,6 +91,26 @@ class AdaptiveMonteCarloTest {
         List<Posterior> arms = List.of(new StudentTPosterior(1.0, 0.10, 30), new StudentTPosterior(1.1, 0.12, 25),
                 new StudentTPosterior(0.8, 0.2, 10));
         assertWithinStandardErrors(reference, new AdaptiveMonteCarlo(40_000).estimate(arms, SEED));
+    }
+
+    @Test
+    void twentyArmsMatchTheReference() {
+        // Twenty Beta arms with 80, 82, ..., 118 successes of 1,000 (uniform prior). Reference: numpy/scipy
+        // 1.17.1, composite 20-point Gauss-Legendre on [0.02, 0.30] with scipy.stats.beta logpdf and logcdf,
+        // 4,000 panels (2,000 panels agree to a relative 1.4e-15; the twenty values sum to 1 + 3.7e-13). The
+        // first arm (1.25e-5) is the tail arm.
+        double[] reference = {1.253136480996092e-05, 2.945723693627754e-05, 6.622414434086736e-05, 0.000142585191108226,
+                0.0002944169054795392, 0.0005838170328013655, 0.0011133100563079118, 0.0020445116918281726,
+                0.0036209204953117336, 0.006193582695661416, 0.010247384568741823, 0.01642491738546623,
+                0.02554449700398672, 0.03860918470863433, 0.05680456983206381, 0.08148447831320858,
+                0.1141453679885608, 0.1563916205889648, 0.20989495987467752, 0.2763516629214778};
+        double[] ab = new double[40];
+        for (int i = 0; i < 20; i++) {
+            ab[2 * i] = 1 + 80 + 2 * i;
+            ab[2 * i + 1] = 1 + 1000 - 80 - 2 * i;
+        }
+        ProbabilityBest pb = new AdaptiveMonteCarlo(40_000).estimate(betas(ab), SEED);
+        assertWithinStandardErrors(reference, pb);
     }
 
     @Test
