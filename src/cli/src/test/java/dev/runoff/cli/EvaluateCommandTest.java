@@ -99,7 +99,7 @@ class EvaluateCommandTest {
             assertEquals(e.arms().get(i), arm.get("name").asText());
             assertEquals(1000, arm.get("trials").asLong());
             assertEquals(e.probabilityBest().alpha(i), arm.get("pBest").asDouble(), 0.0);
-            assertEquals(0.0, arm.get("standardError").asDouble(), 0.0);
+            assertEquals(e.probabilityBest().standardError(i), arm.get("standardError").asDouble(), 0.0);
             assertEquals(e.weight(i), arm.get("weight").asDouble(), 0.0);
             assertEquals("beta", arm.get("posterior").get("family").asText());
             weights += arm.get("weight").asDouble();
