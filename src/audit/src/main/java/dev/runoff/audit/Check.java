@@ -16,6 +16,11 @@ public enum Check {
     RECOMPUTATION,
     /** The decision, winner, reason, statistic and threshold follow the stopping rule in the record. */
     STOPPING,
+    /**
+     * A Monte Carlo probability of being best lies more than the allowed number of its standard errors from
+     * exact integration (only with {@code --cross-check}; the recorded decision is not changed).
+     */
+    CROSS_CHECK,
     /** The exposures between two records follow the weights published by the first. */
     SAMPLE_RATIO;
 

@@ -24,6 +24,7 @@ public final class Verifier {
     private final Recomputation recomputation = new Recomputation();
     private final SignatureVerifier keys;
     private final Map<String, String> lastHashes;
+    private final CrossCheck crossCheck;
 
     /**
      * A verifier whose sample-ratio test runs at significance level {@code alpha}, checking no signature
@@ -47,9 +48,26 @@ public final class Verifier {
      * hash: the chain alone cannot show that records were cut off its end.
      */
     public Verifier(double alpha, SignatureVerifier keys, Map<String, String> lastHashes) {
-        this.sampleRatio = new SampleRatio(alpha);
+        this(new SampleRatio(alpha), keys, Map.copyOf(lastHashes), null);
+    }
+
+    private Verifier(SampleRatio sampleRatio, SignatureVerifier keys, Map<String, String> lastHashes,
+                     CrossCheck crossCheck) {
+        this.sampleRatio = sampleRatio;
         this.keys = keys;
-        this.lastHashes = Map.copyOf(lastHashes);
+        this.lastHashes = lastHashes;
+        this.crossCheck = crossCheck;
+    }
+
+    /**
+     * This verifier also cross-checking every Monte Carlo estimate against exact integration: an arm whose
+     * recorded alpha lies more than {@code sigmas} recorded standard errors from the exact value is a
+     * {@link Check#CROSS_CHECK} finding.
+     *
+     * @throws IllegalArgumentException unless {@code sigmas} is finite and {@code > 0}
+     */
+    public Verifier withCrossCheck(double sigmas) {
+        return new Verifier(sampleRatio, keys, lastHashes, new CrossCheck(sigmas));
     }
 
     /** The trusted public keys, or empty when authorship is not checked. */
@@ -86,6 +104,9 @@ public final class Verifier {
         findings.addAll(SequenceCheck.check(entries));
         Recomputation.Result recomputed = recomputation.check(entries);
         findings.addAll(recomputed.findings());
+        if (crossCheck != null) {
+            findings.addAll(crossCheck.check(entries));
+        }
         List<SampleRatio.Period> periods = new ArrayList<>();
         List<DecisionRecord> history = new ArrayList<>();
         for (int i = 1; i < entries.size(); i++) {

@@ -5,6 +5,7 @@ import dev.runoff.records.Format;
 import dev.runoff.records.RecordCodec;
 import dev.runoff.records.avro.AllocationSpec;
 import dev.runoff.records.avro.AllocationUpdate;
+import dev.runoff.records.avro.BestArmEstimator;
 import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.ExperimentDefinition;
@@ -33,8 +34,9 @@ import org.openjdk.jmh.annotations.Warmup;
 
 /**
  * Recomputation of many active experiments of 5 Bernoulli arms, as the allocation pass does it: the engine
- * (exact probability of being best, top-two Thompson weights, guards), the GLR stopping rule, the decision
- * and control records, the hash-chain seal, and the encoding of both records (Avro).
+ * (probability of being best by the estimator given as a parameter, top-two Thompson weights, guards), the
+ * GLR stopping rule, the decision and control records, the hash-chain seal, and the encoding of both records
+ * (Avro).
  *
  * <p>{@code recomputeOne} gives the average time of one experiment over a pool of distinct experiments;
  * {@code recomputeAll} times passes over the whole pool (single shots after two warm-up passes, so the JIT
@@ -54,6 +56,10 @@ public class RecomputeBench {
     @Param("10000")
     public int experiments;
 
+    /** The definitions' {@code bestArmEstimator}: SAMPLED (Monte Carlo, the default) or INTEGRATED (exact). */
+    @Param({"SAMPLED", "INTEGRATED"})
+    public String estimator;
+
     private ExperimentState[] states;
     private final Evaluator evaluator = new Evaluator(TopologySettings.MONTE_CARLO_DRAWS);
     private final RecordCodec<DecisionRecord> decisions = RecordCodec.decisionRecords();
@@ -64,7 +70,8 @@ public class RecomputeBench {
     @Setup(Level.Trial)
     public void setUp() {
         SplittableRandom random = new SplittableRandom(10_000);
-        states = IntStream.range(0, experiments).mapToObj(i -> state("exp-" + i, random))
+        BestArmEstimator choice = BestArmEstimator.valueOf(estimator);
+        states = IntStream.range(0, experiments).mapToObj(i -> state("exp-" + i, random, choice))
                 .toArray(ExperimentState[]::new);
     }
 
@@ -100,12 +107,12 @@ public class RecomputeBench {
                 + updates.encode(result.update(), Format.AVRO).length;
     }
 
-    private static ExperimentState state(String id, SplittableRandom random) {
+    private static ExperimentState state(String id, SplittableRandom random, BestArmEstimator estimator) {
         List<String> arms = List.of("a", "b", "c", "d", "e");
         ExperimentDefinition def = ExperimentDefinition.newBuilder().setExperimentId(id).setVersion(1).setArms(arms)
                 .setMetric(MetricSpec.newBuilder().setKind(MetricKind.BERNOULLI).setSuccessEvent(EventType.CLICK)
                         .build())
-                .setAllocation(AllocationSpec.newBuilder().build())
+                .setAllocation(AllocationSpec.newBuilder().setBestArmEstimator(estimator).build())
                 .setStopping(StoppingSpec.newBuilder().setMinTrialsPerArm(1_000_000).build())
                 .build();
         ExperimentState state = ExperimentState.start(def);

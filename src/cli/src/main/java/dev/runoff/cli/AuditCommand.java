@@ -160,6 +160,16 @@ final class AuditCommand implements Runnable {
                         + " when no record has it, i.e. when records were cut off the end of the chain.")
         private java.util.Map<String, String> lastHashes = java.util.Map.of();
 
+        @Option(names = "--cross-check", description = "Also integrate every Monte Carlo probability of being best"
+                + " exactly and report each one more than --cross-check-sigmas standard errors away (check"
+                + " 'cross-check'; the recorded decision is not changed).")
+        private boolean crossCheck;
+
+        @Option(names = "--cross-check-sigmas", paramLabel = "K", defaultValue = "5",
+                description = "Standard errors a Monte Carlo estimate may lie from the exact value under"
+                        + " --cross-check (default: ${DEFAULT-VALUE}).")
+        private double crossCheckSigmas;
+
         @Override
         public Integer call() {
             Verifier verifier;
@@ -168,6 +178,11 @@ final class AuditCommand implements Runnable {
                 verifier = new Verifier(alpha, keys, lastHashes);
             } catch (IllegalArgumentException e) {
                 throw new ParameterException(spec.commandLine(), "--alpha: " + e.getMessage(), e);
+            }
+            try {
+                verifier = crossCheck ? verifier.withCrossCheck(crossCheckSigmas) : verifier;
+            } catch (IllegalArgumentException e) {
+                throw new ParameterException(spec.commandLine(), "--cross-check-sigmas: " + e.getMessage(), e);
             }
             List<ExperimentAudit> audits = verifier.verify(source.read());
             PrintWriter out = spec.commandLine().getOut();

@@ -44,12 +44,12 @@ final class EvaluateCommand implements Callable<Integer> {
 
     @Option(names = "--method", converter = Spelling.Methods.class, completionCandidates = Spelling.Methods.class,
             paramLabel = "METHOD",
-            description = "auto, exact or monte-carlo (default: auto: exact up to "
+            description = "monte-carlo (the default, as in the job), exact, or auto (exact up to "
                     + AllocationEngine.EXACT_ARM_LIMIT + " arms, Monte Carlo beyond).")
     private EngineConfig.MethodChoice method;
 
-    @Option(names = "--draws", paramLabel = "N", description = "Monte Carlo joint draws (default: "
-            + EngineConfig.DEFAULT_DRAWS + ").")
+    @Option(names = "--draws", paramLabel = "N", description = "The most Monte Carlo joint draws: 10,000 first, doubled"
+            + " while the leader and the runner-up cannot be ordered (default: " + EngineConfig.DEFAULT_DRAWS + ").")
     private Integer draws;
 
     @Option(names = "--seed", paramLabel = "S", defaultValue = "0",

@@ -73,6 +73,10 @@ final class JsonReport {
         ProbabilityBest pb = e.probabilityBest();
         number(n, "pBest", pb.alpha(i));
         number(n, "standardError", pb.standardError(i));
+        if (pb.conditional(i)) {
+            n.put("wonNoDraw", true);
+            number(n, "zeroWinUpperBound", pb.zeroWinUpperBound(i));
+        }
         number(n, "ruleWeight", e.ruleWeights()[i]);
         number(n, "weight", e.weight(i));
         return n;

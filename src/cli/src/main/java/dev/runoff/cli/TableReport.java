@@ -5,6 +5,7 @@ import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.Evaluation;
 import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.allocation.GuardFlag;
+import dev.runoff.engine.best.AdaptiveMonteCarlo;
 import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
@@ -42,7 +43,26 @@ final class TableReport {
             rows.add(row(arms.get(i), e, i, guarded));
         }
         appendAligned(out, rows, e.weights());
+        appendZeroWinNote(out, arms, e.probabilityBest());
         return out.toString();
+    }
+
+    /**
+     * For arms that won none of the Monte Carlo draws: the one-sided 95% Clopper-Pearson bound their count
+     * alone gives, and that the P(best) shown is their conditional estimate.
+     */
+    private static void appendZeroWinNote(StringBuilder out, List<Arm> arms, ProbabilityBest pb) {
+        List<String> names = new ArrayList<>();
+        for (int i = 0; i < arms.size(); i++) {
+            if (pb.conditional(i)) {
+                names.add(arms.get(i).name());
+            }
+        }
+        if (!names.isEmpty()) {
+            out.append(String.format(Locale.ROOT, "%s won none of %d draws: P(best) < %.1e by the count alone (one-sided"
+                    + " 95%% Clopper-Pearson); shown: the conditional estimate, integrated%n", String.join(", ", names),
+                    pb.draws(), AdaptiveMonteCarlo.zeroWinUpperBound(pb.draws())));
+        }
     }
 
     private static String method(ProbabilityBest pb) {

@@ -62,23 +62,26 @@ final class DemoReport {
             line.put("winner", d.getWinner());
             line.put("statistic", d.getStatistic());
             line.put("threshold", d.getThreshold());
+            line.put("method", d.getMethod().name()).put("draws", d.getDraws());
             ArrayNode arms = line.putArray("arms");
             for (ArmState a : d.getArms()) {
                 arms.addObject().put("arm", a.getArm()).put("trials", a.getTrials()).put("pending", a.getPending())
-                        .put("successes", a.getSuccesses()).put("pBest", a.getAlpha()).put("weight", a.getWeight());
+                        .put("successes", a.getSuccesses()).put("pBest", a.getAlpha())
+                        .put("pBestStandardError", a.getAlphaStandardError()).put("weight", a.getWeight());
             }
             print(line);
             return;
         }
-        out.printf(Locale.ROOT, "%nperiod %d  %.1f s  %s%n", period, elapsedMs / 1000.0, decision(d));
-        out.printf(Locale.ROOT, "  %-16s %9s %8s %9s %7s %8s  %s%n", "layout", "visitors", "pending", "bookings",
-                "rate", "P(best)", "weight");
+        out.printf(Locale.ROOT, "%nperiod %d  %.1f s  %s  [%s]%n", period, elapsedMs / 1000.0, decision(d),
+                estimator(d));
+        out.printf(Locale.ROOT, "  %-16s %9s %8s %9s %7s %8s %6s  %s%n", "layout", "visitors", "pending", "bookings",
+                "rate", "P(best)", "s.e.", "weight");
         for (ArmState a : d.getArms()) {
             long s = a.getSuccesses() == null ? 0 : a.getSuccesses();
             String rate = a.getTrials() == 0 ? "-" : String.format(Locale.ROOT, "%.2f%%", 100.0 * s / a.getTrials());
             long pending = a.getPending() == null ? 0 : a.getPending();
-            out.printf(Locale.ROOT, "  %-16s %,9d %,8d %,9d %7s %8.4f  %5.3f %s%n", a.getArm(), a.getTrials(), pending,
-                    s, rate, a.getAlpha(), a.getWeight(), bar(a.getWeight(), blocks));
+            out.printf(Locale.ROOT, "  %-16s %,9d %,8d %,9d %7s %8.4f %6s  %5.3f %s%n", a.getArm(), a.getTrials(),
+                    pending, s, rate, a.getAlpha(), standardError(d, a), a.getWeight(), bar(a.getWeight(), blocks));
         }
         out.flush();
     }
@@ -197,6 +200,17 @@ final class DemoReport {
                     .put("budgetStops", summary.budgetStops()).put("errors", summary.errors());
         }
         simulated.put("uniformOverRuleMedian", medianRatio(sim));
+    }
+
+    /** How P(best) was computed: {@code Monte Carlo, 20,000 draws} or {@code exact}. */
+    private static String estimator(DecisionRecord d) {
+        return d.getDraws() == 0 ? "P(best) exact" : String.format(Locale.ROOT, "P(best) by Monte Carlo, %,d draws",
+                d.getDraws());
+    }
+
+    /** The standard error of P(best), {@code 0.0049}; {@code -} for exact integration. */
+    private static String standardError(DecisionRecord d, ArmState a) {
+        return d.getDraws() == 0 ? "-" : String.format(Locale.ROOT, "%.4f", a.getAlphaStandardError());
     }
 
     private static String decision(DecisionRecord d) {

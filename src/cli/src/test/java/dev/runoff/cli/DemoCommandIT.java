@@ -49,6 +49,11 @@ class DemoCommandIT {
         assertEquals(periods + 1, lines.size(), "one line per decision and the summary");
         JsonNode lastPeriod = lines.get(lines.size() - 2);
         assertEquals("STOP", lastPeriod.get("decision").asText());
+        for (JsonNode period : lines.subList(0, lines.size() - 1)) {
+            assertEquals("MONTE_CARLO", period.get("method").asText(), "the default estimator: " + period);
+            assertTrue(period.get("draws").asInt() >= 10_000, period.toString());
+            assertTrue(period.get("arms").get(0).has("pBestStandardError"), period.toString());
+        }
         long trials = 0;
         for (JsonNode arm : lastPeriod.get("arms")) {
             trials += arm.get("trials").asLong();
@@ -108,6 +113,8 @@ class DemoCommandIT {
         Matcher sampleRatio = Pattern.compile("(\\d+) periods tested, 0 flagged")
                 .matcher(verified.out());
         assertTrue(sampleRatio.find() && Integer.parseInt(sampleRatio.group(1)) > 0, verified.out());
+        CliRun crossChecked = CliRun.of("audit", "verify", "--file", export.toString(), "--cross-check");
+        assertEquals(0, crossChecked.exitCode(), crossChecked.out() + crossChecked.err());
 
         // the planner's figures at delta 0.05 for the rates that can count: the hidden rates 3% and 5% times the
         // share of bookings inside the 4 s window, P(delay <= 4 s) = 1 - e^(-4 / 1.6) for the demo's exponential

@@ -56,7 +56,7 @@ class EvaluateCommandTest {
         assertEquals("", r.err());
         Evaluation e = engineResult();
         List<String> lines = r.out().lines().toList();
-        assertTrue(lines.get(1).startsWith("P(best) by exact integration; rule top-two-thompson, beta 0.5; seed 0"),
+        assertTrue(lines.get(1).startsWith("P(best) by Monte Carlo, 10000 draws; rule top-two-thompson, beta 0.5; seed 0"),
                 lines.get(1));
         String header = lines.get(3);
         for (String column : List.of("arm", "trials", "rate", "posterior mean", "95% interval", "P(best)", "std. error",
@@ -86,7 +86,7 @@ class EvaluateCommandTest {
         assertEquals(0, r.exitCode(), r.err());
         assertEquals(1, r.out().lines().count());
         JsonNode root = new ObjectMapper().readTree(r.out());
-        assertEquals("exact", root.get("method").asText());
+        assertEquals("monte-carlo", root.get("method").asText());
         assertEquals("top-two-thompson", root.get("rule").asText());
         assertEquals(0.5, root.get("beta").asDouble());
         assertEquals(AllocationEngine.VERSION, root.get("engineVersion").asText());
@@ -99,7 +99,7 @@ class EvaluateCommandTest {
             assertEquals(e.arms().get(i), arm.get("name").asText());
             assertEquals(1000, arm.get("trials").asLong());
             assertEquals(e.probabilityBest().alpha(i), arm.get("pBest").asDouble(), 0.0);
-            assertEquals(0.0, arm.get("standardError").asDouble(), 0.0);
+            assertEquals(e.probabilityBest().standardError(i), arm.get("standardError").asDouble(), 0.0);
             assertEquals(e.weight(i), arm.get("weight").asDouble(), 0.0);
             assertEquals("beta", arm.get("posterior").get("family").asText());
             weights += arm.get("weight").asDouble();
@@ -122,6 +122,22 @@ class EvaluateCommandTest {
             assertEquals(Math.sqrt(p * (1 - p) / 5000), arm.get("standardError").asDouble(), 1e-15);
         }
         assertEquals(r.out(), run(with("--json", "--method", "monte-carlo", "--draws", "5000", "--seed", "9")).out());
+    }
+
+    @Test
+    void armsThatWinNoDrawShowTheClopperPearsonBoundAndTheirConditionalEstimate() throws Exception {
+        String[] args = {"evaluate", "--arm", "a=10/1000", "--arm", "b=500/1000", "--arm", "c=20/1000"};
+        Run table = run(args);
+        assertEquals(0, table.exitCode(), table.err());
+        // One-sided 95% Clopper-Pearson bound at 0 of 10,000: 1 - 0.05^(1/10000) = 3.0e-4 (Clopper and Pearson
+        // 1934; scipy beta.ppf(0.95, 1, 10000) = 0.0002995).
+        assertTrue(table.out().contains("a, c won none of 10000 draws: P(best) < 3.0e-04"), table.out());
+        String[] json = java.util.Arrays.copyOf(args, args.length + 1);
+        json[args.length] = "--json";
+        JsonNode arms = new ObjectMapper().readTree(run(json).out()).get("arms");
+        assertTrue(arms.get(0).get("wonNoDraw").asBoolean() && arms.get(0).get("pBest").asDouble() > 0, arms.toString());
+        assertEquals(0.00029952835977661195, arms.get(0).get("zeroWinUpperBound").asDouble(), 1e-15);
+        assertTrue(arms.get(1).get("wonNoDraw") == null, arms.toString());
     }
 
     @Test

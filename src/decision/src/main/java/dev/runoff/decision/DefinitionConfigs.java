@@ -8,6 +8,7 @@ import dev.runoff.engine.stopping.Rule;
 import dev.runoff.engine.stopping.StoppingConfig;
 import dev.runoff.records.Definitions;
 import dev.runoff.records.avro.AllocationSpec;
+import dev.runoff.records.avro.BestArmEstimator;
 import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.records.avro.StoppingSpec;
 import java.time.Duration;
@@ -23,8 +24,8 @@ public final class DefinitionConfigs {
     }
 
     /**
-     * Engine configuration: the definition's prior (or the documented default), rule and beta, the
-     * automatic method choice, {@code draws} Monte Carlo draws, and guards built from warmUpTrials, floor,
+     * Engine configuration: the definition's prior (or the documented default), rule and beta, the method
+     * ({@link #method}), at most {@code draws} Monte Carlo draws, and guards built from warmUpTrials, floor,
      * controlArm with controlShare (no control guard without a controlShare) and maxStep (none: 1).
      */
     public static EngineConfig engine(ExperimentDefinition definition, int draws) {
@@ -35,7 +36,16 @@ public final class DefinitionConfigs {
             guards = guards.withControl(definition.getControlArm(), allocation.getControlShare());
         }
         return new EngineConfig(Definitions.prior(definition), AllocationMethod.valueOf(allocation.getRule().name()),
-                allocation.getBeta(), EngineConfig.MethodChoice.AUTO, draws, guards);
+                allocation.getBeta(), method(allocation), draws, guards);
+    }
+
+    /**
+     * The method of the definition's {@code bestArmEstimator}: Monte Carlo when it is null (the default) or
+     * SAMPLED, exact integration when it is INTEGRATED.
+     */
+    public static EngineConfig.MethodChoice method(AllocationSpec allocation) {
+        return allocation.getBestArmEstimator() == BestArmEstimator.INTEGRATED ? EngineConfig.MethodChoice.EXACT
+                : EngineConfig.MethodChoice.MONTE_CARLO;
     }
 
     /**

@@ -143,7 +143,7 @@ public final class Evaluator {
                 alpha[i] = 0.0;
             }
         }
-        return new ProbabilityBest(alpha, best.standardError(), best.method(), best.draws());
+        return new ProbabilityBest(alpha, best.standardError(), best.method(), best.draws(), best.conditional());
     }
 
     /** The guards that changed the weights, in the order the engine applies them. */

@@ -135,7 +135,13 @@ public final class Replay {
         Guards guards = new Guards(a.getWarmUpTrials(), a.getFloor(), control,
                 a.getMaxStep() == null ? 1.0 : a.getMaxStep());
         return new EngineConfig(prior(def), AllocationMethod.valueOf(a.getRule().name()), a.getBeta(),
-                EngineConfig.MethodChoice.AUTO, draws, guards);
+                method(a), draws, guards);
+    }
+
+    /** The schema's documented default: a null bestArmEstimator means SAMPLED (Monte Carlo). */
+    private static EngineConfig.MethodChoice method(AllocationSpec a) {
+        return a.getBestArmEstimator() == dev.runoff.records.avro.BestArmEstimator.INTEGRATED
+                ? EngineConfig.MethodChoice.EXACT : EngineConfig.MethodChoice.MONTE_CARLO;
     }
 
     private static Prior prior(ExperimentDefinition def) {

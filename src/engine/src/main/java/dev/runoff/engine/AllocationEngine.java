@@ -6,7 +6,7 @@ import dev.runoff.engine.core.Metric;
 
 import dev.runoff.engine.allocation.GuardedWeights;
 import dev.runoff.engine.best.ExactProbabilityBest;
-import dev.runoff.engine.best.MonteCarloProbabilityBest;
+import dev.runoff.engine.best.AdaptiveMonteCarlo;
 import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.best.ProbabilityBestEstimator;
 import dev.runoff.engine.posterior.Posterior;
@@ -24,16 +24,13 @@ import java.util.Set;
  * a pure function of (statistics, configuration, seed, previous weights): the same input gives the same
  * bits.
  *
- * <p>With {@link EngineConfig.MethodChoice#AUTO}, the probability that each arm is best is integrated
- * exactly for up to {@link #EXACT_ARM_LIMIT} arms and estimated by Monte Carlo beyond. The limit is a
- * convention, not a measured crossover: it keeps the exact path, which also resolves probabilities far
- * below {@code 1 / draws}, for the arm counts of ordinary experiments, and bounds the cost of the
- * integrals, which all involve every arm.
- *
- * <p>With Monte Carlo, an arm that wins no draw has alpha 0: top-two Thompson sampling then gives it no
- * weight, and when the leader wins every draw the challenger share is split equally among the other arms
- * (the documented convention of {@link dev.runoff.engine.allocation.TopTwo#thompson}); top-two probability
- * sampling breaks ties among zero alphas by the lowest index. Exact integration avoids both effects.
+ * <p>With {@link EngineConfig.MethodChoice#MONTE_CARLO}, the default, the probability that each arm is best
+ * is estimated by {@link AdaptiveMonteCarlo} with at most {@link EngineConfig#draws()} joint draws: the draw
+ * count adapts to whether the leader and the runner-up can be ordered, and arms that win no draw get a
+ * positive conditional Monte Carlo estimate, so top-two Thompson sampling never falls into its degenerate
+ * split merely because the draws ran out. {@link EngineConfig.MethodChoice#EXACT} integrates exactly;
+ * {@link EngineConfig.MethodChoice#AUTO} integrates exactly for up to {@link #EXACT_ARM_LIMIT} arms and
+ * estimates by Monte Carlo beyond (a convention kept for the command line, not a measured crossover).
  */
 public final class AllocationEngine {
 
@@ -41,7 +38,7 @@ public final class AllocationEngine {
      * Version of the engine's arithmetic, recorded in every evaluation. It changes whenever a change to the
      * engine can alter any output bit for the same input.
      */
-    public static final String VERSION = "1.1";
+    public static final String VERSION = "1.2";
 
     /** Largest number of arms for which {@link EngineConfig.MethodChoice#AUTO} integrates exactly. */
     public static final int EXACT_ARM_LIMIT = 12;
@@ -102,7 +99,7 @@ public final class AllocationEngine {
     private static ProbabilityBestEstimator estimator(EngineConfig config, int arms) {
         return resolve(config.method(), arms) == ProbabilityBest.Method.EXACT
                 ? new ExactProbabilityBest()
-                : new MonteCarloProbabilityBest(config.draws());
+                : new AdaptiveMonteCarlo(config.draws());
     }
 
     private static List<String> checkArms(List<Arm> arms, Metric metric) {

@@ -19,7 +19,8 @@ import java.util.Objects;
  * @param rule   the allocation rule
  * @param beta   the leader's share in the top-two rules, in [0, 1]
  * @param method how the probability that each arm is best is computed
- * @param draws  Monte Carlo joint draws, {@code >= 1} (used only when Monte Carlo is chosen)
+ * @param draws  the most Monte Carlo joint draws, {@code >= 1} (the cap of {@link dev.runoff.engine.best.AdaptiveMonteCarlo};
+ *               used only when Monte Carlo is chosen)
  * @param guards the guards applied to the rule's weights
  */
 public record EngineConfig(Prior prior, AllocationMethod rule, double beta, MethodChoice method, int draws,
@@ -27,8 +28,8 @@ public record EngineConfig(Prior prior, AllocationMethod rule, double beta, Meth
 
     /** Default leader share: the beta = 1/2 of Russo (2020), within a factor 2 of the optimal rate. */
     public static final double DEFAULT_BETA = 0.5;
-    /** Default number of Monte Carlo joint draws. */
-    public static final int DEFAULT_DRAWS = 10_000;
+    /** Default cap on Monte Carlo joint draws: four times the first stage of 10,000. */
+    public static final int DEFAULT_DRAWS = 40_000;
 
     /** Validates every field; messages name the field and value. */
     public EngineConfig {
@@ -44,11 +45,12 @@ public record EngineConfig(Prior prior, AllocationMethod rule, double beta, Meth
 
     /**
      * Defaults for a metric: uniform Beta(1, 1) prior for Bernoulli metrics or {@link NormalGammaPrior#WEAK}
-     * for value metrics, top-two Thompson sampling with beta 0.5, automatic method, 10,000 draws, no guards.
+     * for value metrics, top-two Thompson sampling with beta 0.5, Monte Carlo with at most
+     * {@value #DEFAULT_DRAWS} draws, no guards.
      */
     public static EngineConfig defaults(Metric metric) {
         Prior prior = metric == Metric.BERNOULLI ? BetaPrior.UNIFORM : NormalGammaPrior.WEAK;
-        return new EngineConfig(prior, AllocationMethod.TOP_TWO_THOMPSON, DEFAULT_BETA, MethodChoice.AUTO,
+        return new EngineConfig(prior, AllocationMethod.TOP_TWO_THOMPSON, DEFAULT_BETA, MethodChoice.MONTE_CARLO,
                 DEFAULT_DRAWS, Guards.NONE);
     }
 
@@ -95,7 +97,7 @@ public record EngineConfig(Prior prior, AllocationMethod rule, double beta, Meth
         AUTO,
         /** Always exact numerical integration. */
         EXACT,
-        /** Always Monte Carlo with the configured number of draws. */
+        /** Always Monte Carlo ({@link dev.runoff.engine.best.AdaptiveMonteCarlo}) with at most the configured draws. */
         MONTE_CARLO
     }
 }

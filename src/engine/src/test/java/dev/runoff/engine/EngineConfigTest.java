@@ -15,13 +15,13 @@ import org.junit.jupiter.api.Test;
 class EngineConfigTest {
 
     @Test
-    void defaultsAreTopTwoThompsonWithBetaOneHalfAndTenThousandDraws() {
+    void defaultsAreTopTwoThompsonWithBetaOneHalfAndMonteCarloOfAtMostFortyThousandDraws() {
         EngineConfig c = EngineConfig.defaults(Metric.BERNOULLI);
         assertEquals(BetaPrior.UNIFORM, c.prior());
         assertEquals(AllocationMethod.TOP_TWO_THOMPSON, c.rule());
         assertEquals(0.5, c.beta());
-        assertEquals(EngineConfig.MethodChoice.AUTO, c.method());
-        assertEquals(10_000, c.draws());
+        assertEquals(EngineConfig.MethodChoice.MONTE_CARLO, c.method());
+        assertEquals(40_000, c.draws());
         assertEquals(Guards.NONE, c.guards());
         assertEquals(Metric.BERNOULLI, c.metric());
         assertEquals(NormalGammaPrior.WEAK, EngineConfig.defaults(Metric.VALUE).prior());

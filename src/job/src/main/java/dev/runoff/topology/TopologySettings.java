@@ -1,5 +1,7 @@
 package dev.runoff.topology;
 
+import dev.runoff.engine.EngineConfig;
+
 import dev.runoff.records.Format;
 import java.util.HashSet;
 import java.util.LinkedHashMap;
@@ -39,8 +41,8 @@ import java.util.TreeSet;
  *                                   ({@value #UNITS_CLEANUP_MAX_ENTRIES})
  * @param unitsRetentionMarginMs     a unit entry is dropped this long after its attribution window ended
  *                                   ({@value #UNITS_RETENTION_MARGIN_MS})
- * @param monteCarloDraws            joint draws when the engine estimates by Monte Carlo (more than 12 arms)
- *                                   ({@value #MONTE_CARLO_DRAWS})
+ * @param monteCarloDraws            the most joint draws of the Monte Carlo estimator, the default of every
+ *                                   definition (the cap of {@code AdaptiveMonteCarlo}; {@value #MONTE_CARLO_DRAWS})
  * @param outputFormat               encoding of the output records: AVRO (single-object) or JSON
  *                                   ({@value #OUTPUT_FORMAT})
  */
@@ -121,7 +123,7 @@ public record TopologySettings(String outcomesTopic, String definitionsTopic, St
     /** Default of {@link #unitsRetentionMarginMs()}: 1 hour. */
     public static final long UNITS_RETENTION_MARGIN_MS = 3_600_000L;
     /** Default of {@link #monteCarloDraws()}. */
-    public static final int MONTE_CARLO_DRAWS = 10_000;
+    public static final int MONTE_CARLO_DRAWS = EngineConfig.DEFAULT_DRAWS;
     /** Default of {@link #outputFormat()}. */
     public static final String OUTPUT_FORMAT = "AVRO";
 

@@ -65,6 +65,15 @@ public final class ExactProbabilityBest implements ProbabilityBestEstimator {
     }
 
     /**
+     * The exact alphas of the arms selected by {@code which} (the others are 0), with the same integrals and
+     * checks as {@link #estimate}; {@link AdaptiveMonteCarlo} uses it for arms that win no draw.
+     */
+    static double[] selected(List<? extends Posterior> posteriors, boolean[] which) {
+        checkPosteriors(posteriors);
+        return alphas(posteriors, -1, 0, which.clone());
+    }
+
+    /**
      * {@code P(theta_leader >= max_{j != leader} theta_j - epsilon) = integral f_L(x) prod_{j != L}
      * F_j(x + epsilon) dx}, the posterior probability that the leader is within {@code epsilon} of the best
      * (the indifference-zone stopping statistic).

@@ -60,7 +60,7 @@ public final class MonteCarloProbabilityBest implements ProbabilityBestEstimator
         return new ProbabilityBest(alpha, standardError, ProbabilityBest.Method.MONTE_CARLO, draws);
     }
 
-    private static Posterior.Sampler[] samplers(List<? extends Posterior> posteriors, UniformRandomProvider rng) {
+    static Posterior.Sampler[] samplers(List<? extends Posterior> posteriors, UniformRandomProvider rng) {
         if (posteriors == null || posteriors.size() < 2) {
             throw new IllegalArgumentException("need at least 2 posteriors, got "
                     + (posteriors == null ? "null" : posteriors.size()));
@@ -79,10 +79,20 @@ public final class MonteCarloProbabilityBest implements ProbabilityBestEstimator
     /** Wins per arm over all draws; the only allocations are the buffers made before the loop. */
     private long[] countWins(Posterior.Sampler[] samplers) {
         long[] wins = new long[samplers.length];
+        addWins(samplers, draws, wins);
+        return wins;
+    }
+
+    /**
+     * Adds to {@code wins} the winners of {@code count} further joint draws from {@code samplers}, in blocks of
+     * {@value #BLOCK} starting afresh at the first draw of this call (the layout {@link AdaptiveMonteCarlo}
+     * relies on to continue a stream stage by stage).
+     */
+    static void addWins(Posterior.Sampler[] samplers, int count, long[] wins) {
         double[] best = new double[BLOCK];
         int[] winner = new int[BLOCK];
-        for (int start = 0; start < draws; start += BLOCK) {
-            int n = Math.min(BLOCK, draws - start);
+        for (int start = 0; start < count; start += BLOCK) {
+            int n = Math.min(BLOCK, count - start);
             fillFirst(samplers[0], best, winner, n);
             for (int arm = 1; arm < samplers.length; arm++) {
                 challenge(samplers[arm], arm, best, winner, n);
@@ -91,7 +101,6 @@ public final class MonteCarloProbabilityBest implements ProbabilityBestEstimator
                 wins[winner[j]]++;
             }
         }
-        return wins;
     }
 
     private static void fillFirst(Posterior.Sampler sampler, double[] best, int[] winner, int n) {

@@ -10,9 +10,9 @@ import dev.runoff.engine.stopping.StoppingConfig;
 import org.junit.jupiter.api.Test;
 
 /**
- * Top-two Thompson sampling against uniform allocation, simulated with the engine's defaults (exact alpha
- * for five arms, beta 1/2, GLR stopping with the proven threshold) on five Bernoulli arms with rates 0.1,
- * 0.2, 0.3, 0.4 and 0.5.
+ * Top-two Thompson sampling against uniform allocation, simulated with the engine's defaults (Monte Carlo alpha
+ * with conditional estimates for arms that win no draw, beta 1/2, GLR stopping with the proven threshold) on
+ * five Bernoulli arms with rates 0.1, 0.2, 0.3, 0.4 and 0.5.
  */
 class TopTwoSimulationTest {
     private static final ArmModel ARMS = ArmModel.bernoulli(0.1, 0.2, 0.3, 0.4, 0.5);

@@ -1,0 +1,162 @@
+package dev.runoff.engine.best;
+
+import dev.runoff.engine.posterior.Posterior;
+import java.util.List;
+import org.apache.commons.rng.UniformRandomProvider;
+import org.apache.commons.rng.simple.RandomSource;
+
+/**
+ * The job's default estimator of the probability that each arm is best: seeded joint posterior draws whose
+ * number adapts to the question the weights ask (which arm leads, which challenges), with conditional Monte
+ * Carlo for the arms that win no draw.
+ *
+ * <p><b>Draw count.</b> Stage 0 makes {@code min(FIRST_STAGE, maxDraws)} joint draws; each further stage
+ * doubles the total, capped at {@code maxDraws}. After each stage, with leader L and runner-up R the two arms
+ * with the most wins (ties to the lower index) and {@code d = (w_L - w_R) / M}, the standard error of d is
+ * {@code s = sqrt((p_L + p_R - d^2) / M)} (the variance of a difference of two multinomial cell proportions;
+ * common practice). Drawing stops when {@code d >= Z * s} (the two are ordered) or {@code s <= RESOLUTION}
+ * (they are too close for their order to move the weights by more than about a quarter of a percent), or
+ * when the cap is reached. Every stage continues the same random stream and starts a new block layout, so
+ * the result after a stage does not depend on the cap: re-running with the recorded draws as the cap
+ * reproduces a decision bit for bit, and a larger recorded count than the rule asks for shows up as a
+ * difference.
+ *
+ * <p><b>Arms that win no draw.</b> Their count says only that alpha is probably below about {@code 3 / M}
+ * (the one-sided 95% Clopper-Pearson bound at zero successes, {@link #zeroWinUpperBound}); an alpha of 0
+ * would send top-two Thompson sampling into its degenerate split when the leader wins every draw, and would
+ * starve an arm whose alpha is merely small. For such an arm i the estimator conditions on theta_i
+ * (conditional Monte Carlo, Rao-Blackwellisation: Robert and Roberts 2021, "Rao-Blackwellisation in the
+ * Markov chain Monte Carlo era", International Statistical Review, hal-03912172): given theta_i the
+ * indicator "arm i is best" has the closed-form expectation {@code prod_{j != i} F_j(theta_i)}, which by the
+ * law of total variance is never noisier than the indicator. The remaining one-dimensional expectation over
+ * theta_i is integrated with the quadrature of {@link ExactProbabilityBest} rather than by draws of
+ * theta_i: those draws almost never reach the upper tail of theta_i where the product is largest, so the
+ * draw average is unbiased but almost always far too small. Measured on five Beta arms (40, 90, 120, 180
+ * and 230 successes in about 400 trials each): the exact alpha of the first arm is 1.5e-44, the average over
+ * 1,024 draws of theta_1 gave 8e-129 to 5e-107 on five seeds; a top-two Thompson simulation fed with such
+ * values needed 0.87 of uniform allocation's trials instead of 0.42 (the setting of TopTwoSimulationTest).
+ * The quadrature is deterministic, so the standard error recorded for these arms is 0. The leader's alpha is one minus the other arms' alphas, so the alphas
+ * sum to 1; its standard error stays the binomial one of its count.
+ *
+ * <p>Reproducibility: one {@code RandomSource.XO_SHI_RO_256_PP} stream seeded with {@code seed} feeds the
+ * joint draws, in the layout of {@link MonteCarloProbabilityBest} within each stage; the quadrature uses
+ * {@code StrictMath}.
+ */
+public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
+
+    /** Joint draws of the first stage (when the cap allows). */
+    public static final int FIRST_STAGE = 10_000;
+    /** Standard errors of the leader-runner-up difference that count as ordered. */
+    public static final double Z = 3.0;
+    /** Standard error of the leader-runner-up difference below which their order no longer matters. */
+    public static final double RESOLUTION = 0.0025;
+    /** One-sided confidence level of {@link #zeroWinUpperBound}. */
+    public static final double UPPER_BOUND_LEVEL = 0.95;
+
+    private final int maxDraws;
+
+    /**
+     * An estimator drawing at most {@code maxDraws} joint draws.
+     *
+     * @throws IllegalArgumentException if {@code maxDraws < 1}
+     */
+    public AdaptiveMonteCarlo(int maxDraws) {
+        if (maxDraws < 1) {
+            throw new IllegalArgumentException("maxDraws must be >= 1, got " + maxDraws);
+        }
+        this.maxDraws = maxDraws;
+    }
+
+    /** The cap on joint draws. */
+    public int maxDraws() {
+        return maxDraws;
+    }
+
+    /**
+     * The one-sided Clopper-Pearson upper bound at level {@value #UPPER_BOUND_LEVEL} for a proportion with
+     * zero successes in {@code draws} trials: {@code 1 - 0.05^(1/draws)} (Clopper and Pearson 1934,
+     * Biometrika 26:404-413; about {@code 3 / draws}, the "rule of three").
+     */
+    public static double zeroWinUpperBound(int draws) {
+        if (draws < 1) {
+            throw new IllegalArgumentException("draws must be >= 1, got " + draws);
+        }
+        return -StrictMath.expm1(StrictMath.log(1 - UPPER_BOUND_LEVEL) / draws);
+    }
+
+    /**
+     * Alpha for each posterior; see the class comment for the draw count and the zero-win arms.
+     *
+     * @throws IllegalArgumentException if fewer than two posteriors are given or one is null
+     */
+    @Override
+    public ProbabilityBest estimate(List<? extends Posterior> posteriors, long seed) {
+        UniformRandomProvider rng = RandomSource.XO_SHI_RO_256_PP.create(seed);
+        Posterior.Sampler[] samplers = MonteCarloProbabilityBest.samplers(posteriors, rng);
+        long[] wins = new long[samplers.length];
+        int done = 0;
+        int target = Math.min(FIRST_STAGE, maxDraws);
+        while (true) {
+            MonteCarloProbabilityBest.addWins(samplers, target - done, wins);
+            done = target;
+            if (done == maxDraws || settled(wins, done)) {
+                break;
+            }
+            target = (int) Math.min(2L * done, maxDraws);
+        }
+        return estimates(posteriors, wins, done);
+    }
+
+    /** Whether leader and runner-up are ordered, or too close for the order to matter. */
+    static boolean settled(long[] wins, int draws) {
+        int leader = rank(wins, -1);
+        int runnerUp = rank(wins, leader);
+        double pl = (double) wins[leader] / draws;
+        double pr = (double) wins[runnerUp] / draws;
+        double d = pl - pr;
+        double s = Math.sqrt(Math.max(0, pl + pr - d * d) / draws);
+        return d >= Z * s || s <= RESOLUTION;
+    }
+
+    /** The arm with the most wins other than {@code skip}, ties to the lowest index. */
+    private static int rank(long[] wins, int skip) {
+        int best = -1;
+        for (int i = 0; i < wins.length; i++) {
+            if (i != skip && (best < 0 || wins[i] > wins[best])) {
+                best = i;
+            }
+        }
+        return best;
+    }
+
+    private static ProbabilityBest estimates(List<? extends Posterior> posteriors, long[] wins, int draws) {
+        int k = wins.length;
+        int leader = rank(wins, -1);
+        boolean[] conditional = new boolean[k];
+        boolean any = false;
+        for (int i = 0; i < k; i++) {
+            conditional[i] = wins[i] == 0 && i != leader;
+            any |= conditional[i];
+        }
+        double[] integrated = any ? ExactProbabilityBest.selected(posteriors, conditional) : new double[k];
+        double[] alpha = new double[k];
+        double[] se = new double[k];
+        double others = 0;
+        for (int i = 0; i < k; i++) {
+            if (i != leader) {
+                alpha[i] = conditional[i] ? integrated[i] : (double) wins[i] / draws;
+                se[i] = conditional[i] ? 0 : StrictMath.sqrt(alpha[i] * (1 - alpha[i]) / draws);
+                others += alpha[i];
+            }
+        }
+        double countShare = (double) wins[leader] / draws;
+        alpha[leader] = Math.max(0, 1 - others);
+        se[leader] = StrictMath.sqrt(countShare * (1 - countShare) / draws);
+        return new ProbabilityBest(alpha, se, ProbabilityBest.Method.MONTE_CARLO, draws, conditional);
+    }
+
+    @Override
+    public String toString() {
+        return "AdaptiveMonteCarlo[maxDraws=" + maxDraws + "]";
+    }
+}
