@@ -73,6 +73,22 @@ class SchemaCompatibilityTest {
     }
 
     @Test
+    void aDecisionRecordWrittenByEveryEarlierSchemaDecodesAndKeepsItsHash() throws Exception {
+        DecisionRecord original = Samples.decision();
+        List<Schema> writers = WriterSchemas.previous("DecisionRecord");
+        assertEquals(2, writers.size(), "DecisionRecord-1 (first release) and -2 (signature and counting fields)");
+        for (Schema writer : writers) {
+            Decoded<DecisionRecord> decoded = RecordCodec.decisionRecords().decode(writtenBy(writer, original),
+                    Samples.NOW);
+            assertTrue(decoded.isValid(), decoded.problems().toString());
+            assertEquals(original, decoded.orThrow());
+            // the golden hash of HashChainTest, computed outside Java
+            assertEquals("5a49ef7b537fb6faefc8bca0f7a0cb5e743f24b29763b6d93a2321fa59a18472",
+                    HashChain.hashOf(decoded.orThrow()));
+        }
+    }
+
+    @Test
     void aControlRecordWrittenByThePreviousSchemaDecodes() throws Exception {
         AllocationUpdate original = Samples.update();
         Decoded<AllocationUpdate> decoded = RecordCodec.allocationUpdates()
