@@ -162,6 +162,9 @@ public final class Demo {
         s.put(StreamsConfig.COMMIT_INTERVAL_MS_CONFIG, "100");
         s.put("runoff.flush.interval.ms", "200");
         s.put("runoff.allocate.interval.ms", "100");
+        // the feed sends a batch and waits until it is counted, so the input goes quiet after every batch and
+        // stream time stops there: close the windows by the wall clock once a window's length passes unread
+        s.put("runoff.units.close.idle.ms", String.valueOf(DemoScenario.CONVERSION_WINDOW_MS));
         s.put(AppSettings.HTTP_PORT_KEY, String.valueOf(options.httpPort()));
         s.put(SafetySettings.BIND_ADDRESS_KEY, SafetySettings.BIND_ADDRESS);
         s.put(AppSettings.ROCKSDB_CACHE_KEY, String.valueOf(16L << 20));

@@ -128,8 +128,8 @@ public record TopologySettings(String outcomesTopic, String definitionsTopic, St
     public static final long UNITS_RETENTION_MARGIN_MS = 3_600_000L;
     /**
      * Default of {@link #unitsCloseIdleMs()}: 5 s, ten times the consumer's default {@code fetch.max.wait.ms}
-     * (500 ms, Kafka's consumer configuration reference) so that a fetch in flight never looks like a quiet
-     * input, and short beside conversion windows of minutes or more.
+     * (500 ms, {@code ConsumerConfig.DEFAULT_FETCH_MAX_WAIT_MS} in kafka-clients 4.4.0) so that a fetch in
+     * flight never looks like a quiet input, and short beside conversion windows of minutes or more.
      */
     public static final long UNITS_CLOSE_IDLE_MS = 5_000L;
     /** Default of {@link #monteCarloDraws()}. */
