@@ -185,6 +185,9 @@ public final class Demo {
         s.put(StreamsConfig.COMMIT_INTERVAL_MS_CONFIG, "100");
         s.put("runoff.flush.interval.ms", "200");
         s.put("runoff.allocate.interval.ms", "100");
+        // visitors pause while the job lags and stop at the end, so the input goes quiet and stream time stops
+        // there: close the windows by the wall clock once a second passes unread (the default is 5 s)
+        s.put("runoff.units.close.idle.ms", "1000");
         s.put(AppSettings.HTTP_PORT_KEY, String.valueOf(options.httpPort()));
         s.put(SafetySettings.BIND_ADDRESS_KEY, SafetySettings.BIND_ADDRESS);
         s.put(AppSettings.ROCKSDB_CACHE_KEY, String.valueOf(16L << 20));

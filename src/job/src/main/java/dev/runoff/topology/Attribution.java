@@ -33,12 +33,19 @@ import org.apache.kafka.streams.state.KeyValueStore;
  *   <li>An outcome whose unit has no trial event yet waits up to the definition's early-outcome grace
  *       ({@link #MAX_WAITING_PER_UNIT} per unit) and is replayed when the trial event comes; after the grace
  *       it is rejected as {@code unattributed}.</li>
- *   <li>A punctuation every flush interval (wall clock) closes the windows that have ended: each such unit
- *       enters its arm's trials, as a success if it converted.</li>
+ *   <li>A punctuation every flush interval (wall clock) closes the windows that have ended by the close time
+ *       of {@link UnitCounting#closeTime}: each such unit enters its arm's trials, as a success if it
+ *       converted.</li>
  * </ul>
- * Time: windows compare event timestamps with each other and with the job's wall clock (the punctuation's
- * time), as the rest of the job does. Unit entries are dropped once counted and idle for their window plus
- * a margin, by a wall-clock punctuation that looks at a bounded number of entries per call.
+ * Time: windows compare event timestamps with each other. A window counts as closed only once both the wall
+ * clock and the task's stream time (the largest record timestamp it has read; records on the events-by-unit
+ * topic keep the timestamp of the original outcome record, which the client library sets to the event's
+ * timestamp) have passed its end, so a task that lags behind its input does not count a unit before it has
+ * read the outcomes stamped inside the window. A task that has read nothing for
+ * {@link TopologySettings#unitsCloseIdleMs()} (counted from start-up too) closes by the wall clock alone.
+ * Early-outcome graces and the clean-up run on the wall clock. Unit entries are dropped once counted and idle
+ * for their window plus a margin, by a wall-clock punctuation that looks at a bounded number of entries per
+ * call.
  */
 final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], Routed<ArmDelta>> {
 
@@ -56,6 +63,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
     private KeyValueStore<String, byte[]> deadlines;
     private KeyValueStore<String, Waiting> early;
     private String resumeFrom;
+    private long lastReadAt;
 
     Attribution(TopologySettings settings, Rejections rejections, JobCounters counters) {
         this.settings = settings;
@@ -69,6 +77,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         units = context.getStateStore(RunoffTopology.UNITS_STORE);
         deadlines = context.getStateStore(RunoffTopology.DEADLINES_STORE);
         early = context.getStateStore(RunoffTopology.EARLY_STORE);
+        lastReadAt = context.currentSystemTimeMs();
         context.schedule(Duration.ofMillis(settings.unitsCleanupIntervalMs()), PunctuationType.WALL_CLOCK_TIME,
                 this::cleanUp);
         context.schedule(Duration.ofMillis(settings.flushIntervalMs()), PunctuationType.WALL_CLOCK_TIME,
@@ -81,6 +90,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         String key = UnitEvent.unitKey(event.experimentId(), event.unitId());
         UnitState unit = units.get(key);
         long now = context().currentSystemTimeMs();
+        lastReadAt = now;
         if (event.role() == UnitEvent.Role.TRIAL) {
             trial(event, record.timestamp(), key, unit, now);
         } else if (unit == null) {
@@ -202,32 +212,41 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
                 message, event.source()));
     }
 
-    /** Closes the windows and ends the graces due by {@code now}, at most the clean-up bound per call. */
+    /**
+     * Closes the windows due by the close time and ends the graces due by {@code now} (wall clock), at most
+     * the clean-up bound of each per call.
+     */
     private void deadlinesDue(long now) {
+        long closeTime = UnitCounting.closeTime(now, context().currentStreamTimeMs(), lastReadAt,
+                settings.unitsCloseIdleMs());
+        for (String entry : due(CLOSE, closeTime)) {
+            deadlines.delete(entry);
+            close(entry.substring(DIGITS + 1), closeTime, now);
+        }
+        for (String entry : due(EXPIRE, now)) {
+            deadlines.delete(entry);
+            expire(entry.substring(DIGITS + 1), now);
+        }
+    }
+
+    /** Deadlines of {@code kind} at or before {@code at}, in time order, at most the clean-up bound. */
+    private List<String> due(char kind, long at) {
         List<String> due = new ArrayList<>();
-        try (KeyValueIterator<String, byte[]> it = deadlines.range(null, deadline(now, '\u007f', ""))) {
+        long after = at == Long.MAX_VALUE ? at : at + 1;
+        try (KeyValueIterator<String, byte[]> it = deadlines.range(String.valueOf(kind), deadline(after, kind, ""))) {
             while (it.hasNext() && due.size() < settings.unitsCleanupMaxEntries()) {
                 due.add(it.next().key);
             }
         }
-        for (String entry : due) {
-            deadlines.delete(entry);
-            char kind = entry.charAt(DIGITS);
-            String key = entry.substring(DIGITS + 1);
-            if (kind == CLOSE) {
-                close(key, now);
-            } else {
-                expire(key, now);
-            }
-        }
+        return due;
     }
 
-    private void close(String key, long now) {
+    private void close(String key, long closeTime, long now) {
         UnitState unit = units.get(key);
         if (unit == null) {
             return;
         }
-        UnitCounting.Step step = UnitCounting.close(unit, now);
+        UnitCounting.Step step = UnitCounting.close(unit, closeTime, now);
         if (!step.count().isEmpty()) {
             units.put(key, step.unit());
             pass(step.unit(), key.substring(0, key.indexOf('\u0000')), step.count(), now);
@@ -258,9 +277,12 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         }
     }
 
-    /** Deadline key: the time as 19 digits (sorts in time order), the kind, the unit key. */
+    /**
+     * Deadline key: the kind, the time as 19 digits (sorts in time order within a kind), the unit key. The
+     * kinds are apart so that windows and graces, due by different clocks, are each read in time order.
+     */
     static String deadline(long at, char kind, String unitKey) {
-        return String.format(Locale.ROOT, "%019d", Math.max(0L, at)) + kind + unitKey;
+        return kind + String.format(Locale.ROOT, "%019d", Math.max(0L, at)) + unitKey;
     }
 
     private static long saturatedSum(long a, long b) {

@@ -41,6 +41,9 @@ import java.util.TreeSet;
  *                                   ({@value #UNITS_CLEANUP_MAX_ENTRIES})
  * @param unitsRetentionMarginMs     a unit entry is dropped this long after its attribution window ended
  *                                   ({@value #UNITS_RETENTION_MARGIN_MS})
+ * @param unitsCloseIdleMs           a task that has read no event for this long closes conversion windows by
+ *                                   the wall clock alone, not waiting for its stream time
+ *                                   ({@value #UNITS_CLOSE_IDLE_MS})
  * @param monteCarloDraws            the most joint draws of the Monte Carlo estimator, the default of every
  *                                   definition (the cap of {@code AdaptiveMonteCarlo}; {@value #MONTE_CARLO_DRAWS})
  * @param outputFormat               encoding of the output records: AVRO (single-object) or JSON
@@ -51,7 +54,8 @@ public record TopologySettings(String outcomesTopic, String definitionsTopic, St
                                long dedupeWindowMs, long flushIntervalMs, int flushMaxEntries,
                                long allocateIntervalMs, int allocateMaxEvaluations, long allocateMaxTimeMs,
                                int allocateMaxVisits, long unitsCleanupIntervalMs, int unitsCleanupMaxEntries,
-                               long unitsRetentionMarginMs, int monteCarloDraws, Format outputFormat) {
+                               long unitsRetentionMarginMs, long unitsCloseIdleMs, int monteCarloDraws,
+                               Format outputFormat) {
 
     /** Key of {@link #outcomesTopic()}. */
     public static final String OUTCOMES_TOPIC_KEY = "runoff.topic.outcomes";
@@ -85,6 +89,8 @@ public record TopologySettings(String outcomesTopic, String definitionsTopic, St
     public static final String UNITS_CLEANUP_MAX_ENTRIES_KEY = "runoff.units.cleanup.max.entries";
     /** Key of {@link #unitsRetentionMarginMs()}. */
     public static final String UNITS_RETENTION_MARGIN_KEY = "runoff.units.retention.margin.ms";
+    /** Key of {@link #unitsCloseIdleMs()}. */
+    public static final String UNITS_CLOSE_IDLE_KEY = "runoff.units.close.idle.ms";
     /** Key of {@link #monteCarloDraws()}. */
     public static final String MONTE_CARLO_DRAWS_KEY = "runoff.montecarlo.draws";
     /** Key of {@link #outputFormat()}. */
@@ -122,6 +128,12 @@ public record TopologySettings(String outcomesTopic, String definitionsTopic, St
     public static final int UNITS_CLEANUP_MAX_ENTRIES = 10_000;
     /** Default of {@link #unitsRetentionMarginMs()}: 1 hour. */
     public static final long UNITS_RETENTION_MARGIN_MS = 3_600_000L;
+    /**
+     * Default of {@link #unitsCloseIdleMs()}: 5 s, ten times the consumer's default {@code fetch.max.wait.ms}
+     * (500 ms, {@code ConsumerConfig.DEFAULT_FETCH_MAX_WAIT_MS} in kafka-clients 4.4.0) so that a fetch in
+     * flight never looks like a quiet input, and short beside conversion windows of minutes or more.
+     */
+    public static final long UNITS_CLOSE_IDLE_MS = 5_000L;
     /** Default of {@link #monteCarloDraws()}. */
     public static final int MONTE_CARLO_DRAWS = EngineConfig.DEFAULT_DRAWS;
     /** Default of {@link #outputFormat()}. */
@@ -159,6 +171,7 @@ public record TopologySettings(String outcomesTopic, String definitionsTopic, St
             throw new IllegalArgumentException(UNITS_RETENTION_MARGIN_KEY + " must be >= 0, got "
                     + unitsRetentionMarginMs);
         }
+        positive(UNITS_CLOSE_IDLE_KEY, unitsCloseIdleMs);
         positive(MONTE_CARLO_DRAWS_KEY, monteCarloDraws);
         if (outputFormat == null) {
             throw new IllegalArgumentException(OUTPUT_FORMAT_KEY + " must be AVRO or JSON, got null");
@@ -198,6 +211,7 @@ public record TopologySettings(String outcomesTopic, String definitionsTopic, St
                 r.number(UNITS_CLEANUP_INTERVAL_KEY, UNITS_CLEANUP_INTERVAL_MS),
                 r.count(UNITS_CLEANUP_MAX_ENTRIES_KEY, UNITS_CLEANUP_MAX_ENTRIES),
                 r.number(UNITS_RETENTION_MARGIN_KEY, UNITS_RETENTION_MARGIN_MS),
+                r.number(UNITS_CLOSE_IDLE_KEY, UNITS_CLOSE_IDLE_MS),
                 r.count(MONTE_CARLO_DRAWS_KEY, MONTE_CARLO_DRAWS), r.format(OUTPUT_FORMAT_KEY));
         r.rejectUnknown();
         return settings;

@@ -6,8 +6,8 @@ package dev.runoff.topology;
  *
  * <p><b>Unit counting</b> (the default): a unit's first trial event makes it <i>pending</i> on its arm; a
  * success event stamped at most the conversion window after that exposure marks it converted (once); when
- * the window has closed on the job's wall clock, {@link #close} counts the unit as one trial, and as one
- * success if it converted. Later exposures add nothing.
+ * the window has closed (by the {@link #closeTime close time} below), {@link #close} counts the unit as one
+ * trial, and as one success if it converted. Later exposures add nothing.
  *
  * <p>Design: under adaptive allocation the arms are fed at different times, so at any decision an arm fed
  * recently has more units whose conversions have not happened yet. Counting a unit only once its window
@@ -120,12 +120,44 @@ final class UnitCounting {
     }
 
     /**
-     * Unit counting: once the unit's window has closed at wall-clock {@code now}, the unit enters its arm's
-     * trials, as a success if it converted; otherwise (window still open, already counted, per-exposure
-     * counting) nothing changes.
+     * The time up to which a task may treat conversion windows as closed: the earlier of its wall clock
+     * {@code now} and its stream time (the largest record timestamp it has read), or the wall clock alone
+     * once it has read nothing for {@code idleMs}.
+     *
+     * <p>Design: a window's end is an event time (first exposure's timestamp plus the window), so whether
+     * every outcome stamped inside it has been read is a question about the input, not about the job's
+     * clock. A task that lags behind its input has a wall clock far ahead of what it has read; closing by the
+     * wall clock would count a unit a failure while its conversion, stamped inside the window, is still
+     * waiting in the backlog (the late-conversion bias of matured counting, back through the job's lag).
+     * Stream time is the watermark of what the task has read: with records stamped at the event's time and
+     * read in order, a window whose end is at or below it has had all its outcomes read, however far behind
+     * the task is, so the count no longer depends on the job's lag: the event-time/processing-time distinction
+     * and watermarks of Akidau et al., "The Dataflow Model", VLDB 2015. The wall clock still bounds it, so
+     * a producer stamping the future cannot close a window early. Stream time stops when the input goes
+     * quiet; a task that has read nothing for {@code idleMs} is caught up, not behind, and then the wall
+     * clock alone decides, as for a job without lag.
+     *
+     * @param now        the task's wall clock
+     * @param streamTime the largest record timestamp the task has read (negative if none yet)
+     * @param lastReadAt wall-clock time the task last read a record (or started)
+     * @param idleMs     how long without a record makes the task idle
      */
-    static Step close(UnitState unit, long now) {
-        if (!unit.unitLevel() || unit.counted() || now < unit.closesAt()) {
+    static long closeTime(long now, long streamTime, long lastReadAt, long idleMs) {
+        if (now - lastReadAt >= idleMs) {
+            return now;
+        }
+        return Math.min(now, streamTime);
+    }
+
+    /**
+     * Unit counting: once the unit's window has closed by {@code closeTime} (see {@link #closeTime}), the unit
+     * enters its arm's trials, as a success if it converted; otherwise (window still open, already counted,
+     * per-exposure counting) nothing changes.
+     *
+     * @param now the wall clock, recorded as the entry's last update
+     */
+    static Step close(UnitState unit, long closeTime, long now) {
+        if (!unit.unitLevel() || unit.counted() || closeTime < unit.closesAt()) {
             return new Step(unit, Count.NONE, Verdict.TAKEN);
         }
         UnitState counted = new UnitState(unit.arm(), unit.version(), true, unit.firstTrialAt(), unit.lastTrialAt(),

@@ -88,7 +88,7 @@ class MaturedCountingBiasTest {
         }
         deliver(conversions, units, decisionAt, counts);
         for (UnitState unit : units) {
-            add(counts, unit.arm(), UnitCounting.close(unit, decisionAt).count());
+            add(counts, unit.arm(), UnitCounting.close(unit, decisionAt, decisionAt).count());
         }
         return counts;
     }

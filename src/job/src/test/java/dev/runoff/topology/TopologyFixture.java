@@ -36,10 +36,13 @@ final class TopologyFixture implements AutoCloseable {
     /** 2023-11-14T22:13:20Z, the driver's initial wall-clock time. */
     static final long T0 = 1_700_000_000_000L;
 
-    /** Settings of the tests: 100 ms flush and allocation periods, 1 h deduplication window. */
+    /**
+     * Settings of the tests: 100 ms flush and allocation periods, 1 h deduplication window, windows closed by
+     * the wall clock alone 200 ms after the last event was read (the tests send events at the wall clock).
+     */
     static final TopologySettings SETTINGS = TopologySettings.fromMap(Map.of(
             TopologySettings.FLUSH_INTERVAL_KEY, 100, TopologySettings.ALLOCATE_INTERVAL_KEY, 100,
-            TopologySettings.DEDUPE_WINDOW_KEY, 3_600_000));
+            TopologySettings.DEDUPE_WINDOW_KEY, 3_600_000, TopologySettings.UNITS_CLOSE_IDLE_KEY, 200));
 
     /** One codec per record type for every fixture: building a codec parses schemas. */
     private static final RecordCodec<ExperimentDefinition> DEFINITIONS = RecordCodec.definitions();
@@ -113,9 +116,17 @@ final class TopologyFixture implements AutoCloseable {
         experiments.pipeInput(utf8(id), null, clock);
     }
 
-    /** Sends one outcome record keyed by {@code key}. */
+    /** Sends one outcome record keyed by {@code key}, its record timestamp the current wall clock. */
     void event(String key, byte[] value) {
-        outcomes.pipeInput(key == null ? null : utf8(key), value, clock);
+        event(key, value, clock);
+    }
+
+    /**
+     * Sends one outcome record keyed by {@code key} with record timestamp {@code recordTimestamp}: a record
+     * produced then and read only now, as by a job lagging behind its input.
+     */
+    void event(String key, byte[] value, long recordTimestamp) {
+        outcomes.pipeInput(key == null ? null : utf8(key), value, recordTimestamp);
     }
 
     /** Advances the wall clock by {@code millis} in steps of 50 ms, so every punctuation fires on time. */

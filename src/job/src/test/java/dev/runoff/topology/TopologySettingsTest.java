@@ -22,6 +22,7 @@ class TopologySettingsTest {
         assertEquals(2_000L, s.flushIntervalMs());
         assertEquals(1_000L, s.allocateIntervalMs());
         assertEquals(200, s.allocateMaxEvaluations());
+        assertEquals(5_000L, s.unitsCloseIdleMs());
         assertEquals(Format.AVRO, s.outputFormat());
     }
 
@@ -47,6 +48,8 @@ class TopologySettingsTest {
         assertMessage("runoff.dedupe.window.ms must be a whole number, got 'a day'",
                 Map.of(TopologySettings.DEDUPE_WINDOW_KEY, "a day"));
         assertMessage("runoff.flush.interval.ms must be >= 1, got 0", Map.of(TopologySettings.FLUSH_INTERVAL_KEY, 0));
+        assertMessage("runoff.units.close.idle.ms must be >= 1, got 0",
+                Map.of(TopologySettings.UNITS_CLOSE_IDLE_KEY, 0));
         assertMessage("runoff.output.format must be AVRO or JSON, got 'xml'",
                 Map.of(TopologySettings.OUTPUT_FORMAT_KEY, "xml"));
         assertMessage("runoff.allocate.max.visits must be at most 2147483647, got 3000000000",
