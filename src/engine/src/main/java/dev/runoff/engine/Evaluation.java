@@ -90,19 +90,32 @@ public record Evaluation(List<String> arms, List<PosteriorSummary> posteriors, P
     }
 
     /**
-     * One arm's posterior with its mean and central 95% credible interval.
+     * One arm's posterior with its mean and central 95% credible interval. The interval's quantiles are computed
+     * when asked for, not when the arm is evaluated: the allocation and the stopping rules never read them, and
+     * simulations evaluate millions of arms.
      *
      * @param posterior the posterior (its parameters are the record's components)
-     * @param mean      posterior mean (NaN for a Student-t with at most 1 degree of freedom)
-     * @param lower95   2.5% quantile
-     * @param upper95   97.5% quantile
      */
-    public record PosteriorSummary(Posterior posterior, double mean, double lower95, double upper95) {
+    public record PosteriorSummary(Posterior posterior) {
 
         /** Summarises {@code posterior}. */
         public static PosteriorSummary of(Posterior posterior) {
-            return new PosteriorSummary(posterior, posterior.mean(), posterior.quantile(0.025),
-                    posterior.quantile(0.975));
+            return new PosteriorSummary(Objects.requireNonNull(posterior, "posterior"));
+        }
+
+        /** Posterior mean (NaN for a Student-t with at most 1 degree of freedom). */
+        public double mean() {
+            return posterior.mean();
+        }
+
+        /** 2.5% quantile. */
+        public double lower95() {
+            return posterior.quantile(0.025);
+        }
+
+        /** 97.5% quantile. */
+        public double upper95() {
+            return posterior.quantile(0.975);
         }
     }
 }

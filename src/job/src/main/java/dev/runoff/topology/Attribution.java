@@ -217,6 +217,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
      * the clean-up bound of each per call.
      */
     private void deadlinesDue(long now) {
+        moveEarlierLayout();
         long closeTime = UnitCounting.closeTime(now, context().currentStreamTimeMs(), lastReadAt,
                 settings.unitsCloseIdleMs());
         for (String entry : due(CLOSE, closeTime)) {
@@ -226,6 +227,25 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         for (String entry : due(EXPIRE, now)) {
             deadlines.delete(entry);
             expire(entry.substring(DIGITS + 1), now);
+        }
+    }
+
+    /**
+     * Moves deadlines written in the earlier key layout (the time first, then the kind: a key that starts with a
+     * digit) to the current one, at most the clean-up bound per call, so that the windows and graces a job of an
+     * earlier version left in its store are still closed and ended.
+     */
+    private void moveEarlierLayout() {
+        List<String> earlier = new ArrayList<>();
+        try (KeyValueIterator<String, byte[]> it = deadlines.range("0", ":")) {
+            while (it.hasNext() && earlier.size() < settings.unitsCleanupMaxEntries()) {
+                earlier.add(it.next().key);
+            }
+        }
+        for (String entry : earlier) {
+            deadlines.delete(entry);
+            deadlines.put(deadline(Long.parseLong(entry.substring(0, DIGITS)), entry.charAt(DIGITS),
+                    entry.substring(DIGITS + 1)), new byte[0]);
         }
     }
 

@@ -8,6 +8,7 @@ import dev.runoff.testkit.TestDefinitions;
 import java.util.Arrays;
 import java.util.List;
 import java.util.Map;
+import org.apache.kafka.streams.state.KeyValueStore;
 import org.junit.jupiter.api.AfterEach;
 import org.junit.jupiter.api.Test;
 
@@ -73,6 +74,23 @@ class LaggingAttributionTest {
         assertEquals(List.of(new BernoulliStats(1, 0), BernoulliStats.EMPTY), job.state("idle").stats(),
                 "after the idle time the wall clock alone closes the window");
         assertEquals(List.of(0L, 0L), pending(job.state("idle")));
+    }
+
+    @Test
+    void aWindowDeadlineInTheEarlierKeyLayoutIsStillClosed() {
+        job.define(TestDefinitions.withWindow(TestDefinitions.bernoulli("old", "a", "b"), WINDOW));
+        job.advance(150);
+        long t = job.clock();
+        job.event("u1", Events.exposure("old", "u1", "x1", "a", t), t);
+        KeyValueStore<String, byte[]> deadlines = job.store(RunoffTopology.DEADLINES_STORE);
+        String unitKey = UnitEvent.unitKey("old", "u1");
+        deadlines.delete(Attribution.deadline(t + WINDOW, 'C', unitKey));
+        // the layout of the first release: the time as 19 digits, then the kind, then the unit key
+        deadlines.put(String.format(java.util.Locale.ROOT, "%019d", t + WINDOW) + 'C' + unitKey, new byte[0]);
+        job.advance(IDLE + 600);
+        assertEquals(List.of(new BernoulliStats(1, 0), BernoulliStats.EMPTY), job.state("old").stats(),
+                "the window left in the earlier layout closed like any other");
+        assertEquals(List.of(0L, 0L), pending(job.state("old")));
     }
 
     private static List<Long> pending(ExperimentState state) {

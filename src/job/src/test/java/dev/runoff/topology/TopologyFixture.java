@@ -179,6 +179,11 @@ final class TopologyFixture implements AutoCloseable {
         return store.get(id);
     }
 
+    /** The job's key-value store {@code name}, to read or to seed with entries an earlier version wrote. */
+    <K, V> KeyValueStore<K, V> store(String name) {
+        return driver.getKeyValueStore(name);
+    }
+
     private <T extends org.apache.avro.specific.SpecificRecord> List<T> decode(TestOutputTopic<String, byte[]> topic,
                                                                              RecordCodec<T> codec) {
         List<T> out = new ArrayList<>();
