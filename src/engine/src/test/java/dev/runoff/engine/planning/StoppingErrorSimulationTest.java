@@ -85,7 +85,8 @@ class StoppingErrorSimulationTest {
         // at most delta (Bayesian calibration, common practice). This is NOT a guarantee for any fixed pair
         // of rates. 300 pairs of rates, one run each, exact alpha (standard error 0), batch 25, budget 500;
         // runs that end on the budget are left out, as the guarantee does not cover them.
-        EngineConfig engine = EngineConfig.defaults(Metric.BERNOULLI).withRule(AllocationMethod.UNIFORM);
+        EngineConfig engine = EngineConfig.defaults(Metric.BERNOULLI).withRule(AllocationMethod.UNIFORM)
+                .withMethod(EngineConfig.MethodChoice.EXACT);
         UniformRandomProvider prior = RandomSource.XO_SHI_RO_256_PP.create(31L);
         int stops = 0;
         int errors = 0;
