@@ -23,6 +23,7 @@ import org.apache.kafka.clients.admin.TopicDescription;
 import org.apache.kafka.common.KafkaFuture;
 import org.apache.kafka.common.config.ConfigResource;
 import org.apache.kafka.common.errors.TopicExistsException;
+import org.apache.kafka.common.errors.UnknownTopicOrPartitionException;
 
 /**
  * Creates the job's topics, idempotently: a missing topic is created with its settings; an existing one
@@ -115,8 +116,7 @@ public final class TopicCreator {
                 .map(s -> new NewTopic(s.name(), Optional.of(partitions), replicationFactor).configs(s.configs()))
                 .toList();
         Set<String> created = create(missing);
-        Map<String, TopicDescription> described = await(admin.describeTopics(
-                specs.stream().map(TopicSpec::name).toList()).allTopicNames(), "describe topics");
+        Map<String, TopicDescription> described = describe(specs.stream().map(TopicSpec::name).toList());
         List<Outcome> outcomes = new ArrayList<>();
         for (TopicSpec spec : specs) {
             int count = described.get(spec.name()).partitions().size();
@@ -127,6 +127,30 @@ public final class TopicCreator {
             }
         }
         return outcomes;
+    }
+
+    /**
+     * Describes {@code names}. A topic just created may not be known yet to the broker that answers (its
+     * metadata reaches the brokers asynchronously): such an answer is asked again, every 100 ms, within the
+     * timeout.
+     */
+    private Map<String, TopicDescription> describe(List<String> names) {
+        long deadline = System.nanoTime() + TimeUnit.MILLISECONDS.toNanos(timeoutMs);
+        while (true) {
+            try {
+                return await(admin.describeTopics(names).allTopicNames(), "describe topics");
+            } catch (IllegalStateException e) {
+                if (!(e.getCause() instanceof UnknownTopicOrPartitionException) || System.nanoTime() > deadline) {
+                    throw e;
+                }
+            }
+            try {
+                Thread.sleep(100);
+            } catch (InterruptedException e) {
+                Thread.currentThread().interrupt();
+                throw failure("describe topics", e);
+            }
+        }
     }
 
     /** The current value of each of {@code keys} on {@code topic} (missing keys are absent). */
