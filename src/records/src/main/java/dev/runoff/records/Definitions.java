@@ -16,13 +16,13 @@ public final class Definitions {
     private static final RecordCodec<ExperimentDefinition> CODEC = RecordCodec.definitions();
     private static final String VERSION_FIELD = "version";
 
+    /** Early-outcome grace of a definition that leaves {@code earlyOutcomeGraceMs} unset. */
+    public static final long DEFAULT_EARLY_OUTCOME_GRACE_MS = 60_000L;
+
     /**
      * Shortest accepted {@code recomputePeriodMs}: one evaluation per second per experiment at most. An
      * evaluation costs up to a few milliseconds (see performance.md) and writes one decision record.
      */
-    /** Early-outcome grace of a definition that leaves {@code earlyOutcomeGraceMs} unset. */
-    public static final long DEFAULT_EARLY_OUTCOME_GRACE_MS = 60_000L;
-
     public static final long MIN_RECOMPUTE_PERIOD_MS = 1_000L;
 
     /**
