@@ -114,12 +114,20 @@ class EmbeddedKafkaBrokerIT {
         assertTrue(e.getMessage().contains("already running at " + broker.bootstrapServers()), e.getMessage());
     }
 
+    private static int freePort() throws IOException {
+        try (ServerSocket socket = new ServerSocket(0, 1, InetAddress.getByName("127.0.0.1"))) {
+            return socket.getLocalPort();
+        }
+    }
+
     @ParameterizedTest
     @ValueSource(booleans = {true, false})
     void busyFixedPortFailsWithMessageNamingTheListenerAndPort(boolean controllerBusy) throws IOException {
         try (ServerSocket taken = new ServerSocket(0, 1, InetAddress.getByName("127.0.0.1"))) {
             int busy = taken.getLocalPort();
-            int other = busy == 65_535 ? busy - 1 : busy + 1;
+            // the other port: one the system just handed out and took back (busy + 1 was used before, and the
+            // system sometimes gave it to another socket meanwhile, which made the wrong listener fail)
+            int other = freePort();
             EmbeddedKafkaBroker blocked = EmbeddedKafkaBroker.builder(Directories.fresh("blocked"))
                     .ports(controllerBusy ? other : busy, controllerBusy ? busy : other)
                     .build();
