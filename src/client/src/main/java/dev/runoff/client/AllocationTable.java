@@ -129,17 +129,43 @@ public final class AllocationTable {
         return allocation;
     }
 
+    /** What a pick from the held record draws from now, under the table's policy. */
+    private enum Regime {
+        /** The record's weights. */
+        WEIGHTED,
+        /** Every arm the record lists, equally (stale record, UNIFORM fallback). */
+        UNIFORM,
+        /** The winner only (STOPPED record, WINNER after-stop policy). */
+        WINNER,
+        /** Nothing: the default arm is served (stale record, DEFAULT_ARM fallback). */
+        DEFAULT
+    }
+
+    private Regime regime(CompiledAllocation allocation, boolean stale) {
+        if (stale) {
+            return switch (staleFallback) {
+                case LAST_WEIGHTS -> Regime.WEIGHTED;
+                case UNIFORM -> Regime.UNIFORM;
+                default -> Regime.DEFAULT;
+            };
+        }
+        return allocation.stopped() && winnerAfterStop ? Regime.WINNER : Regime.WEIGHTED;
+    }
+
     /** The arm drawn from the held record, or null (counted) when the policy serves the default arm. */
     private String drawn(CompiledAllocation allocation, String unitKey) {
-        if (clock.millis() > allocation.validUntil()) {
+        boolean stale = clock.millis() > allocation.validUntil();
+        if (stale) {
             counters.stalePicks.increment();
-            return stale(allocation, unitKey);
-        }
-        if (allocation.stopped()) {
+        } else if (allocation.stopped()) {
             counters.stoppedPicks.increment();
-            return winnerAfterStop ? allocation.winner() : weighted(allocation, unitKey);
         }
-        return weighted(allocation, unitKey);
+        return switch (regime(allocation, stale)) {
+            case WEIGHTED -> weighted(allocation, unitKey);
+            case UNIFORM -> uniform(allocation, unitKey);
+            case WINNER -> allocation.winner();
+            case DEFAULT -> null;
+        };
     }
 
     private String weighted(CompiledAllocation allocation, String unitKey) {
@@ -149,18 +175,11 @@ public final class AllocationTable {
         return unitKey == null ? missingKey() : allocation.sticky(allocation.unitHash(unitKey));
     }
 
-    private String stale(CompiledAllocation allocation, String unitKey) {
-        switch (staleFallback) {
-            case LAST_WEIGHTS:
-                return weighted(allocation, unitKey);
-            case UNIFORM:
-                if (uniformSource != null) {
-                    return allocation.uniform(uniformSource.getAsDouble());
-                }
-                return unitKey == null ? missingKey() : allocation.stickyUniform(allocation.unitHash(unitKey));
-            default:
-                return null;
+    private String uniform(CompiledAllocation allocation, String unitKey) {
+        if (uniformSource != null) {
+            return allocation.uniform(uniformSource.getAsDouble());
         }
+        return unitKey == null ? missingKey() : allocation.stickyUniform(allocation.unitHash(unitKey));
     }
 
     /** Counts a hashed pick without unit key; null: the default arm is served. */
@@ -295,17 +314,12 @@ public final class AllocationTable {
         if (allocation == null) {
             return false;
         }
-        if (clock.millis() > allocation.validUntil()) {
-            return switch (staleFallback) {
-                case UNIFORM -> allocation.lists(arm);
-                case LAST_WEIGHTS -> allocation.weight(arm) > 0;
-                default -> false;
-            };
-        }
-        if (allocation.stopped() && winnerAfterStop) {
-            return arm.equals(allocation.winner());
-        }
-        return allocation.weight(arm) > 0;
+        return switch (regime(allocation, clock.millis() > allocation.validUntil())) {
+            case WEIGHTED -> allocation.weight(arm) > 0;
+            case UNIFORM -> allocation.lists(arm);
+            case WINNER -> arm.equals(allocation.winner());
+            case DEFAULT -> false;
+        };
     }
 
     /** The live counters, for the follower's poll errors. */
