@@ -7,6 +7,7 @@ import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
 import java.util.List;
 import java.util.Objects;
+import java.util.function.ToDoubleBiFunction;
 
 /**
  * The GLR (Chernoff) statistic of Garivier &amp; Kaufmann (2016), "Optimal Best Arm Identification with
@@ -45,7 +46,15 @@ public final class Glr {
      */
     public static Statistic statistic(List<Arm> arms) {
         Metric metric = metricOf(arms);
-        int leader = empiricalLeader(arms, metric);
+        return minOverChallengers(arms, metric, empiricalLeader(arms, metric), (a, b) -> pair(metric, a, b));
+    }
+
+    /**
+     * {@code min_{b != leader} pair(leader, b)} with the arm attaining it (the first on ties) and the total
+     * trials: the shape shared by the GLR, mixture and sequential-t statistics.
+     */
+    static Statistic minOverChallengers(List<Arm> arms, Metric metric, int leader,
+                                        ToDoubleBiFunction<ArmStats, ArmStats> pair) {
         int challenger = -1;
         double min = Double.POSITIVE_INFINITY;
         long total = 0;
@@ -54,7 +63,7 @@ public final class Glr {
             if (b == leader) {
                 continue;
             }
-            double z = pair(metric, arms.get(leader).stats(), arms.get(b).stats());
+            double z = pair.applyAsDouble(arms.get(leader).stats(), arms.get(b).stats());
             if (z < min) {
                 min = z;
                 challenger = b;
@@ -88,7 +97,7 @@ public final class Glr {
     }
 
     /** Arm with the largest empirical mean among arms with trials (lowest index on ties; 0 if none). */
-    private static int empiricalLeader(List<Arm> arms, Metric metric) {
+    static int empiricalLeader(List<Arm> arms, Metric metric) {
         int leader = -1;
         for (int a = 0; a < arms.size(); a++) {
             ArmStats s = arms.get(a).stats();

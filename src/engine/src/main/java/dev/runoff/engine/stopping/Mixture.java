@@ -47,21 +47,8 @@ public final class Mixture {
             throw new IllegalArgumentException("the mixture rule is defined for Bernoulli arms only, got "
                     + Metric.VALUE + " statistics");
         }
-        int leader = leader(arms);
-        int challenger = -1;
-        double min = Double.POSITIVE_INFINITY;
-        long total = 0;
-        for (int b = 0; b < arms.size(); b++) {
-            total = Math.addExact(total, arms.get(b).stats().trials());
-            if (b != leader) {
-                double m = logRatio(stats(arms, leader), stats(arms, b));
-                if (m < min) {
-                    min = m;
-                    challenger = b;
-                }
-            }
-        }
-        return new Glr.Statistic(Metric.BERNOULLI, leader, challenger, min, total);
+        return Glr.minOverChallengers(arms, Metric.BERNOULLI, Glr.empiricalLeader(arms, Metric.BERNOULLI),
+                (a, b) -> logRatio((BernoulliStats) a, (BernoulliStats) b));
     }
 
     /**
@@ -107,20 +94,5 @@ public final class Mixture {
 
     private static double xLogRatio(long x, double n) {
         return x == 0 ? 0.0 : x * StrictMath.log(x / n);
-    }
-
-    private static BernoulliStats stats(List<Arm> arms, int i) {
-        return (BernoulliStats) arms.get(i).stats();
-    }
-
-    private static int leader(List<Arm> arms) {
-        int leader = -1;
-        for (int a = 0; a < arms.size(); a++) {
-            BernoulliStats s = stats(arms, a);
-            if (s.trials() > 0 && (leader < 0 || s.rate() > stats(arms, leader).rate())) {
-                leader = a;
-            }
-        }
-        return Math.max(leader, 0);
     }
 }

@@ -38,7 +38,15 @@ public enum Rule {
      * likelihood under {@code mu_a <= mu_b} reaches {@code (K - 1) / delta}. Proven delta-correct for a
      * fixed truth under adaptive sampling and continuous monitoring (Ville's inequality; see {@link Mixture}).
      */
-    MIXTURE;
+    MIXTURE,
+    /**
+     * Anytime-valid t confidence sequences per arm, value arms only ({@link SequentialT}): each arm's mean gets
+     * a confidence sequence at level {@code delta / K} that needs no known variance; stop when the empirical
+     * leader's sequence lies above every other arm's. Statistic: {@code min_b min_m max(log G_a(m),
+     * log G_b(m))}; threshold: {@code log(K / delta)}. Proven delta-correct for Gaussian arms and a fixed
+     * truth under adaptive sampling and continuous monitoring; not for values that are not Gaussian.
+     */
+    SEQUENTIAL_T;
 
     /**
      * Whether the rule's error probability is proven to be at most delta for every fixed truth, under
@@ -50,13 +58,21 @@ public enum Rule {
         return switch (this) {
             case GLR -> metric == Metric.BERNOULLI;
             case MIXTURE -> metric == Metric.BERNOULLI;
+            case SEQUENTIAL_T -> metric == Metric.VALUE;
             case POSTERIOR, INDIFFERENCE, GLR_HEURISTIC -> false;
         };
     }
 
-    /** Whether the rule accepts arms of this metric ({@link #MIXTURE} is for Bernoulli arms only). */
+    /**
+     * Whether the rule accepts arms of this metric ({@link #MIXTURE} is for Bernoulli arms only,
+     * {@link #SEQUENTIAL_T} for value arms only).
+     */
     public boolean supports(Metric metric) {
         Objects.requireNonNull(metric, "metric");
-        return this != MIXTURE || metric == Metric.BERNOULLI;
+        return switch (this) {
+            case MIXTURE -> metric == Metric.BERNOULLI;
+            case SEQUENTIAL_T -> metric == Metric.VALUE;
+            case GLR, POSTERIOR, INDIFFERENCE, GLR_HEURISTIC -> true;
+        };
     }
 }

@@ -82,6 +82,7 @@ public final class StoppingCheck {
             case GLR -> glr(arms, config, config.glrThreshold());
             case GLR_HEURISTIC -> glr(arms, config, GlrThreshold.LIGHTER_NOT_PROVEN);
             case MIXTURE -> mixture(arms, config);
+            case SEQUENTIAL_T -> sequentialT(arms, config);
             case POSTERIOR -> posterior(best, config);
             case INDIFFERENCE -> indifference(best, config, confidence);
         };
@@ -103,6 +104,13 @@ public final class StoppingCheck {
         Glr.Statistic m = Mixture.statistic(arms);
         double threshold = Mixture.threshold(arms.size(), config.delta());
         return new Evaluation(m.leader(), m.value(), threshold, m.value() >= threshold);
+    }
+
+    /** t confidence sequences ({@link SequentialT}): fire when {@code min_b separation_ab >= log(K / delta)}. */
+    private static Evaluation sequentialT(List<Arm> arms, StoppingConfig config) {
+        Glr.Statistic s = SequentialT.statistic(arms);
+        double threshold = SequentialT.threshold(arms.size(), config.delta());
+        return new Evaluation(s.leader(), s.value(), threshold, s.value() >= threshold);
     }
 
     /**

@@ -23,7 +23,9 @@ public enum VerdictReason {
     /** STOP: the GLR statistic exceeded the lighter, NOT PROVEN threshold. */
     GLR_HEURISTIC(Verdict.Action.STOP),
     /** STOP: the mixture-martingale test fired. */
-    MIXTURE(Verdict.Action.STOP);
+    MIXTURE(Verdict.Action.STOP),
+    /** STOP: the leader's t confidence sequence lies above every other arm's. */
+    SEQUENTIAL_T(Verdict.Action.STOP);
 
     private final Verdict.Action action;
 
@@ -49,6 +51,7 @@ public enum VerdictReason {
             case INDIFFERENCE -> INDIFFERENCE;
             case GLR_HEURISTIC -> GLR_HEURISTIC;
             case MIXTURE -> MIXTURE;
+            case SEQUENTIAL_T -> SEQUENTIAL_T;
         };
     }
 }
