@@ -75,7 +75,8 @@ final class PlanCommand implements Callable<Integer> {
     @Option(names = "--stopping", converter = StoppingChoice.class, completionCandidates = StoppingChoice.class,
             paramLabel = "RULE", defaultValue = "glr",
             description = "Stopping rule: ${COMPLETION-CANDIDATES} (default: ${DEFAULT-VALUE}). glr-heuristic is NOT"
-                    + " proven; mixture is for --rates only; indifference needs --epsilon > 0; all compares every"
+                    + " proven; mixture is for --rates only, sequential-t for --means only; indifference needs --epsilon > 0;"
+                    + " all compares every"
                     + " rule on the same seeds in one table.")
     private StoppingChoice.Selection stopping;
 
@@ -166,7 +167,8 @@ final class PlanCommand implements Callable<Integer> {
             return;
         }
         if (!stopping.rule().supports(arms.metric())) {
-            throw usage("--stopping " + Spelling.of(stopping.rule()) + " is for --rates (Bernoulli arms) only");
+            throw usage("--stopping " + Spelling.of(stopping.rule()) + " is for "
+                    + (arms.metric() == Metric.VALUE ? "--rates (Bernoulli arms)" : "--means (value arms)") + " only");
         }
         if (stopping.rule() == Rule.INDIFFERENCE && epsilon == 0) {
             throw usage("--stopping indifference needs an indifference zone --epsilon > 0");

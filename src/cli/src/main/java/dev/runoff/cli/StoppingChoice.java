@@ -10,7 +10,8 @@ import picocli.CommandLine.TypeConversionException;
 
 /**
  * The stopping rules {@code plan} can simulate: one rule, spelled like {@link Rule} in kebab case
- * ({@code glr}, {@code posterior}, {@code indifference}, {@code glr-heuristic}, {@code mixture}), or
+ * ({@code glr}, {@code posterior}, {@code indifference}, {@code glr-heuristic}, {@code mixture},
+ * {@code sequential-t}), or
  * {@code all} to compare every rule the arms' metric supports.
  */
 final class StoppingChoice implements ITypeConverter<StoppingChoice.Selection>, Iterable<String> {

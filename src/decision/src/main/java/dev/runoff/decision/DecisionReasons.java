@@ -39,7 +39,7 @@ public final class DecisionReasons {
     /** The record reason of {@code decision}. */
     public static String of(Verdict decision) {
         return switch (decision.reason()) {
-            case GLR, POSTERIOR, INDIFFERENCE, GLR_HEURISTIC, MIXTURE -> THRESHOLD_REACHED;
+            case GLR, POSTERIOR, INDIFFERENCE, GLR_HEURISTIC, MIXTURE, SEQUENTIAL_T -> THRESHOLD_REACHED;
             case BUDGET -> decision.guards().trialBudgetSpent() ? BUDGET : DEADLINE;
             case BELOW_THRESHOLD -> BELOW_THRESHOLD;
             case MIN_TRIALS -> MIN_TRIALS;

@@ -28,6 +28,7 @@ class DecisionReasonsTest {
         expected.put(VerdictReason.INDIFFERENCE, "threshold-reached");
         expected.put(VerdictReason.GLR_HEURISTIC, "threshold-reached");
         expected.put(VerdictReason.MIXTURE, "threshold-reached");
+        expected.put(VerdictReason.SEQUENTIAL_T, "threshold-reached");
         expected.put(VerdictReason.BUDGET, "budget");
         expected.put(VerdictReason.BELOW_THRESHOLD, "below-threshold");
         expected.put(VerdictReason.MIN_TRIALS, "min-trials");

@@ -149,6 +149,9 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
         if (stopping.getRule() == StoppingRule.MIXTURE && def.getMetric().getKind() != MetricKind.BERNOULLI) {
             problems.add("rule", Reason.INCONSISTENT, "MIXTURE needs metric.kind BERNOULLI");
         }
+        if (stopping.getRule() == StoppingRule.SEQUENTIAL_T && def.getMetric().getKind() != MetricKind.VALUE) {
+            problems.add("rule", Reason.INCONSISTENT, "SEQUENTIAL_T needs metric.kind VALUE");
+        }
         problems.atLeast("minTrialsPerArm", stopping.getMinTrialsPerArm(), 0);
         problems.atLeast("minDurationMs", stopping.getMinDurationMs(), 0);
         if (stopping.getDeadline() != null) {

@@ -18,7 +18,7 @@ import org.apache.avro.Schema;
 final class WriterSchemas {
 
     /** How many earlier versions each record has; a change adds one. */
-    private static final int DECISION_RECORD_VERSIONS = 2;
+    private static final int DECISION_RECORD_VERSIONS = 3;
     private static final int ALLOCATION_UPDATE_VERSIONS = 1;
 
     private WriterSchemas() {

@@ -151,6 +151,20 @@ class DefinitionValidationTest {
     }
 
     @Test
+    void theSequentialTRuleNeedsAValueMetricAndIsAcceptedForOne() {
+        ExperimentDefinition rates = Samples.bernoulli();
+        rates.getStopping().setRule(StoppingRule.SEQUENTIAL_T);
+        rates.getStopping().setEpsilon(null);
+        Decoded<ExperimentDefinition> decoded = Definitions.validate(rates, Samples.NOW);
+        Rejections.assertFirstProblem(decoded, "stopping.rule", Reason.INCONSISTENT,
+                "SEQUENTIAL_T needs metric.kind VALUE");
+        assertEquals(1, decoded.problems().size(), decoded.problems().toString());
+        ExperimentDefinition values = Samples.valueMetric();
+        values.getStopping().setRule(StoppingRule.SEQUENTIAL_T);
+        assertSame(values, Definitions.validate(values, Samples.NOW).orThrow());
+    }
+
+    @Test
     void theNewStoppingRulesAreAcceptedForBernoulliMetrics() {
         for (StoppingRule rule : List.of(StoppingRule.GLR_HEURISTIC, StoppingRule.MIXTURE)) {
             ExperimentDefinition def = Samples.bernoulli();

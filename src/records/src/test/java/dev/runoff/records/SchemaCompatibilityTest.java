@@ -76,7 +76,8 @@ class SchemaCompatibilityTest {
     void aDecisionRecordWrittenByEveryEarlierSchemaDecodesAndKeepsItsHash() throws Exception {
         DecisionRecord original = Samples.decision();
         List<Schema> writers = WriterSchemas.previous("DecisionRecord");
-        assertEquals(2, writers.size(), "DecisionRecord-1 (first release) and -2 (signature and counting fields)");
+        assertEquals(3, writers.size(), "DecisionRecord-1 (first release), -2 (signature and counting fields) and -3"
+                + " (adaptive rule and estimator field)");
         for (Schema writer : writers) {
             Decoded<DecisionRecord> decoded = RecordCodec.decisionRecords().decode(writtenBy(writer, original),
                     Samples.NOW);
@@ -86,6 +87,17 @@ class SchemaCompatibilityTest {
             assertEquals("5a49ef7b537fb6faefc8bca0f7a0cb5e743f24b29763b6d93a2321fa59a18472",
                     HashChain.hashOf(decoded.orThrow()));
         }
+    }
+
+    @Test
+    void theLatestEarlierDecisionSchemaIsTheOneWithoutTheSequentialTRule() {
+        Schema latest = WriterSchemas.previous("DecisionRecord").get(2);
+        List<String> symbols = latest.getField("stoppingRule").schema().getEnumSymbols();
+        assertFalse(symbols.contains("SEQUENTIAL_T"), symbols.toString());
+        assertTrue(DecisionRecord.getClassSchema().getField("stoppingRule").schema().getEnumSymbols()
+                .contains("SEQUENTIAL_T"));
+        assertNotEquals(SchemaNormalization.parsingFingerprint64(latest),
+                SchemaNormalization.parsingFingerprint64(DecisionRecord.getClassSchema()));
     }
 
     @Test

@@ -18,7 +18,8 @@ class StoppingRuleEvolutionTest {
     @Test
     void newSymbolsAreAtTheEndAndTheEnumHasADefault() {
         Schema schema = StoppingRule.getClassSchema();
-        assertEquals(List.of("GLR", "POSTERIOR", "INDIFFERENCE", "GLR_HEURISTIC", "MIXTURE"), schema.getEnumSymbols());
+        assertEquals(List.of("GLR", "POSTERIOR", "INDIFFERENCE", "GLR_HEURISTIC", "MIXTURE", "SEQUENTIAL_T"),
+                schema.getEnumSymbols());
         assertEquals("GLR", schema.getEnumDefault());
     }
 
