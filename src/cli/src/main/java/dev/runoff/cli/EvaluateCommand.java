@@ -11,6 +11,7 @@ import dev.runoff.engine.posterior.BetaPrior;
 import dev.runoff.engine.posterior.NormalGammaPrior;
 import dev.runoff.engine.posterior.Prior;
 import dev.runoff.engine.stats.BernoulliStats;
+import dev.runoff.records.Definitions;
 import java.io.PrintWriter;
 import java.util.List;
 import java.util.concurrent.Callable;
@@ -141,12 +142,23 @@ final class EvaluateCommand implements Callable<Integer> {
         return b.toString();
     }
 
+    /** The floor definitions apply to Beta prior shapes ({@code metric.prior.a} / {@code .b}), with their message. */
+    private static void checkShape(String name, double shape) {
+        String problem = Definitions.betaPriorShapeProblem(shape);
+        if (problem != null) {
+            throw new IllegalArgumentException("prior " + name + " " + problem);
+        }
+    }
+
     private Prior prior() {
         if (metric == Metric.BERNOULLI) {
             if (prior.length != 2) {
                 throw new IllegalArgumentException("expected A,B for the Bernoulli metric");
             }
-            return new BetaPrior(prior[0], prior[1]);
+            BetaPrior beta = new BetaPrior(prior[0], prior[1]);
+            checkShape("a", prior[0]);
+            checkShape("b", prior[1]);
+            return beta;
         }
         if (prior.length != 4) {
             throw new IllegalArgumentException("expected MU0,KAPPA0,ALPHA0,BETA0 for the value metric");

@@ -175,6 +175,9 @@ class EvaluateCommandTest {
         "--arm a=1/2 --arm b=3/4 --rule best|Invalid value for option '--rule': 'best' is not one of",
         "--arm a=1/2 --arm b=3/4 --draws 0|--draws 0: draws must be >= 1, got 0",
         "--arm a=1/2 --arm b=3/4 --prior 1,0|--prior 1.0,0.0: prior b must be a finite number > 0, got 0.0",
+        // the floor and the message of definitions (DefinitionRules, metric.prior.a / .b)
+        "--arm a=0/10 --arm b=0/20 --prior 0.02,1|--prior 0.02,1.0: prior a must be >= 0.03 (smaller Beta shapes"
+            + " lose probability mass in the exact P(best) integration), got 0.02",
         "--arm a=1/2 --arm b=3/4 --floor 0.6|floor 0.6 times 2 arms = 1.2 exceeds 1",
         "--arm a=1/2 --arm b=3/4 --control z=0.2|control arm 'z' is not one of the arms [a, b]",
         "--arm a=10:1:1 --arm b=10:2:1|--arm a: COUNT:MEAN:STDDEV needs --metric value",

@@ -80,9 +80,9 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
 
     /** A Beta prior shape of at least {@link Definitions#MIN_BETA_PRIOR_SHAPE} (NaN fails). */
     private static void atLeastShape(String field, double shape, Problems problems) {
-        if (!(shape >= Definitions.MIN_BETA_PRIOR_SHAPE)) {
-            problems.add(field, Reason.OUT_OF_RANGE, "must be >= " + Definitions.MIN_BETA_PRIOR_SHAPE
-                    + " (smaller Beta shapes lose probability mass in the exact P(best) integration), got " + shape);
+        String problem = Definitions.betaPriorShapeProblem(shape);
+        if (problem != null) {
+            problems.add(field, Reason.OUT_OF_RANGE, problem);
         }
     }
 

@@ -45,6 +45,18 @@ public final class Definitions {
     }
 
     /**
+     * What is wrong with a Beta prior shape, or null when it is at least {@link #MIN_BETA_PRIOR_SHAPE} (NaN is
+     * wrong): the one statement of the rule, shared by definitions and the {@code evaluate} command.
+     */
+    public static String betaPriorShapeProblem(double shape) {
+        if (shape >= MIN_BETA_PRIOR_SHAPE) {
+            return null;
+        }
+        return "must be >= " + MIN_BETA_PRIOR_SHAPE
+                + " (smaller Beta shapes lose probability mass in the exact P(best) integration), got " + shape;
+    }
+
+    /**
      * Checks every field of {@code definition} with the default limits, the deadline against
      * {@code nowMillis}: the definition when valid, else the full list of problems, each naming its field.
      */
