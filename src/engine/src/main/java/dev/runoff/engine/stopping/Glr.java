@@ -32,7 +32,7 @@ public final class Glr {
      * runs at delta = 0.001). Measured with exactly tied N(0, 1) arms, round robin, delta = 0.001, 4,000
      * runs of at most 200 observations per arm: stops (half of them wrong) in 122 runs from n = 2, 2 from
      * n = 5, 0 from n = 10, 20 and 30. Ten is a measured choice, NOT a proven guarantee for unknown
-     * variances (see src/docs/planning-and-stopping.md).
+     * variances (see src/docs/planning-and-stopping.md); {@link Rule#SEQUENTIAL_T} is the rule proven for them.
      */
     public static final int MIN_VALUE_OBSERVATIONS = 10;
 

@@ -25,7 +25,7 @@ import java.util.List;
  * the sufficient statistics, with {@code d = mean - m} and M2 the sum of squared deviations,
  * {@code log G_n(m) = log(c^2 / (n + c^2)) / 2 + (n / 2) log(1 + n^2 d^2 / ((n + c^2) M2 + n c^2 d^2))}; it
  * grows with |d| towards {@code ((n + c^2) / c^2)^((n - 1) / 2)}, so {@code C_n} is the whole line until that
- * bound passes {@code 1 / alpha} (from about 8 observations at alpha = 0.001 / 4), and then the interval
+ * bound passes {@code 1 / alpha} (from 9 observations at alpha = 0.001 / 4), and then the interval
  * {@code mean +- r} with {@code r^2 = (1 - p)(n + c^2) M2 / (n (p (n + c^2) - c^2))},
  * {@code p = (alpha^2 c^2 / (n + c^2))^(1 / n)}.
  *
