@@ -95,6 +95,27 @@ class StoppingCheckTest {
     }
 
     @Test
+    void sequentialTStopsOnceTheLeadersSequenceLiesAboveTheOther() {
+        // n = 400 per arm, s = 2, alpha = 0.05 / 2: r^2 = (1 - p) 401 M2 / (400 (401 p - 1)) with
+        // p = (alpha^2 / 401)^(1/400) gives r = 0.369 (hand computation), so means 11 and 10 are apart, 10.5 and
+        // 10 are not.
+        StoppingConfig config = StoppingConfig.glr(0.05).withRule(Rule.SEQUENTIAL_T);
+        List<Arm> apart = List.of(new Arm("A", ValueStats.ofSummary(400, 10.0, 2.0)),
+                new Arm("B", ValueStats.ofSummary(400, 11.0, 2.0)));
+        Verdict stop = StoppingCheck.decide(apart, exact(0.01, 0.99), ONE_DAY, config);
+        assertEquals(VerdictReason.SEQUENTIAL_T, stop.reason());
+        assertEquals("sequential-t", stop.reason().label());
+        assertEquals("B", stop.leaderName());
+        assertEquals(Math.log(2 / 0.05), stop.threshold(), 1e-12);
+        assertEquals(0.369, SequentialT.radius((ValueStats) apart.get(0).stats(), 0.025), 5e-4);
+        List<Arm> close = List.of(new Arm("A", ValueStats.ofSummary(400, 10.0, 2.0)),
+                new Arm("B", ValueStats.ofSummary(400, 10.5, 2.0)));
+        Verdict wait = StoppingCheck.decide(close, exact(0.1, 0.9), ONE_DAY, config);
+        assertEquals(VerdictReason.BELOW_THRESHOLD, wait.reason());
+        assertTrue(wait.statistic() < wait.threshold());
+    }
+
+    @Test
     void glrCannotStopBeforeEveryArmHasData() {
         Verdict d = StoppingCheck.decide(List.of(bernoulli("A", 0, 0), bernoulli("B", 0, 0)), exact(0.5, 0.5),
                 ONE_DAY, StoppingConfig.glr(0.05).withGlrThreshold(GlrThreshold.LIGHTER_NOT_PROVEN));
