@@ -69,7 +69,8 @@ public final class SequentialT {
         double n = s.count();
         double c2 = PRIOR_PRECISION;
         double d = s.mean() - m;
-        double growth = d == 0 ? 0.0 : n * n * d * d / ((n + c2) * s.m2() + n * c2 * d * d);
+        // n^2 d^2 / ((n + c^2) M2 + n c^2 d^2), divided through by d^2 so that no square of d overflows
+        double growth = d == 0 ? 0.0 : n * n / ((n + c2) * (s.m2() / d / d) + n * c2);
         return 0.5 * StrictMath.log(c2 / (n + c2)) + 0.5 * n * StrictMath.log1p(growth);
     }
 

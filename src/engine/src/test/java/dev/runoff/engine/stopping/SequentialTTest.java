@@ -123,6 +123,15 @@ class SequentialTTest {
     }
 
     @Test
+    void farApartMeansGiveAFiniteStatisticWhereTheirSquareWouldOverflow() {
+        // d = 1e160: d^2 overflows a double; the bound of G_n is ((n + c^2)/c^2)^((n - 1)/2), so for n = 30
+        // log G_n at such a distance is 14.5 log 31 (the limit of the closed form as d grows)
+        List<Arm> arms = List.of(new Arm("a", new ValueStats(30, 1e160, 1.0)), new Arm("b", new ValueStats(30, 0, 1.0)));
+        Glr.Statistic s = SequentialT.statistic(arms);
+        assertEquals(14.5 * Math.log(31), s.value(), 1e-9);
+    }
+
+    @Test
     void rateArmsAreRefusedWithAMessageNamingTheRule() {
         List<Arm> rates = List.of(new Arm("a", new BernoulliStats(10, 3)), new Arm("b", new BernoulliStats(10, 5)));
         IllegalArgumentException e = assertThrows(IllegalArgumentException.class,
