@@ -67,6 +67,20 @@ class RecomputationTest {
     }
 
     @Test
+    void sequentialTRuleStopsOnValueArmsAndReplays() {
+        ExperimentDefinition def = TestDefinitions.value("seq-t", "a", "b");
+        def.setStopping(StoppingSpec.newBuilder(def.getStopping()).setRule(StoppingRule.SEQUENTIAL_T).build());
+        def.setAfterStop(AfterStopPolicy.KEEP_WEIGHTS);
+        List<DecisionRecord> chain = run(def, new double[] {0.0, 1.5}, 3, 60);
+        DecisionRecord last = chain.get(chain.size() - 1);
+        assertEquals("STOP", last.getDecision().name(), "means 1.5 apart in unit noise separate after 60 values each");
+        assertEquals(StoppingRule.SEQUENTIAL_T, last.getStoppingRule());
+        assertEquals(DecisionReasons.THRESHOLD_REACHED, last.getReason());
+        assertEquals("b", last.getWinner());
+        Replay.assertChainReplays(chain);
+    }
+
+    @Test
     void budgetStopWithAllToControlReplays() {
         ExperimentDefinition def = TestDefinitions.bernoulli("budget", "ctl", "alt");
         def.setControlArm("ctl");
