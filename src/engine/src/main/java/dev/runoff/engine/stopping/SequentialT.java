@@ -37,9 +37,10 @@ import java.util.List;
  * <p>Why the error probability is at most delta for Gaussian arms and every fixed truth, under any adaptive
  * sampling and a check after every observation: each arm's own observations, in the order that arm receives
  * them, are i.i.d. N(mu, sigma^2) whatever rule chose when to sample it (the "stack of rewards" model,
- * Lattimore &amp; Szepesvari 2020, "Bandit Algorithms", section 4.6), and each sequence holds at every n of its
- * own arm at once, so it holds at whatever count the arm has when the rule looks. With probability at least
- * {@code 1 - delta} all K sequences hold (union bound); then the named arm's mean is above every other mean.
+ * Lattimore &amp; Szepesvari 2020, "Bandit Algorithms", section 4.6, numbering from memory), and each sequence
+ * holds at every n of its own arm at once, so it holds at whatever count the arm has when the rule looks. With
+ * probability at least {@code 1 - delta} all K sequences hold (union bound); then the named arm's mean is above
+ * every other mean.
  * Not proven for values that are not Gaussian (the martingale property needs the Gaussian likelihood).
  */
 public final class SequentialT {
