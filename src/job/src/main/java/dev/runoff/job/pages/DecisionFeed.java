@@ -80,6 +80,9 @@ public final class DecisionFeed implements AutoCloseable {
     private void follow(KafkaConsumer<byte[], byte[]> c) {
         List<TopicPartition> partitions = c.partitionsFor(topic, Duration.ofSeconds(30)).stream()
                 .map(p -> new TopicPartition(topic, p.partition())).toList();
+        if (partitions.isEmpty()) {
+            throw new IllegalStateException("topic " + topic + " does not exist (yet)");
+        }
         c.assign(partitions);
         c.seekToBeginning(partitions);
         Map<TopicPartition, Long> end = c.endOffsets(partitions);
@@ -106,15 +109,22 @@ public final class DecisionFeed implements AutoCloseable {
     }
 
     private void pause() {
-        try {
-            Thread.sleep(RETRY_MS);
-        } catch (InterruptedException e) {
-            Thread.currentThread().interrupt();
-            closed = true;
+        synchronized (this) {
+            try {
+                if (!closed) {
+                    wait(RETRY_MS);
+                }
+            } catch (InterruptedException e) {
+                Thread.currentThread().interrupt();
+                closed = true;
+            }
         }
     }
 
-    /** Stops the feed (waits at most 5 s for its thread). */
+    /**
+     * Stops the feed: wakes its consumer (never interrupts the thread, which would make the consumer's close
+     * fail noisily) and waits at most 5 s for the thread.
+     */
     @Override
     public void close() {
         closed = true;
@@ -122,7 +132,9 @@ public final class DecisionFeed implements AutoCloseable {
         if (c != null) {
             c.wakeup();
         }
-        thread.interrupt();
+        synchronized (this) {
+            notifyAll();
+        }
         try {
             thread.join(5_000);
         } catch (InterruptedException e) {

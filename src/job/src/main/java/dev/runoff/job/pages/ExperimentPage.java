@@ -140,8 +140,8 @@ final class ExperimentPage {
                     + "total ").append(Html.whole(t.predictedTotal())).append("; ")
                     .append(Html.escape(t.note())).append(").");
         }
-        b.append("</p>\n<p class=\"note\">The planner's leading term T_w log(1/delta) (Garivier and Kaufmann 2016) "
-                + "at the current estimates: a guide that moves as the estimates do.</p>\n");
+        b.append("</p>\n<p class=\"note\">The planner's characteristic time T_w (Garivier and Kaufmann 2016) at the "
+                + "current estimates, times the stopping threshold: a guide that moves as the estimates do.</p>\n");
     }
 
     private static List<LineChart.Series> series(List<String> arms, List<DecisionPoint> points,

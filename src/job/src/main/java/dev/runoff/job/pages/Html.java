@@ -9,21 +9,26 @@ import java.util.Locale;
  */
 final class Html {
 
-    /**
-     * Text colour #1a1a1a on #ffffff (contrast about 17:1) and links #0b4f8a (about 8.6:1), both above the
-     * 4.5:1 that WCAG 2.1 success criterion 1.4.3 asks of body text.
-     */
+    /** Colour of text (on white); WCAG 2.1 success criterion 1.4.3 asks 4.5:1 of body text. */
+    static final String TEXT = "#1a1a1a";
+    /** Colour of links. */
+    static final String LINK = "#0b4f8a";
+    /** Colour of notes. */
+    static final String NOTE = "#444444";
+    /** Background. */
+    static final String BACKGROUND = "#ffffff";
+
     private static final String STYLE = """
-            body{font-family:system-ui,sans-serif;color:#1a1a1a;background:#fff;margin:1.5rem;max-width:70rem}
-            a{color:#0b4f8a}
+            body{font-family:system-ui,sans-serif;color:%s;background:%s;margin:1.5rem;max-width:70rem}
+            a{color:%s}
             table{border-collapse:collapse;margin:0.5rem 0 1.5rem}
             th,td{border:1px solid #888;padding:0.25rem 0.5rem;text-align:left}
             td.n{text-align:right;font-variant-numeric:tabular-nums}
             caption{text-align:left;font-weight:bold;padding:0.25rem 0}
-            .note{color:#444}
+            .note{color:%s}
             form{margin:0.5rem 0}
             svg{display:block;margin:0.5rem 0 1.5rem}
-            """;
+            """.formatted(TEXT, BACKGROUND, LINK, NOTE);
 
     private Html() {
     }

@@ -19,9 +19,12 @@ final class LineChart {
     private static final int RIGHT = 170;
     private static final int TOP = 28;
     private static final int BOTTOM = 44;
-    /** Okabe-Ito colours (Okabe and Ito 2008), distinguishable under the common colour-vision deficiencies. */
-    private static final String[] COLOURS = {"#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9",
-        "#000000", "#F0E442"};
+    /**
+     * Line colours: the four Okabe-Ito colours (Okabe and Ito 2008) that keep a 3:1 contrast against white
+     * (WCAG 2.1 success criterion 1.4.11), then black, a dark ochre, a purple and a grey that keep it too.
+     */
+    static final String[] COLOURS = {"#0072B2", "#D55E00", "#009E73", "#CC79A7", "#000000", "#996600", "#5D3A9B",
+        "#666666"};
     private static final String[] DASHES = {"", "8 4", "2 3", "10 3 2 3", "4 4", "12 4 4 4", "1 2", "6 2 2 2"};
 
     /**
@@ -53,7 +56,7 @@ final class LineChart {
                 .append("<title id=\"").append(id).append("-t\">").append(Html.escape(title)).append("</title>")
                 .append("<desc id=\"").append(id).append("-d\">").append(series.size()).append(" lines over ")
                 .append(xs.length).append(" decisions; the table below the charts holds the latest values.</desc>")
-                .append("<rect width=\"100%\" height=\"100%\" fill=\"#ffffff\"/>")
+                .append("<rect width=\"100%\" height=\"100%\" fill=\"" + Html.BACKGROUND + "\"/>")
                 .append(text(LEFT, 18, "start", title, "font-weight:bold"));
         double xMin = xs.length == 0 ? 0 : xs[0];
         double xMax = xs.length == 0 ? 1 : Math.max(xs[xs.length - 1], xMin + 1e-9);
@@ -70,8 +73,7 @@ final class LineChart {
         for (int i = 0; i <= 4; i++) {
             double v = yMax * i / 4;
             double y = y(v, yMax);
-            b.append(String.format(Locale.ROOT, "<line x1=\"%d\" y1=\"%.1f\" x2=\"%d\" y2=\"%.1f\" stroke=\"#bbbbbb\"/>",
-                    LEFT, y, plotRight, y));
+            b.append(segment(LEFT, y, plotRight, y, "#bbbbbb"));
             b.append(text(LEFT - 6, y + 4, "end", tick(v), ""));
         }
         for (int i = 0; i <= 4; i++) {
@@ -79,10 +81,8 @@ final class LineChart {
             double x = x(v, xMin, xMax);
             b.append(text(x, plotBottom + 16, "middle", tick(v), ""));
         }
-        b.append(String.format(Locale.ROOT, "<line x1=\"%d\" y1=\"%d\" x2=\"%d\" y2=\"%d\" stroke=\"#1a1a1a\"/>",
-                LEFT, plotBottom, plotRight, plotBottom));
-        b.append(String.format(Locale.ROOT, "<line x1=\"%d\" y1=\"%d\" x2=\"%d\" y2=\"%d\" stroke=\"#1a1a1a\"/>",
-                LEFT, TOP, LEFT, plotBottom));
+        b.append(segment(LEFT, plotBottom, plotRight, plotBottom, Html.TEXT));
+        b.append(segment(LEFT, TOP, LEFT, plotBottom, Html.TEXT));
         b.append(text((LEFT + plotRight) / 2.0, HEIGHT - 8, "middle", xLabel, ""));
     }
 
@@ -135,9 +135,14 @@ final class LineChart {
         };
     }
 
+    private static String segment(double x1, double y1, double x2, double y2, String stroke) {
+        return String.format(Locale.ROOT, "<line x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\" stroke=\"%s\"/>", x1, y1,
+                x2, y2, stroke);
+    }
+
     private static String text(double x, double y, String anchor, String content, String style) {
         return String.format(Locale.ROOT, "<text x=\"%.1f\" y=\"%.1f\" text-anchor=\"%s\" font-size=\"12\" "
-                + "font-family=\"sans-serif\" fill=\"#1a1a1a\"%s>%s</text>", x, y, anchor,
+                + "font-family=\"sans-serif\" fill=\"" + Html.TEXT + "\"%s>%s</text>", x, y, anchor,
                 style.isEmpty() ? "" : " style=\"" + style + "\"", Html.escape(content));
     }
 

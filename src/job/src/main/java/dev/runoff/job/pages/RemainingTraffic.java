@@ -7,17 +7,21 @@ import dev.runoff.records.avro.AllocationRule;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.BetaParams;
 import dev.runoff.records.avro.DecisionRecord;
+import dev.runoff.records.avro.StoppingRule;
 import java.util.List;
 
 /**
  * The planner's prediction of the traffic an experiment still needs, from its latest decision record.
  *
- * <p>Design: the planner's leading term {@code T_w(mu) log(1/delta)} (Garivier and Kaufmann 2016, Theorem 1)
+ * <p>Design: the planner's characteristic time {@code T_w(mu)} (Garivier and Kaufmann 2016, Theorem 1)
  * evaluated at the current estimates (a plug-in: posterior means of the rates, or the observed means and
  * sample variances of values), with w the weights the allocation rule tends to: beta-optimal weights for the
  * top-two rules (Russo 2020), the optimal w* for the adaptive rule and equal weights for the uniform rule.
- * The remaining traffic is that total less the trials already counted, never below 0. It is a rough guide:
- * the estimates move as data come in, and the finite-delta cost of the real threshold comes on top.
+ * A likelihood-ratio statistic (GLR, its heuristic variant, the mixture test) grows like {@code t / T_w}
+ * after t trials, and the rule stops when it reaches its threshold (Garivier and Kaufmann 2016, section 3), so
+ * the predicted total is {@code T_w} times the current threshold; the leading term {@code log(1/delta)} stands
+ * in for the threshold of the other rules, and when it is larger. The remaining traffic is that total less
+ * the trials already counted, never below 0: a guide that moves with the estimates, not a promise.
  *
  * @param predictedTotal the predicted total trials, or -1 when there is no prediction
  * @param remaining      the predicted trials still to come, or -1
@@ -37,17 +41,27 @@ record RemainingTraffic(long predictedTotal, long remaining, String note) {
                 return none("two arms share the best estimate; no prediction until they differ");
             }
             TargetAllocation target = target(record, model);
-            double total = target.predictedTrials(record.getDelta());
+            double logOneOverDelta = target.predictedTrials(record.getDelta()) / target.characteristicTime();
+            boolean byThreshold = likelihoodRatio(record) && record.getThreshold() > logOneOverDelta;
+            double total = target.characteristicTime() * (byThreshold ? record.getThreshold() : logOneOverDelta);
             if (!Double.isFinite(total)) {
                 return none("the estimates give no finite prediction");
             }
             long predicted = Math.round(total);
-            return new RemainingTraffic(predicted, Math.max(0, predicted - trials), "T_w log(1/delta) with "
+            return new RemainingTraffic(predicted, Math.max(0, predicted - trials), (byThreshold
+                    ? String.format(java.util.Locale.ROOT, "T_w x the current threshold %.2f", record.getThreshold())
+                    : "T_w x log(1/delta) at delta " + record.getDelta()) + ", T_w of "
                     + target.kind().name().toLowerCase(java.util.Locale.ROOT).replace('_', '-')
-                    + " weights at the current estimates, delta " + record.getDelta());
+                    + " weights at the current estimates");
         } catch (IllegalArgumentException e) {
             return none("no prediction from these estimates: " + e.getMessage());
         }
+    }
+
+    private static boolean likelihoodRatio(DecisionRecord record) {
+        StoppingRule rule = record.getStoppingRule();
+        return record.getThreshold() != null && (rule == StoppingRule.GLR || rule == StoppingRule.GLR_HEURISTIC
+                || rule == StoppingRule.MIXTURE);
     }
 
     private static RemainingTraffic none(String why) {

@@ -86,6 +86,8 @@ class PagesEndpointTest {
         assertEquals(200, page.statusCode());
         assertEquals("text/html; charset=utf-8", page.headers().firstValue("Content-Type").orElseThrow());
         assertTrue(page.body().contains("<svg") && page.body().contains(">grid"), "the experiment page");
+        assertEquals("Accept", page.headers().firstValue("Vary").orElseThrow());
+        assertEquals("no-store", page.headers().firstValue("Cache-Control").orElseThrow());
         HttpResponse<String> list = get("/", null, true);
         assertEquals(200, list.statusCode());
         assertTrue(list.body().contains("<a href=\"/experiments/fares\">fares</a>"), list.body());

@@ -103,6 +103,16 @@ class PagesTest {
     }
 
     @Test
+    void theListSaysItMayBeIncompleteUntilTheTopicWasReadToItsEnd() {
+        DecisionHistory history = new DecisionHistory();
+        chain("alpha", "a", "b").forEach(history::add);
+        Pages pages = new Pages(history, "runoff.decisions");
+        assertTrue(pages.overview(null).html().contains("still reading the topic, so the list may be incomplete"));
+        history.caughtUp();
+        assertFalse(pages.overview(null).html().contains("may be incomplete"));
+    }
+
+    @Test
     void unknownExperimentIs404() {
         Pages.Page page = pages(List.of()).experiment("nobody<>", null);
         assertEquals(404, page.status());
