@@ -12,6 +12,8 @@ import java.net.InetSocketAddress;
 import java.net.URLDecoder;
 import java.nio.charset.StandardCharsets;
 import java.security.MessageDigest;
+import java.util.List;
+import java.util.Locale;
 import java.util.Optional;
 import java.util.concurrent.ArrayBlockingQueue;
 import java.util.concurrent.ExecutorService;
@@ -256,8 +258,8 @@ public final class StatusServer implements AutoCloseable {
      * {@code application/json}. Clients that send no {@code Accept}, or {@code *}{@code /*}, keep getting JSON.
      */
     static boolean wantsHtml(HttpExchange exchange) {
-        String accept = String.join(",", exchange.getRequestHeaders().getOrDefault("Accept", java.util.List.of()))
-                .toLowerCase(java.util.Locale.ROOT);
+        String accept = String.join(",", exchange.getRequestHeaders().getOrDefault("Accept", List.of()))
+                .toLowerCase(Locale.ROOT);
         return accept.contains("text/html") && !accept.contains("application/json");
     }
 

@@ -7,6 +7,8 @@ import java.time.Duration;
 import java.util.List;
 import java.util.Map;
 import java.util.Properties;
+import java.util.function.Supplier;
+import org.apache.kafka.clients.consumer.Consumer;
 import org.apache.kafka.clients.consumer.ConsumerConfig;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.KafkaConsumer;
@@ -29,15 +31,15 @@ public final class DecisionFeed implements AutoCloseable {
     private static final long RETRY_MS = 5_000;
     private static final RecordCodec<DecisionRecord> CODEC = RecordCodec.decisionRecords();
 
-    private final Properties consumerProps;
+    private final Supplier<Consumer<byte[], byte[]>> consumers;
     private final String topic;
     private final DecisionHistory history;
     private final Thread thread;
     private volatile boolean closed;
-    private volatile KafkaConsumer<byte[], byte[]> consumer;
+    private volatile Consumer<byte[], byte[]> consumer;
 
-    private DecisionFeed(Properties consumerProps, String topic, DecisionHistory history) {
-        this.consumerProps = consumerProps;
+    private DecisionFeed(Supplier<Consumer<byte[], byte[]>> consumers, String topic, DecisionHistory history) {
+        this.consumers = consumers;
         this.topic = topic;
         this.history = history;
         this.thread = new Thread(this::run, "runoff-pages-feed");
@@ -49,21 +51,40 @@ public final class DecisionFeed implements AutoCloseable {
      * security settings; group, offsets and isolation are set here) into {@code history}.
      */
     public static DecisionFeed start(Properties consumerProps, String topic, DecisionHistory history) {
-        Properties props = new Properties();
-        props.putAll(consumerProps);
-        props.remove(ConsumerConfig.GROUP_ID_CONFIG);
-        props.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
-        props.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, "false");
-        props.put(ConsumerConfig.AUTO_OFFSET_RESET_CONFIG, "earliest");
-        DecisionFeed feed = new DecisionFeed(props, topic, history);
+        Properties props = properties(consumerProps);
+        return start(() -> new KafkaConsumer<>(props, new ByteArrayDeserializer(), new ByteArrayDeserializer()),
+                topic, history);
+    }
+
+    /** Starts reading {@code topic} into {@code history} with consumers from {@code consumers}. */
+    static DecisionFeed start(Supplier<Consumer<byte[], byte[]>> consumers, String topic, DecisionHistory history) {
+        DecisionFeed feed = new DecisionFeed(consumers, topic, history);
         feed.thread.start();
         return feed;
     }
 
+    /**
+     * The feed's consumer settings: the job's, without its group, reading committed records from the start
+     * and committing nothing; a configured {@code client.id} gets the suffix {@code -pages-feed}.
+     */
+    static Properties properties(Properties consumerProps) {
+        Properties props = new Properties();
+        props.putAll(consumerProps);
+        props.remove(ConsumerConfig.GROUP_ID_CONFIG);
+        props.remove(ConsumerConfig.GROUP_INSTANCE_ID_CONFIG);
+        Object clientId = props.get(ConsumerConfig.CLIENT_ID_CONFIG);
+        if (clientId != null) {
+            props.put(ConsumerConfig.CLIENT_ID_CONFIG, clientId + "-pages-feed");
+        }
+        props.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
+        props.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, "false");
+        props.put(ConsumerConfig.AUTO_OFFSET_RESET_CONFIG, "earliest");
+        return props;
+    }
+
     private void run() {
         while (!closed) {
-            try (KafkaConsumer<byte[], byte[]> c = new KafkaConsumer<>(consumerProps, new ByteArrayDeserializer(),
-                    new ByteArrayDeserializer())) {
+            try (Consumer<byte[], byte[]> c = consumers.get()) {
                 consumer = c;
                 if (!closed) {
                     follow(c);
@@ -77,7 +98,7 @@ public final class DecisionFeed implements AutoCloseable {
         }
     }
 
-    private void follow(KafkaConsumer<byte[], byte[]> c) {
+    private void follow(Consumer<byte[], byte[]> c) {
         List<TopicPartition> partitions = c.partitionsFor(topic, Duration.ofSeconds(30)).stream()
                 .map(p -> new TopicPartition(topic, p.partition())).toList();
         if (partitions.isEmpty()) {
@@ -128,7 +149,7 @@ public final class DecisionFeed implements AutoCloseable {
     @Override
     public void close() {
         closed = true;
-        KafkaConsumer<byte[], byte[]> c = consumer;
+        Consumer<byte[], byte[]> c = consumer;
         if (c != null) {
             c.wakeup();
         }
