@@ -128,8 +128,10 @@ public final class Demo {
             }
             return job.state() == KafkaStreams.State.RUNNING;
         });
-        report.note("job RUNNING; its HTTP endpoint: http://" + job.httpAddress() + ":" + job.httpPort() + "/experiments/"
-                + DemoScenario.EXPERIMENT_ID + " (also /metrics, /health, /ready)");
+        String endpoint = "http://" + job.httpAddress() + ":" + job.httpPort();
+        report.note("job RUNNING; watch it in a browser: " + endpoint + "/experiments/" + DemoScenario.EXPERIMENT_ID
+                + "?refresh=5 (every experiment: " + endpoint + "/; the same address gives other clients JSON; also"
+                + " /metrics, /health, /ready)");
         new DefinitionsClient(config, Duration.ofSeconds(30)).put(definition, Format.AVRO);
         report.note("experiment " + DemoScenario.EXPERIMENT_ID + ": a ferry operator's booking page tests "
                 + scenario.layouts().size() + " fare-table layouts " + scenario.layouts()

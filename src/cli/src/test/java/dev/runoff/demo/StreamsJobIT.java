@@ -158,6 +158,10 @@ class StreamsJobIT {
             assertEquals("http://127.0.0.1:" + holder.httpPort() + "/experiments/" + ID,
                     moved.headers().firstValue("Location").orElseThrow());
 
+            // each instance reads the whole decisions topic: both list the experiment, whichever holds it
+            Await.until("the experiment on both instances' lists", TIMEOUT, () -> jobs.stream().allMatch(
+                    j -> Http.get(j.httpPort(), "/").body().contains("<a href=\"/experiments/" + ID + "\">")));
+
             Set<Integer> unknown = new TreeSet<>();
             jobs.forEach(j -> unknown.add(Http.get(j.httpPort(), "/experiments/no-such-experiment").statusCode()));
             assertEquals(Set.of(307, 404), unknown);

@@ -13,7 +13,8 @@ import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
 
 /**
  * Counts the experiments this instance holds (its active partitions of the experiments store), running and
- * stopped, for the {@code runoff_experiments} gauge. A count is at most {@link #MAX_AGE_NANOS} old: the
+ * stopped, for the {@code runoff_experiments} gauge, and the running ones that are {@link Lagging} for the
+ * {@code runoff_experiments_lagging} gauge. A count is at most {@link #MAX_AGE_NANOS} old: the
  * store is scanned at most once per interval, whatever the scrape rate. While the store cannot be read
  * (rebalance, restore) the last counts stay.
  */
@@ -24,14 +25,17 @@ final class ExperimentCensus {
 
     private final KafkaStreams streams;
     private final LongSupplier nanoTime;
+    private final LongSupplier wallMillis;
     private long takenAt;
     private boolean taken;
     private long running;
     private long stopped;
+    private long lagging;
 
-    ExperimentCensus(KafkaStreams streams, LongSupplier nanoTime) {
+    ExperimentCensus(KafkaStreams streams, LongSupplier nanoTime, LongSupplier wallMillis) {
         this.streams = streams;
         this.nanoTime = nanoTime;
+        this.wallMillis = wallMillis;
     }
 
     /** Experiments held here that have not stopped. */
@@ -46,6 +50,12 @@ final class ExperimentCensus {
         return stopped;
     }
 
+    /** Running experiments held here whose next decision is overdue ({@link Lagging}). */
+    synchronized long lagging() {
+        refresh();
+        return lagging;
+    }
+
     private void refresh() {
         long now = nanoTime.getAsLong();
         if (taken && now - takenAt < MAX_AGE_NANOS || streams.state() != KafkaStreams.State.RUNNING) {
@@ -56,6 +66,8 @@ final class ExperimentCensus {
                     RunoffTopology.EXPERIMENTS_STORE, QueryableStoreTypes.<String, ExperimentState>keyValueStore()));
             long run = 0;
             long stop = 0;
+            long late = 0;
+            long wall = wallMillis.getAsLong();
             try (KeyValueIterator<String, ExperimentState> all = store.all()) {
                 while (all.hasNext()) {
                     KeyValue<String, ExperimentState> next = all.next();
@@ -63,11 +75,13 @@ final class ExperimentCensus {
                         stop++;
                     } else {
                         run++;
+                        late += Lagging.lagging(next.value, wall) ? 1 : 0;
                     }
                 }
             }
             running = run;
             stopped = stop;
+            lagging = late;
             takenAt = now;
             taken = true;
         } catch (InvalidStateStoreException e) {

@@ -24,7 +24,8 @@ import org.apache.kafka.streams.KafkaStreams;
  * job's counters: rejected records by reason ({@code runoff_rejected_total{reason=...}}), dropped duplicates
  * ({@code runoff_duplicates_total}), stream threads replaced after an uncaught exception
  * ({@code runoff_stream_thread_replacements_total}), the experiments this instance holds
- * ({@code runoff_experiments{status="running"|"stopped"}}) and the client's state ({@code runoff_streams_running}).
+ * ({@code runoff_experiments{status="running"|"stopped"}}), the running ones whose next decision is overdue
+ * ({@code runoff_experiments_lagging}, see {@link Lagging}) and the client's state ({@code runoff_streams_running}).
  * Decisions sent and punctuation time come from Kafka Streams' own metrics:
  * {@code kafka_producer_topic_record_send_total{topic="runoff.decisions"}} and
  * {@code kafka_stream_thread_punctuate_latency_avg|max}.
@@ -71,11 +72,14 @@ final class JobMetrics implements AutoCloseable {
                 .register(registry);
         FunctionCounter.builder("runoff.stream.thread.replacements", replacements, LongAdder::sum)
                 .description("Stream threads replaced after an uncaught exception").register(registry);
-        census = new ExperimentCensus(streams, System::nanoTime);
+        census = new ExperimentCensus(streams, System::nanoTime, System::currentTimeMillis);
         Gauge.builder("runoff.experiments", census, ExperimentCensus::running).tag("status", "running")
                 .description("Experiments held by this instance, by status").register(registry);
         Gauge.builder("runoff.experiments", census, ExperimentCensus::stopped).tag("status", "stopped")
                 .description("Experiments held by this instance, by status").register(registry);
+        Gauge.builder("runoff.experiments.lagging", census, ExperimentCensus::lagging)
+                .description("Running experiments held by this instance whose next decision is overdue by more than "
+                        + "one recompute period").register(registry);
         Gauge.builder("runoff.streams.running", streams, s -> s.state() == KafkaStreams.State.RUNNING ? 1 : 0)
                 .description("1 while the Kafka Streams client is RUNNING, else 0").register(registry);
     }

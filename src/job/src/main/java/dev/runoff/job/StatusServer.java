@@ -4,6 +4,7 @@ import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import com.sun.net.httpserver.HttpExchange;
 import com.sun.net.httpserver.HttpServer;
+import dev.runoff.job.pages.Pages;
 import java.io.IOException;
 import java.io.OutputStream;
 import java.io.UncheckedIOException;
@@ -11,6 +12,8 @@ import java.net.InetSocketAddress;
 import java.net.URLDecoder;
 import java.nio.charset.StandardCharsets;
 import java.security.MessageDigest;
+import java.util.List;
+import java.util.Locale;
 import java.util.Optional;
 import java.util.concurrent.ArrayBlockingQueue;
 import java.util.concurrent.ExecutorService;
@@ -32,7 +35,10 @@ import org.slf4j.LoggerFactory;
  *       state), else 503; for a readiness probe.</li>
  *   <li>{@code /metrics}: Prometheus text format.</li>
  *   <li>{@code /experiments/{id}}: the experiment's current state as JSON (200), 404 when no instance holds
- *       it, 307 to the instance that holds it (body naming it), 503 while that cannot be told.</li>
+ *       it, 307 to the instance that holds it (body naming it), 503 while that cannot be told; a request whose
+ *       {@code Accept} header names {@code text/html} and not {@code application/json} (a browser) gets the
+ *       experiment's page instead (see {@link Pages}).</li>
+ *   <li>{@code /}: the page listing every experiment (HTML).</li>
  * </ul>
  *
  * <p>It listens on one address (loopback unless configured otherwise). With a bearer token, every path but
@@ -58,6 +64,11 @@ public final class StatusServer implements AutoCloseable {
         default String failure() {
             return null;
         }
+
+        /** The HTML pages, or {@code null} when this backend has none ({@code /} then answers 404). */
+        default Pages pages() {
+            return null;
+        }
     }
 
     /** Threads that answer queries. */
@@ -71,6 +82,7 @@ public final class StatusServer implements AutoCloseable {
     private static final Logger LOG = LoggerFactory.getLogger(StatusServer.class);
     private static final String EXPERIMENTS = "/experiments/";
     private static final String TEXT = "text/plain; charset=utf-8";
+    private static final String HTML = "text/html; charset=utf-8";
     private static final ObjectMapper JSON = new ObjectMapper();
 
     private final HttpServer server;
@@ -221,18 +233,40 @@ public final class StatusServer implements AutoCloseable {
     }
 
     private void route(HttpExchange exchange, String path) throws IOException {
+        Pages pages = backend.pages();
+        String query = exchange.getRequestURI().getRawQuery();
         if ("/metrics".equals(path)) {
             send(exchange, 200, PROMETHEUS_TEXT, backend.metrics());
+        } else if ("/".equals(path) && pages != null) {
+            page(exchange, pages.overview(query));
         } else if (path.startsWith(EXPERIMENTS) && path.length() > EXPERIMENTS.length()) {
             Optional<String> id = decode(path.substring(EXPERIMENTS.length()));
             if (id.isEmpty()) {
                 send(exchange, 400, TEXT, "malformed path: a % must be followed by two hex digits of UTF-8\n");
+            } else if (pages != null && wantsHtml(exchange)) {
+                page(exchange, pages.experiment(id.get(), query));
             } else {
                 experiment(exchange, id.get());
             }
         } else {
-            send(exchange, 404, TEXT, "not found: try /health, /ready, /metrics or /experiments/{id}\n");
+            send(exchange, 404, TEXT, "not found: try /, /health, /ready, /metrics or /experiments/{id}\n");
         }
+    }
+
+    /**
+     * Whether the client asked for a page: its {@code Accept} header names {@code text/html} and not
+     * {@code application/json}. Clients that send no {@code Accept}, or {@code *}{@code /*}, keep getting JSON.
+     */
+    static boolean wantsHtml(HttpExchange exchange) {
+        String accept = String.join(",", exchange.getRequestHeaders().getOrDefault("Accept", List.of()))
+                .toLowerCase(Locale.ROOT);
+        return accept.contains("text/html") && !accept.contains("application/json");
+    }
+
+    private static void page(HttpExchange exchange, Pages.Page page) throws IOException {
+        exchange.getResponseHeaders().add("Vary", "Accept");
+        exchange.getResponseHeaders().add("Cache-Control", "no-store");
+        send(exchange, page.status(), HTML, page.html());
     }
 
     /** The percent-decoded path segment, or empty when an escape is malformed. */

@@ -1,5 +1,8 @@
 package dev.runoff.job;
 
+import dev.runoff.job.pages.DecisionFeed;
+import dev.runoff.job.pages.DecisionHistory;
+import dev.runoff.job.pages.Pages;
 import dev.runoff.records.RecordSigner;
 import dev.runoff.topology.JobCounters;
 import dev.runoff.topology.RunoffTopology;
@@ -21,7 +24,8 @@ import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
 /**
- * The running job: the topology in a Kafka Streams client, the HTTP endpoint and the metrics. A stream
+ * The running job: the topology in a Kafka Streams client, the HTTP endpoint with its pages (fed by a
+ * reader of the decisions topic) and the metrics. A stream
  * thread that dies of an uncaught exception is logged and replaced; {@link #close()} (from a shutdown hook
  * on SIGTERM, say) stops the client within the configured timeout, then the endpoint.
  */
@@ -34,13 +38,15 @@ public final class StreamsJob implements AutoCloseable {
     private final KafkaStreams streams;
     private final JobMetrics metrics;
     private final StatusServer http;
+    private final DecisionFeed feed;
     private final CountDownLatch ended = new CountDownLatch(1);
     private final AtomicBoolean closed = new AtomicBoolean();
     private volatile boolean failed;
     private final AtomicReference<String> cause;
 
     private StreamsJob(JobConfig config, JobCounters counters, KafkaStreams streams, JobMetrics metrics,
-                       StatusServer http, AtomicReference<String> cause) {
+                       StatusServer http, DecisionFeed feed, AtomicReference<String> cause) {
+        this.feed = feed;
         this.config = config;
         this.cause = cause;
         this.counters = counters;
@@ -71,15 +77,19 @@ public final class StreamsJob implements AutoCloseable {
         AtomicReference<String> cause = new AtomicReference<>();
         SafetySettings safety = config.safety();
         StatusServer http;
+        DecisionHistory history = new DecisionHistory();
+        Pages pages = new Pages(history, config.topology().decisionsTopic());
         try {
             http = StatusServer.start(safety.httpBindAddress(), config.app().httpPort(), safety.httpToken(),
-                    backend(streams, metrics, self(config), cause));
+                    backend(streams, metrics, self(config), cause, pages));
         } catch (RuntimeException e) {
             metrics.close();
             streams.close(Duration.ZERO);
             throw e;
         }
-        StreamsJob job = new StreamsJob(config, counters, streams, metrics, http, cause);
+        DecisionFeed feed = DecisionFeed.start(config.clientProperties(JobConfig.Client.CONSUMER),
+                config.topology().decisionsTopic(), history);
+        StreamsJob job = new StreamsJob(config, counters, streams, metrics, http, feed, cause);
         streams.setUncaughtExceptionHandler(new ReplaceThreadHandler(safety.maxThreadReplacements(),
                 safety.replacementWindowMs(), System::currentTimeMillis, metrics::threadReplaced,
                 c -> cause.compareAndSet(null, c)));
@@ -106,7 +116,7 @@ public final class StreamsJob implements AutoCloseable {
     }
 
     private static StatusServer.Backend backend(KafkaStreams streams, JobMetrics metrics, HostInfo self,
-                                                AtomicReference<String> cause) {
+                                                AtomicReference<String> cause, Pages pages) {
         ExperimentLookup lookup = new ExperimentLookup(streams, self);
         return new StatusServer.Backend() {
             @Override
@@ -127,6 +137,11 @@ public final class StreamsJob implements AutoCloseable {
             @Override
             public String failure() {
                 return cause.get();
+            }
+
+            @Override
+            public Pages pages() {
+                return pages;
             }
         };
     }
@@ -214,6 +229,7 @@ public final class StreamsJob implements AutoCloseable {
         long began = System.nanoTime();
         boolean clean = streams.close(Duration.ofMillis(config.app().shutdownTimeoutMs()));
         metrics.close();
+        feed.close();
         http.close();
         ended.countDown();
         LOG.info("event=job-stopped clean={} millis={}", clean, (System.nanoTime() - began) / 1_000_000);

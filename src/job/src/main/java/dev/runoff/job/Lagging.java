@@ -1,0 +1,31 @@
+package dev.runoff.job;
+
+import dev.runoff.decision.ExperimentState;
+
+/**
+ * Whether a running experiment is lagging: its next decision is overdue by more than one recompute period.
+ * A running experiment is due for a decision when new data came in and its recompute period has passed since
+ * the last evaluation, and in any case when its heartbeat has passed since the last publication (the rule of
+ * the allocation pass); a job that keeps up with its input decides within one allocation interval of that.
+ * Stopped experiments, and experiments never evaluated yet, are never lagging. An evaluation that failed
+ * counts as an evaluation here (it is counted as a rejection with reason {@code evaluation-error}).
+ */
+final class Lagging {
+
+    private Lagging() {
+    }
+
+    /** Whether {@code state} is lagging at wall-clock time {@code nowMillis}. */
+    static boolean lagging(ExperimentState state, long nowMillis) {
+        if (state.stopped() || state.lastComputedAt() < 0) {
+            return false;
+        }
+        long period = state.definition().getRecomputePeriodMs();
+        long dueAt = state.lastPublishedAt() < 0 ? Long.MAX_VALUE
+                : state.lastPublishedAt() + state.definition().getHeartbeatMs();
+        if (state.dirty()) {
+            dueAt = Math.min(dueAt, state.lastComputedAt() + period);
+        }
+        return dueAt != Long.MAX_VALUE && nowMillis - dueAt > period;
+    }
+}

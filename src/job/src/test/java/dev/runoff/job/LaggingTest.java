@@ -1,0 +1,47 @@
+package dev.runoff.job;
+
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import dev.runoff.decision.ExperimentState;
+import dev.runoff.engine.stats.BernoulliStats;
+import dev.runoff.records.HashChain;
+import dev.runoff.records.avro.ExperimentDefinition;
+import dev.runoff.testkit.TestDefinitions;
+import java.util.List;
+import org.junit.jupiter.api.Test;
+
+/** Test definitions recompute every 1 s and beat every 10 s (TestDefinitions). */
+class LaggingTest {
+
+    private static final ExperimentDefinition DEF = ExperimentDefinition.newBuilder(
+            TestDefinitions.bernoulli("late", "a", "b")).setVersion(1).build();
+    private static final List<dev.runoff.engine.stats.ArmStats> STATS = List.of(new BernoulliStats(10, 1),
+            new BernoulliStats(10, 2));
+
+    private static ExperimentState state(long computedAt, boolean dirty, ExperimentState.Stop stop) {
+        return new ExperimentState(DEF, STATS, stop, 1, 1, HashChain.GENESIS, new double[] {0.5, 0.5}, 0, computedAt,
+                computedAt, dirty, false);
+    }
+
+    @Test
+    void newDataMakesADecisionDueOnePeriodAfterTheLastAndLateAfterOneMore() {
+        ExperimentState dirty = state(0, true, null);
+        assertFalse(Lagging.lagging(dirty, 1_999), "due at 1 s, within one period of it");
+        assertTrue(Lagging.lagging(dirty, 2_001), "more than one period past due");
+    }
+
+    @Test
+    void withoutNewDataOnlyTheHeartbeatIsDue() {
+        ExperimentState quiet = state(0, false, null);
+        assertFalse(Lagging.lagging(quiet, 10_999));
+        assertTrue(Lagging.lagging(quiet, 11_001));
+    }
+
+    @Test
+    void stoppedOrNeverEvaluatedExperimentsAreNeverLagging() {
+        ExperimentState.Stop stop = new ExperimentState.Stop("a", 1, List.of("a", "b"), new double[] {1, 0});
+        assertFalse(Lagging.lagging(state(0, true, stop), 1_000_000));
+        assertFalse(Lagging.lagging(state(-1, true, null), 1_000_000));
+    }
+}
