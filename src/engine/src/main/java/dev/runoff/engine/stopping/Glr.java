@@ -51,7 +51,8 @@ public final class Glr {
 
     /**
      * {@code min_{b != leader} pair(leader, b)} with the arm attaining it (the first on ties) and the total
-     * trials: the shape shared by the GLR, mixture and sequential-t statistics.
+     * trials: the shape shared by the GLR, mixture and sequential-t statistics. A pair whose statistic is NaN
+     * (undefined) carries no evidence: it counts as 0, so it can never let the rule stop.
      */
     static Statistic minOverChallengers(List<Arm> arms, Metric metric, int leader,
                                         ToDoubleBiFunction<ArmStats, ArmStats> pair) {
@@ -64,6 +65,9 @@ public final class Glr {
                 continue;
             }
             double z = pair.applyAsDouble(arms.get(leader).stats(), arms.get(b).stats());
+            if (Double.isNaN(z)) {
+                z = 0;
+            }
             if (z < min) {
                 min = z;
                 challenger = b;

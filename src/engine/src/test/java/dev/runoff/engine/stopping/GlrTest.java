@@ -5,6 +5,7 @@ import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.engine.core.Arm;
+import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
 import java.util.List;
@@ -72,5 +73,17 @@ class GlrTest {
         assertEquals("arm 'B' has VALUE statistics but arm 'A' has BERNOULLI", e.getMessage());
         assertEquals("need at least 2 arms, got 1", assertThrows(IllegalArgumentException.class,
                 () -> Glr.statistic(List.of(bernoulli("A", 10, 5)))).getMessage());
+    }
+
+    @Test
+    void aPairWhoseStatisticIsUndefinedCarriesNoEvidence() {
+        List<Arm> arms = List.of(bernoulli("A", 100, 60), bernoulli("B", 100, 10), bernoulli("C", 100, 20));
+        Glr.Statistic z = Glr.minOverChallengers(arms, Metric.BERNOULLI, 0,
+                (a, b) -> b.trials() == 100 && ((BernoulliStats) b).successes() == 20 ? Double.NaN : 50.0);
+        assertEquals(0.0, z.value());
+        assertEquals(2, z.challenger());
+
+        Glr.Statistic allUndefined = Glr.minOverChallengers(arms, Metric.BERNOULLI, 0, (a, b) -> Double.NaN);
+        assertEquals(0.0, allUndefined.value());
     }
 }
