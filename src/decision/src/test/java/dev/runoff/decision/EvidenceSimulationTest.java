@@ -50,7 +50,10 @@ class EvidenceSimulationTest {
         return Evidence.balance(rows.get(rows.size() - 1));
     }
 
-    /** Decisions of the job's evaluator (integrated P(best), no stop within the run) fed from the weights it publishes. */
+    /**
+     * Decisions of the job's evaluator (integrated P(best), no stop within the run), each period's trials drawn
+     * from the weights it published last.
+     */
     static List<Evidence.Snapshot> run(AllocationRule rule, double[] rates, int rounds, int perRound, long seed) {
         String[] arms = new String[rates.length];
         for (int i = 0; i < arms.length; i++) {
@@ -59,7 +62,8 @@ class EvidenceSimulationTest {
         ExperimentDefinition def = TestDefinitions.perExposure(TestDefinitions.bernoulli("sim", arms));
         def.setAllocation(AllocationSpec.newBuilder(def.getAllocation()).setRule(rule)
                 .setBestArmEstimator(BestArmEstimator.INTEGRATED).build());
-        def.setStopping(StoppingSpec.newBuilder(def.getStopping()).setMinDurationMs(1_000L * PERIOD_MS * rounds).build());
+        def.setStopping(StoppingSpec.newBuilder(def.getStopping()).setMinDurationMs(1_000L * PERIOD_MS * rounds)
+                .build());
         UniformRandomProvider rng = RandomSource.SPLIT_MIX_64.create(seed);
         Evaluator evaluator = new Evaluator(2_000);
         long now = 1_700_000_000_000L;

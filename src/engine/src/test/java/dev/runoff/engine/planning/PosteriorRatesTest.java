@@ -11,7 +11,10 @@ import org.junit.jupiter.api.Test;
 
 class PosteriorRatesTest {
 
-    /** The two instances of Garivier & Kaufmann (2016), "Optimal Best Arm Identification with Fixed Confidence", COLT, section 5. */
+    /**
+     * The two instances of Garivier &amp; Kaufmann (2016), "Optimal Best Arm Identification with Fixed
+     * Confidence", COLT, numerical experiments.
+     */
     private static final double[][] PUBLISHED = {{0.5, 0.45, 0.43, 0.4}, {0.3, 0.21, 0.2, 0.19, 0.18}};
 
     /** Bernoulli KL divergence, written out here (standard definition). */
@@ -103,7 +106,8 @@ class PosteriorRatesTest {
         assertEquals(rate(mu[0], 0.25, mu[3], 0.25), perArm[3], 1e-15);
         // the uniform split is slower than the half-optimal one on this instance (Russo 2020: Gamma*_beta is a maximum
         // over splits with beta on the best arm, and uniform puts 1/4 there)
-        assertTrue(PosteriorRates.uniform(ArmModel.bernoulli(mu)) < PosteriorRates.betaOptimal(ArmModel.bernoulli(mu), 0.5));
+        ArmModel model = ArmModel.bernoulli(mu);
+        assertTrue(PosteriorRates.uniform(model) < PosteriorRates.betaOptimal(model, 0.5));
     }
 
     @Test
