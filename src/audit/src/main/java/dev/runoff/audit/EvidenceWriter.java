@@ -23,8 +23,9 @@ final class EvidenceWriter {
         Evidence.Row last = view.last();
         StringBuilder out = new StringBuilder();
         out.append(String.format(Locale.ROOT, "Evidence against the losing arms at decision %d (%,d trials; leader %s):"
-                + " -ln P(best), and its growth per 1,000 trials (least-squares slope over the last %d decisions)%n",
-                view.sequences().get(view.sequences().size() - 1), last.totalTrials(), last.leader(), Evidence.WINDOW));
+                + " -ln P(best), and its growth per 1,000 trials (least-squares slope over the decisions in the last"
+                + " %s of the trials)%n", view.sequences().get(view.sequences().size() - 1), last.totalTrials(),
+                last.leader(), share()));
         int width = last.points().keySet().stream().mapToInt(String::length).max().orElse(0);
         last.points().forEach((arm, p) -> out.append(String.format(Locale.ROOT, "  %-" + width + "s  evidence %s%s (%s)"
                 + "  rate %s%n", arm, p.isBound() ? ">= " : "", number(p.evidence()), describe(p.source()),
@@ -48,7 +49,7 @@ final class EvidenceWriter {
                     balance.slowest(), number(rate(row, balance.slowest())), number(rate(row, balance.fastest())),
                     balance.fastest());
             case UNDETERMINED -> "Rates balanced: undetermined (fewer than two losing arms with a rate over the last "
-                    + Evidence.WINDOW + " decisions)";
+                    + share() + " of the trials)";
         };
     }
 
@@ -104,7 +105,7 @@ final class EvidenceWriter {
     /** The JSON object of the verdict and predicted rates at the last decision. */
     static Map<String, Object> jsonSummary(EvidenceView view) {
         Map<String, Object> map = new LinkedHashMap<>();
-        map.put("windowDecisions", Evidence.WINDOW);
+        map.put("windowShareOfTrials", Evidence.WINDOW_SHARE);
         map.put("balanceTolerance", Evidence.BALANCE_TOLERANCE);
         map.put("verdict", view.balance().verdict().name());
         map.put("slowestArm", view.balance().slowest());
@@ -128,6 +129,11 @@ final class EvidenceWriter {
     private static String cell(Evidence.Row row, String arm, java.util.function.Function<Evidence.Point, String> f) {
         Evidence.Point p = row.points().get(arm);
         return p == null ? "" : f.apply(p);
+    }
+
+    /** The window as words: "half" for 0.5, else a percentage. */
+    private static String share() {
+        return Evidence.WINDOW_SHARE == 0.5 ? "half" : String.format(Locale.ROOT, "%.0f%%", 100 * Evidence.WINDOW_SHARE);
     }
 
     private static double rate(Evidence.Row row, String arm) {

@@ -56,7 +56,7 @@ class EvidenceReportTest {
         assertTrue(verdict.startsWith("Rates balanced: ") || verdict.startsWith("Rates not balanced: "), verdict);
         assertTrue(verdict.contains("2.00 (tolerance)"), verdict);
         assertTrue(verdict.contains(evidence.balance().slowest()), verdict);
-        assertTrue(text.contains("over the last 20 decisions"), text);
+        assertTrue(text.contains("over the decisions in the last half of the trials"), text);
         assertTrue(lines[lines.length - 2].startsWith("Predicted rates per 1,000 trials at the estimated rates ("),
                 lines[lines.length - 2]);
     }
@@ -88,7 +88,7 @@ class EvidenceReportTest {
         assertFalse(control.get("lowerBound").asBoolean());
         JsonNode summary = json.get("evidenceSummary");
         assertEquals(evidence.balance().verdict().name(), summary.get("verdict").asText());
-        assertEquals(20, summary.get("windowDecisions").asInt());
+        assertEquals(0.5, summary.get("windowShareOfTrials").asDouble(), 0.0);
         assertEquals(evidence.reference().betaOptimal(),
                 summary.get("predicted").get("betaOptimalRatePer1000Trials").asDouble(), 0.0);
         assertEquals(0.5, summary.get("predicted").get("beta").asDouble(), 0.0);

@@ -61,21 +61,24 @@ class EvidenceTest {
     }
 
     @Test
-    void rateIsTheLeastSquaresSlopeOverTheTrailingWindow() {
-        // evidence against b grows 0.9 per 1,000 trials, against c 1.6, after a first stretch at another slope
-        // that the 20-decision window must leave out; a noise-free line gives the slope exactly.
+    void rateIsTheLeastSquaresSlopeOverTheTrailingHalfOfTheTrials() {
+        // evidence against b grows 0.1 per 1,000 trials up to 45,000 trials, then 0.9; against c 1.6 throughout.
+        // At 120,000 trials the window (60,000 trials on) holds only the second stretch, and a noise-free line
+        // gives its slope exactly; at 75,000 trials the window reaches back into the first stretch.
         List<Evidence.Snapshot> snapshots = new ArrayList<>();
         for (int d = 1; d <= 40; d++) {
             long total = 3_000L * d;
-            double eb = d <= 20 ? 0.1 * total / 1000 : 6 + 0.9 * (total - 60_000) / 1000;
+            double eb = d <= 15 ? 0.1 * total / 1000 : 4.5 + 0.9 * (total - 45_000) / 1000;
             double ec = 1.6 * total / 1000;
             double pb = Math.exp(-eb);
             double pc = Math.exp(-ec);
             snapshots.add(snapshot(1_000L * d, 0, new double[] {1 - pb - pc, pb, pc}, new double[3], null));
         }
-        Evidence.Row last = Evidence.of(snapshots).get(39);
+        List<Evidence.Row> rows = Evidence.of(snapshots);
+        Evidence.Row last = rows.get(39);
         assertEquals(0.9, last.points().get("b").ratePerThousand(), 1e-9);
         assertEquals(1.6, last.points().get("c").ratePerThousand(), 1e-9);
+        assertTrue(rows.get(24).points().get("b").ratePerThousand() < 0.85, rows.get(24).toString());
         Evidence.Balance balance = Evidence.balance(last);
         assertEquals(Evidence.Verdict.BALANCED, balance.verdict());
         assertEquals("b", balance.slowest());
