@@ -131,9 +131,9 @@ final class EvidenceWriter {
         return p == null ? "" : f.apply(p);
     }
 
-    /** The window as words: "half" for 0.5, else a percentage. */
+    /** The window as a percentage of the trials. */
     private static String share() {
-        return Evidence.WINDOW_SHARE == 0.5 ? "half" : String.format(Locale.ROOT, "%.0f%%", 100 * Evidence.WINDOW_SHARE);
+        return String.format(Locale.ROOT, "%.0f%%", 100 * Evidence.WINDOW_SHARE);
     }
 
     private static double rate(Evidence.Row row, String arm) {

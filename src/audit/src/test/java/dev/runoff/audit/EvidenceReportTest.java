@@ -56,7 +56,7 @@ class EvidenceReportTest {
         assertTrue(verdict.startsWith("Rates balanced: ") || verdict.startsWith("Rates not balanced: "), verdict);
         assertTrue(verdict.contains("2.00 (tolerance)"), verdict);
         assertTrue(verdict.contains(evidence.balance().slowest()), verdict);
-        assertTrue(text.contains("over the decisions in the last half of the trials"), text);
+        assertTrue(text.contains("over the decisions in the last 50% of the trials"), text);
         assertTrue(lines[lines.length - 2].startsWith("Predicted rates per 1,000 trials at the estimated rates ("),
                 lines[lines.length - 2]);
     }

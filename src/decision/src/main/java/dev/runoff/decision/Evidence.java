@@ -14,8 +14,9 @@ import java.util.Objects;
 /**
  * How fast each losing arm is being ruled out: per decision and per arm that is not the leader, the evidence
  * against it, {@code -ln P(arm is best)}, and its growth per 1,000 trials over the trailing half of the
- * experiment's trials; at the last decision, whether those growth rates are balanced, and the rates the planner predicts.
- * Takes the numbers a decision record holds (no record types), so the audit and the job's pages share it.
+ * experiment's trials; at the last decision, whether those growth rates are balanced, and the rates the
+ * planner predicts. Takes the numbers a decision record holds (no record types), so that the audit and other
+ * views can share it.
  *
  * <p>Design. Under a split that gives arm a the share {@code w_a} of n trials, {@code -ln P(i is best) / n}
  * tends to the pairwise rate {@code C_i(w)} ({@link PosteriorRates}); top-two sampling with parameter beta
