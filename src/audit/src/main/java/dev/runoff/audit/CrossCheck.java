@@ -54,7 +54,7 @@ final class CrossCheck {
     private void check(int index, Entry entry, List<Finding> findings) {
         DecisionRecord record = entry.record();
         List<ArmState> arms = record.getArms();
-        ProbabilityBest exact = new ExactProbabilityBest().estimate(posteriors(arms), 0);
+        ProbabilityBest exact = exact(arms);
         for (int i = 0; i < arms.size(); i++) {
             ArmState arm = arms.get(i);
             double distance = Math.abs(arm.getAlpha() - exact.alpha(i));
@@ -75,6 +75,11 @@ final class CrossCheck {
 
     private static String number(double value) {
         return String.format(Locale.ROOT, "%.4g", value);
+    }
+
+    /** The probabilities of being best integrated exactly from the posteriors {@code arms} state. */
+    static ProbabilityBest exact(List<ArmState> arms) {
+        return new ExactProbabilityBest().estimate(posteriors(arms), 0);
     }
 
     /** The posteriors the record states, in arm order. */

@@ -10,16 +10,11 @@ import java.util.function.ToDoubleFunction;
  * (a step line: a weight holds until the next decision) and the probability of being best (a line with a
  * marker per decision), one series per arm, a legend, axis titles with units, and the STOP marked by a
  * vertical line labelled with the winner. Black text on white; each arm has its own colour and dash pattern,
- * so the series stay apart when printed in grey.
- *
- * <p>Colours: the Okabe-Ito palette for colour-blind readers (Okabe and Ito 2008, "Color Universal Design"),
- * without its yellow, which is too light on white.
+ * so the series stay apart when printed in grey (the palette and patterns of {@code SvgCanvas}, shared with
+ * {@link EvidenceChart}).
  */
 public final class SvgChart {
 
-    private static final String[] COLOURS = {"#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9",
-        "#000000"};
-    private static final String[] DASHES = {"", "8 4", "2 3", "10 3 2 3", "4 4", "12 3 2 3 2 3"};
     private static final int WIDTH = 960;
     private static final int HEIGHT = 660;
     private static final int LEFT = 80;
@@ -30,11 +25,18 @@ public final class SvgChart {
 
     private final Timeline timeline;
     private final TimeScale scale;
-    private final StringBuilder out = new StringBuilder(16 * 1024);
+    private final SvgCanvas canvas;
+    private final StringBuilder out;
 
     private SvgChart(Timeline timeline) {
         this.timeline = timeline;
         this.scale = TimeScale.of(timeline);
+        this.canvas = new SvgCanvas(WIDTH, HEIGHT, title(timeline));
+        this.out = canvas.out;
+    }
+
+    private static String title(Timeline timeline) {
+        return "Experiment " + timeline.experimentId() + ": weights and P(best) per decision";
     }
 
     /** The SVG document of {@code timeline}. */
@@ -43,14 +45,7 @@ public final class SvgChart {
     }
 
     private String render() {
-        out.append("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n")
-                .append("<svg xmlns=\"http://www.w3.org/2000/svg\" version=\"1.1\" width=\"").append(WIDTH)
-                .append("\" height=\"").append(HEIGHT).append("\" viewBox=\"0 0 ").append(WIDTH).append(' ')
-                .append(HEIGHT).append("\" font-family=\"DejaVu Sans, Arial, Helvetica, sans-serif\" font-size=\"13\">\n");
-        String title = "Experiment " + timeline.experimentId() + ": weights and P(best) per decision";
-        out.append("<title>").append(escape(title)).append("</title>\n");
-        out.append("<rect width=\"100%\" height=\"100%\" fill=\"#ffffff\"/>\n");
-        text(LEFT, 28, "start", 17, "bold", title);
+        text(LEFT, 28, "start", 17, "bold", title(timeline));
         text(LEFT, 48, "start", 12, "normal", "First decision " + TimelineWriter.time(scale.start) + " (UTC); "
                 + timeline.rows().size() + " decisions");
         panel(0, "weights", "Weight (share of traffic)", Timeline.Point::weight, true);
@@ -58,8 +53,7 @@ public final class SvgChart {
         text((LEFT + PLOT_RIGHT) / 2, HEIGHT - 18, "middle", 13, "normal", "Time since first decision ("
                 + scale.unit + ")");
         legend();
-        out.append("</svg>\n");
-        return out.toString();
+        return canvas.close();
     }
 
     private void panel(int index, String id, String axisTitle, ToDoubleFunction<Timeline.Point> value, boolean step) {
@@ -79,9 +73,7 @@ public final class SvgChart {
         }
         out.append(String.format(Locale.ROOT, "<rect x=\"%d\" y=\"%d\" width=\"%d\" height=\"%d\" fill=\"none\""
                 + " stroke=\"#000000\"/>%n", LEFT, top, PLOT_RIGHT - LEFT, PANEL_HEIGHT));
-        double mid = top + PANEL_HEIGHT / 2.0;
-        out.append(String.format(Locale.ROOT, "<text x=\"%d\" y=\"%.1f\" text-anchor=\"middle\" font-size=\"13\""
-                + " transform=\"rotate(-90 %d %.1f)\">%s</text>%n", LEFT - 50, mid, LEFT - 50, mid, escape(axisTitle)));
+        canvas.verticalTitle(LEFT - 50, top + PANEL_HEIGHT / 2.0, axisTitle);
         for (int a = 0; a < timeline.arms().size(); a++) {
             series(a, id, top, value, step);
         }
@@ -109,9 +101,10 @@ public final class SvgChart {
         if (step && !points.isEmpty() && lastX < PLOT_RIGHT) {
             points.add(new double[] {PLOT_RIGHT, points.get(points.size() - 1)[1]});
         }
-        out.append("<g class=\"series\" data-panel=\"").append(panel).append("\" data-arm=\"").append(escape(arm))
-                .append("\">\n<polyline fill=\"none\" stroke=\"").append(colour(a)).append("\" stroke-width=\"2\"")
-                .append(dashAttribute(a)).append(" points=\"");
+        out.append("<g class=\"series\" data-panel=\"").append(panel).append("\" data-arm=\"")
+                .append(SvgCanvas.escape(arm)).append("\">\n<polyline fill=\"none\" stroke=\"")
+                .append(SvgCanvas.colour(a)).append("\" stroke-width=\"2\"").append(SvgCanvas.dashAttribute(a))
+                .append(" points=\"");
         for (int i = 0; i < points.size(); i++) {
             out.append(i == 0 ? "" : " ").append(String.format(Locale.ROOT, "%.1f,%.1f", points.get(i)[0],
                     points.get(i)[1]));
@@ -120,7 +113,7 @@ public final class SvgChart {
         if (!step) {
             for (double[] p : points) {
                 out.append(String.format(Locale.ROOT, "<circle cx=\"%.1f\" cy=\"%.1f\" r=\"2.5\" fill=\"%s\"/>%n",
-                        p[0], p[1], colour(a)));
+                        p[0], p[1], SvgCanvas.colour(a)));
             }
         }
         out.append("</g>\n");
@@ -147,11 +140,7 @@ public final class SvgChart {
         out.append("<g class=\"legend\">\n");
         text(x, y, "start", 13, "bold", "Arms");
         for (int a = 0; a < timeline.arms().size(); a++) {
-            double ly = y + 22 + a * 22;
-            out.append("<line x1=\"").append(x).append("\" y1=\"").append(fmt(ly - 4)).append("\" x2=\"")
-                    .append(x + 36).append("\" y2=\"").append(fmt(ly - 4)).append("\" stroke=\"").append(colour(a))
-                    .append("\" stroke-width=\"2\"").append(dashAttribute(a)).append("/>\n");
-            text(x + 44, ly, "start", 13, "normal", truncate(timeline.arms().get(a)));
+            canvas.legendEntry(x, y + 22 + a * 22, a, timeline.arms().get(a));
         }
         double ny = y + 44 + timeline.arms().size() * 22;
         if (timeline.stop() != null) {
@@ -166,48 +155,11 @@ public final class SvgChart {
     }
 
     private void line(double x1, double y1, double x2, double y2, String stroke, String dash, double width) {
-        out.append(String.format(Locale.ROOT, "<line x1=\"%.1f\" y1=\"%.1f\" x2=\"%.1f\" y2=\"%.1f\" stroke=\"%s\""
-                + " stroke-width=\"%s\"%s/>%n", x1, y1, x2, y2, stroke, fmt(width),
-                dash.isEmpty() ? "" : " stroke-dasharray=\"" + dash + "\""));
+        canvas.line(x1, y1, x2, y2, stroke, dash, width);
     }
 
     private void text(double x, double y, String anchor, int size, String weight, String content) {
-        out.append(String.format(Locale.ROOT, "<text x=\"%.1f\" y=\"%.1f\" text-anchor=\"%s\" font-size=\"%d\""
-                + " font-weight=\"%s\" fill=\"#000000\">%s</text>%n", x, y, anchor, size, weight, escape(content)));
-    }
-
-    private static String colour(int arm) {
-        return COLOURS[arm % COLOURS.length];
-    }
-
-    private static String dashAttribute(int arm) {
-        String dash = DASHES[(arm + arm / COLOURS.length) % DASHES.length];
-        return dash.isEmpty() ? "" : " stroke-dasharray=\"" + dash + "\"";
-    }
-
-    private static String truncate(String arm) {
-        return arm.length() <= 22 ? arm : arm.substring(0, 21) + "\u2026";
-    }
-
-    private static String fmt(double v) {
-        return String.format(Locale.ROOT, "%.1f", v);
-    }
-
-    /** XML character escaping for text and attribute values. */
-    static String escape(String text) {
-        StringBuilder escaped = new StringBuilder(text.length());
-        for (int i = 0; i < text.length(); i++) {
-            char c = text.charAt(i);
-            switch (c) {
-                case '&' -> escaped.append("&amp;");
-                case '<' -> escaped.append("&lt;");
-                case '>' -> escaped.append("&gt;");
-                case '"' -> escaped.append("&quot;");
-                case '\'' -> escaped.append("&apos;");
-                default -> escaped.append(c);
-            }
-        }
-        return escaped.toString();
+        canvas.text(x, y, anchor, size, weight, content);
     }
 
     /** Maps stream time to the x axis, in a unit chosen from the time span, with round tick steps. */
@@ -228,7 +180,7 @@ public final class SvgChart {
             this.span = span;
             this.unit = unit;
             this.unitMillis = unitMillis;
-            this.step = roundStep((double) span / unitMillis / TICKS);
+            this.step = SvgCanvas.roundStep((double) span / unitMillis / TICKS);
         }
 
         static TimeScale of(Timeline timeline) {
@@ -242,13 +194,6 @@ public final class SvgChart {
                 return new TimeScale(start, span, "minutes", MINUTE);
             }
             return span < 2 * DAY ? new TimeScale(start, span, "hours", HOUR) : new TimeScale(start, span, "days", DAY);
-        }
-
-        /** 1, 2 or 5 times a power of ten, the smallest at least {@code raw}. */
-        private static double roundStep(double raw) {
-            double magnitude = Math.pow(10, Math.floor(Math.log10(raw)));
-            double fraction = raw / magnitude;
-            return (fraction <= 1 ? 1 : fraction <= 2 ? 2 : fraction <= 5 ? 5 : 10) * magnitude;
         }
 
         double x(long time) {

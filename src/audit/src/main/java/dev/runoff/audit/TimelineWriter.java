@@ -13,9 +13,10 @@ import java.util.Map;
 import java.util.function.Function;
 
 /**
- * A {@link Timeline} as a text table, as CSV (RFC 4180, full-precision numbers) and as JSON. Times are UTC,
- * ISO-8601. In the text table P(best) and weights are rounded to 4 decimals; CSV and JSON keep every digit
- * (the shortest decimal that reads back as the same double).
+ * A {@link Timeline} with its {@link EvidenceView} as a text table, as CSV (RFC 4180, full-precision numbers)
+ * and as JSON. Times are UTC, ISO-8601. In the text table P(best) and weights are rounded to 4 decimals; CSV
+ * and JSON keep every digit (the shortest decimal that reads back as the same double). The evidence view is a
+ * section after the text table, three column groups of the CSV and an object per decision in JSON.
  */
 public final class TimelineWriter {
 
@@ -24,8 +25,8 @@ public final class TimelineWriter {
     private TimelineWriter() {
     }
 
-    /** An aligned text table with one line per decision. */
-    public static String text(Timeline timeline) {
+    /** An aligned text table with one line per decision, then the evidence section. */
+    public static String text(Timeline timeline, EvidenceView evidence) {
         List<String> header = new ArrayList<>(List.of("seq", "time (UTC)"));
         List<List<String>> rows = new ArrayList<>();
         for (String prefix : List.of("trials ", "P(best) ", "weight ")) {
@@ -41,41 +42,52 @@ public final class TimelineWriter {
             rows.add(cells);
         }
         return "Experiment " + timeline.experimentId() + ": " + timeline.rows().size() + " decisions, arms "
-                + String.join(", ", timeline.arms()) + "\n" + table(header, rows);
+                + String.join(", ", timeline.arms()) + "\n" + table(header, rows) + "\n"
+                + EvidenceWriter.text(evidence);
     }
 
     /**
      * CSV with a header: sequence, time_utc, stream_time_ms, definition_version, then trials_, successes_,
-     * pBest_ and weight_ per arm, then decision, winner, reason. Empty cells where an arm is absent.
+     * pBest_ and weight_ per arm, then evidence_, evidenceSource_ and evidenceRate_ per arm, then decision,
+     * winner, reason. Empty cells where an arm is absent (and, for the evidence, for the leader).
      */
-    public static String csv(Timeline timeline) {
+    public static String csv(Timeline timeline, EvidenceView evidence) {
+        checkAligned(timeline, evidence);
         List<String> header = new ArrayList<>(List.of("sequence", "time_utc", "stream_time_ms", "definition_version"));
         for (String prefix : List.of("trials_", "successes_", "pBest_", "weight_")) {
             timeline.arms().forEach(arm -> header.add(prefix + arm));
         }
+        header.addAll(EvidenceWriter.csvHeader(timeline.arms()));
         header.addAll(List.of("decision", "winner", "reason"));
         StringBuilder out = new StringBuilder();
         line(out, header);
-        for (Timeline.Row row : timeline.rows()) {
+        for (int r = 0; r < timeline.rows().size(); r++) {
+            Timeline.Row row = timeline.rows().get(r);
             List<String> cells = new ArrayList<>(List.of(Long.toString(row.sequence()), time(row.streamTime()),
                     Long.toString(row.streamTime()), Long.toString(row.definitionVersion())));
             cells.addAll(cells(timeline, row, p -> Long.toString(p.trials())));
             cells.addAll(cells(timeline, row, p -> p.successes() == null ? "" : Long.toString(p.successes())));
             cells.addAll(cells(timeline, row, p -> CanonicalJson.number(p.pBest())));
             cells.addAll(cells(timeline, row, p -> CanonicalJson.number(p.weight())));
+            cells.addAll(EvidenceWriter.csvCells(timeline.arms(), evidence.rows().get(r)));
             cells.addAll(List.of(row.decision(), row.winner() == null ? "" : row.winner(), row.reason()));
             line(out, cells);
         }
         return out.toString();
     }
 
-    /** JSON: {@code {"experimentId", "arms", "decisions": [{"sequence", "time", "streamTime", ...}]}}. */
-    public static String json(Timeline timeline) {
+    /**
+     * JSON: {@code {"experimentId", "arms", "decisions": [{"sequence", "time", "streamTime", ..., "evidence"}],
+     * "evidenceSummary"}}.
+     */
+    public static String json(Timeline timeline, EvidenceView evidence) {
+        checkAligned(timeline, evidence);
         Map<String, Object> root = new LinkedHashMap<>();
         root.put("experimentId", timeline.experimentId());
         root.put("arms", timeline.arms());
         List<Map<String, Object>> decisions = new ArrayList<>();
-        for (Timeline.Row row : timeline.rows()) {
+        for (int r = 0; r < timeline.rows().size(); r++) {
+            Timeline.Row row = timeline.rows().get(r);
             Map<String, Object> map = new LinkedHashMap<>();
             map.put("sequence", row.sequence());
             map.put("time", time(row.streamTime()));
@@ -85,10 +97,21 @@ public final class TimelineWriter {
             map.put("decision", row.decision());
             map.put("winner", row.winner());
             map.put("reason", row.reason());
+            map.put("evidence", EvidenceWriter.json(evidence.rows().get(r)));
             decisions.add(map);
         }
         root.put("decisions", decisions);
+        root.put("evidenceSummary", EvidenceWriter.jsonSummary(evidence));
         return write(root);
+    }
+
+    /** The evidence view must hold one row per decision of the timeline, from the same records. */
+    private static void checkAligned(Timeline timeline, EvidenceView evidence) {
+        List<Long> sequences = timeline.rows().stream().map(Timeline.Row::sequence).toList();
+        if (!sequences.equals(evidence.sequences())) {
+            throw new IllegalArgumentException("the evidence view covers decisions " + evidence.sequences()
+                    + ", the timeline " + sequences);
+        }
     }
 
     /** Indented JSON of {@code value} (maps, lists, records, numbers, strings). */

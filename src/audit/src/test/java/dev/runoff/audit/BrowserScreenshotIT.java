@@ -18,8 +18,8 @@ import javax.imageio.ImageIO;
 import org.junit.jupiter.api.Test;
 
 /**
- * Opens the SVG chart in a real headless browser (Debian's chromium) and keeps the screenshot as
- * {@code target/audit-report.png} for review. Skipped, and reported as skipped, where chromium is not
+ * Opens the SVG charts in a real headless browser (Debian's chromium) and keeps the screenshots as
+ * {@code target/audit-report.png} and {@code target/audit-evidence.png} for review. Skipped, and reported as skipped, where chromium is not
  * installed ({@code .ci/run} installs it).
  */
 class BrowserScreenshotIT {
@@ -44,6 +44,26 @@ class BrowserScreenshotIT {
         assertEquals(HEIGHT, image.getHeight());
         // The first three series colours of SvgChart (Okabe-Ito blue, vermillion, bluish green) must be drawn.
         for (int rgb : new int[] {0x0072B2, 0xD55E00, 0x009E73}) {
+            assertTrue(pixelsNear(image, rgb) > 100, String.format("colour %06x drawn", rgb));
+        }
+    }
+
+    @Test
+    void evidenceChartRendersInAHeadlessBrowserWithItsSeriesAndReferenceSlopes() throws Exception {
+        String chromium = chromium();
+        assumeTrue(chromium != null, "chromium is not installed (apt-get install -y chromium): browser test skipped");
+        List<DecisionRecord> chain = SimulatedJob.run(SimulatedJob.definition("checkout", List.of("control", "green",
+                "blue"), 60 * SimulatedJob.PERIOD_MS), new double[] {0.04, 0.05, 0.09}, 60, 600, 11);
+        Path svg = TARGET.resolve("audit-evidence.svg").toAbsolutePath();
+        Files.writeString(svg, EvidenceChart.of(Timeline.of("checkout", chain), EvidenceView.of(chain)),
+                StandardCharsets.UTF_8);
+        Path png = TARGET.resolve("audit-evidence.png").toAbsolutePath();
+        Files.deleteIfExists(png);
+        screenshot(chromium, svg, png);
+        BufferedImage image = ImageIO.read(png.toFile());
+        // the two losing arms keep SvgChart's colours (Okabe-Ito blue, vermillion); the Gamma*_beta slope is
+        // black and the uniform one grey #777777
+        for (int rgb : new int[] {0x0072B2, 0xD55E00, 0x777777}) {
             assertTrue(pixelsNear(image, rgb) > 100, String.format("colour %06x drawn", rgb));
         }
     }

@@ -24,12 +24,14 @@ class ReportTest {
     private static final List<String> ARMS = List.of("control", "green & bold", "blue");
     private static List<DecisionRecord> chain;
     private static Timeline timeline;
+    private static EvidenceView evidence;
 
     @BeforeAll
     static void runJob() {
         chain = SimulatedJob.run(SimulatedJob.definition("checkout", ARMS, 0), new double[] {0.04, 0.05, 0.09}, 40,
                 600, 11);
         timeline = Timeline.of("checkout", chain);
+        evidence = EvidenceView.of(chain);
     }
 
     @Test
@@ -72,7 +74,7 @@ class ReportTest {
 
     @Test
     void csvHasOneRowPerDecisionWithFullPrecision() {
-        String[] lines = TimelineWriter.csv(timeline).split("\r\n");
+        String[] lines = TimelineWriter.csv(timeline, evidence).split("\r\n");
         assertEquals(chain.size() + 1, lines.length);
         assertTrue(lines[0].startsWith("sequence,time_utc,stream_time_ms,definition_version,trials_control,"
                 + "trials_green & bold,trials_blue"), lines[0]);
@@ -87,14 +89,15 @@ class ReportTest {
 
     @Test
     void jsonAndTextCarryTheSameDecisions() throws Exception {
-        JsonNode json = new ObjectMapper().readTree(TimelineWriter.json(timeline));
+        JsonNode json = new ObjectMapper().readTree(TimelineWriter.json(timeline, evidence));
         assertEquals(chain.size(), json.get("decisions").size());
         JsonNode first = json.get("decisions").get(0);
         assertEquals(1, first.get("sequence").asInt());
         assertNotNull(first.get("arms").get("blue").get("pBest"));
-        String text = TimelineWriter.text(timeline);
-        assertEquals(chain.size() + 2, text.split("\n").length);
-        assertTrue(text.contains("STOP blue (threshold-reached)"), text);
+        String text = TimelineWriter.text(timeline, evidence);
+        String table = text.substring(0, text.indexOf("\n\nEvidence against"));
+        assertEquals(chain.size() + 2, table.split("\n").length);
+        assertTrue(table.contains("STOP blue (threshold-reached)"), text);
     }
 
     static Document parse(String xml) throws Exception {

@@ -5,12 +5,15 @@ import dev.runoff.audit.Entry;
 import dev.runoff.audit.EntryDecoder;
 import dev.runoff.audit.ExperimentAudit;
 import dev.runoff.audit.FileSource;
+import dev.runoff.audit.EvidenceChart;
+import dev.runoff.audit.EvidenceView;
 import dev.runoff.audit.SvgChart;
 import dev.runoff.audit.Timeline;
 import dev.runoff.audit.TimelineWriter;
 import dev.runoff.audit.TopicSource;
 import dev.runoff.audit.Verifier;
 import dev.runoff.records.SignatureVerifier;
+import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.audit.VerifyReport;
 import java.io.IOException;
 import java.io.InputStream;
@@ -217,6 +220,11 @@ final class AuditCommand implements Runnable {
                 description = "Also write the chart (weights and P(best) over time) as an SVG file.")
         private Path svg;
 
+        @Option(names = "--evidence-svg", paramLabel = "FILE",
+                description = "Also write the evidence chart (-ln P(best) of each losing arm against trials, with the"
+                        + " predicted rates as reference slopes) as an SVG file.")
+        private Path evidenceSvg;
+
         @Override
         public Integer call() {
             if (!List.of("text", "csv", "json").contains(format)) {
@@ -226,16 +234,20 @@ final class AuditCommand implements Runnable {
             String experiment = experiment(entries);
             List<Entry> mine = entries.stream().filter(e -> experiment.equals(e.experimentId())).toList();
             long invalid = mine.stream().filter(e -> !e.isValid()).count();
-            Timeline timeline = Timeline.of(experiment, mine.stream().filter(Entry::isValid).map(Entry::record)
-                    .toList());
+            List<DecisionRecord> records = mine.stream().filter(Entry::isValid).map(Entry::record).toList();
+            Timeline timeline = Timeline.of(experiment, records);
+            EvidenceView evidence = EvidenceView.of(records);
             String table = switch (format) {
-                case "csv" -> TimelineWriter.csv(timeline);
-                case "json" -> TimelineWriter.json(timeline);
-                default -> TimelineWriter.text(timeline);
+                case "csv" -> TimelineWriter.csv(timeline, evidence);
+                case "json" -> TimelineWriter.json(timeline, evidence);
+                default -> TimelineWriter.text(timeline, evidence);
             };
             write(output, table);
             if (svg != null) {
                 write(svg, SvgChart.of(timeline));
+            }
+            if (evidenceSvg != null) {
+                write(evidenceSvg, EvidenceChart.of(timeline, evidence));
             }
             if (invalid > 0) {
                 PrintWriter err = spec.commandLine().getErr();

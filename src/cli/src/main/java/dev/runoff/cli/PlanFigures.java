@@ -3,7 +3,7 @@ package dev.runoff.cli;
 import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.planning.ArmModel;
 import dev.runoff.engine.planning.OptimalAllocation;
-import dev.runoff.engine.planning.ArmModel;
+import dev.runoff.engine.planning.PosteriorRates;
 import dev.runoff.engine.planning.TargetAllocation;
 
 /**
@@ -45,6 +45,25 @@ record PlanFigures(ArmModel arms, double delta, double epsilon, AllocationMethod
     /** {@code T_w log(1/delta)} of an allocation, rounded to the nearest whole trial. */
     long predicted(TargetAllocation allocation) {
         return Math.round(allocation.predictedTrials(delta));
+    }
+
+    /**
+     * {@code 1000 Gamma*_beta} for the given beta: how fast, per 1,000 trials, the posterior rules out the
+     * slowest losing arm under the beta-optimal split (Russo 2020; {@link PosteriorRates}); NaN when the best
+     * arm is tied or beta is 0 or 1.
+     */
+    double betaOptimalRate() {
+        return optimal == null || !(beta > 0 && beta < 1) ? Double.NaN : 1000 * PosteriorRates.betaOptimal(arms, beta);
+    }
+
+    /** {@code 1000} times the uniform split's rate, NaN when the best arm is tied. */
+    double uniformRate() {
+        return optimal == null ? Double.NaN : 1000 * PosteriorRates.uniform(arms);
+    }
+
+    /** {@code 1000 / T*}: the rate of the best split of all, NaN when the best arm is tied. */
+    double optimalRate() {
+        return optimal == null ? Double.NaN : 1000 / optimal.characteristicTime();
     }
 
     /** {@code T_rule / T_uniform}, or NaN when the rule's target is not defined. */

@@ -122,6 +122,10 @@ final class PlanReport {
         out.append(NL).append("T_w: trials per unit of log(1/delta) when sampling with the split w").append(NL);
         out.append(String.format(Locale.ROOT, "T* = %s; predicted trials T* log(1/delta) = %d%n",
                 fixed(plan.optimal().characteristicTime(), 1), plan.predictedTrials()));
+        out.append(String.format(Locale.ROOT, "Evidence rates per 1,000 trials (growth of -ln P(best) of the slowest"
+                + " losing arm): Gamma*_beta %s at beta %s; uniform split %s; best split 1000/T* %s%n",
+                fixed(plan.betaOptimalRate(), 3), Posteriors.number(plan.beta()), fixed(plan.uniformRate(), 3),
+                fixed(plan.optimalRate(), 3)));
         return out.toString();
     }
 
@@ -220,6 +224,9 @@ final class PlanReport {
             target(root, "ruleTarget", plan.ruleTarget());
             target(root, "uniformTarget", plan.uniform());
         }
+        number(root, "betaOptimalRatePer1000Trials", plan.betaOptimalRate());
+        number(root, "uniformRatePer1000Trials", plan.uniformRate());
+        number(root, "optimalRatePer1000Trials", plan.optimalRate());
         if (simulation != null) {
             root.set("simulation", summary(simulation.rule(), true));
             root.set("baseline", summary(simulation.baseline(), false));

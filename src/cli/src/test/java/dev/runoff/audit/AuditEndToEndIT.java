@@ -157,15 +157,21 @@ class AuditEndToEndIT {
     }
 
     @Test
-    void reportWritesTheTimelineAndTheChart() throws Exception {
+    void reportWritesTheTimelineTheEvidenceAndTheCharts() throws Exception {
         Path svg = DIR.resolve("checkout-button.svg");
+        Path evidenceSvg = DIR.resolve("checkout-button-evidence.svg");
         Run run = cli("audit", "report", "--file", export.toString(), "--experiment", EXPERIMENT, "--svg",
-                svg.toString());
+                svg.toString(), "--evidence-svg", evidenceSvg.toString());
         assertEquals(0, run.exit, run.err);
-        assertEquals(decisions.size() + 2, run.out.split("\n").length, run.out);
+        String[] parts = run.out.split("\n\nEvidence against the losing arms at decision ");
+        assertEquals(2, parts.length, run.out);
+        assertEquals(decisions.size() + 2, parts[0].split("\n").length, run.out);
+        String[] evidenceLines = parts[1].split("\n");
+        assertTrue(evidenceLines[evidenceLines.length - 1].startsWith("Rates "), run.out);
         Files.writeString(DIR.resolve("report.txt"), run.out);
         var document = ReportTest.parse(Files.readString(svg));
         assertEquals("svg", document.getDocumentElement().getLocalName());
+        assertEquals("svg", ReportTest.parse(Files.readString(evidenceSvg)).getDocumentElement().getLocalName());
         Path config = Files.writeString(DIR.resolve("client.properties"), "bootstrap.servers="
                 + broker.bootstrapServers() + "\nclient.id=auditor\n");
         Run csv = cli("audit", "report", "--client-config", config.toString(), "--format", "csv");

@@ -10,6 +10,7 @@ import dev.runoff.engine.planning.ArmModel;
 import dev.runoff.engine.planning.OptimalAllocation;
 import dev.runoff.engine.planning.TargetAllocation;
 import java.util.List;
+import java.util.Locale;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.CsvSource;
@@ -110,6 +111,26 @@ class PlanCommandTest {
         assertFalse(root.has("simulation"), root.toString());
         assertEquals("beta-optimal", root.get("ruleTarget").get("kind").asText());
         assertFalse(run("plan", "--rates", "0.5,0.45,0.43,0.4", "--simulate", "0").out().contains("Simulation"));
+    }
+
+    @Test
+    void printsTheEvidenceRatesOfTheHalfOptimalAndUniformSplits() throws Exception {
+        // Garivier & Kaufmann (2016)'s first instance: Gamma*_1/2 = 1 / T_1/2 (Russo 2020's rate at the
+        // beta-optimal split and Garivier & Kaufmann's characteristic time of that split share one definition),
+        // and the uniform split's rate is 1 / T_uniform; per 1,000 trials.
+        ArmModel model = ArmModel.bernoulli(0.5, 0.45, 0.43, 0.4);
+        double half = 1000 / OptimalAllocation.betaOptimal(model, 0.5).characteristicTime();
+        double uniform = 1000 / OptimalAllocation.uniform(model).characteristicTime();
+        JsonNode root = json(run("plan", "--rates", "0.5,0.45,0.43,0.4", "--simulate", "0", "--json"));
+        assertEquals(half, root.get("betaOptimalRatePer1000Trials").asDouble(), 1e-9 * half);
+        assertEquals(uniform, root.get("uniformRatePer1000Trials").asDouble(), 1e-9 * uniform);
+        assertEquals(1000 / root.get("characteristicTime").asDouble(), root.get("optimalRatePer1000Trials").asDouble(),
+                1e-12);
+        String text = run("plan", "--rates", "0.5,0.45,0.43,0.4", "--simulate", "0").out();
+        assertTrue(text.contains(String.format(Locale.ROOT, "Gamma*_beta %.3f at beta 0.5; uniform split %.3f;", half,
+                uniform)), text);
+        JsonNode tied = json(run("plan", "--rates", "0.6,0.6,0.2", "--epsilon", "0.01", "--simulate", "0", "--json"));
+        assertTrue(tied.get("betaOptimalRatePer1000Trials").isNull(), tied.toString());
     }
 
     @Test
