@@ -86,6 +86,11 @@ public final class Definitions {
         return grace == null ? DEFAULT_EARLY_OUTCOME_GRACE_MS : grace;
     }
 
+    /** The definition's guardrails, in order; empty when it has none. */
+    public static java.util.List<dev.runoff.records.avro.GuardrailSpec> guardrails(ExperimentDefinition definition) {
+        return definition.getGuardrails() == null ? java.util.List.of() : definition.getGuardrails();
+    }
+
     /** The metric kind of {@code definition}. */
     public static Metric metric(ExperimentDefinition definition) {
         return definition.getMetric().getKind() == MetricKind.BERNOULLI ? Metric.BERNOULLI : Metric.VALUE;
