@@ -36,6 +36,10 @@ import java.util.List;
  * record holds all of them, that start time as {@code startedAt}, so a verifier can re-check the
  * minimum-duration guard exactly.
  *
+ * <p>Guardrails ({@link GuardrailFindings}): arms that fail one get weight 0 after the engine's guards, and
+ * {@link Ruling} holds back or redirects a STOP whose leader has not passed them. Their counts are inputs the
+ * decision record holds per arm.
+ *
  * <p>On STOP the published weights follow {@link AfterStopWeights} and the record lists the {@code AFTER_STOP}
  * guard; the experiment then keeps its winner: {@link #heartbeat} re-publishes the stopped state without
  * evaluating again.
@@ -77,17 +81,18 @@ public final class Evaluator {
         Evaluation evaluation = engine.evaluate(arms, DefinitionConfigs.engine(def, draws), seed, state.lastWeights());
         ProbabilityBest best = bounded(evaluation.probabilityBest());
         long start = start(state, now);
-        Verdict decision = decide(state, arms, evaluation, best, start, now);
-        double[] weights = evaluation.weights();
+        GuardrailFindings findings = GuardrailFindings.of(state, best);
+        Ruling decision = Ruling.of(decide(state, arms, evaluation, best, start, now), findings, def.getArms());
+        double[] weights = findings.suspend(evaluation.weights());
         ExperimentState.Stop stop = null;
         List<Guard> guards = guards(evaluation);
-        if (decision.isStop()) {
-            weights = AfterStopWeights.weights(def, decision.leaderName(), state.lastWeights(), weights);
-            stop = new ExperimentState.Stop(decision.leaderName(), def.getVersion(), def.getArms(), weights);
+        if (decision.stop()) {
+            weights = AfterStopWeights.weights(def, decision.winner(), state.lastWeights(), weights);
+            stop = new ExperimentState.Stop(decision.winner(), def.getVersion(), def.getArms(), weights);
             guards.add(Guard.AFTER_STOP);
         }
         DecisionRecord record = HashChain.seal(Records.decision(state, sequence, start, now, evaluation, best,
-                decision, weights, guards), state.lastHash());
+                decision, weights, guards, findings), state.lastHash());
         ExperimentState next = state.evaluated(now, record.getHash(), weights, stop);
         AllocationUpdate update = stop == null
                 ? Records.update(next, def.getVersion(), def.getArms(), weights, now, ExperimentStatus.RUNNING, null)
@@ -182,8 +187,8 @@ public final class Evaluator {
         }
 
         static DecisionRecord decision(ExperimentState state, long sequence, long start, long now,
-                                       Evaluation evaluation, ProbabilityBest best, Verdict decision,
-                                       double[] weights, List<Guard> guards) {
+                                       Evaluation evaluation, ProbabilityBest best, Ruling decision,
+                                       double[] weights, List<Guard> guards, GuardrailFindings findings) {
             ExperimentDefinition def = state.definition();
             return DecisionRecord.newBuilder()
                     .setExperimentId(state.experimentId())
@@ -192,17 +197,17 @@ public final class Evaluator {
                     .setStreamTime(now)
                     .setStartedAt(start)
                     .setDefinition(def)
-                    .setArms(ArmStates.of(state, evaluation, best, weights))
+                    .setArms(ArmStates.of(state, evaluation, best, weights, findings))
                     .setAllocationRule(dev.runoff.records.avro.AllocationRule.valueOf(evaluation.rule().name()))
                     .setAllocationBeta(evaluation.beta())
                     .setGuards(guards)
                     .setStoppingRule(def.getStopping().getRule())
                     .setDelta(def.getStopping().getDelta())
                     .setEpsilon(def.getStopping().getEpsilon())
-                    .setDecision(decision.isStop() ? dev.runoff.records.avro.Decision.STOP
+                    .setDecision(decision.stop() ? dev.runoff.records.avro.Decision.STOP
                             : dev.runoff.records.avro.Decision.CONTINUE)
-                    .setWinner(decision.isStop() ? decision.leaderName() : null)
-                    .setReason(DecisionReasons.of(decision))
+                    .setWinner(decision.winner())
+                    .setReason(decision.reason())
                     .setStatistic(decision.statistic())
                     .setThreshold(decision.threshold())
                     .setSeed(evaluation.seed())

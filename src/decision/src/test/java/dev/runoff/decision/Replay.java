@@ -17,6 +17,8 @@ import dev.runoff.engine.posterior.NormalGammaPrior;
 import dev.runoff.engine.posterior.Posterior;
 import dev.runoff.engine.posterior.Prior;
 import dev.runoff.engine.stats.BernoulliStats;
+import dev.runoff.engine.guardrail.Direction;
+import dev.runoff.engine.guardrail.MarginCheck;
 import dev.runoff.engine.stats.ValueStats;
 import dev.runoff.engine.stopping.Verdict;
 import dev.runoff.engine.stopping.StoppingCheck;
@@ -26,6 +28,9 @@ import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.BetaParams;
 import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.ExperimentDefinition;
+import dev.runoff.records.avro.GuardrailOutcome;
+import dev.runoff.records.avro.GuardrailSpec;
+import dev.runoff.records.avro.GuardrailState;
 import dev.runoff.records.avro.MetricKind;
 import dev.runoff.records.avro.NormalGammaPriorSpec;
 import java.nio.ByteBuffer;
@@ -81,17 +86,88 @@ public final class Replay {
         assertArrayEquals(bits(evaluation.probabilityBest().standardError()), bits(se), where + " standard errors");
         assertArrayEquals(bits(evaluation.ruleWeights()), bits(before), where + " weights before guards");
         boolean stop = record.getDecision() == dev.runoff.records.avro.Decision.STOP;
-        double[] expected = stop ? afterStop(def, record.getWinner(), previousWeights, evaluation.weights())
-                : evaluation.weights();
+        String[] suspendedBy = guardrails(record, best.alpha(), where);
+        double[] running = withoutSuspended(evaluation.weights(), suspendedBy, reference(record, best.alpha()));
+        double[] expected = stop ? afterStop(def, record.getWinner(), previousWeights, running) : running;
         assertArrayEquals(bits(expected), bits(after), where + " published weights");
-        assertDecision(record, arms, evaluation, where);
+        assertDecision(record, arms, evaluation, suspendedBy, where);
+    }
+
+    /**
+     * Each arm's guardrail entries recomputed from its counts with the engine's margin check against the
+     * reference (the control, else the arm with the largest alpha); returns per arm the first guardrail it
+     * FAILED, or null.
+     */
+    private static String[] guardrails(DecisionRecord record, double[] alpha, String where) {
+        List<GuardrailSpec> specs = record.getDefinition().getGuardrails() == null ? List.of()
+                : record.getDefinition().getGuardrails();
+        String[] suspendedBy = new String[record.getArms().size()];
+        int reference = reference(record, alpha);
+        for (int a = 0; a < suspendedBy.length; a++) {
+            ArmState arm = record.getArms().get(a);
+            for (int g = 0; g < specs.size(); g++) {
+                GuardrailSpec spec = specs.get(g);
+                GuardrailState recorded = arm.getGuardrails().get(g);
+                GuardrailState ref = record.getArms().get(reference).getGuardrails().get(g);
+                String at = where + " arm " + arm.getArm() + " guardrail " + spec.getName();
+                if (a == reference) {
+                    assertEquals(GuardrailOutcome.REFERENCE, recorded.getOutcome(), at);
+                    continue;
+                }
+                MarginCheck.Result r = MarginCheck.check(new MarginCheck.Counts(recorded.getCounted(),
+                        recorded.getHits()), new MarginCheck.Counts(ref.getCounted(), ref.getHits()),
+                        Direction.valueOf(spec.getDirection().name()), spec.getMargin(), spec.getAlpha());
+                assertEquals(r.outcome().name(), recorded.getOutcome().name(), at);
+                assertArrayEquals(bits(new double[] {r.arm().lower(), r.arm().upper(), r.statistic(), r.threshold()}),
+                        bits(new double[] {recorded.getLower(), recorded.getUpper(), recorded.getStatistic(),
+                                recorded.getThreshold()}), at + " bounds");
+                if (suspendedBy[a] == null && r.outcome() == MarginCheck.Outcome.FAIL) {
+                    suspendedBy[a] = spec.getName();
+                }
+            }
+            assertEquals(suspendedBy[a], arm.getSuspendedBy(), where + " arm " + arm.getArm() + " suspendedBy");
+        }
+        return suspendedBy;
+    }
+
+    private static int reference(DecisionRecord record, double[] alpha) {
+        String control = record.getDefinition().getControlArm();
+        if (control != null) {
+            return record.getDefinition().getArms().indexOf(control);
+        }
+        int best = 0;
+        for (int i = 1; i < alpha.length; i++) {
+            best = alpha[i] > alpha[best] ? i : best;
+        }
+        return best;
+    }
+
+    private static double[] withoutSuspended(double[] weights, String[] suspendedBy, int reference) {
+        if (Arrays.stream(suspendedBy).allMatch(java.util.Objects::isNull)) {
+            return weights;
+        }
+        double[] w = weights.clone();
+        double kept = 0;
+        for (int i = 0; i < w.length; i++) {
+            w[i] = suspendedBy[i] != null ? 0 : w[i];
+            kept += w[i];
+        }
+        if (kept == 0) {
+            w[reference] = 1;
+            return w;
+        }
+        for (int i = 0; i < w.length; i++) {
+            w[i] /= kept;
+        }
+        return w;
     }
 
     /**
      * The statistic, threshold and decision. The record holds no start time, so the check assumes the
      * definition has no minimum duration (true of the test definitions).
      */
-    private static void assertDecision(DecisionRecord record, List<Arm> arms, Evaluation evaluation, String where) {
+    private static void assertDecision(DecisionRecord record, List<Arm> arms, Evaluation evaluation,
+                                       String[] suspendedBy, String where) {
         assertEquals(0L, record.getDefinition().getStopping().getMinDurationMs(), where + " needs minDurationMs 0");
         Instant at = Instant.ofEpochMilli(record.getStreamTime());
         List<Posterior> posteriors = evaluation.posteriors().stream().map(Evaluation.PosteriorSummary::posterior)
@@ -103,8 +179,22 @@ public final class Replay {
                 where + " statistic");
         assertEquals(Double.doubleToLongBits(decision.threshold()), Double.doubleToLongBits(record.getThreshold()),
                 where + " threshold");
-        assertEquals(decision.isStop() ? "STOP" : "CONTINUE", record.getDecision().name(), where + " decision");
-        assertEquals(DecisionReasons.of(decision), record.getReason(), where + " reason");
+        boolean cleared = !decision.isStop() || record.getArms().get(decision.leader()).getGuardrails() == null
+                || record.getArms().get(decision.leader()).getGuardrails().stream()
+                        .allMatch(g -> g.getOutcome() == GuardrailOutcome.PASS || g.getOutcome() == GuardrailOutcome.REFERENCE);
+        boolean budget = decision.reason() == dev.runoff.engine.stopping.VerdictReason.BUDGET
+                || decision.guards().budgetExhausted();
+        boolean stop = decision.isStop() && (cleared || budget);
+        assertEquals(stop ? "STOP" : "CONTINUE", record.getDecision().name(), where + " decision");
+        String reason = cleared ? DecisionReasons.of(decision)
+                : budget ? (decision.guards().trialBudgetSpent() ? "budget" : "deadline")
+                : suspendedBy[decision.leader()] != null ? "guardrail-failed" : "guardrail-open";
+        assertEquals(reason, record.getReason(), where + " reason");
+        if (stop) {
+            String winner = cleared ? decision.leaderName()
+                    : record.getDefinition().getArms().get(reference(record, best.alpha()));
+            assertEquals(winner, record.getWinner(), where + " winner");
+        }
     }
 
     /** First 8 bytes of SHA-256(experimentId ":" sequence), big-endian, computed here independently. */
