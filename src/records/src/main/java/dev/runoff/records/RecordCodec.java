@@ -70,9 +70,13 @@ public final class RecordCodec<T extends SpecificRecord> {
                 new OutcomeEventRules(), WriterSchemas.previous("OutcomeEvent"));
     }
 
-    /** Codec of experiment definitions, with the default limits; unknown JSON fields are rejected. */
+    /**
+     * Codec of experiment definitions, with the default limits; unknown JSON fields are rejected; also reads
+     * Avro written with every earlier version of the schema ({@link WriterSchemas}).
+     */
     public static RecordCodec<ExperimentDefinition> definitions() {
-        return new RecordCodec<>(ExperimentDefinition.class, Limits.DEFAULT, true, new DefinitionRules(), List.of());
+        return new RecordCodec<>(ExperimentDefinition.class, Limits.DEFAULT, true, new DefinitionRules(),
+                WriterSchemas.previous("ExperimentDefinition"));
     }
 
     /**
