@@ -3,6 +3,7 @@ package dev.runoff.decision;
 import dev.runoff.engine.stopping.LeaderWithin;
 
 import dev.runoff.engine.AllocationEngine;
+import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.Evaluation;
 import dev.runoff.engine.allocation.GuardFlag;
@@ -36,8 +37,9 @@ import java.util.List;
  * record holds all of them, that start time as {@code startedAt}, so a verifier can re-check the
  * minimum-duration guard exactly.
  *
- * <p>Guardrails ({@link GuardrailFindings}): arms that fail one get weight 0 after the engine's guards, and
- * {@link Ruling} holds back or redirects a STOP whose leader has not passed them. Their counts are inputs the
+ * <p>Guardrails ({@link GuardrailFindings}, tested with the reference chosen from the evaluation of every
+ * arm): arms that fail one are left out of a second evaluation that gives the weights and feeds the stopping
+ * rule ({@link Narrowing}), and {@link Ruling} holds back or redirects a STOP whose leader has not passed them. Their counts are inputs the
  * decision record holds per arm.
  *
  * <p>On STOP the published weights follow {@link AfterStopWeights} and the record lists the {@code AFTER_STOP}
@@ -78,11 +80,15 @@ public final class Evaluator {
         long sequence = state.decisionSequence() + 1;
         long seed = Seeds.of(state.experimentId(), sequence);
         List<Arm> arms = state.arms();
-        Evaluation evaluation = engine.evaluate(arms, DefinitionConfigs.engine(def, draws), seed, state.lastWeights());
+        EngineConfig config = DefinitionConfigs.engine(def, draws);
+        Evaluation full = engine.evaluate(arms, config, seed, state.lastWeights());
+        GuardrailFindings findings = GuardrailFindings.of(state, bounded(full.probabilityBest()));
+        Narrowing narrowed = Narrowing.of(engine, arms, config, seed, state.lastWeights(), full, findings);
+        Evaluation evaluation = narrowed.evaluation();
         ProbabilityBest best = bounded(evaluation.probabilityBest());
         long start = start(state, now);
-        GuardrailFindings findings = GuardrailFindings.of(state, best);
-        Ruling decision = Ruling.of(decide(state, arms, evaluation, best, start, now), findings, def.getArms());
+        Ruling decision = Ruling.of(decide(state, narrowed.kept(), narrowed.keptEval(),
+                bounded(narrowed.keptEval().probabilityBest()), start, now), findings, def.getArms());
         double[] weights = findings.suspend(evaluation.weights());
         ExperimentState.Stop stop = null;
         List<Guard> guards = guards(evaluation);

@@ -20,8 +20,9 @@ import java.util.List;
  *
  * <p>The reference is the control arm, or, without one, the arm with the largest probability of being best
  * (the first on a tie). The reference is never tested and never suspended. An arm is suspended while one of
- * its guardrails FAILS: its weight becomes 0 and the other weights are scaled up to sum to 1 (all to the
- * reference when the others have none). A suspended arm gets no new units, so its counts, and with them
+ * its guardrails FAILS: {@link Narrowing} leaves it out of the engine's weights and the stopping rule, and
+ * {@link #suspend} sets its weight to 0 and scales the others to sum to 1 (all to the reference when the
+ * others have none). A suspended arm gets no new units, so its counts, and with them
  * normally its FAIL, stay; a FAIL that a later pass no longer finds lifts the suspension.
  *
  * @param states     per arm, one entry per guardrail (empty lists when the definition has none)

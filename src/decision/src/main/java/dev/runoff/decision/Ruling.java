@@ -9,8 +9,9 @@ import dev.runoff.engine.stopping.VerdictReason;
  *
  * <p>Rule: a STOP that the stopping rule reached by its threshold names its leader only if the leader passed
  * every guardrail (the reference arm always does); otherwise the decision is CONTINUE with reason
- * {@value DecisionReasons#GUARDRAIL_FAILED} (the leader is suspended) or {@value DecisionReasons#GUARDRAIL_OPEN}
- * (a guardrail of the leader has not passed yet). Once the trial budget is spent or the deadline has passed
+ * {@value DecisionReasons#GUARDRAIL_FAILED} (the leader is suspended: possible only when {@link Narrowing}
+ * kept it, fewer than two arms being left) or {@value DecisionReasons#GUARDRAIL_OPEN} (a guardrail of the
+ * leader has not passed yet). Once the trial budget is spent or the deadline has passed
  * the experiment stops all the same: its winner is the leader if it passed every guardrail, else the
  * reference arm (the control), with reason budget or deadline.
  *
@@ -26,14 +27,15 @@ record Ruling(boolean stop, String winner, String reason, double statistic, doub
     static Ruling of(Verdict verdict, GuardrailFindings findings, java.util.List<String> arms) {
         Ruling plain = new Ruling(verdict.isStop(), verdict.isStop() ? verdict.leaderName() : null,
                 DecisionReasons.of(verdict), verdict.statistic(), verdict.threshold());
-        if (!verdict.isStop() || findings.cleared(verdict.leader())) {
+        int leader = arms.indexOf(verdict.leaderName());
+        if (!verdict.isStop() || findings.cleared(leader)) {
             return plain;
         }
         if (verdict.reason() == VerdictReason.BUDGET || verdict.guards().budgetExhausted()) {
             String reason = verdict.guards().trialBudgetSpent() ? DecisionReasons.BUDGET : DecisionReasons.DEADLINE;
             return new Ruling(true, arms.get(findings.reference()), reason, plain.statistic, plain.threshold);
         }
-        String held = findings.isSuspended(verdict.leader()) ? DecisionReasons.GUARDRAIL_FAILED
+        String held = findings.isSuspended(leader) ? DecisionReasons.GUARDRAIL_FAILED
                 : DecisionReasons.GUARDRAIL_OPEN;
         return new Ruling(false, null, held, plain.statistic, plain.threshold);
     }

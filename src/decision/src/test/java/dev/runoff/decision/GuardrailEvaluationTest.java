@@ -14,6 +14,7 @@ import dev.runoff.records.avro.GuardrailOutcome;
 import dev.runoff.records.avro.GuardrailSpec;
 import dev.runoff.records.avro.GuardrailState;
 import dev.runoff.testkit.TestDefinitions;
+import java.util.List;
 import java.util.Map;
 import org.junit.jupiter.api.Test;
 
@@ -27,7 +28,7 @@ class GuardrailEvaluationTest {
         ExperimentDefinition def = TestDefinitions.bernoulli("ferry-layout", "classic", "wide", "compact");
         def.setVersion(1);
         def.setControlArm("classic");
-        def.setGuardrails(java.util.List.of(new GuardrailSpec("failed-payments", SIGNAL,
+        def.setGuardrails(List.of(new GuardrailSpec("failed-payments", SIGNAL,
                 GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.05)));
         def.getStopping().setBudgetTrials(budget);
         return def;
@@ -85,11 +86,24 @@ class GuardrailEvaluationTest {
     }
 
     @Test
-    void aSuspendedLeaderIsNeverNamedWinner() {
+    void aSuspendedArmIsLeftOutOfTheWeightsAndTheStoppingRule() {
         DecisionRecord record = evaluate(state(definition(null), new long[][] {
             {5_000, 500, 100}, {5_000, 700, 400}, {5_000, 500, 100}}));
         assertEquals("CONTINUE", record.getDecision().name());
+        assertEquals(DecisionReasons.BELOW_THRESHOLD, record.getReason(), "classic and compact are alike");
+        ArmState wide = record.getArms().get(1);
+        assertEquals(List.of(0.0, 0.0, 0.0), List.of(wide.getAlpha(), wide.getWeightBeforeGuards(), wide.getWeight()));
+        assertEquals(1.0, record.getArms().get(0).getAlpha() + record.getArms().get(2).getAlpha(), 1e-9);
+    }
+
+    @Test
+    void aSuspendedLeaderWithOnlyTheControlBesideItIsNeverNamedWinner() {
+        ExperimentDefinition def = definition(null);
+        def.setArms(List.of("classic", "wide"));
+        DecisionRecord record = evaluate(state(def, new long[][] {{5_000, 500, 100}, {5_000, 700, 400}}));
+        assertEquals("CONTINUE", record.getDecision().name());
         assertEquals(DecisionReasons.GUARDRAIL_FAILED, record.getReason());
+        assertEquals(1.0, record.getArms().get(0).getWeight());
     }
 
     @Test

@@ -74,7 +74,21 @@ public final class Replay {
         List<Arm> arms = arms(record);
         ExperimentDefinition def = record.getDefinition();
         EngineConfig config = config(def, record.getDraws() == 0 ? EngineConfig.DEFAULT_DRAWS : record.getDraws());
-        Evaluation evaluation = new AllocationEngine().evaluate(arms, config, record.getSeed(), previousWeights);
+        Evaluation full = new AllocationEngine().evaluate(arms, config, record.getSeed(), previousWeights);
+        double[] fullAlpha = Evaluator.bounded(full.probabilityBest()).alpha();
+        String[] suspendedBy = guardrails(record, fullAlpha, where);
+        // suspended arms are left out of the engine's second evaluation and of the stopping rule (at least two kept)
+        List<Integer> kept = new ArrayList<>();
+        for (int i = 0; i < arms.size(); i++) {
+            if (suspendedBy[i] == null) {
+                kept.add(i);
+            }
+        }
+        boolean narrow = kept.size() >= 2 && kept.size() < arms.size();
+        List<Arm> keptArms = narrow ? kept.stream().map(arms::get).toList() : arms;
+        Evaluation evaluation = narrow ? new AllocationEngine().evaluate(keptArms, config, record.getSeed(),
+                Narrowing.previous(previousWeights, kept)) : full;
+        List<Integer> index = narrow ? kept : java.util.stream.IntStream.range(0, arms.size()).boxed().toList();
         assertEquals(record.getMethod().name(), evaluation.method().name(), where + " method");
         double[] alpha = record.getArms().stream().mapToDouble(ArmState::getAlpha).toArray();
         double[] se = record.getArms().stream().mapToDouble(ArmState::getAlphaStandardError).toArray();
@@ -82,15 +96,26 @@ public final class Replay {
         double[] after = record.getArms().stream().mapToDouble(ArmState::getWeight).toArray();
         // Alphas that integration put a rounding error outside [0, 1] are recorded on the bound (Evaluator.bounded).
         ProbabilityBest best = Evaluator.bounded(evaluation.probabilityBest());
-        assertArrayEquals(bits(best.alpha()), bits(alpha), where + " alpha");
-        assertArrayEquals(bits(evaluation.probabilityBest().standardError()), bits(se), where + " standard errors");
-        assertArrayEquals(bits(evaluation.ruleWeights()), bits(before), where + " weights before guards");
+        int n = arms.size();
+        assertArrayEquals(bits(spread(best.alpha(), index, n)), bits(alpha), where + " alpha");
+        assertArrayEquals(bits(spread(evaluation.probabilityBest().standardError(), index, n)), bits(se),
+                where + " standard errors");
+        assertArrayEquals(bits(spread(evaluation.ruleWeights(), index, n)), bits(before), where + " weights before guards");
         boolean stop = record.getDecision() == dev.runoff.records.avro.Decision.STOP;
-        String[] suspendedBy = guardrails(record, best.alpha(), where);
-        double[] running = withoutSuspended(evaluation.weights(), suspendedBy, reference(record, best.alpha()));
+        double[] running = withoutSuspended(spread(evaluation.weights(), index, n), suspendedBy,
+                reference(record, fullAlpha));
         double[] expected = stop ? afterStop(def, record.getWinner(), previousWeights, running) : running;
         assertArrayEquals(bits(expected), bits(after), where + " published weights");
-        assertDecision(record, arms, evaluation, suspendedBy, where);
+        assertDecision(record, keptArms, evaluation, suspendedBy, reference(record, fullAlpha), where);
+    }
+
+    /** {@code values} of the arms {@code index} placed at those positions of {@code n}, 0 elsewhere. */
+    private static double[] spread(double[] values, List<Integer> index, int n) {
+        double[] out = new double[n];
+        for (int k = 0; k < index.size(); k++) {
+            out[index.get(k)] = values[k];
+        }
+        return out;
     }
 
     /**
@@ -167,7 +192,7 @@ public final class Replay {
      * definition has no minimum duration (true of the test definitions).
      */
     private static void assertDecision(DecisionRecord record, List<Arm> arms, Evaluation evaluation,
-                                       String[] suspendedBy, String where) {
+                                       String[] suspendedBy, int reference, String where) {
         assertEquals(0L, record.getDefinition().getStopping().getMinDurationMs(), where + " needs minDurationMs 0");
         Instant at = Instant.ofEpochMilli(record.getStreamTime());
         List<Posterior> posteriors = evaluation.posteriors().stream().map(Evaluation.PosteriorSummary::posterior)
@@ -179,8 +204,9 @@ public final class Replay {
                 where + " statistic");
         assertEquals(Double.doubleToLongBits(decision.threshold()), Double.doubleToLongBits(record.getThreshold()),
                 where + " threshold");
-        boolean cleared = !decision.isStop() || record.getArms().get(decision.leader()).getGuardrails() == null
-                || record.getArms().get(decision.leader()).getGuardrails().stream()
+        int leader = record.getDefinition().getArms().indexOf(decision.leaderName());
+        boolean cleared = !decision.isStop() || record.getArms().get(leader).getGuardrails() == null
+                || record.getArms().get(leader).getGuardrails().stream()
                         .allMatch(g -> g.getOutcome() == GuardrailOutcome.PASS || g.getOutcome() == GuardrailOutcome.REFERENCE);
         boolean budget = decision.reason() == dev.runoff.engine.stopping.VerdictReason.BUDGET
                 || decision.guards().budgetExhausted();
@@ -188,11 +214,10 @@ public final class Replay {
         assertEquals(stop ? "STOP" : "CONTINUE", record.getDecision().name(), where + " decision");
         String reason = cleared ? DecisionReasons.of(decision)
                 : budget ? (decision.guards().trialBudgetSpent() ? "budget" : "deadline")
-                : suspendedBy[decision.leader()] != null ? "guardrail-failed" : "guardrail-open";
+                : suspendedBy[leader] != null ? "guardrail-failed" : "guardrail-open";
         assertEquals(reason, record.getReason(), where + " reason");
         if (stop) {
-            String winner = cleared ? decision.leaderName()
-                    : record.getDefinition().getArms().get(reference(record, best.alpha()));
+            String winner = cleared ? decision.leaderName() : record.getDefinition().getArms().get(reference);
             assertEquals(winner, record.getWinner(), where + " winner");
         }
     }
