@@ -82,6 +82,9 @@ public final class SvgChart {
         double mid = top + PANEL_HEIGHT / 2.0;
         out.append(String.format(Locale.ROOT, "<text x=\"%d\" y=\"%.1f\" text-anchor=\"middle\" font-size=\"13\""
                 + " transform=\"rotate(-90 %d %.1f)\">%s</text>%n", LEFT - 50, mid, LEFT - 50, mid, escape(axisTitle)));
+        if (index == 0) {
+            out.append(SuspensionBands.svg(timeline, scale::x, top, bottom));
+        }
         for (int a = 0; a < timeline.arms().size(); a++) {
             series(a, id, top, value, step);
         }

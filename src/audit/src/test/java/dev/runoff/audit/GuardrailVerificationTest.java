@@ -24,7 +24,7 @@ class GuardrailVerificationTest {
     private static final List<String> ARMS = List.of("classic", "wide", "compact");
 
     /** Ten periods of 400 units per arm; wide has 8% failed payments, the others 2%. */
-    private static List<DecisionRecord> chain() {
+    static List<DecisionRecord> chain() {
         ExperimentDefinition def = SimulatedJob.definition("ferry-layout", ARMS, 0);
         def.setControlArm("classic");
         def.setGuardrails(List.of(new GuardrailSpec("failed-payments", "payment-failed",
