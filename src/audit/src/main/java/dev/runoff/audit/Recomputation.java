@@ -10,6 +10,7 @@ import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.MetricKind;
 import dev.runoff.decision.Evaluator;
 import dev.runoff.decision.ExperimentState;
+import dev.runoff.decision.GuardrailCounts;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.Optional;
@@ -171,7 +172,8 @@ public final class Recomputation {
     private static DecisionRecord evaluate(DecisionRecord record, double[] previous, long startedAt) {
         List<ArmStats> stats = record.getArms().stream().map(a -> stats(a, kind(record))).toList();
         ExperimentState state = new ExperimentState(record.getDefinition(), stats, null, record.getSequence() - 1, 0,
-                record.getPreviousHash(), previous, startedAt, -1, -1, false, false, pending(record), null);
+                record.getPreviousHash(), previous, startedAt, -1, -1, false, false, pending(record), null,
+                GuardrailCounts.of(record));
         int draws = record.getDraws() > 0 ? record.getDraws() : EngineConfig.DEFAULT_DRAWS;
         return new Evaluator(draws).evaluate(state, record.getStreamTime()).decision();
     }

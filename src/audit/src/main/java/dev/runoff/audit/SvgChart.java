@@ -74,6 +74,9 @@ public final class SvgChart {
         out.append(String.format(Locale.ROOT, "<rect x=\"%d\" y=\"%d\" width=\"%d\" height=\"%d\" fill=\"none\""
                 + " stroke=\"#000000\"/>%n", LEFT, top, PLOT_RIGHT - LEFT, PANEL_HEIGHT));
         canvas.verticalTitle(LEFT - 50, top + PANEL_HEIGHT / 2.0, axisTitle);
+        if (index == 0) {
+            out.append(SuspensionBands.svg(timeline, scale::x, top, bottom));
+        }
         for (int a = 0; a < timeline.arms().size(); a++) {
             series(a, id, top, value, step);
         }

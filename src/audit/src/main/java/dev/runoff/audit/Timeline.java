@@ -80,7 +80,7 @@ public record Timeline(String experimentId, List<String> arms, List<Row> rows) {
             Map<String, Point> points = new LinkedHashMap<>();
             for (ArmState arm : record.getArms()) {
                 points.put(arm.getArm(), new Point(arm.getTrials(), arm.getSuccesses(), arm.getAlpha(),
-                        arm.getWeight()));
+                        arm.getWeight(), arm.getSuspendedBy()));
             }
             return new Row(record.getSequence(), record.getStreamTime(), record.getDefinitionVersion(), points,
                     record.getDecision().name(), record.getWinner(), record.getReason());
@@ -99,7 +99,8 @@ public record Timeline(String experimentId, List<String> arms, List<Row> rows) {
      * @param successes successes so far (BERNOULLI), or {@code null} (VALUE)
      * @param pBest     probability that the arm is best (the record's alpha)
      * @param weight    weight published (after the guards)
+     * @param suspendedBy the guardrail that suspended the arm at this decision, or {@code null}
      */
-    public record Point(long trials, Long successes, double pBest, double weight) {
+    public record Point(long trials, Long successes, double pBest, double weight, String suspendedBy) {
     }
 }

@@ -1,6 +1,7 @@
 package dev.runoff.cli;
 
 import dev.runoff.engine.core.Checks;
+import dev.runoff.engine.guardrail.Direction;
 import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.allocation.AllocationMethod;
@@ -104,6 +105,24 @@ final class PlanCommand implements Callable<Integer> {
                     + " depend on it.")
     private Integer threads;
 
+    @Option(names = "--guardrail-rate", paramLabel = "P",
+            description = "The control's rate of a guardrail metric, in (0, 1): adds the units per arm before an"
+                    + " arm as good as the control passes the guardrail.")
+    private Double guardrailRate;
+
+    @Option(names = "--guardrail-margin", paramLabel = "M", defaultValue = "0.1",
+            description = "Relative margin of the guardrail (default: ${DEFAULT-VALUE}).")
+    private double guardrailMargin;
+
+    @Option(names = "--guardrail-alpha", paramLabel = "A", defaultValue = "0.05",
+            description = "Error level of the guardrail (default: ${DEFAULT-VALUE}).")
+    private double guardrailAlpha;
+
+    @Option(names = "--guardrail-direction", converter = Spelling.Directions.class,
+            completionCandidates = Spelling.Directions.class, paramLabel = "D", defaultValue = "higher-is-worse",
+            description = "Which way the guardrail rate is bad: ${COMPLETION-CANDIDATES} (default: ${DEFAULT-VALUE}).")
+    private Direction guardrailDirection;
+
     @Option(names = "--json", description = "Print one JSON object instead of tables.")
     private boolean json;
 
@@ -122,6 +141,10 @@ final class PlanCommand implements Callable<Integer> {
         PlanReport.Comparison comparison = simulate && stopping.all() ? compare(arms, plan) : null;
         PrintWriter out = spec.commandLine().getOut();
         PlanReport report = new PlanReport(plan, simulation, comparison);
+        if (guardrailRate != null) {
+            report.withGuardrail(named("--guardrail-rate", guardrailRate, () -> GuardrailFigure.of(guardrailRate,
+                    guardrailMargin, guardrailDirection, guardrailAlpha)));
+        }
         out.print(json ? report.json() + System.lineSeparator() : report.text());
         out.flush();
         return 0;

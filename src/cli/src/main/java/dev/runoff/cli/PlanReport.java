@@ -28,6 +28,7 @@ final class PlanReport {
     private final PlanFigures plan;
     private final SimulationResult simulation;
     private final Comparison comparison;
+    private GuardrailFigure guardrail;
 
     /**
      * A report of the planning figures and, unless null, the simulation of one stopping rule against uniform
@@ -37,6 +38,12 @@ final class PlanReport {
         this.plan = plan;
         this.simulation = simulation;
         this.comparison = comparison;
+    }
+
+    /** This report with the guardrail line {@code figure}. */
+    PlanReport withGuardrail(GuardrailFigure figure) {
+        this.guardrail = figure;
+        return this;
     }
 
     /**
@@ -64,6 +71,9 @@ final class PlanReport {
         }
         if (comparison != null) {
             out.append(NL).append(comparisonText());
+        }
+        if (guardrail != null) {
+            out.append(NL).append(guardrail.text());
         }
         return out.toString();
     }
@@ -235,6 +245,9 @@ final class PlanReport {
         }
         if (comparison != null) {
             comparisonJson(root);
+        }
+        if (guardrail != null) {
+            guardrail.json(root);
         }
         try {
             return MAPPER.writeValueAsString(root);

@@ -56,6 +56,13 @@ abstract class Spelling<E extends Enum<E>> implements ITypeConverter<E>, Iterabl
         }
     }
 
+    /** Spellings of {@link dev.runoff.engine.guardrail.Direction}. */
+    static final class Directions extends Spelling<dev.runoff.engine.guardrail.Direction> {
+        Directions() {
+            super(dev.runoff.engine.guardrail.Direction.class);
+        }
+    }
+
     /** Spellings of {@link EngineConfig.MethodChoice}. */
     static final class Methods extends Spelling<EngineConfig.MethodChoice> {
         Methods() {

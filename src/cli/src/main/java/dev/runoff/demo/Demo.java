@@ -143,7 +143,8 @@ public final class Demo {
                 () -> job.accepts(DemoScenario.EXPERIMENT_ID));
         DemoFeed feed = closer.register(new DemoFeed(config, DemoScenario.EXPERIMENT_ID, clock));
         TrafficGenerator visitors = new TrafficGenerator(scenario.rates(), DemoScenario.RETURNING_SHARE,
-                DemoScenario.BOOKING_DELAY_MEAN_MS, options.seed());
+                DemoScenario.BOOKING_DELAY_MEAN_MS, scenario.failedPaymentRates(), DemoScenario.FAILURE_DELAY_MEAN_MS,
+                options.seed());
         DemoServingTier serving = closer.register(new DemoServingTier(config, DemoScenario.EXPERIMENT_ID,
                 scenario.layouts(), visitors, clock, pseudonymKey(options.seed())));
         Waiting.until("weights for " + DemoScenario.EXPERIMENT_ID + " in the serving tier's table", START_TIMEOUT,

@@ -8,6 +8,7 @@ import dev.runoff.engine.planning.SimulationResult;
 import dev.runoff.engine.planning.SimulationSummary;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
+import dev.runoff.records.avro.GuardrailState;
 import java.io.PrintWriter;
 import java.nio.charset.Charset;
 import java.util.List;
@@ -67,7 +68,8 @@ final class DemoReport {
             for (ArmState a : d.getArms()) {
                 arms.addObject().put("arm", a.getArm()).put("trials", a.getTrials()).put("pending", a.getPending())
                         .put("successes", a.getSuccesses()).put("pBest", a.getAlpha())
-                        .put("pBestStandardError", a.getAlphaStandardError()).put("weight", a.getWeight());
+                        .put("pBestStandardError", a.getAlphaStandardError()).put("weight", a.getWeight())
+                        .put("suspendedBy", a.getSuspendedBy());
             }
             print(line);
             return;
@@ -83,6 +85,7 @@ final class DemoReport {
             out.printf(Locale.ROOT, "  %-16s %,9d %,8d %,9d %7s %8.4f %6s  %5.3f %s%n", a.getArm(), a.getTrials(),
                     pending, s, rate, a.getAlpha(), standardError(d, a), a.getWeight(), bar(a.getWeight(), blocks));
         }
+        DemoGuardrails.lines(d).forEach(line -> out.println("  " + line));
         out.flush();
     }
 
@@ -107,6 +110,9 @@ final class DemoReport {
         out.printf(Locale.ROOT, "  traffic spent: %,d visitors counted at the last decision (%,d sent)%s%n", s.trials(),
                 s.visitorsSent(), s.stopped() ? String.format(Locale.ROOT, ", %,d (%.0f%%) of them on %s",
                         s.winnerTrials(), 100.0 * s.winnerTrials() / Math.max(1, s.trials()), s.winner()) : "");
+        List<String> suspensions = DemoGuardrails.lines(last);
+        out.println(suspensions.isEmpty() ? "  guardrails: no layout suspended"
+                : "  guardrails: " + String.join("; ", suspensions));
         traffic(s);
         simulated(s, o);
         out.printf(Locale.ROOT, "  asymptotic leading term T*(w) log(1/delta) (Garivier & Kaufmann 2016; below what a"
@@ -165,6 +171,12 @@ final class DemoReport {
         line.put("statistic", s.last() == null ? null : s.last().getStatistic());
         line.put("threshold", s.last() == null ? null : s.last().getThreshold());
         line.put("winnerTrials", s.stopped() ? s.winnerTrials() : null);
+        ArrayNode suspended = line.putArray("suspended");
+        for (ArmState a : DemoGuardrails.suspended(s.last())) {
+            GuardrailState g = DemoGuardrails.failed(a);
+            suspended.addObject().put("arm", a.getArm()).put("guardrail", a.getSuspendedBy())
+                    .put("statistic", g.getStatistic()).put("threshold", g.getThreshold());
+        }
         line.put("decisions", s.periods()).put("elapsedMs", s.elapsedMs()).put("trials", s.trials())
                 .put("visitorsSent", s.visitorsSent()).put("delta", o.delta()).put("seed", o.seed());
         DemoSummary.Traffic t = s.traffic();

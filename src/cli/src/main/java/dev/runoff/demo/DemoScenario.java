@@ -7,6 +7,8 @@ import dev.runoff.records.avro.AllocationRule;
 import dev.runoff.records.avro.AllocationSpec;
 import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.ExperimentDefinition;
+import dev.runoff.records.avro.GuardrailDirection;
+import dev.runoff.records.avro.GuardrailSpec;
 import dev.runoff.records.avro.MetricKind;
 import dev.runoff.records.avro.MetricSpec;
 import dev.runoff.records.avro.StoppingRule;
@@ -43,6 +45,18 @@ public final class DemoScenario {
             "price-calendar", "cheapest-first");
     /** Hidden true booking rate of each layout, same order. */
     static final double[] RATES = {0.030, 0.050, 0.041, 0.034, 0.036};
+    /**
+     * Hidden share of each layout's new visitors whose payment fails (the guardrail's signal), same order:
+     * compact-list books more than the classic grid but fails three times as many payments, past the
+     * guardrail's margin of 50%.
+     */
+    static final double[] FAILED_PAYMENT_RATES = {0.015, 0.015, 0.045, 0.015, 0.015};
+    /** The guardrail's name. */
+    public static final String GUARDRAIL = "failed-payments";
+    /** The signal its events carry. */
+    public static final String SIGNAL = "payment-failed";
+    /** Mean delay from a visit to its failed payment (exponential), well within the conversion window. */
+    public static final double FAILURE_DELAY_MEAN_MS = 400.0;
     /** Most arms the scenario has. */
     public static final int MAX_ARMS = LAYOUTS.size();
 
@@ -85,6 +99,13 @@ public final class DemoScenario {
         return r;
     }
 
+    /** The hidden failed-payment shares of the layouts in play. */
+    public double[] failedPaymentRates() {
+        double[] r = new double[arms];
+        System.arraycopy(FAILED_PAYMENT_RATES, 0, r, 0, arms);
+        return r;
+    }
+
     /** The layout with the highest hidden rate. */
     public String trueBest() {
         double[] r = rates();
@@ -100,7 +121,9 @@ public final class DemoScenario {
     /**
      * The definition the demo registers: bookings per visitor, counted once the visitor's conversion window
      * of {@link #CONVERSION_WINDOW_MS} has closed (Beta(1, 1) prior), top-two Thompson
-     * sampling with beta 1/2 after a warm-up, the GLR stopping rule at {@code delta}, a trial budget.
+     * sampling with beta 1/2 after a warm-up, the GLR stopping rule at {@code delta}, a trial budget, and the
+     * failed-payments guardrail: no layout may fail more than 1.5 times the payments of the layout most likely
+     * best (there is no control), at alpha 0.05.
      *
      * @param recomputeMs how often the job recomputes the weights
      * @param budget      trial budget (the experiment stops with reason budget when reached)
@@ -122,6 +145,8 @@ public final class DemoScenario {
                 .setHeartbeatMs(Math.max(recomputeMs * 10, Definitions.MIN_HEARTBEAT_MS))
                 .setAttributionWindowMs(CONVERSION_WINDOW_MS)
                 .setValidForMs(recomputeMs * 60)
+                .setGuardrails(List.of(new GuardrailSpec(GUARDRAIL, SIGNAL, GuardrailDirection.HIGHER_IS_WORSE, 0.5,
+                        0.05)))
                 .build();
     }
 }

@@ -42,7 +42,7 @@ final class DemoServingTier implements AutoCloseable {
     /** Units the sticky assigner remembers: more than a demo serves. */
     private static final int REMEMBERED_UNITS = 2_000_000;
 
-    private record Booking(long dueAt, ArmAssignment served, String eventId) {
+    private record Booking(long dueAt, ArmAssignment served, String eventId, String signal) {
     }
 
     private final String experimentId;
@@ -58,6 +58,7 @@ final class DemoServingTier implements AutoCloseable {
     private final PriorityQueue<Booking> bookings = new PriorityQueue<>(Comparator.comparingLong(Booking::dueAt));
     private long switchedWhileWeighted;
     private long bookingsSent;
+    private long failuresSent;
 
     /**
      * Starts following the control topic of {@code config} (returns once caught up) and opens the producer.
@@ -116,7 +117,12 @@ final class DemoServingTier implements AutoCloseable {
         reporter.exposure(served, "visit-" + visitNumber);
         long delay = visitors.bookingDelay(visit, arms.indexOf(served.arm()));
         if (delay >= 0) {
-            bookings.add(new Booking(clock.millis() + delay, served, "booking-" + visitNumber));
+            bookings.add(new Booking(clock.millis() + delay, served, "booking-" + visitNumber, null));
+        }
+        long failure = visitors.failureDelay(visit, arms.indexOf(served.arm()));
+        if (failure >= 0) {
+            bookings.add(new Booking(clock.millis() + failure, served, "payment-" + visitNumber,
+                    DemoScenario.SIGNAL));
         }
     }
 
@@ -136,8 +142,13 @@ final class DemoServingTier implements AutoCloseable {
         boolean sent = false;
         while (!bookings.isEmpty() && bookings.peek().dueAt() <= now) {
             Booking b = bookings.poll();
-            reporter.outcome(b.served(), b.eventId(), EventType.CONVERSION, null);
-            bookingsSent++;
+            if (b.signal() != null) {
+                reporter.signal(b.served(), b.eventId(), b.signal());
+                failuresSent++;
+            } else {
+                reporter.outcome(b.served(), b.eventId(), EventType.CONVERSION, null);
+                bookingsSent++;
+            }
             sent = true;
         }
         if (sent) {
@@ -153,6 +164,11 @@ final class DemoServingTier implements AutoCloseable {
     /** Picks where the sticky assigner kept a returning visitor on a layout the table alone would have changed. */
     long keptPicks() {
         return sticky.keptPicks();
+    }
+
+    /** Failed payments sent so far (queued ones not yet due are not). */
+    long failuresSent() {
+        return failuresSent;
     }
 
     /** Bookings sent so far (queued ones not yet due are not). */

@@ -39,6 +39,22 @@ class PlanCommandTest {
     }
 
     @Test
+    void aGuardrailRateAddsTheUnitsBeforeAnArmAsGoodAsTheControlPasses() throws Exception {
+        long units = dev.runoff.engine.guardrail.GuardrailPlan.unitsToPass(0.02, 0.2,
+                dev.runoff.engine.guardrail.Direction.HIGHER_IS_WORSE, 0.05);
+        EvaluateCommandTest.Run r = run("plan", "--rates", "0.05,0.06", "--simulate", "0", "--guardrail-rate", "0.02",
+                "--guardrail-margin", "0.2");
+        assertEquals(0, r.exitCode(), r.err());
+        assertTrue(r.out().contains(String.format(java.util.Locale.ROOT, "%,d units per arm", units)), r.out());
+        JsonNode guardrail = json(run("plan", "--rates", "0.05,0.06", "--simulate", "0", "--guardrail-rate", "0.02",
+                "--guardrail-margin", "0.2", "--json")).get("guardrail");
+        assertEquals(units, guardrail.get("unitsPerArm").asLong());
+        EvaluateCommandTest.Run bad = run("plan", "--rates", "0.05,0.06", "--simulate", "0", "--guardrail-rate", "1.5");
+        assertEquals(2, bad.exitCode());
+        assertTrue(bad.err().contains("--guardrail-rate 1.5: rate must be in"), bad.err());
+    }
+
+    @Test
     void textHasThePlanningAndSimulationSections() {
         EvaluateCommandTest.Run r = run(SMALL);
         assertEquals(0, r.exitCode(), r.err());

@@ -103,6 +103,23 @@ public final class OutcomeReporter {
     }
 
     /**
+     * Sends a guardrail signal of the unit {@code served} was drawn for (a CONVERSION event carrying
+     * {@code signal} and the served arm), or nothing when it was not drawn: the event counts only for the
+     * experiment's guardrails that count {@code signal}.
+     *
+     * @param eventId an id unique to this event, stable across retries
+     * @param signal  the guardrail signal, e.g. {@code payment-failed}
+     * @return the producer's future of the send, or empty when nothing was sent
+     * @throws RecordRejectedException when the event breaks the schema's rules (a malformed signal...)
+     */
+    public Optional<Future<RecordMetadata>> signal(ArmAssignment served, String eventId, String signal) {
+        Objects.requireNonNull(served, "served");
+        return served.drawn() ? Optional.of(send(event(served.experimentId(), served.unitKey(), eventId,
+                EventType.CONVERSION, Args.notBlank("arm", served.arm()), null, Objects.requireNonNull(signal,
+                        "signal")))) : Optional.empty();
+    }
+
+    /**
      * Sends the exposure of {@code unitId} to {@code arm}.
      *
      * @param experimentId the experiment
@@ -140,7 +157,7 @@ public final class OutcomeReporter {
      * @throws IllegalArgumentException when {@code unitId} is null or empty
      */
     public OutcomeEvent exposureEvent(String experimentId, String unitId, String arm, String eventId) {
-        return event(experimentId, unitId, eventId, EventType.EXPOSURE, arm, null);
+        return event(experimentId, unitId, eventId, EventType.EXPOSURE, arm, null, null);
     }
 
     /**
@@ -157,11 +174,11 @@ public final class OutcomeReporter {
             throw new IllegalArgumentException("type must be CLICK, CONVERSION or VALUE (use exposure(...)), got "
                     + type);
         }
-        return event(experimentId, unitId, eventId, type, Args.notBlank("arm", arm), value);
+        return event(experimentId, unitId, eventId, type, Args.notBlank("arm", arm), value, null);
     }
 
     private OutcomeEvent event(String experimentId, String unitId, String eventId, EventType type, String arm,
-                               Double value) {
+                               Double value, String signal) {
         long now = clock.millis();
         OutcomeEvent event = OutcomeEvent.newBuilder()
                 .setExperimentId(experimentId)
@@ -171,6 +188,7 @@ public final class OutcomeReporter {
                 .setTimestamp(now)
                 .setArm(arm)
                 .setValue(value)
+                .setSignal(signal)
                 .build();
         return codec.validate(event, now).orThrow();
     }

@@ -68,6 +68,15 @@ class OutcomeReporterTest {
     }
 
     @Test
+    void aSignalOfAnAssignmentCarriesTheServedArmAndTheSignal() {
+        ArmAssignment served = ArmAssignment.of("e", RAW_UNIT, "green");
+        assertTrue(reporter(Format.AVRO).signal(served, "pay-1", "payment-failed").isPresent());
+        OutcomeEvent event = RecordCodec.outcomeEvents().decode(single().value(), NOW).orThrow();
+        assertEquals("payment-failed", event.getSignal());
+        assertEquals("green", event.getArm());
+    }
+
+    @Test
     void conversionOfAnAssignmentCarriesTheServedArm() {
         ArmAssignment served = ArmAssignment.of("e", RAW_UNIT, "green");
         assertTrue(reporter(Format.AVRO).outcome(served, "order-77", EventType.CONVERSION, 19.99).isPresent());

@@ -17,13 +17,14 @@ import dev.runoff.records.avro.StudentTParams;
 import java.util.ArrayList;
 import java.util.List;
 
-/** The per-arm part of a decision record: statistics, posterior, alpha and weights. */
+/** The per-arm part of a decision record: statistics, posterior, alpha, weights and guardrails. */
 final class ArmStates {
 
     private ArmStates() {
     }
 
-    static List<ArmState> of(ExperimentState state, Evaluation evaluation, ProbabilityBest best, double[] weights) {
+    static List<ArmState> of(ExperimentState state, Evaluation evaluation, ProbabilityBest best, double[] weights,
+                             GuardrailFindings findings) {
         List<String> names = state.definition().getArms();
         double[] ruleWeights = evaluation.ruleWeights();
         List<ArmState> out = new ArrayList<>(names.size());
@@ -38,6 +39,9 @@ final class ArmStates {
             statistics(arm, state.stats().get(i));
             if (reportsPending(state)) {
                 arm.setPending(state.pending()[i]);
+            }
+            if (!Definitions.guardrails(state.definition()).isEmpty()) {
+                arm.setGuardrails(findings.states().get(i)).setSuspendedBy(findings.suspended().get(i));
             }
             out.add(arm.build());
         }

@@ -16,6 +16,8 @@ import dev.runoff.engine.stopping.Verdict;
  *   <tr><td>MIN_TRIALS</td><td>{@value #MIN_TRIALS}</td><td>CONTINUE</td></tr>
  *   <tr><td>MIN_DURATION</td><td>{@value #MIN_DURATION}</td><td>CONTINUE</td></tr>
  * </table>
+ * A STOP the guardrails hold back ({@link Ruling}) is CONTINUE with {@value #GUARDRAIL_FAILED} or
+ * {@value #GUARDRAIL_OPEN}.
  * The rule that reached its threshold is the record's {@code stoppingRule}.
  */
 public final class DecisionReasons {
@@ -32,6 +34,11 @@ public final class DecisionReasons {
     public static final String MIN_TRIALS = "min-trials";
     /** The rule fired but the experiment has not run for the minimum duration. */
     public static final String MIN_DURATION = "min-duration";
+
+    /** The rule fired but its leader failed a guardrail (it is suspended). */
+    public static final String GUARDRAIL_FAILED = "guardrail-failed";
+    /** The rule fired but a guardrail of its leader has not passed yet. */
+    public static final String GUARDRAIL_OPEN = "guardrail-open";
 
     private DecisionReasons() {
     }

@@ -3,6 +3,7 @@ package dev.runoff.decision;
 import dev.runoff.engine.stopping.LeaderWithin;
 
 import dev.runoff.engine.AllocationEngine;
+import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.Evaluation;
 import dev.runoff.engine.allocation.GuardFlag;
@@ -35,6 +36,11 @@ import java.util.List;
  * now, {@link DefinitionConfigs#stopping}, and {@link LeaderWithin} for the indifference rule. The decision
  * record holds all of them, that start time as {@code startedAt}, so a verifier can re-check the
  * minimum-duration guard exactly.
+ *
+ * <p>Guardrails ({@link GuardrailFindings}, tested with the reference chosen from the evaluation of every
+ * arm): arms that fail one are left out of a second evaluation that gives the weights and feeds the stopping
+ * rule ({@link Narrowing}), and {@link Ruling} holds back or redirects a STOP whose leader has not passed them. Their counts are inputs the
+ * decision record holds per arm.
  *
  * <p>On STOP the published weights follow {@link AfterStopWeights} and the record lists the {@code AFTER_STOP}
  * guard; the experiment then keeps its winner: {@link #heartbeat} re-publishes the stopped state without
@@ -74,20 +80,25 @@ public final class Evaluator {
         long sequence = state.decisionSequence() + 1;
         long seed = Seeds.of(state.experimentId(), sequence);
         List<Arm> arms = state.arms();
-        Evaluation evaluation = engine.evaluate(arms, DefinitionConfigs.engine(def, draws), seed, state.lastWeights());
+        EngineConfig config = DefinitionConfigs.engine(def, draws);
+        Evaluation full = engine.evaluate(arms, config, seed, state.lastWeights());
+        GuardrailFindings findings = GuardrailFindings.of(state, bounded(full.probabilityBest()));
+        Narrowing narrowed = Narrowing.of(engine, arms, config, seed, state.lastWeights(), full, findings);
+        Evaluation evaluation = narrowed.evaluation();
         ProbabilityBest best = bounded(evaluation.probabilityBest());
         long start = start(state, now);
-        Verdict decision = decide(state, arms, evaluation, best, start, now);
-        double[] weights = evaluation.weights();
+        Ruling decision = Ruling.of(decide(state, narrowed.kept(), narrowed.keptEval(),
+                bounded(narrowed.keptEval().probabilityBest()), start, now), findings, def.getArms());
+        double[] weights = findings.suspend(evaluation.weights());
         ExperimentState.Stop stop = null;
         List<Guard> guards = guards(evaluation);
-        if (decision.isStop()) {
-            weights = AfterStopWeights.weights(def, decision.leaderName(), state.lastWeights(), weights);
-            stop = new ExperimentState.Stop(decision.leaderName(), def.getVersion(), def.getArms(), weights);
+        if (decision.stop()) {
+            weights = AfterStopWeights.weights(def, decision.winner(), state.lastWeights(), weights);
+            stop = new ExperimentState.Stop(decision.winner(), def.getVersion(), def.getArms(), weights);
             guards.add(Guard.AFTER_STOP);
         }
         DecisionRecord record = HashChain.seal(Records.decision(state, sequence, start, now, evaluation, best,
-                decision, weights, guards), state.lastHash());
+                decision, weights, guards, findings), state.lastHash());
         ExperimentState next = state.evaluated(now, record.getHash(), weights, stop);
         AllocationUpdate update = stop == null
                 ? Records.update(next, def.getVersion(), def.getArms(), weights, now, ExperimentStatus.RUNNING, null)
@@ -182,8 +193,8 @@ public final class Evaluator {
         }
 
         static DecisionRecord decision(ExperimentState state, long sequence, long start, long now,
-                                       Evaluation evaluation, ProbabilityBest best, Verdict decision,
-                                       double[] weights, List<Guard> guards) {
+                                       Evaluation evaluation, ProbabilityBest best, Ruling decision,
+                                       double[] weights, List<Guard> guards, GuardrailFindings findings) {
             ExperimentDefinition def = state.definition();
             return DecisionRecord.newBuilder()
                     .setExperimentId(state.experimentId())
@@ -192,17 +203,17 @@ public final class Evaluator {
                     .setStreamTime(now)
                     .setStartedAt(start)
                     .setDefinition(def)
-                    .setArms(ArmStates.of(state, evaluation, best, weights))
+                    .setArms(ArmStates.of(state, evaluation, best, weights, findings))
                     .setAllocationRule(dev.runoff.records.avro.AllocationRule.valueOf(evaluation.rule().name()))
                     .setAllocationBeta(evaluation.beta())
                     .setGuards(guards)
                     .setStoppingRule(def.getStopping().getRule())
                     .setDelta(def.getStopping().getDelta())
                     .setEpsilon(def.getStopping().getEpsilon())
-                    .setDecision(decision.isStop() ? dev.runoff.records.avro.Decision.STOP
+                    .setDecision(decision.stop() ? dev.runoff.records.avro.Decision.STOP
                             : dev.runoff.records.avro.Decision.CONTINUE)
-                    .setWinner(decision.isStop() ? decision.leaderName() : null)
-                    .setReason(DecisionReasons.of(decision))
+                    .setWinner(decision.winner())
+                    .setReason(decision.reason())
                     .setStatistic(decision.statistic())
                     .setThreshold(decision.threshold())
                     .setSeed(evaluation.seed())

@@ -36,11 +36,14 @@ import java.util.Objects;
  *                           {@code null} when not known (records written before pending units were reported)
  * @param armSince           per arm, the definition version since which the arm has been in the definition
  *                           without interruption; statistics of units first exposed earlier are not merged
+ * @param guardrails         per arm and guardrail, units counted and units with the guardrail's signal
+ *                           ({@code null}: none counted yet)
  */
 public record ExperimentState(ExperimentDefinition definition, List<ArmStats> stats, Stop stop,
                               long decisionSequence, long allocationSequence, String lastHash,
                               double[] lastWeights, long startedAt, long lastComputedAt, long lastPublishedAt,
-                              boolean dirty, boolean due, long[] pending, long[] armSince) {
+                              boolean dirty, boolean due, long[] pending, long[] armSince,
+                              GuardrailCounts guardrails) {
 
     /** Validates the shape: one statistics entry per arm, weights, pending units and arm starts alike. */
     public ExperimentState {
@@ -60,6 +63,20 @@ public record ExperimentState(ExperimentDefinition definition, List<ArmStats> st
         }
         pending = pending == null ? null : perArm(pending, stats.size(), "pending");
         armSince = armSince == null ? new long[stats.size()] : perArm(armSince, stats.size(), "armSince");
+        guardrails = guardrails == null ? GuardrailCounts.empty(definition) : guardrails;
+        if (guardrails.counted().length != stats.size()) {
+            throw new IllegalArgumentException("guardrails has " + guardrails.counted().length + " arms for "
+                    + stats.size() + " arms");
+        }
+    }
+
+    /** A state with no guardrail counts (none counted yet, or a definition without guardrails). */
+    public ExperimentState(ExperimentDefinition definition, List<ArmStats> stats, Stop stop, long decisionSequence,
+                           long allocationSequence, String lastHash, double[] lastWeights, long startedAt,
+                           long lastComputedAt, long lastPublishedAt, boolean dirty, boolean due, long[] pending,
+                           long[] armSince) {
+        this(definition, stats, stop, decisionSequence, allocationSequence, lastHash, lastWeights, startedAt,
+                lastComputedAt, lastPublishedAt, dirty, due, pending, armSince, null);
     }
 
     /**
@@ -86,7 +103,7 @@ public record ExperimentState(ExperimentDefinition definition, List<ArmStats> st
         long[] since = new long[arms];
         Arrays.fill(since, definition.getVersion());
         return new ExperimentState(definition, empty(definition, arms), null, 0, 0, HashChain.GENESIS, null, -1, -1,
-                -1, false, true, new long[arms], since);
+                -1, false, true, new long[arms], since, null);
     }
 
     /** The experiment id. */
@@ -147,7 +164,7 @@ public record ExperimentState(ExperimentDefinition definition, List<ArmStats> st
         boolean counted = delta.trials() > 0 || delta instanceof BernoulliStats b && b.successes() > 0;
         return new ExperimentState(definition, merged, stop, decisionSequence, allocationSequence, lastHash,
                 lastWeights, startedAt < 0 ? now : startedAt, lastComputedAt, lastPublishedAt, dirty || counted, due,
-                waiting, armSince);
+                waiting, armSince, guardrails);
     }
 
     /**
@@ -161,38 +178,53 @@ public record ExperimentState(ExperimentDefinition definition, List<ArmStats> st
         boolean sameKind = Definitions.metric(next) == metric();
         List<String> before = definition.getArms();
         int arms = next.getArms().size();
-        List<ArmStats> kept = new ArrayList<>(arms);
+        List<ArmStats> keptStats = new ArrayList<>(arms);
         long[] waiting = new long[arms];
         long[] since = new long[arms];
+        int[] kept = new int[arms];
         for (int i = 0; i < arms; i++) {
             int old = before.indexOf(next.getArms().get(i));
             boolean keep = sameKind && old >= 0;
-            kept.add(keep ? stats.get(old) : empty(next, 1).get(0));
+            kept[i] = keep ? old : -1;
+            keptStats.add(keep ? stats.get(old) : empty(next, 1).get(0));
             waiting[i] = keep && pending != null ? pending[old] : 0;
             since[i] = keep ? armSince[old] : next.getVersion();
         }
         boolean sameArms = before.equals(next.getArms()) && sameKind;
-        return new ExperimentState(next, kept, stop, decisionSequence, allocationSequence, lastHash,
+        return new ExperimentState(next, keptStats, stop, decisionSequence, allocationSequence, lastHash,
                 sameArms ? lastWeights : null, startedAt, lastComputedAt, lastPublishedAt, dirty, !stopped(), waiting,
-                since);
+                since, guardrails.remapped(next, kept));
+    }
+
+    /**
+     * This state with {@code units} more counted units of arm {@code index} for every guardrail, of which
+     * {@code signalUnits.get(s)} had signal s; marked dirty when units were counted.
+     */
+    public ExperimentState withGuardrailUnits(int index, long units, java.util.Map<String, Long> signalUnits) {
+        if (units == 0 || guardrails.guardrails().isEmpty()) {
+            return this;
+        }
+        return new ExperimentState(definition, stats, stop, decisionSequence, allocationSequence, lastHash,
+                lastWeights, startedAt, lastComputedAt, lastPublishedAt, true, due, pending, armSince,
+                guardrails.plus(index, units, signalUnits, definition));
     }
 
     /** This state after an evaluation published decision {@code sequence} with {@code hash}. */
     ExperimentState evaluated(long now, String hash, double[] weights, Stop newStop) {
         return new ExperimentState(definition, stats, newStop, decisionSequence + 1, allocationSequence + 1, hash,
-                weights, startedAt, now, now, false, false, pending, armSince);
+                weights, startedAt, now, now, false, false, pending, armSince, guardrails);
     }
 
     /** This state after a heartbeat of a stopped experiment (a control record only). */
     ExperimentState republished(long now) {
         return new ExperimentState(definition, stats, stop, decisionSequence, allocationSequence + 1, lastHash,
-                lastWeights, startedAt, lastComputedAt, now, dirty, false, pending, armSince);
+                lastWeights, startedAt, lastComputedAt, now, dirty, false, pending, armSince, guardrails);
     }
 
     /** This state after an evaluation failed at {@code now}: not retried before new data or a heartbeat. */
     public ExperimentState failed(long now) {
         return new ExperimentState(definition, stats, stop, decisionSequence, allocationSequence, lastHash,
-                lastWeights, startedAt, now, now, false, false, pending, armSince);
+                lastWeights, startedAt, now, now, false, false, pending, armSince, guardrails);
     }
 
     private static List<ArmStats> empty(ExperimentDefinition definition, int count) {
@@ -207,14 +239,15 @@ public record ExperimentState(ExperimentDefinition definition, List<ArmStats> st
                 && allocationSequence == s.allocationSequence && lastHash.equals(s.lastHash)
                 && Arrays.equals(lastWeights, s.lastWeights) && startedAt == s.startedAt
                 && lastComputedAt == s.lastComputedAt && lastPublishedAt == s.lastPublishedAt && dirty == s.dirty
-                && due == s.due && Arrays.equals(pending, s.pending) && Arrays.equals(armSince, s.armSince);
+                && due == s.due && Arrays.equals(pending, s.pending) && Arrays.equals(armSince, s.armSince)
+                && guardrails.equals(s.guardrails);
     }
 
     @Override
     public int hashCode() {
         return Objects.hash(definition, stats, stop, decisionSequence, allocationSequence, lastHash,
                 Arrays.hashCode(lastWeights), startedAt, lastComputedAt, lastPublishedAt, dirty, due,
-                Arrays.hashCode(pending), Arrays.hashCode(armSince));
+                Arrays.hashCode(pending), Arrays.hashCode(armSince), guardrails);
     }
 
     @Override
@@ -224,7 +257,7 @@ public record ExperimentState(ExperimentDefinition definition, List<ArmStats> st
                 + ", lastWeights=" + Arrays.toString(lastWeights) + ", startedAt=" + startedAt
                 + ", lastComputedAt=" + lastComputedAt + ", lastPublishedAt=" + lastPublishedAt + ", dirty=" + dirty
                 + ", due=" + due + ", pending=" + Arrays.toString(pending) + ", armSince="
-                + Arrays.toString(armSince) + "]";
+                + Arrays.toString(armSince) + ", guardrails=" + guardrails + "]";
     }
 
     /**

@@ -44,6 +44,29 @@ class ExperimentStateTest {
     }
 
     @Test
+    void newVersionKeepsGuardrailCountsByArmAndGuardrailNameAndStartsNewOnesAtZero() {
+        ExperimentDefinition v1 = version(TestDefinitions.bernoulli("e", "a", "b"), 1);
+        v1.setGuardrails(List.of(guardrail("errors", "error")));
+        ExperimentState state = ExperimentState.start(v1).withGuardrailUnits(1, 10, java.util.Map.of("error", 3L))
+                .withGuardrailUnits(1, 5, java.util.Map.of("other", 5L));
+        assertEquals(15, state.guardrails().counted(1, 0));
+        assertEquals(3, state.guardrails().hits(1, 0));
+        ExperimentDefinition v2 = version(TestDefinitions.bernoulli("e", "b", "c"), 2);
+        v2.setGuardrails(List.of(guardrail("refunds", "refund"), guardrail("errors", "error")));
+        GuardrailCounts changed = state.withDefinition(v2).guardrails();
+        assertEquals(List.of("refunds", "errors"), changed.guardrails());
+        assertEquals(15, changed.counted(0, 1), "arm b keeps its errors count");
+        assertEquals(3, changed.hits(0, 1));
+        assertEquals(0, changed.counted(0, 0), "a new guardrail starts at zero");
+        assertEquals(0, changed.counted(1, 1), "a new arm starts at zero");
+    }
+
+    private static dev.runoff.records.avro.GuardrailSpec guardrail(String name, String signal) {
+        return new dev.runoff.records.avro.GuardrailSpec(name, signal,
+                dev.runoff.records.avro.GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.05);
+    }
+
+    @Test
     void changeOfMetricKindEmptiesEveryArm() {
         ExperimentState state = ExperimentState.start(version(TestDefinitions.bernoulli("e", "a", "b"), 1))
                 .withDelta(0, new BernoulliStats(10, 2), NOW);

@@ -17,6 +17,8 @@ import dev.runoff.engine.posterior.NormalGammaPrior;
 import dev.runoff.engine.posterior.Posterior;
 import dev.runoff.engine.posterior.Prior;
 import dev.runoff.engine.stats.BernoulliStats;
+import dev.runoff.engine.guardrail.Direction;
+import dev.runoff.engine.guardrail.MarginCheck;
 import dev.runoff.engine.stats.ValueStats;
 import dev.runoff.engine.stopping.Verdict;
 import dev.runoff.engine.stopping.StoppingCheck;
@@ -26,6 +28,9 @@ import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.BetaParams;
 import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.ExperimentDefinition;
+import dev.runoff.records.avro.GuardrailOutcome;
+import dev.runoff.records.avro.GuardrailSpec;
+import dev.runoff.records.avro.GuardrailState;
 import dev.runoff.records.avro.MetricKind;
 import dev.runoff.records.avro.NormalGammaPriorSpec;
 import java.nio.ByteBuffer;
@@ -69,7 +74,21 @@ public final class Replay {
         List<Arm> arms = arms(record);
         ExperimentDefinition def = record.getDefinition();
         EngineConfig config = config(def, record.getDraws() == 0 ? EngineConfig.DEFAULT_DRAWS : record.getDraws());
-        Evaluation evaluation = new AllocationEngine().evaluate(arms, config, record.getSeed(), previousWeights);
+        Evaluation full = new AllocationEngine().evaluate(arms, config, record.getSeed(), previousWeights);
+        double[] fullAlpha = Evaluator.bounded(full.probabilityBest()).alpha();
+        String[] suspendedBy = guardrails(record, fullAlpha, where);
+        // suspended arms are left out of the engine's second evaluation and of the stopping rule (at least two kept)
+        List<Integer> kept = new ArrayList<>();
+        for (int i = 0; i < arms.size(); i++) {
+            if (suspendedBy[i] == null) {
+                kept.add(i);
+            }
+        }
+        boolean narrow = kept.size() >= 2 && kept.size() < arms.size();
+        List<Arm> keptArms = narrow ? kept.stream().map(arms::get).toList() : arms;
+        Evaluation evaluation = narrow ? new AllocationEngine().evaluate(keptArms, config, record.getSeed(),
+                Narrowing.previous(previousWeights, kept)) : full;
+        List<Integer> index = narrow ? kept : java.util.stream.IntStream.range(0, arms.size()).boxed().toList();
         assertEquals(record.getMethod().name(), evaluation.method().name(), where + " method");
         double[] alpha = record.getArms().stream().mapToDouble(ArmState::getAlpha).toArray();
         double[] se = record.getArms().stream().mapToDouble(ArmState::getAlphaStandardError).toArray();
@@ -77,21 +96,103 @@ public final class Replay {
         double[] after = record.getArms().stream().mapToDouble(ArmState::getWeight).toArray();
         // Alphas that integration put a rounding error outside [0, 1] are recorded on the bound (Evaluator.bounded).
         ProbabilityBest best = Evaluator.bounded(evaluation.probabilityBest());
-        assertArrayEquals(bits(best.alpha()), bits(alpha), where + " alpha");
-        assertArrayEquals(bits(evaluation.probabilityBest().standardError()), bits(se), where + " standard errors");
-        assertArrayEquals(bits(evaluation.ruleWeights()), bits(before), where + " weights before guards");
+        int n = arms.size();
+        assertArrayEquals(bits(spread(best.alpha(), index, n)), bits(alpha), where + " alpha");
+        assertArrayEquals(bits(spread(evaluation.probabilityBest().standardError(), index, n)), bits(se),
+                where + " standard errors");
+        assertArrayEquals(bits(spread(evaluation.ruleWeights(), index, n)), bits(before), where + " weights before guards");
         boolean stop = record.getDecision() == dev.runoff.records.avro.Decision.STOP;
-        double[] expected = stop ? afterStop(def, record.getWinner(), previousWeights, evaluation.weights())
-                : evaluation.weights();
+        double[] running = withoutSuspended(spread(evaluation.weights(), index, n), suspendedBy,
+                reference(record, fullAlpha));
+        double[] expected = stop ? afterStop(def, record.getWinner(), previousWeights, running) : running;
         assertArrayEquals(bits(expected), bits(after), where + " published weights");
-        assertDecision(record, arms, evaluation, where);
+        assertDecision(record, keptArms, evaluation, suspendedBy, reference(record, fullAlpha), where);
+    }
+
+    /** {@code values} of the arms {@code index} placed at those positions of {@code n}, 0 elsewhere. */
+    private static double[] spread(double[] values, List<Integer> index, int n) {
+        double[] out = new double[n];
+        for (int k = 0; k < index.size(); k++) {
+            out[index.get(k)] = values[k];
+        }
+        return out;
+    }
+
+    /**
+     * Each arm's guardrail entries recomputed from its counts with the engine's margin check against the
+     * reference (the control, else the arm with the largest alpha); returns per arm the first guardrail it
+     * FAILED, or null.
+     */
+    private static String[] guardrails(DecisionRecord record, double[] alpha, String where) {
+        List<GuardrailSpec> specs = record.getDefinition().getGuardrails() == null ? List.of()
+                : record.getDefinition().getGuardrails();
+        String[] suspendedBy = new String[record.getArms().size()];
+        int reference = reference(record, alpha);
+        for (int a = 0; a < suspendedBy.length; a++) {
+            ArmState arm = record.getArms().get(a);
+            for (int g = 0; g < specs.size(); g++) {
+                GuardrailSpec spec = specs.get(g);
+                GuardrailState recorded = arm.getGuardrails().get(g);
+                GuardrailState ref = record.getArms().get(reference).getGuardrails().get(g);
+                String at = where + " arm " + arm.getArm() + " guardrail " + spec.getName();
+                if (a == reference) {
+                    assertEquals(GuardrailOutcome.REFERENCE, recorded.getOutcome(), at);
+                    continue;
+                }
+                MarginCheck.Result r = MarginCheck.check(new MarginCheck.Counts(recorded.getCounted(),
+                        recorded.getHits()), new MarginCheck.Counts(ref.getCounted(), ref.getHits()),
+                        Direction.valueOf(spec.getDirection().name()), spec.getMargin(), spec.getAlpha());
+                assertEquals(r.outcome().name(), recorded.getOutcome().name(), at);
+                assertArrayEquals(bits(new double[] {r.arm().lower(), r.arm().upper(), r.statistic(), r.threshold()}),
+                        bits(new double[] {recorded.getLower(), recorded.getUpper(), recorded.getStatistic(),
+                                recorded.getThreshold()}), at + " bounds");
+                if (suspendedBy[a] == null && r.outcome() == MarginCheck.Outcome.FAIL) {
+                    suspendedBy[a] = spec.getName();
+                }
+            }
+            assertEquals(suspendedBy[a], arm.getSuspendedBy(), where + " arm " + arm.getArm() + " suspendedBy");
+        }
+        return suspendedBy;
+    }
+
+    private static int reference(DecisionRecord record, double[] alpha) {
+        String control = record.getDefinition().getControlArm();
+        if (control != null) {
+            return record.getDefinition().getArms().indexOf(control);
+        }
+        int best = 0;
+        for (int i = 1; i < alpha.length; i++) {
+            best = alpha[i] > alpha[best] ? i : best;
+        }
+        return best;
+    }
+
+    private static double[] withoutSuspended(double[] weights, String[] suspendedBy, int reference) {
+        if (Arrays.stream(suspendedBy).allMatch(java.util.Objects::isNull)) {
+            return weights;
+        }
+        double[] w = weights.clone();
+        double kept = 0;
+        for (int i = 0; i < w.length; i++) {
+            w[i] = suspendedBy[i] != null ? 0 : w[i];
+            kept += w[i];
+        }
+        if (kept == 0) {
+            w[reference] = 1;
+            return w;
+        }
+        for (int i = 0; i < w.length; i++) {
+            w[i] /= kept;
+        }
+        return w;
     }
 
     /**
      * The statistic, threshold and decision. The record holds no start time, so the check assumes the
      * definition has no minimum duration (true of the test definitions).
      */
-    private static void assertDecision(DecisionRecord record, List<Arm> arms, Evaluation evaluation, String where) {
+    private static void assertDecision(DecisionRecord record, List<Arm> arms, Evaluation evaluation,
+                                       String[] suspendedBy, int reference, String where) {
         assertEquals(0L, record.getDefinition().getStopping().getMinDurationMs(), where + " needs minDurationMs 0");
         Instant at = Instant.ofEpochMilli(record.getStreamTime());
         List<Posterior> posteriors = evaluation.posteriors().stream().map(Evaluation.PosteriorSummary::posterior)
@@ -103,8 +204,22 @@ public final class Replay {
                 where + " statistic");
         assertEquals(Double.doubleToLongBits(decision.threshold()), Double.doubleToLongBits(record.getThreshold()),
                 where + " threshold");
-        assertEquals(decision.isStop() ? "STOP" : "CONTINUE", record.getDecision().name(), where + " decision");
-        assertEquals(DecisionReasons.of(decision), record.getReason(), where + " reason");
+        int leader = record.getDefinition().getArms().indexOf(decision.leaderName());
+        boolean cleared = !decision.isStop() || record.getArms().get(leader).getGuardrails() == null
+                || record.getArms().get(leader).getGuardrails().stream()
+                        .allMatch(g -> g.getOutcome() == GuardrailOutcome.PASS || g.getOutcome() == GuardrailOutcome.REFERENCE);
+        boolean budget = decision.reason() == dev.runoff.engine.stopping.VerdictReason.BUDGET
+                || decision.guards().budgetExhausted();
+        boolean stop = decision.isStop() && (cleared || budget);
+        assertEquals(stop ? "STOP" : "CONTINUE", record.getDecision().name(), where + " decision");
+        String reason = cleared ? DecisionReasons.of(decision)
+                : budget ? (decision.guards().trialBudgetSpent() ? "budget" : "deadline")
+                : suspendedBy[leader] != null ? "guardrail-failed" : "guardrail-open";
+        assertEquals(reason, record.getReason(), where + " reason");
+        if (stop) {
+            String winner = cleared ? decision.leaderName() : record.getDefinition().getArms().get(reference);
+            assertEquals(winner, record.getWinner(), where + " winner");
+        }
     }
 
     /** First 8 bytes of SHA-256(experimentId ":" sequence), big-endian, computed here independently. */

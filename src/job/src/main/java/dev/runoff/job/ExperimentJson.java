@@ -9,11 +9,13 @@ import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
 import dev.runoff.records.CanonicalJson;
 import dev.runoff.decision.ExperimentState;
+import dev.runoff.decision.GuardrailCounts;
 import java.util.List;
 
 /**
  * The JSON view of an {@link ExperimentState} served at {@code /experiments/{id}}: status and winner, the
- * definition in force, each arm's statistics and last weight, the numbering of the outputs and their times.
+ * definition in force, each arm's statistics, last weight and guardrail counts, the numbering of the outputs
+ * and their times.
  */
 final class ExperimentJson {
 
@@ -56,6 +58,22 @@ final class ExperimentJson {
             } else {
                 arm.putNull("weight");
             }
+            guardrails(arm, state.guardrails(), i);
+        }
+    }
+
+    /**
+     * The arm's guardrail counts, when the definition has guardrails (the tests and suspensions are in the
+     * decision records).
+     */
+    private static void guardrails(ObjectNode arm, GuardrailCounts counts, int index) {
+        if (counts.guardrails().isEmpty()) {
+            return;
+        }
+        ArrayNode list = arm.putArray("guardrails");
+        for (int g = 0; g < counts.guardrails().size(); g++) {
+            list.addObject().put("guardrail", counts.guardrails().get(g)).put("counted", counts.counted(index, g))
+                    .put("hits", counts.hits(index, g));
         }
     }
 

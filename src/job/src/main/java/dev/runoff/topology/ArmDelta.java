@@ -11,8 +11,53 @@ import dev.runoff.engine.stats.ArmStats;
  *                     fold drops what predates the arm's latest addition)
  * @param stats        the statistics to merge (a delta: it may hold a success without its trial)
  * @param pending      the change of the arm's pending units (unit counting: exposed, window still open)
+ * @param signalUnits  per guardrail signal, how many of the units counted here had it
  */
-record ArmDelta(String experimentId, String arm, long version, ArmStats stats, long pending) {
+record ArmDelta(String experimentId, String arm, long version, ArmStats stats, long pending,
+                java.util.Map<String, Long> signalUnits) {
+
+    /** Copies the signal counts. */
+    ArmDelta {
+        signalUnits = java.util.Map.copyOf(signalUnits);
+    }
+
+    /** A delta without guardrail signals. */
+    ArmDelta(String experimentId, String arm, long version, ArmStats stats, long pending) {
+        this(experimentId, arm, version, stats, pending, java.util.Map.of());
+    }
+
+    /** {@code a} and {@code b} summed per signal. */
+    static java.util.Map<String, Long> sum(java.util.Map<String, Long> a, java.util.Map<String, Long> b) {
+        java.util.Map<String, Long> out = new java.util.TreeMap<>(a);
+        b.forEach((signal, units) -> out.merge(signal, units, Long::sum));
+        return out;
+    }
+
+    /** Writes signal counts: their number, then each signal and count, in signal order. */
+    static void writeSignals(BinaryOut out, java.util.Map<String, Long> signalUnits) {
+        out.writeInt(signalUnits.size());
+        new java.util.TreeMap<>(signalUnits).forEach((signal, units) -> out.writeString(signal).writeLong(units));
+    }
+
+    /** Reads what {@link #writeSignals} wrote. */
+    static java.util.Map<String, Long> readSignals(BinaryIn in) {
+        int count = in.readInt();
+        if (count < 0 || count > 1024) {
+            throw new IllegalArgumentException("corrupt internal value: " + count + " signal counts");
+        }
+        java.util.Map<String, Long> out = new java.util.TreeMap<>();
+        for (int i = 0; i < count; i++) {
+            out.put(in.readString(), in.readLong());
+        }
+        return out;
+    }
+
+    /** One unit's signals as counts of 1. */
+    static java.util.Map<String, Long> ofUnit(java.util.List<String> signals) {
+        java.util.Map<String, Long> out = new java.util.TreeMap<>();
+        signals.forEach(signal -> out.put(signal, 1L));
+        return out;
+    }
 
     /** {@code experimentId NUL arm NUL version}, the pre-aggregation key. */
     String key() {
@@ -20,10 +65,10 @@ record ArmDelta(String experimentId, String arm, long version, ArmStats stats, l
     }
 
     /** The inverse of {@link #key()} with the sums of that key. */
-    static ArmDelta of(String key, ArmStats stats, long pending) {
+    static ArmDelta of(String key, ArmStats stats, long pending, java.util.Map<String, Long> signalUnits) {
         int first = key.indexOf('\u0000');
         int last = key.lastIndexOf('\u0000');
         return new ArmDelta(key.substring(0, first), key.substring(first + 1, last),
-                Long.parseLong(key.substring(last + 1)), stats, pending);
+                Long.parseLong(key.substring(last + 1)), stats, pending, signalUnits);
     }
 }

@@ -132,6 +132,10 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
             value(event, timestamp, unit);
             return;
         }
+        if (event.role() == UnitEvent.Role.GUARDRAIL) {
+            signal(event, timestamp, key, unit, now);
+            return;
+        }
         UnitCounting.Step step = UnitCounting.convert(unit, event.timestamp(), event.arm() != null, now);
         switch (step.verdict()) {
             case TAKEN -> {
@@ -148,6 +152,21 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
             case LATE -> reject(event, timestamp, RejectReason.LATE_OUTCOME, "timestamp: the unit's conversion"
                     + " window closed at " + unit.closesAt() + " and it was counted as a failure before this"
                     + " success arrived");
+            default -> throw new IllegalStateException("unexpected verdict " + step.verdict());
+        }
+    }
+
+    /** A guardrail signal: marks the unit, which reports it when its window closes. */
+    private void signal(UnitEvent event, long timestamp, String key, UnitState unit, long now) {
+        UnitCounting.Step step = UnitCounting.signal(unit, event.signal(), event.timestamp(), now);
+        switch (step.verdict()) {
+            case TAKEN -> units.put(key, step.unit());
+            case OUTSIDE_WINDOW -> reject(event, timestamp, RejectReason.UNATTRIBUTED, "timestamp: "
+                    + (event.timestamp() - unit.firstTrialAt()) + " ms from the unit's first trial event, outside"
+                    + " the conversion window of " + unit.windowMs() + " ms");
+            case LATE -> reject(event, timestamp, RejectReason.LATE_OUTCOME, "timestamp: the unit's conversion"
+                    + " window closed at " + unit.closesAt() + " and it was counted for the guardrails before this"
+                    + " signal arrived");
             default -> throw new IllegalStateException("unexpected verdict " + step.verdict());
         }
     }
@@ -197,7 +216,8 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
     private void pass(UnitState unit, String experimentId, UnitCounting.Count count, long timestamp) {
         if (!count.isEmpty()) {
             forward(new ArmDelta(experimentId, unit.arm(), unit.version(),
-                    new BernoulliStats(count.trials(), count.successes()), count.pending()), timestamp);
+                    new BernoulliStats(count.trials(), count.successes()), count.pending(),
+                    ArmDelta.ofUnit(count.signals())), timestamp);
         }
     }
 

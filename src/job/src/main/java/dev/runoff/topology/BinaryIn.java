@@ -61,6 +61,11 @@ final class BinaryIn {
     }
 
     /** Throws unless every byte was read. */
+    /** Whether bytes remain to be read. */
+    boolean hasMore() {
+        return buffer.hasRemaining();
+    }
+
     void end() {
         if (buffer.hasRemaining()) {
             throw new IllegalArgumentException("corrupt internal value: " + buffer.remaining() + " bytes left over");

@@ -19,9 +19,11 @@ import java.util.Set;
  * @param attributionWindowMs its conversion (attribution) window
  * @param unitLevel           whether it counts units (Bernoulli metric with {@code UNIT} counting)
  * @param earlyGraceMs        how long an outcome that arrives before its unit's first trial event waits
+ * @param signals             the signals its guardrails count
  */
 record DefinitionView(String experimentId, long version, Set<String> arms, Metric metric, EventType trialEvent,
-                      EventType outcomeEvent, long attributionWindowMs, boolean unitLevel, long earlyGraceMs) {
+                      EventType outcomeEvent, long attributionWindowMs, boolean unitLevel, long earlyGraceMs,
+                      Set<String> signals) {
 
     static DefinitionView of(ExperimentDefinition def) {
         Metric metric = Definitions.metric(def);
@@ -29,7 +31,9 @@ record DefinitionView(String experimentId, long version, Set<String> arms, Metri
                 : def.getMetric().getValueEvent();
         return new DefinitionView(def.getExperimentId(), def.getVersion(), Set.copyOf(def.getArms()), metric,
                 def.getMetric().getTrialEvent(), outcome, def.getAttributionWindowMs(),
-                metric == Metric.BERNOULLI && Definitions.counting(def) == CountingMode.UNIT, Definitions.earlyOutcomeGraceMs(def));
+                metric == Metric.BERNOULLI && Definitions.counting(def) == CountingMode.UNIT,
+                Definitions.earlyOutcomeGraceMs(def), Definitions.guardrails(def).stream()
+                        .map(dev.runoff.records.avro.GuardrailSpec::getSignal).collect(java.util.stream.Collectors.toSet()));
     }
 
     /** The role of an event of type {@code type}, or {@code null} when the metric does not use it. */

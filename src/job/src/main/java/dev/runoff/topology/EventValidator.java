@@ -12,7 +12,8 @@ import org.apache.kafka.streams.processor.api.Record;
 /**
  * Stage 1, step 1: decodes and checks each outcome event (records package rules, time rules at the
  * injected wall clock), then checks it against the accepted definition of its experiment: known and not
- * ended, a type the metric uses, a known arm, an arm on trial events and a value on value events. Valid
+ * ended, a type the metric uses (or a signal one of its guardrails counts), a known arm, an arm on trial
+ * events and a value on value events. Valid
  * events go on keyed by experiment and unit; the others to the rejected topic with their reason.
  */
 final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], Routed<UnitEvent>> {
@@ -57,9 +58,14 @@ final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], R
     }
 
     private void check(Record<byte[], byte[]> record, OutcomeEvent event, DefinitionView view, Source source) {
-        UnitEvent.Role role = view.role(event.getType());
+        String signal = event.getSignal();
+        UnitEvent.Role role = signal != null ? UnitEvent.Role.GUARDRAIL : view.role(event.getType());
         String arm = event.getArm();
-        if (role == null) {
+        if (signal != null && !view.signals().contains(signal)) {
+            reject(record, RejectReason.UNKNOWN_SIGNAL.code(), "signal: " + quote(signal) + " is not counted by any"
+                    + " guardrail of experiment " + quote(view.experimentId()) + " (version " + view.version()
+                    + " counts " + new java.util.TreeSet<>(view.signals()) + ")", source);
+        } else if (role == null) {
             reject(record, RejectReason.EVENT_NOT_USED.code(), "type: " + event.getType()
                     + " is not used by the metric of experiment " + quote(view.experimentId()) + " ("
                     + view.describeEvents() + ")", source);
@@ -76,7 +82,7 @@ final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], R
             UnitEvent valid = new UnitEvent(event.getExperimentId(), event.getUnitId(), event.getEventId(), role,
                     view.metric(), arm, event.getValue() == null ? Double.NaN : event.getValue(),
                     event.getTimestamp(), view.attributionWindowMs(), view.version(), view.unitLevel(),
-                    view.earlyGraceMs(), source, record.key(), record.value());
+                    view.earlyGraceMs(), source, record.key(), record.value(), signal);
             context().forward(new Record<>(valid.unitKeyBytes(), Routed.pass(valid), record.timestamp(),
                     new RecordHeaders()));
         }

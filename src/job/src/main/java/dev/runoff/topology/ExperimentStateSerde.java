@@ -1,6 +1,7 @@
 package dev.runoff.topology;
 
 import dev.runoff.decision.ExperimentState;
+import dev.runoff.decision.GuardrailCounts;
 
 import dev.runoff.engine.stats.ArmStats;
 import java.util.ArrayList;
@@ -13,7 +14,9 @@ final class ExperimentStateSerde {
     static final InternalSerde<ExperimentState> SERDE =
             new InternalSerde<>(ExperimentStateSerde::encode, ExperimentStateSerde::decode);
 
-    private static final int FORMAT = 2;
+    private static final int FORMAT = 3;
+    /** The format before guardrail counts; entries an earlier job wrote are still read (no counts). */
+    private static final int FORMAT_WITHOUT_GUARDRAILS = 2;
 
     private ExperimentStateSerde() {
     }
@@ -40,13 +43,14 @@ final class ExperimentStateSerde {
             writeLongs(out, s.pending());
         }
         writeLongs(out, s.armSince());
+        writeGuardrails(out, s.guardrails());
         return out.toByteArray();
     }
 
     static ExperimentState decode(byte[] bytes) {
         BinaryIn in = new BinaryIn(bytes);
         int format = in.readByte();
-        if (format != FORMAT) {
+        if (format != FORMAT && format != FORMAT_WITHOUT_GUARDRAILS) {
             throw new IllegalArgumentException("experiment state format " + format + " is not " + FORMAT);
         }
         var definition = StageTwo.DefinitionBytes.decode(in.readBytes());
@@ -66,11 +70,43 @@ final class ExperimentStateSerde {
         boolean dirty = in.readBoolean();
         boolean due = in.readBoolean();
         long[] pending = in.readBoolean() ? readLongs(in, arms) : null;
+        long[] armSince = readLongs(in, arms);
+        GuardrailCounts guardrails = format == FORMAT ? readGuardrails(in, arms) : null;
         ExperimentState state = new ExperimentState(definition, stats, stop, decisionSequence, allocationSequence,
-                lastHash, lastWeights, startedAt, lastComputedAt, lastPublishedAt, dirty, due, pending,
-                readLongs(in, arms));
+                lastHash, lastWeights, startedAt, lastComputedAt, lastPublishedAt, dirty, due, pending, armSince,
+                guardrails);
         in.end();
         return state;
+    }
+
+    private static void writeGuardrails(BinaryOut out, GuardrailCounts counts) {
+        out.writeInt(counts.guardrails().size());
+        counts.guardrails().forEach(out::writeString);
+        for (int a = 0; a < counts.counted().length; a++) {
+            for (int g = 0; g < counts.guardrails().size(); g++) {
+                out.writeLong(counts.counted(a, g)).writeLong(counts.hits(a, g));
+            }
+        }
+    }
+
+    private static GuardrailCounts readGuardrails(BinaryIn in, int arms) {
+        int count = in.readInt();
+        if (count < 0 || count > 64) {
+            throw new IllegalArgumentException("corrupt experiment state: " + count + " guardrails");
+        }
+        List<String> names = new ArrayList<>(count);
+        for (int g = 0; g < count; g++) {
+            names.add(in.readString());
+        }
+        long[][] counted = new long[arms][count];
+        long[][] hits = new long[arms][count];
+        for (int a = 0; a < arms; a++) {
+            for (int g = 0; g < count; g++) {
+                counted[a][g] = in.readLong();
+                hits[a][g] = in.readLong();
+            }
+        }
+        return new GuardrailCounts(names, counted, hits);
     }
 
     private static ExperimentState.Stop readStop(BinaryIn in) {

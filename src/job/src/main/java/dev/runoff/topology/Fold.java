@@ -169,7 +169,7 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
             return;
         }
         experiments.put(delta.experimentId(), current.withDelta(index, delta.stats(), delta.pending(),
-                context().currentSystemTimeMs()));
+                context().currentSystemTimeMs()).withGuardrailUnits(index, delta.stats().trials(), delta.signalUnits()));
         counters.folded(delta.stats().trials());
     }
 

@@ -6,6 +6,7 @@ import java.nio.charset.StandardCharsets;
 import java.time.Duration;
 import java.util.ArrayList;
 import java.util.List;
+import java.util.Map;
 import org.apache.kafka.common.header.internals.RecordHeaders;
 import org.apache.kafka.streams.KeyValue;
 import org.apache.kafka.streams.processor.PunctuationType;
@@ -47,8 +48,9 @@ final class PreAggregate extends ContextualProcessor<byte[], ArmDelta, byte[], S
         ArmDelta delta = record.value();
         String key = delta.key();
         Sum sum = sums.get(key);
-        sums.put(key, sum == null ? new Sum(delta.stats(), delta.pending())
-                : new Sum(ArmStats.merge(sum.stats(), delta.stats()), sum.pending() + delta.pending()));
+        sums.put(key, sum == null ? new Sum(delta.stats(), delta.pending(), delta.signalUnits())
+                : new Sum(ArmStats.merge(sum.stats(), delta.stats()), sum.pending() + delta.pending(),
+                        ArmDelta.sum(sum.signalUnits(), delta.signalUnits())));
     }
 
     private void flush(long now) {
@@ -60,15 +62,19 @@ final class PreAggregate extends ContextualProcessor<byte[], ArmDelta, byte[], S
             resumeFrom = it.hasNext() ? it.peekNextKey() : null;
         }
         for (KeyValue<String, Sum> entry : batch) {
-            ArmDelta delta = ArmDelta.of(entry.key, entry.value.stats(), entry.value.pending());
+            ArmDelta delta = ArmDelta.of(entry.key, entry.value.stats(), entry.value.pending(),
+                    entry.value.signalUnits());
             context().forward(new Record<>(delta.experimentId().getBytes(StandardCharsets.UTF_8),
                     StageTwo.delta(delta), now, new RecordHeaders()));
             sums.delete(entry.key);
         }
     }
 
-    /** A stored sum: statistics and the change of pending units. */
-    record Sum(ArmStats stats, long pending) {
+    /**
+     * A stored sum: statistics, the change of pending units, and per guardrail signal the counted units that
+     * had it. Sums an earlier job stored end after the pending units; they read as having no signals.
+     */
+    record Sum(ArmStats stats, long pending, Map<String, Long> signalUnits) {
 
         /** Serde of the store. */
         static final InternalSerde<Sum> SERDE = new InternalSerde<>(Sum::encode, Sum::decode);
@@ -76,12 +82,14 @@ final class PreAggregate extends ContextualProcessor<byte[], ArmDelta, byte[], S
         private static byte[] encode(Sum sum) {
             BinaryOut out = new BinaryOut();
             Stats.write(out, sum.stats);
-            return out.writeLong(sum.pending).toByteArray();
+            out.writeLong(sum.pending);
+            ArmDelta.writeSignals(out, sum.signalUnits);
+            return out.toByteArray();
         }
 
         private static Sum decode(byte[] bytes) {
             BinaryIn in = new BinaryIn(bytes);
-            Sum sum = new Sum(Stats.read(in), in.readLong());
+            Sum sum = new Sum(Stats.read(in), in.readLong(), in.hasMore() ? ArmDelta.readSignals(in) : Map.of());
             in.end();
             return sum;
         }

@@ -32,6 +32,8 @@ public enum RejectReason {
     EXCESS_SUCCESS,
     /** Unit counting: a success within the window that arrived after the window closed and the unit was counted. */
     LATE_OUTCOME,
+    /** An event whose guardrail signal no guardrail of the experiment counts. */
+    UNKNOWN_SIGNAL,
     /** A definition whose record key differs from its experimentId. */
     KEY_MISMATCH,
     /** A definition that changes the metric kind or the counting mode: start a new experiment instead. */

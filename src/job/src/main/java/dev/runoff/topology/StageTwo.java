@@ -20,14 +20,17 @@ import java.util.Objects;
  * @param stats        DELTA: the statistics to merge; otherwise {@code null}
  * @param pending      DELTA: the change of the arm's pending units; otherwise 0
  * @param definition   DEFINITION: the validated definition as submitted; otherwise {@code null}
+ * @param signalUnits  DELTA: per guardrail signal, the counted units that had it; otherwise empty
  */
 record StageTwo(Kind kind, String experimentId, String arm, long version, ArmStats stats, long pending,
-                ExperimentDefinition definition) {
+                ExperimentDefinition definition, java.util.Map<String, Long> signalUnits) {
 
     /** Serde of the repartition topic. */
     static final InternalSerde<StageTwo> SERDE = new InternalSerde<>(StageTwo::encode, StageTwo::decode);
 
-    private static final int FORMAT = 2;
+    private static final int FORMAT = 3;
+    /** The format before guardrail signals; still read, from a repartition topic an earlier job wrote. */
+    private static final int FORMAT_WITHOUT_SIGNALS = 2;
 
     /** Checks that the fields of the kind are present. */
     StageTwo {
@@ -40,6 +43,13 @@ record StageTwo(Kind kind, String experimentId, String arm, long version, ArmSta
         if (kind == Kind.DEFINITION) {
             Objects.requireNonNull(definition, "definition");
         }
+        signalUnits = java.util.Map.copyOf(signalUnits);
+    }
+
+    /** An envelope without guardrail signals. */
+    StageTwo(Kind kind, String experimentId, String arm, long version, ArmStats stats, long pending,
+             ExperimentDefinition definition) {
+        this(kind, experimentId, arm, version, stats, pending, definition, java.util.Map.of());
     }
 
     /** What the envelope carries. */
@@ -54,7 +64,7 @@ record StageTwo(Kind kind, String experimentId, String arm, long version, ArmSta
 
     static StageTwo delta(ArmDelta delta) {
         return new StageTwo(Kind.DELTA, delta.experimentId(), delta.arm(), delta.version(), delta.stats(),
-                delta.pending(), null);
+                delta.pending(), null, delta.signalUnits());
     }
 
     static StageTwo definition(ExperimentDefinition definition) {
@@ -72,6 +82,7 @@ record StageTwo(Kind kind, String experimentId, String arm, long version, ArmSta
                 out.writeString(s.arm).writeLong(s.version);
                 Stats.write(out, s.stats);
                 out.writeLong(s.pending);
+                ArmDelta.writeSignals(out, s.signalUnits);
             }
             case DEFINITION -> out.writeBytes(DefinitionBytes.encode(s.definition));
             case ENDED -> {
@@ -84,14 +95,14 @@ record StageTwo(Kind kind, String experimentId, String arm, long version, ArmSta
     private static StageTwo decode(byte[] bytes) {
         BinaryIn in = new BinaryIn(bytes);
         int format = in.readByte();
-        if (format != FORMAT) {
+        if (format != FORMAT && format != FORMAT_WITHOUT_SIGNALS) {
             throw new IllegalArgumentException("stage-two format " + format + " is not " + FORMAT);
         }
         Kind kind = Kind.values()[in.readByte()];
         String experimentId = in.readString();
         StageTwo result = switch (kind) {
             case DELTA -> new StageTwo(kind, experimentId, in.readString(), in.readLong(), Stats.read(in),
-                    in.readLong(), null);
+                    in.readLong(), null, format == FORMAT ? ArmDelta.readSignals(in) : java.util.Map.of());
             case DEFINITION -> new StageTwo(kind, experimentId, null, 0, null, 0,
                     DefinitionBytes.decode(in.readBytes()));
             case ENDED -> new StageTwo(kind, experimentId, null, 0, null, 0, null);
@@ -116,12 +127,9 @@ record StageTwo(Kind kind, String experimentId, String arm, long version, ArmSta
             }
         }
 
+        /** Reads definitions of the current schema and of every earlier one, which older jobs wrote. */
         static ExperimentDefinition decode(byte[] bytes) {
-            try {
-                return ExperimentDefinition.fromByteBuffer(ByteBuffer.wrap(bytes));
-            } catch (IOException e) {
-                throw new UncheckedIOException("corrupt internal definition", e);
-            }
+            return dev.runoff.records.Definitions.fromInternalBytes(bytes);
         }
     }
 }

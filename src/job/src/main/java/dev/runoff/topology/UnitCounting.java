@@ -27,11 +27,24 @@ final class UnitCounting {
     private UnitCounting() {
     }
 
-    /** What a step adds to the unit's arm: trials, successes and the change of the arm's pending units. */
-    record Count(long trials, long successes, long pending) {
+    /**
+     * What a step adds to the unit's arm: trials, successes, the change of the arm's pending units, and the
+     * guardrail signals of a unit counted now.
+     */
+    record Count(long trials, long successes, long pending, java.util.List<String> signals) {
 
         /** Nothing to add. */
         static final Count NONE = new Count(0, 0, 0);
+
+        /** Copies the signals. */
+        Count {
+            signals = java.util.List.copyOf(signals);
+        }
+
+        /** A count without signals. */
+        Count(long trials, long successes, long pending) {
+            this(trials, successes, pending, java.util.List.of());
+        }
 
         boolean isEmpty() {
             return trials == 0 && successes == 0 && pending == 0;
@@ -84,7 +97,7 @@ final class UnitCounting {
         }
         UnitState next = new UnitState(unit.arm(), unit.version(), unit.unitLevel(), unit.firstTrialAt(),
                 Math.max(unit.lastTrialAt(), timestamp), unit.trials() + 1, unit.successes(),
-                unit.unitLevel() ? unit.windowMs() : windowMs, unit.counted(), now);
+                unit.unitLevel() ? unit.windowMs() : windowMs, unit.counted(), now, unit.signals());
         return new Step(next, unit.unitLevel() ? Count.NONE : new Count(1, 0, 0), Verdict.TAKEN);
     }
 
@@ -117,6 +130,22 @@ final class UnitCounting {
             return Step.refused(unit, Verdict.EXCESS);
         }
         return new Step(withSuccess(unit, now), new Count(0, 1, 0), Verdict.TAKEN);
+    }
+
+    /**
+     * A guardrail signal event stamped {@code timestamp}, seen at wall-clock {@code now} (unit counting, which
+     * guardrails need): the unit gets the signal (a second one changes nothing) when the event lies within
+     * the window of its first exposure (either side, as for successes) and the unit has not been counted yet.
+     */
+    static Step signal(UnitState unit, String signal, long timestamp, long now) {
+        long gap = timestamp - unit.firstTrialAt();
+        if (gap > unit.windowMs() || gap < -unit.windowMs()) {
+            return Step.refused(unit, Verdict.OUTSIDE_WINDOW);
+        }
+        if (unit.counted()) {
+            return Step.refused(unit, Verdict.LATE);
+        }
+        return new Step(unit.withSignal(signal, now), Count.NONE, Verdict.TAKEN);
     }
 
     /**
@@ -161,12 +190,12 @@ final class UnitCounting {
             return new Step(unit, Count.NONE, Verdict.TAKEN);
         }
         UnitState counted = new UnitState(unit.arm(), unit.version(), true, unit.firstTrialAt(), unit.lastTrialAt(),
-                unit.trials(), unit.successes(), unit.windowMs(), true, now);
-        return new Step(counted, new Count(1, unit.successes() > 0 ? 1 : 0, -1), Verdict.TAKEN);
+                unit.trials(), unit.successes(), unit.windowMs(), true, now, unit.signals());
+        return new Step(counted, new Count(1, unit.successes() > 0 ? 1 : 0, -1, unit.signals()), Verdict.TAKEN);
     }
 
     private static UnitState withSuccess(UnitState unit, long now) {
         return new UnitState(unit.arm(), unit.version(), unit.unitLevel(), unit.firstTrialAt(), unit.lastTrialAt(),
-                unit.trials(), unit.successes() + 1, unit.windowMs(), unit.counted(), now);
+                unit.trials(), unit.successes() + 1, unit.windowMs(), unit.counted(), now, unit.signals());
     }
 }

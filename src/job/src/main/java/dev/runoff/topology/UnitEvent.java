@@ -25,15 +25,18 @@ import java.util.Objects;
  * @param source              where the record was read
  * @param originalKey         the original record key, or {@code null}
  * @param originalValue       the original record value
+ * @param signal              GUARDRAIL: the signal the event carries; otherwise {@code null}
  */
 record UnitEvent(String experimentId, String unitId, String eventId, Role role, Metric metric, String arm,
                  double value, long timestamp, long attributionWindowMs, long version, boolean unitLevel,
-                 long earlyGraceMs, Source source, byte[] originalKey, byte[] originalValue) {
+                 long earlyGraceMs, Source source, byte[] originalKey, byte[] originalValue, String signal) {
 
     /** Serde of the repartition topic. */
     static final InternalSerde<UnitEvent> SERDE = new InternalSerde<>(UnitEvent::encode, UnitEvent::decode);
 
-    private static final int FORMAT = 2;
+    private static final int FORMAT = 3;
+    /** The format before guardrail signals (no signal field); still read, from a repartition topic an earlier job wrote. */
+    private static final int FORMAT_WITHOUT_SIGNAL = 2;
 
     /** Checks the fields every step relies on. */
     UnitEvent {
@@ -44,6 +47,18 @@ record UnitEvent(String experimentId, String unitId, String eventId, Role role, 
         Objects.requireNonNull(metric, "metric");
         Objects.requireNonNull(source, "source");
         Objects.requireNonNull(originalValue, "originalValue");
+        if ((role == Role.GUARDRAIL) != (signal != null)) {
+            throw new IllegalArgumentException("signal must be set for role GUARDRAIL only, got " + signal
+                    + " for " + role);
+        }
+    }
+
+    /** An event without a guardrail signal. */
+    UnitEvent(String experimentId, String unitId, String eventId, Role role, Metric metric, String arm, double value,
+              long timestamp, long attributionWindowMs, long version, boolean unitLevel, long earlyGraceMs,
+              Source source, byte[] originalKey, byte[] originalValue) {
+        this(experimentId, unitId, eventId, role, metric, arm, value, timestamp, attributionWindowMs, version,
+                unitLevel, earlyGraceMs, source, originalKey, originalValue, null);
     }
 
     /** What an event is for the metric of its experiment. */
@@ -53,7 +68,9 @@ record UnitEvent(String experimentId, String unitId, String eventId, Role role, 
         /** The Bernoulli metric's success event. */
         SUCCESS,
         /** The value metric's value event: one observation. */
-        VALUE
+        VALUE,
+        /** An event with a guardrail signal: marks its unit for the guardrails that count the signal. */
+        GUARDRAIL
     }
 
     /** {@code experimentId NUL unitId}: ids hold no control characters, so the key is unambiguous. */
@@ -78,19 +95,21 @@ record UnitEvent(String experimentId, String unitId, String eventId, Role role, 
                 .writeLong(e.attributionWindowMs).writeLong(e.version).writeBoolean(e.unitLevel)
                 .writeLong(e.earlyGraceMs);
         e.source.write(out);
-        return out.writeNullableBytes(e.originalKey).writeBytes(e.originalValue).toByteArray();
+        return out.writeNullableBytes(e.originalKey).writeBytes(e.originalValue).writeNullableString(e.signal)
+                .toByteArray();
     }
 
     private static UnitEvent decode(byte[] bytes) {
         BinaryIn in = new BinaryIn(bytes);
         int format = in.readByte();
-        if (format != FORMAT) {
+        if (format != FORMAT && format != FORMAT_WITHOUT_SIGNAL) {
             throw new IllegalArgumentException("unit event format " + format + " is not " + FORMAT);
         }
         UnitEvent event = new UnitEvent(in.readString(), in.readString(), in.readString(),
                 Role.values()[in.readByte()], Metric.values()[in.readByte()], in.readNullableString(),
-                in.readDouble(), in.readLong(), in.readLong(), in.readLong(), in.readBoolean(), in.readLong(), Source.read(in), in.readNullableBytes(),
-                in.readBytes());
+                in.readDouble(), in.readLong(), in.readLong(), in.readLong(), in.readBoolean(), in.readLong(),
+                Source.read(in), in.readNullableBytes(), in.readBytes(),
+                format == FORMAT ? in.readNullableString() : null);
         in.end();
         return event;
     }

@@ -1,5 +1,8 @@
 package dev.runoff.topology;
 
+import java.util.ArrayList;
+import java.util.List;
+
 
 /**
  * What attribution keeps per (experiment, unit); {@link UnitCounting} decides how it changes.
@@ -16,14 +19,37 @@ package dev.runoff.topology;
  *                     last update (per exposure)
  * @param counted      unit counting: whether the unit has entered its arm's trials (its window closed)
  * @param touchedAt    wall-clock time of the last update, for the clean-up
+ * @param signals      unit counting: the guardrail signals the unit had within its window, sorted, each once
  */
 record UnitState(String arm, long version, boolean unitLevel, long firstTrialAt, long lastTrialAt, long trials,
-                 long successes, long windowMs, boolean counted, long touchedAt) {
+                 long successes, long windowMs, boolean counted, long touchedAt, List<String> signals) {
 
     /** Serde of the units store. */
     static final InternalSerde<UnitState> SERDE = new InternalSerde<>(UnitState::encode, UnitState::decode);
 
-    private static final int FORMAT = 2;
+    private static final int FORMAT = 3;
+    /** The format before guardrail signals; entries an earlier job wrote are still read (no signals). */
+    private static final int FORMAT_WITHOUT_SIGNALS = 2;
+
+    /** Copies the signals. */
+    UnitState {
+        signals = List.copyOf(signals);
+    }
+
+    /** A unit without guardrail signals. */
+    UnitState(String arm, long version, boolean unitLevel, long firstTrialAt, long lastTrialAt, long trials,
+              long successes, long windowMs, boolean counted, long touchedAt) {
+        this(arm, version, unitLevel, firstTrialAt, lastTrialAt, trials, successes, windowMs, counted, touchedAt,
+                List.of());
+    }
+
+    /** This unit with {@code signal} among its signals (once), touched at {@code now}. */
+    UnitState withSignal(String signal, long now) {
+        java.util.TreeSet<String> all = new java.util.TreeSet<>(signals);
+        all.add(signal);
+        return new UnitState(arm, version, unitLevel, firstTrialAt, lastTrialAt, trials, successes, windowMs, counted,
+                now, List.copyOf(all));
+    }
 
     /** When the unit's conversion window closes: its first trial event's timestamp plus the window. */
     long closesAt() {
@@ -37,20 +63,36 @@ record UnitState(String arm, long version, boolean unitLevel, long firstTrialAt,
     }
 
     private static byte[] encode(UnitState u) {
-        return new BinaryOut().writeByte(FORMAT).writeString(u.arm).writeLong(u.version).writeBoolean(u.unitLevel)
-                .writeLong(u.firstTrialAt).writeLong(u.lastTrialAt).writeLong(u.trials).writeLong(u.successes)
-                .writeLong(u.windowMs).writeBoolean(u.counted).writeLong(u.touchedAt).toByteArray();
+        BinaryOut out = new BinaryOut().writeByte(FORMAT).writeString(u.arm).writeLong(u.version)
+                .writeBoolean(u.unitLevel).writeLong(u.firstTrialAt).writeLong(u.lastTrialAt).writeLong(u.trials)
+                .writeLong(u.successes).writeLong(u.windowMs).writeBoolean(u.counted).writeLong(u.touchedAt)
+                .writeInt(u.signals.size());
+        u.signals.forEach(out::writeString);
+        return out.toByteArray();
     }
 
     private static UnitState decode(byte[] bytes) {
         BinaryIn in = new BinaryIn(bytes);
         int format = in.readByte();
-        if (format != FORMAT) {
+        if (format != FORMAT && format != FORMAT_WITHOUT_SIGNALS) {
             throw new IllegalArgumentException("unit entry format " + format + " is not " + FORMAT);
         }
         UnitState state = new UnitState(in.readString(), in.readLong(), in.readBoolean(), in.readLong(),
-                in.readLong(), in.readLong(), in.readLong(), in.readLong(), in.readBoolean(), in.readLong());
+                in.readLong(), in.readLong(), in.readLong(), in.readLong(), in.readBoolean(), in.readLong(),
+                format == FORMAT ? readSignals(in) : List.of());
         in.end();
         return state;
+    }
+
+    private static List<String> readSignals(BinaryIn in) {
+        int count = in.readInt();
+        if (count < 0 || count > 64) {
+            throw new IllegalArgumentException("corrupt unit entry: " + count + " signals");
+        }
+        List<String> signals = new ArrayList<>(count);
+        for (int i = 0; i < count; i++) {
+            signals.add(in.readString());
+        }
+        return signals;
     }
 }

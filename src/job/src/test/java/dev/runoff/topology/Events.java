@@ -20,6 +20,14 @@ final class Events {
         return json(experiment, unit, eventId, "VALUE", timestamp, arm, value);
     }
 
+    /** A CONVERSION event carrying a guardrail signal, arm-less (attributed to the unit's arm). */
+    static byte[] signal(String experiment, String unit, String eventId, String signal, long timestamp) {
+        String json = new String(json(experiment, unit, eventId, "CONVERSION", timestamp, null, null),
+                StandardCharsets.UTF_8);
+        return (json.substring(0, json.length() - 1) + ",\"signal\":\"" + signal + "\"}")
+                .getBytes(StandardCharsets.UTF_8);
+    }
+
     static byte[] json(String experiment, String unit, String eventId, String type, long timestamp, String arm,
                        Double value) {
         StringBuilder json = new StringBuilder(160).append("{\"experimentId\":\"").append(experiment)

@@ -103,6 +103,7 @@ final class DecisionRecordRules implements RecordRules<DecisionRecord> {
             }
             arm.closed("weightBeforeGuards", state.getWeightBeforeGuards(), 0, 1);
             arm.closed("weight", state.getWeight(), 0, 1);
+            GuardrailRules.checkStates(state, def, arm);
             before += state.getWeightBeforeGuards();
             after += state.getWeight();
         }

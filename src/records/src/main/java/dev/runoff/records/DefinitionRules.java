@@ -35,6 +35,7 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
             problems.add("afterStop", Reason.INCONSISTENT, "ALL_TO_CONTROL needs a controlArm");
         }
         checkPeriods(def, problems);
+        GuardrailRules.check(def, problems);
     }
 
     @Override

@@ -15,6 +15,8 @@ public final class Definitions {
 
     private static final RecordCodec<ExperimentDefinition> CODEC = RecordCodec.definitions();
     private static final String VERSION_FIELD = "version";
+    private static final org.apache.avro.message.BinaryMessageDecoder<ExperimentDefinition> INTERNAL_DECODER =
+            internalDecoder();
 
     /** Early-outcome grace of a definition that leaves {@code earlyOutcomeGraceMs} unset. */
     public static final long DEFAULT_EARLY_OUTCOME_GRACE_MS = 60_000L;
@@ -96,6 +98,32 @@ public final class Definitions {
     public static long earlyOutcomeGraceMs(ExperimentDefinition definition) {
         Long grace = definition.getEarlyOutcomeGraceMs();
         return grace == null ? DEFAULT_EARLY_OUTCOME_GRACE_MS : grace;
+    }
+
+    /**
+     * A definition from Avro single-object bytes written with the current schema or any earlier one
+     * ({@link WriterSchemas}), without the validation rules: for internal stores and topics whose entries
+     * were validated when they entered, and which a job of an earlier version may have written.
+     *
+     * @throws java.io.UncheckedIOException when the bytes are not such a definition
+     */
+    public static ExperimentDefinition fromInternalBytes(byte[] bytes) {
+        try {
+            return INTERNAL_DECODER.decode(bytes);
+        } catch (java.io.IOException e) {
+            throw new java.io.UncheckedIOException("corrupt internal definition", e);
+        }
+    }
+
+    private static org.apache.avro.message.BinaryMessageDecoder<ExperimentDefinition> internalDecoder() {
+        org.apache.avro.message.SchemaStore.Cache store = new org.apache.avro.message.SchemaStore.Cache();
+        WriterSchemas.previous("ExperimentDefinition").forEach(store::addSchema);
+        return ExperimentDefinition.createDecoder(store);
+    }
+
+    /** The definition's guardrails, in order; empty when it has none. */
+    public static java.util.List<dev.runoff.records.avro.GuardrailSpec> guardrails(ExperimentDefinition definition) {
+        return definition.getGuardrails() == null ? java.util.List.of() : definition.getGuardrails();
     }
 
     /** The metric kind of {@code definition}. */

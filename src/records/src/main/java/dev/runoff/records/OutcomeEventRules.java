@@ -3,7 +3,7 @@ package dev.runoff.records;
 import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.OutcomeEvent;
 
-/** Rules of {@link OutcomeEvent}: ids, arm and value by event type, timestamp range. */
+/** Rules of {@link OutcomeEvent}: ids, arm and value by event type, guardrail signal, timestamp range. */
 final class OutcomeEventRules implements RecordRules<OutcomeEvent> {
 
     @Override
@@ -18,6 +18,7 @@ final class OutcomeEventRules implements RecordRules<OutcomeEvent> {
             problems.add("arm", Reason.MISSING, "missing (an EXPOSURE must name its arm)");
         }
         checkValue(event.getValue(), type, limits, problems);
+        GuardrailRules.checkSignal(event.getSignal(), type == EventType.EXPOSURE, problems);
     }
 
     private static void checkValue(Double value, EventType type, Limits limits, Problems problems) {

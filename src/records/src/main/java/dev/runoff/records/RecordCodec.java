@@ -61,15 +61,22 @@ public final class RecordCodec<T extends SpecificRecord> {
         this.checks = new SchemaChecks(limits);
     }
 
-    /** Codec of outcome events, with the default limits and inputs of at most 16 KiB. */
+    /**
+     * Codec of outcome events, with the default limits and inputs of at most 16 KiB; also reads Avro written
+     * with every earlier version of the schema ({@link WriterSchemas}).
+     */
     public static RecordCodec<OutcomeEvent> outcomeEvents() {
         return new RecordCodec<>(OutcomeEvent.class, Limits.DEFAULT.withMaxBytes(EVENT_MAX_BYTES), false,
-                new OutcomeEventRules(), List.of());
+                new OutcomeEventRules(), WriterSchemas.previous("OutcomeEvent"));
     }
 
-    /** Codec of experiment definitions, with the default limits; unknown JSON fields are rejected. */
+    /**
+     * Codec of experiment definitions, with the default limits; unknown JSON fields are rejected; also reads
+     * Avro written with every earlier version of the schema ({@link WriterSchemas}).
+     */
     public static RecordCodec<ExperimentDefinition> definitions() {
-        return new RecordCodec<>(ExperimentDefinition.class, Limits.DEFAULT, true, new DefinitionRules(), List.of());
+        return new RecordCodec<>(ExperimentDefinition.class, Limits.DEFAULT, true, new DefinitionRules(),
+                WriterSchemas.previous("ExperimentDefinition"));
     }
 
     /**

@@ -8,7 +8,9 @@ import java.util.List;
 import org.apache.avro.Schema;
 
 /**
- * Earlier versions of the output schemas, kept so that Avro records written before a change still decode.
+ * Earlier versions of the output schemas, of the outcome event (which older clients keep writing) and of the
+ * definition (which the job's stores and the definitions topic hold), kept so that Avro records written before
+ * a change still decode.
  * Rule: whenever a released schema of an output record changes, its last released text (as
  * {@code Schema.toString(true)} printed it, every named type inlined) is added as
  * {@code dev/runoff/records/writers/NAME-N.avsc} (N = 1, 2, ...) and never removed; the codecs register every
@@ -20,6 +22,8 @@ final class WriterSchemas {
     /** How many earlier versions each record has; a change adds one. */
     private static final int DECISION_RECORD_VERSIONS = 3;
     private static final int ALLOCATION_UPDATE_VERSIONS = 1;
+    private static final int OUTCOME_EVENT_VERSIONS = 1;
+    private static final int EXPERIMENT_DEFINITION_VERSIONS = 1;
 
     private WriterSchemas() {
     }
@@ -29,6 +33,8 @@ final class WriterSchemas {
         int count = switch (name) {
             case "DecisionRecord" -> DECISION_RECORD_VERSIONS;
             case "AllocationUpdate" -> ALLOCATION_UPDATE_VERSIONS;
+            case "OutcomeEvent" -> OUTCOME_EVENT_VERSIONS;
+            case "ExperimentDefinition" -> EXPERIMENT_DEFINITION_VERSIONS;
             default -> 0;
         };
         List<Schema> schemas = new ArrayList<>(count);

@@ -11,7 +11,10 @@ import dev.runoff.engine.posterior.NormalGammaPrior;
 import dev.runoff.records.avro.AfterStopPolicy;
 import dev.runoff.records.avro.AllocationRule;
 import dev.runoff.records.avro.BetaParams;
+import dev.runoff.records.avro.CountingMode;
 import dev.runoff.records.avro.EventType;
+import dev.runoff.records.avro.GuardrailDirection;
+import dev.runoff.records.avro.GuardrailSpec;
 import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.records.avro.MetricKind;
 import dev.runoff.records.avro.NormalGammaPriorSpec;
@@ -74,6 +77,27 @@ class DefinitionValidationTest {
                         Reason.INCONSISTENT, "TOP_TWO_EI needs metric.kind VALUE"),
                 broken("max step of 0", d -> d.getAllocation().setMaxStep(0.0), "allocation.maxStep",
                         Reason.OUT_OF_RANGE, "must be in (0, 1], got 0.0"),
+                broken("six guardrails", d -> d.setGuardrails(List.of(failedPayments(), guard("b", "x"),
+                        guard("c", "x"), guard("d", "x"), guard("e", "x"), guard("f", "x"))), "guardrails",
+                        Reason.TOO_MANY, "6 items, at most 5"),
+                broken("two guardrails of one name", d -> d.setGuardrails(List.of(failedPayments(),
+                        guard("failed-payments", "refund"))), "guardrails[1].name", Reason.DUPLICATE,
+                        "'failed-payments' appears twice"),
+                broken("guardrail signal with capitals", d -> d.setGuardrails(List.of(guard("errors", "Payment"))),
+                        "guardrails[0].signal", Reason.INVALID_TEXT, "'Payment' must be 1 to 64 of a-z 0-9 and -"),
+                broken("guardrail margin of 1 when lower is worse", d -> d.setGuardrails(List.of(
+                        new GuardrailSpec("loads", "page-loaded", GuardrailDirection.LOWER_IS_WORSE, 1.0, 0.05))),
+                        "guardrails[0].margin", Reason.OUT_OF_RANGE, "must be in [0, 1) when lower is worse"),
+                broken("negative guardrail margin", d -> d.setGuardrails(List.of(
+                        new GuardrailSpec("errors", "error", GuardrailDirection.HIGHER_IS_WORSE, -0.1, 0.05))),
+                        "guardrails[0].margin", Reason.OUT_OF_RANGE, "got -0.1"),
+                broken("guardrail alpha of 0", d -> d.setGuardrails(List.of(
+                        new GuardrailSpec("errors", "error", GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.0))),
+                        "guardrails[0].alpha", Reason.OUT_OF_RANGE, "must be in (0.0, 1.0), got 0.0"),
+                broken("guardrails with exposure counting", d -> {
+                    d.setCounting(CountingMode.EXPOSURE);
+                    d.setGuardrails(List.of(failedPayments()));
+                }, "guardrails", Reason.INCONSISTENT, "need metric.kind BERNOULLI with counting UNIT"),
                 broken("negative warm-up", d -> d.getAllocation().setWarmUpTrials(-1), "allocation.warmUpTrials",
                         Reason.OUT_OF_RANGE, "must be >= 0, got -1"),
                 broken("indifference rule without epsilon", d -> d.getStopping().setEpsilon(null),
@@ -263,6 +287,23 @@ class DefinitionValidationTest {
         ExperimentDefinition def = Samples.bernoulli();
         def.getMetric().setKind(MetricKind.VALUE);
         assertThrows(IllegalArgumentException.class, () -> Definitions.prior(def));
+    }
+
+    @Test
+    void aDefinitionWithGuardrailsIsValid() {
+        ExperimentDefinition def = Samples.bernoulli();
+        def.setGuardrails(List.of(failedPayments(), new GuardrailSpec("loads", "page-loaded",
+                GuardrailDirection.LOWER_IS_WORSE, 0.05, 0.01)));
+        Decoded<ExperimentDefinition> decoded = Definitions.validate(def, Samples.NOW);
+        assertTrue(decoded.isValid(), decoded.problems().toString());
+    }
+
+    private static GuardrailSpec failedPayments() {
+        return guard("failed-payments", "payment-failed");
+    }
+
+    private static GuardrailSpec guard(String name, String signal) {
+        return new GuardrailSpec(name, signal, GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.05);
     }
 
     private static Arguments broken(String name, Consumer<ExperimentDefinition> change, String field, Reason reason,

@@ -55,6 +55,11 @@ class HostileInputTest {
                         "timestamp", Reason.WRONG_TYPE, "expected an integer, got the number 1.6999999990005E12"),
                 event("timestamp beyond 64 bits", utf8(EVENT.replace("1699999999000", "99999999999999999999")),
                         "timestamp", Reason.OUT_OF_RANGE, "'99999999999999999999' does not fit in 64 bits"),
+                event("malformed guardrail signal", utf8(EVENT.replace("}", ",\"signal\":\"Payment Failed\"}")),
+                        "signal", Reason.INVALID_TEXT, "'Payment Failed' must be 1 to 64 of a-z 0-9 and -"),
+                event("guardrail signal on an exposure", utf8(EVENT.replace("CLICK", "EXPOSURE")
+                        .replace("}", ",\"signal\":\"payment-failed\"}")), "signal", Reason.INCONSISTENT,
+                        "must be null for EXPOSURE events"),
                 event("negative timestamp", utf8(EVENT.replace("1699999999000", "-5")), "timestamp",
                         Reason.OUT_OF_RANGE, "must be >= 0, got -5"),
                 event("timestamp in 2100", utf8(EVENT.replace("1699999999000", "4102444800000")), "timestamp",
@@ -107,6 +112,7 @@ class HostileInputTest {
                 event("Avro enum index beyond the symbols", avroEvent(encoder -> {
                     encoder.writeEnum(9);
                     encoder.writeLong(5);
+                    encoder.writeIndex(0);
                     encoder.writeIndex(0);
                     encoder.writeIndex(0);
                 }), "record", Reason.MALFORMED_AVRO, "avro: truncated or corrupt body (ArrayIndexOutOfBoundsException"),

@@ -8,6 +8,8 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.records.avro.AllocationUpdate;
 import dev.runoff.records.avro.DecisionRecord;
+import dev.runoff.records.avro.EventType;
+import dev.runoff.records.avro.OutcomeEvent;
 import java.io.ByteArrayOutputStream;
 import java.nio.ByteBuffer;
 import java.util.List;
@@ -76,8 +78,8 @@ class SchemaCompatibilityTest {
     void aDecisionRecordWrittenByEveryEarlierSchemaDecodesAndKeepsItsHash() throws Exception {
         DecisionRecord original = Samples.decision();
         List<Schema> writers = WriterSchemas.previous("DecisionRecord");
-        assertEquals(3, writers.size(), "DecisionRecord-1 (first release), -2 (signature and counting fields) and -3"
-                + " (adaptive rule and estimator field)");
+        assertEquals(3, writers.size(), "DecisionRecord-1 (first release), -2 (signature and counting fields) and"
+                + " -3 (adaptive rule and estimator field)");
         for (Schema writer : writers) {
             Decoded<DecisionRecord> decoded = RecordCodec.decisionRecords().decode(writtenBy(writer, original),
                     Samples.NOW);
@@ -90,23 +92,31 @@ class SchemaCompatibilityTest {
     }
 
     @Test
-    void theLatestEarlierDecisionSchemaIsTheOneWithoutTheSequentialTRule() {
-        Schema latest = WriterSchemas.previous("DecisionRecord").get(2);
-        List<String> symbols = latest.getField("stoppingRule").schema().getEnumSymbols();
-        assertFalse(symbols.contains("SEQUENTIAL_T"), symbols.toString());
-        assertTrue(DecisionRecord.getClassSchema().getField("stoppingRule").schema().getEnumSymbols()
-                .contains("SEQUENTIAL_T"));
-        assertNotEquals(SchemaNormalization.parsingFingerprint64(latest),
-                SchemaNormalization.parsingFingerprint64(DecisionRecord.getClassSchema()));
-    }
-
-    @Test
     void aControlRecordWrittenByThePreviousSchemaDecodes() throws Exception {
         AllocationUpdate original = Samples.update();
         Decoded<AllocationUpdate> decoded = RecordCodec.allocationUpdates()
                 .decode(writtenBy(writer("AllocationUpdate"), original), Samples.NOW);
         assertTrue(decoded.isValid(), decoded.problems().toString());
         assertEquals(original, decoded.orThrow());
+    }
+
+    @Test
+    void theLastWriterSchemaIsTheOneBeforeTheGuardrailFields() {
+        Schema last = WriterSchemas.previous("DecisionRecord").get(2);
+        assertNull(last.getField("arms").schema().getElementType().getField("guardrails"));
+        assertNull(last.getField("arms").schema().getElementType().getField("suspendedBy"));
+    }
+
+    @Test
+    void anOutcomeEventWrittenByAClientBeforeTheSignalFieldDecodes() throws Exception {
+        OutcomeEvent original = OutcomeEvent.newBuilder().setExperimentId("ferry-layout").setUnitId("u-1")
+                .setEventId("e-1").setType(EventType.CONVERSION).setTimestamp(Samples.NOW).setArm("a").build();
+        Schema writer = WriterSchemas.previous("OutcomeEvent").get(0);
+        assertNull(writer.getField("signal"));
+        Decoded<OutcomeEvent> decoded = RecordCodec.outcomeEvents().decode(writtenBy(writer, original), Samples.NOW);
+        assertTrue(decoded.isValid(), decoded.problems().toString());
+        assertEquals(original, decoded.orThrow());
+        assertAddedFieldsAreWhenSet(OutcomeEvent.getClassSchema(), writer, "OutcomeEvent");
     }
 
     @Test

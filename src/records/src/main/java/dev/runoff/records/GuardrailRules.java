@@ -1,0 +1,117 @@
+package dev.runoff.records;
+
+import dev.runoff.records.avro.ArmState;
+import dev.runoff.records.avro.CountingMode;
+import dev.runoff.records.avro.ExperimentDefinition;
+import dev.runoff.records.avro.GuardrailDirection;
+import dev.runoff.records.avro.GuardrailOutcome;
+import dev.runoff.records.avro.GuardrailSpec;
+import dev.runoff.records.avro.GuardrailState;
+import dev.runoff.records.avro.MetricKind;
+import java.util.List;
+import java.util.regex.Pattern;
+
+/** Rules of a definition's guardrails, of an event's guardrail signal and of a decision's guardrail entries. */
+final class GuardrailRules {
+
+    /** Most guardrails one definition may name. */
+    static final int MAX_GUARDRAILS = 5;
+
+    private static final Pattern NAME = Pattern.compile("[a-z][a-z0-9-]{0,63}");
+
+    private GuardrailRules() {
+    }
+
+    /** Whether {@code text} is a well-formed guardrail or signal name. */
+    static boolean wellFormed(String text) {
+        return NAME.matcher(text).matches();
+    }
+
+    /** The guardrails of {@code def}: each field, names unique, and the metric and counting they need. */
+    static void check(ExperimentDefinition def, Problems problems) {
+        List<GuardrailSpec> guardrails = def.getGuardrails();
+        if (guardrails == null) {
+            return;
+        }
+        if (guardrails.size() > MAX_GUARDRAILS) {
+            problems.add("guardrails", Reason.TOO_MANY, guardrails.size() + " items, at most " + MAX_GUARDRAILS);
+        }
+        if (def.getMetric().getKind() != MetricKind.BERNOULLI || Definitions.counting(def) != CountingMode.UNIT) {
+            problems.add("guardrails", Reason.INCONSISTENT, "need metric.kind BERNOULLI with counting UNIT (a"
+                    + " guardrail counts units whose conversion window has closed)");
+        }
+        problems.uniqueNames("guardrails", guardrails.stream().map(GuardrailSpec::getName).toList(), ".name");
+        for (int i = 0; i < guardrails.size(); i++) {
+            checkOne(guardrails.get(i), problems.under("guardrails[" + i + "]"));
+        }
+    }
+
+    private static void checkOne(GuardrailSpec guardrail, Problems problems) {
+        spelled("name", guardrail.getName(), problems);
+        spelled("signal", guardrail.getSignal(), problems);
+        double margin = guardrail.getMargin();
+        if (guardrail.getDirection() == GuardrailDirection.LOWER_IS_WORSE) {
+            if (!(margin >= 0 && margin < 1)) {
+                problems.add("margin", Reason.OUT_OF_RANGE, "must be in [0, 1) when lower is worse, got " + margin);
+            }
+        } else if (!(margin >= 0) || !Double.isFinite(margin)) {
+            problems.add("margin", Reason.OUT_OF_RANGE, "must be a finite number >= 0, got " + margin);
+        }
+        problems.open("alpha", guardrail.getAlpha(), 0, 1);
+    }
+
+    /** A signal on an outcome event: well formed, and not on an exposure. */
+    static void checkSignal(String signal, boolean exposure, Problems problems) {
+        if (signal == null) {
+            return;
+        }
+        spelled("signal", signal, problems);
+        if (exposure) {
+            problems.add("signal", Reason.INCONSISTENT, "must be null for EXPOSURE events (an exposure makes the"
+                    + " unit, a signal is an outcome of it), got " + Problems.quote(signal));
+        }
+    }
+
+    /**
+     * The guardrail entries of one arm of a decision record: one per guardrail of the definition, in its
+     * order, with hits in [0, counted] and bounds in [0, 1]; a suspension names a guardrail the arm FAILED.
+     */
+    static void checkStates(ArmState state, ExperimentDefinition def, Problems problems) {
+        List<String> names = Definitions.guardrails(def).stream().map(GuardrailSpec::getName).toList();
+        List<GuardrailState> states = state.getGuardrails();
+        if (states == null) {
+            if (!names.isEmpty() || state.getSuspendedBy() != null) {
+                problems.add("guardrails", Reason.INCONSISTENT, "missing although the definition names " + names);
+            }
+            return;
+        }
+        if (!states.stream().map(GuardrailState::getGuardrail).toList().equals(names)) {
+            problems.add("guardrails", Reason.INCONSISTENT, "must list the definition's guardrails " + names
+                    + " in order");
+        }
+        for (int i = 0; i < states.size(); i++) {
+            GuardrailState g = states.get(i);
+            Problems one = problems.under("guardrails[" + i + "]");
+            one.atLeast("counted", g.getCounted(), 0);
+            if (g.getHits() < 0 || g.getHits() > g.getCounted()) {
+                one.add("hits", Reason.OUT_OF_RANGE, "must be in [0, counted=" + g.getCounted() + "], got "
+                        + g.getHits());
+            }
+            one.closed("lower", g.getLower(), 0, 1);
+            one.closed("upper", g.getUpper(), g.getLower(), 1);
+        }
+        String suspendedBy = state.getSuspendedBy();
+        if (suspendedBy != null && states.stream().noneMatch(g -> g.getGuardrail().equals(suspendedBy)
+                && g.getOutcome() == GuardrailOutcome.FAIL)) {
+            problems.add("suspendedBy", Reason.INCONSISTENT, Problems.quote(suspendedBy)
+                    + " is not a guardrail this arm FAILED");
+        }
+    }
+
+    private static void spelled(String field, String text, Problems problems) {
+        if (!wellFormed(text)) {
+            problems.add(field, Reason.INVALID_TEXT, Problems.quote(text)
+                    + " must be 1 to 64 of a-z 0-9 and -, starting with a letter");
+        }
+    }
+}
