@@ -6,7 +6,9 @@ import java.math.MathContext;
 import java.math.RoundingMode;
 import java.util.Comparator;
 import java.util.List;
+import java.util.Map;
 import java.util.Set;
+import java.util.concurrent.ConcurrentHashMap;
 import org.apache.avro.Schema;
 import org.apache.avro.generic.IndexedRecord;
 import org.apache.avro.specific.SpecificData;
@@ -53,6 +55,8 @@ public final class CanonicalJson {
     private static final int PLAIN_UPPER_EXPONENT = 21;
     private static final int PLAIN_LOWER_EXPONENT = -6;
     private static final SpecificData DATA = SpecificData.get();
+    /** Sorted fields per record schema; schemas are few (one per record type and version). */
+    private static final Map<Schema, List<Schema.Field>> SORTED_FIELDS = new ConcurrentHashMap<>();
 
     private CanonicalJson() {
     }
@@ -91,22 +95,27 @@ public final class CanonicalJson {
 
     private static void writeRecord(IndexedRecord record, Schema schema, String path, Set<String> excluded,
                                     StringBuilder out) {
-        List<Schema.Field> fields = schema.getFields().stream()
-                .filter(f -> !excluded.contains(f.name()))
-                .filter(f -> record.get(f.pos()) != null || !WHEN_SET.equals(f.getProp(CANONICAL_PROPERTY)))
-                .sorted(Comparator.comparing(Schema.Field::name))
-                .toList();
         out.append('{');
-        for (int i = 0; i < fields.size(); i++) {
-            Schema.Field field = fields.get(i);
-            if (i > 0) {
+        boolean first = true;
+        for (Schema.Field field : SORTED_FIELDS.computeIfAbsent(schema, CanonicalJson::sortedFields)) {
+            if (excluded.contains(field.name())
+                    || record.get(field.pos()) == null && WHEN_SET.equals(field.getProp(CANONICAL_PROPERTY))) {
+                continue;
+            }
+            if (!first) {
                 out.append(',');
             }
+            first = false;
             string(field.name(), path, out);
             out.append(':');
             write(record.get(field.pos()), field.schema(), Problems.path(path, field.name()), out);
         }
         out.append('}');
+    }
+
+    /** The record's fields in key order (by name); the same for every record of a schema, so computed once. */
+    private static List<Schema.Field> sortedFields(Schema schema) {
+        return schema.getFields().stream().sorted(Comparator.comparing(Schema.Field::name)).toList();
     }
 
     private static void write(Object value, Schema schema, String path, StringBuilder out) {
