@@ -4,6 +4,7 @@ import dev.runoff.engine.core.Arm;
 
 import dev.runoff.engine.core.Metric;
 
+import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.allocation.GuardedWeights;
 import dev.runoff.engine.best.ExactProbabilityBest;
 import dev.runoff.engine.best.AdaptiveMonteCarlo;
@@ -69,13 +70,7 @@ public final class AllocationEngine {
     public Evaluation evaluate(List<Arm> arms, EngineConfig config, long seed, double[] previousWeights) {
         Objects.requireNonNull(config, "config");
         List<String> names = checkArms(arms, config.metric());
-        List<Posterior> posteriors = new ArrayList<>(arms.size());
-        for (Arm arm : arms) {
-            posteriors.add(config.prior().posterior(arm.stats()));
-        }
-        if (config.rule().needsMeans()) {
-            checkFiniteMeans(names, posteriors, config);
-        }
+        List<Posterior> posteriors = posteriors(arms, names, config);
         ProbabilityBest pb = estimator(config, arms.size()).estimate(posteriors, seed);
         double[] ruleWeights = config.rule().weights(posteriors, pb.alpha(), config.beta());
         GuardedWeights guarded = config.guards().apply(ruleWeights, names, trials(arms), previousWeights);
@@ -85,6 +80,36 @@ public final class AllocationEngine {
         }
         return new Evaluation(names, summaries, pb, ruleWeights, guarded.weights(), guarded.flags(),
                 config.rule(), config.beta(), seed, VERSION);
+    }
+
+    /**
+     * The guarded serving weights alone, without estimating the probability that each arm is best: the same
+     * bits as {@link Evaluation#weights()} of {@link #evaluate(List, EngineConfig, long, double[])} for a rule
+     * that does not read it. Simulations whose rules never read it use this to skip the estimator.
+     *
+     * @throws IllegalArgumentException if the rule reads the probability of being best
+     *                                  ({@link AllocationMethod#readsProbabilityBest()}), or as {@code evaluate}
+     */
+    public double[] weights(List<Arm> arms, EngineConfig config, double[] previousWeights) {
+        Objects.requireNonNull(config, "config");
+        if (config.rule().readsProbabilityBest()) {
+            throw new IllegalArgumentException("rule " + config.rule().cliName()
+                    + " reads the probability of being best; evaluate the arms instead");
+        }
+        List<String> names = checkArms(arms, config.metric());
+        double[] ruleWeights = config.rule().weights(posteriors(arms, names, config), null, config.beta());
+        return config.guards().apply(ruleWeights, names, trials(arms), previousWeights).weights();
+    }
+
+    private static List<Posterior> posteriors(List<Arm> arms, List<String> names, EngineConfig config) {
+        List<Posterior> posteriors = new ArrayList<>(arms.size());
+        for (Arm arm : arms) {
+            posteriors.add(config.prior().posterior(arm.stats()));
+        }
+        if (config.rule().needsMeans()) {
+            checkFiniteMeans(names, posteriors, config);
+        }
+        return posteriors;
     }
 
     /** The method {@code choice} resolves to for {@code arms} arms. */

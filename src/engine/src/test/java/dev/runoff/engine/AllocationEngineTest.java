@@ -39,6 +39,21 @@ class AllocationEngineTest {
     }
 
     @Test
+    void weightsAloneEqualTheEvaluationsWeightsForRulesThatDoNotReadAlpha() {
+        List<Arm> arms = List.of(bernoulli("a", 40, 400), bernoulli("b", 52, 400), bernoulli("c", 20, 300));
+        double[] previous = {0.3, 0.4, 0.3};
+        for (AllocationMethod rule : List.of(AllocationMethod.UNIFORM, AllocationMethod.TOP_TWO_VALUE,
+                AllocationMethod.TOP_TWO_EI)) {
+            EngineConfig config = BERNOULLI.withRule(rule);
+            assertArrayEquals(ENGINE.evaluate(arms, config, 7L, previous).weights(),
+                    ENGINE.weights(arms, config, previous), rule.cliName());
+        }
+        EngineConfig thompson = BERNOULLI;
+        assertTrue(thompson.rule().readsProbabilityBest());
+        assertThrows(IllegalArgumentException.class, () -> ENGINE.weights(arms, thompson, previous));
+    }
+
+    @Test
     void evaluationReportsConjugatePosteriorsAndTheirIntervals() {
         Evaluation e = ENGINE.evaluate(threeArms(), BERNOULLI, 7L);
         assertEquals(List.of("a", "b", "c"), e.arms());

@@ -1,11 +1,14 @@
 package dev.runoff.records;
 
 import java.math.BigDecimal;
+import java.math.BigInteger;
 import java.math.MathContext;
 import java.math.RoundingMode;
 import java.util.Comparator;
 import java.util.List;
+import java.util.Map;
 import java.util.Set;
+import java.util.concurrent.ConcurrentHashMap;
 import org.apache.avro.Schema;
 import org.apache.avro.generic.IndexedRecord;
 import org.apache.avro.specific.SpecificData;
@@ -52,6 +55,8 @@ public final class CanonicalJson {
     private static final int PLAIN_UPPER_EXPONENT = 21;
     private static final int PLAIN_LOWER_EXPONENT = -6;
     private static final SpecificData DATA = SpecificData.get();
+    /** Sorted fields per record schema; schemas are few (one per record type and version). */
+    private static final Map<Schema, List<Schema.Field>> SORTED_FIELDS = new ConcurrentHashMap<>();
 
     private CanonicalJson() {
     }
@@ -90,22 +95,27 @@ public final class CanonicalJson {
 
     private static void writeRecord(IndexedRecord record, Schema schema, String path, Set<String> excluded,
                                     StringBuilder out) {
-        List<Schema.Field> fields = schema.getFields().stream()
-                .filter(f -> !excluded.contains(f.name()))
-                .filter(f -> record.get(f.pos()) != null || !WHEN_SET.equals(f.getProp(CANONICAL_PROPERTY)))
-                .sorted(Comparator.comparing(Schema.Field::name))
-                .toList();
         out.append('{');
-        for (int i = 0; i < fields.size(); i++) {
-            Schema.Field field = fields.get(i);
-            if (i > 0) {
+        boolean first = true;
+        for (Schema.Field field : SORTED_FIELDS.computeIfAbsent(schema, CanonicalJson::sortedFields)) {
+            if (excluded.contains(field.name())
+                    || record.get(field.pos()) == null && WHEN_SET.equals(field.getProp(CANONICAL_PROPERTY))) {
+                continue;
+            }
+            if (!first) {
                 out.append(',');
             }
+            first = false;
             string(field.name(), path, out);
             out.append(':');
             write(record.get(field.pos()), field.schema(), Problems.path(path, field.name()), out);
         }
         out.append('}');
+    }
+
+    /** The record's fields in key order (by name); the same for every record of a schema, so computed once. */
+    private static List<Schema.Field> sortedFields(Schema schema) {
+        return schema.getFields().stream().sorted(Comparator.comparing(Schema.Field::name)).toList();
     }
 
     private static void write(Object value, Schema schema, String path, StringBuilder out) {
@@ -193,9 +203,139 @@ public final class CanonicalJson {
         if (value < 0) {
             return "-" + number(path, -value);
         }
+        String fast = JavaDigits.canonical(value);
+        return fast != null ? fast : exactNumber(value);
+    }
+
+    /** The canonical text of a positive finite {@code value} by the exact search of {@link #shortestDecimal}. */
+    static String exactNumber(double value) {
         BigDecimal shortest = shortestDecimal(value).stripTrailingZeros();
         String digits = shortest.unscaledValue().toString();
         return layout(digits, digits.length() - shortest.scale());
+    }
+
+    /**
+     * The canonical text of a positive finite {@code value} from the digits of {@link Double#toString(double)}
+     * when exact comparisons prove them to be the ones {@link #shortestDecimal} would choose, else null.
+     *
+     * <p>Why the proof holds: let D be Java's digits without trailing zeros, L of them, with step u between
+     * L-digit decimals at D's exponent. If D reads back and the exact value lies strictly within u/2 of D,
+     * D is the unique nearest L-digit decimal, so the nearest of those that read back. The exact value then
+     * also lies strictly between T (D cut to L - 1 digits) and T + 10u, the two (L - 1)-digit decimals around
+     * it; any other (L - 1)-digit decimal lies farther away, outside the interval that reads back if those two
+     * lie outside it. So when neither reads back, no decimal of fewer than L digits does (whether p digits
+     * suffice is monotone in p), and D is the answer. Otherwise the exact search decides.
+     */
+    static String fastNumber(double value) {
+        return JavaDigits.canonical(value);
+    }
+
+    /**
+     * The digits of {@link Double#toString(double)} and the exact comparisons that prove them canonical. A
+     * positive finite double is {@code m 2^e} with integer m; decimals are {@code N 10^p} with integer N; the
+     * bounds of the interval that reads back are {@code (2m - 1) 2^(e-1)} (or {@code (4m - 1) 2^(e-2)} when the
+     * value is a power of two, where the gap below is half the gap above) and {@code (2m + 1) 2^(e-1)}, included
+     * when m is even (IEEE 754 round-half-even), as in {@link RoundingInterval}.
+     */
+    private static final class JavaDigits {
+        private static final long MAX_DIGITS = 100_000_000_000_000_000L;
+        private static final int MAX_FIVE_POWER = 400;
+        private static final BigInteger[] FIVE_POWERS = fivePowers();
+
+        private final long m;
+        private final int e;
+        private final long lowM;
+        private final int lowE;
+
+        private JavaDigits(double value) {
+            long bits = Double.doubleToRawLongBits(value);
+            int biased = (int) (bits >>> 52);
+            long fraction = bits & ((1L << 52) - 1);
+            m = biased == 0 ? fraction : fraction | (1L << 52);
+            e = biased == 0 ? -1074 : biased - 1075;
+            boolean narrowBelow = fraction == 0 && biased > 1;
+            lowM = narrowBelow ? 4 * m - 1 : 2 * m - 1;
+            lowE = narrowBelow ? e - 2 : e - 1;
+        }
+
+        static String canonical(double value) {
+            String text = Double.toString(value);
+            long digits = 0;
+            int exponent = 0;
+            boolean fraction = false;
+            for (int i = 0; i < text.length(); i++) {
+                char c = text.charAt(i);
+                if (c == '.') {
+                    fraction = true;
+                } else if (c == 'E') {
+                    exponent += Integer.parseInt(text, i + 1, text.length(), 10);
+                    break;
+                } else {
+                    digits = digits * 10 + (c - '0');
+                    if (digits >= MAX_DIGITS) {
+                        return null;
+                    }
+                    exponent -= fraction ? 1 : 0;
+                }
+            }
+            while (digits % 10 == 0) {
+                digits /= 10;
+                exponent++;
+            }
+            if (exponent < -MAX_FIVE_POWER + 2 || exponent > MAX_FIVE_POWER - 2) {
+                return null;
+            }
+            return new JavaDigits(value).isCanonical(digits, exponent)
+                    ? layout(Long.toString(digits), length(digits) + exponent) : null;
+        }
+
+        private boolean isCanonical(long digits, int exponent) {
+            boolean nearest = compare(m, e, 10 * digits - 5, exponent - 1) > 0
+                    && compare(m, e, 10 * digits + 5, exponent - 1) < 0;
+            return nearest && readsBack(digits, exponent) && (digits < 10
+                    || !readsBack(digits / 10, exponent + 1) && !readsBack(digits / 10 + 1, exponent + 1));
+        }
+
+        private boolean readsBack(long digits, int exponent) {
+            int vsLow = -compare(lowM, lowE, digits, exponent);
+            int vsHigh = -compare(2 * m + 1, e - 1, digits, exponent);
+            return vsLow > 0 && vsHigh < 0 || (m & 1) == 0 && (vsLow == 0 || vsHigh == 0);
+        }
+
+        /** The sign of {@code a 2^b - n 10^p}, exactly. */
+        private static int compare(long a, int b, long n, int p) {
+            BigInteger left = BigInteger.valueOf(a);
+            BigInteger right = BigInteger.valueOf(n);
+            if (p >= 0) {
+                right = right.multiply(FIVE_POWERS[p]);
+            } else {
+                left = left.multiply(FIVE_POWERS[-p]);
+            }
+            int shift = b - p;
+            if (shift >= 0) {
+                left = left.shiftLeft(shift);
+            } else {
+                right = right.shiftLeft(-shift);
+            }
+            return left.compareTo(right);
+        }
+
+        private static BigInteger[] fivePowers() {
+            BigInteger[] powers = new BigInteger[MAX_FIVE_POWER + 1];
+            powers[0] = BigInteger.ONE;
+            for (int i = 1; i < powers.length; i++) {
+                powers[i] = powers[i - 1].multiply(BigInteger.valueOf(5));
+            }
+            return powers;
+        }
+
+        private static int length(long digits) {
+            int n = 1;
+            for (long d = digits; d >= 10; d /= 10) {
+                n++;
+            }
+            return n;
+        }
     }
 
     /**

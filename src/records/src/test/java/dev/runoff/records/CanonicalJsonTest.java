@@ -86,6 +86,53 @@ class CanonicalJsonTest {
     }
 
     @Test
+    void javasDigitsAreUsedOnlyWhereTheExactSearchAgrees() {
+        // The fast path must choose the same text as the exact search (ECMAScript Number::toString step 5)
+        // for every double; random bit patterns, rates, small ratios, powers of two and ten with neighbours
+        // and subnormals, where Java 17's Double.toString is known to give more digits than needed
+        // (JDK-4511638, fixed in Java 19).
+        SplittableRandom random = new SplittableRandom(20261202L);
+        int decided = 0;
+        int total = 0;
+        for (double x : sampleDoubles(random)) {
+            String fast = CanonicalJson.fastNumber(x);
+            String exact = CanonicalJson.exactNumber(x);
+            if (fast != null) {
+                assertEquals(exact, fast, "bits " + Long.toHexString(Double.doubleToRawLongBits(x)));
+                decided++;
+            }
+            assertEquals(exact, CanonicalJson.number(x));
+            total++;
+        }
+        assertTrue(decided > total * 9 / 10, "fast path decided " + decided + " of " + total);
+    }
+
+    private static List<Double> sampleDoubles(SplittableRandom random) {
+        List<Double> xs = new java.util.ArrayList<>();
+        for (int i = 0; i < 1_500; i++) {
+            double bits = Math.abs(Double.longBitsToDouble(random.nextLong()));
+            if (Double.isFinite(bits) && bits > 0) {
+                xs.add(bits);
+            }
+            xs.add(random.nextDouble());
+            xs.add(random.nextInt(1, 100_000) / Math.pow(10, random.nextInt(0, 12)));
+            xs.add(Double.longBitsToDouble(random.nextLong(1, 1L << 52)));
+        }
+        for (int e = -1074; e <= 1023; e += e < -1000 ? 1 : 5) {
+            double p = Math.scalb(1.0, e);
+            xs.addAll(List.of(p, Math.nextUp(p), Math.nextDown(p)));
+        }
+        for (int e = -320; e <= 308; e++) {
+            double p = Double.parseDouble("1e" + e);
+            if (p > 0) {
+                xs.addAll(List.of(p, Math.nextUp(p), Math.nextDown(p)));
+            }
+        }
+        xs.removeIf(x -> !(x > 0) || !Double.isFinite(x));
+        return xs;
+    }
+
+    @Test
     void nonFiniteNumbersCannotBeWritten() {
         assertThrows(IllegalArgumentException.class, () -> CanonicalJson.number(Double.NaN));
         assertThrows(IllegalArgumentException.class, () -> CanonicalJson.number(Double.POSITIVE_INFINITY));

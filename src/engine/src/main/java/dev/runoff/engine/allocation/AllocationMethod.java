@@ -43,6 +43,15 @@ public enum AllocationMethod {
         return formula.weights(posteriors, alpha, beta);
     }
 
+    /**
+     * Whether the weights depend on the probability that each arm is best; when they do not
+     * ({@link #UNIFORM}, {@link #TOP_TWO_VALUE}, {@link #TOP_TWO_EI}) {@link #weights} ignores {@code alpha},
+     * which may then be null.
+     */
+    public boolean readsProbabilityBest() {
+        return this == TOP_TWO_THOMPSON || this == TOP_TWO_PROBABILITY || this == TOP_TWO_ADAPTIVE;
+    }
+
     /** Whether the rule integrates over the posteriors and so needs every posterior to have a finite mean. */
     public boolean needsMeans() {
         return needsMeans;

@@ -136,13 +136,31 @@ final class ExactIntegrator {
         return StrictMath.exp(logTail);
     }
 
+    /**
+     * Adds the node's terms to the integrals whose range holds {@code x}. The products leave out each arm's
+     * own CDF, so when one integral alone is taken at {@code x} that arm's CDF is not computed (an
+     * incomplete beta near the arm's centre, the costliest factor at the node), and when none is, nothing is.
+     */
     private static void addNode(List<ExactArm> arms, double[] from, double[] to, Own own, boolean[] which,
                                 double x, double logWeight, double[] logCdf, double[] prefix,
                                 Accumulator acc) {
         int n = arms.size();
+        int integrals = 0;
+        int only = -1;
+        for (int i = 0; i < n; i++) {
+            if (which[i] && x >= from[i] && x <= to[i]) {
+                integrals++;
+                only = i;
+            }
+        }
+        if (integrals == 0) {
+            return;
+        }
         for (int j = 0; j < n; j++) {
             ExactArm arm = arms.get(j);
-            if (x > arm.upper()) {
+            if (integrals == 1 && j == only) {
+                logCdf[j] = 0;
+            } else if (x > arm.upper()) {
                 logCdf[j] = 0;
             } else if (x < arm.lower()) {
                 logCdf[j] = Double.NEGATIVE_INFINITY;
