@@ -3,9 +3,7 @@ package dev.runoff.job.pages;
 import dev.runoff.decision.Evidence;
 import java.util.ArrayList;
 import java.util.Arrays;
-import java.util.LinkedHashSet;
 import java.util.List;
-import java.util.Set;
 
 /**
  * The evidence section of the experiment page: at the latest decision, the evidence against each losing arm,
@@ -62,24 +60,20 @@ final class EvidenceSection {
         b.append("</tbody></table>\n");
     }
 
-    /** Evidence against the trials (thousands), one line per arm that was losing with a point value. */
+    /**
+     * Evidence against the trials (thousands), one line per arm of the latest record in its order, so that each
+     * arm keeps the colour and marker it has in the page's other charts; the current leader's line holds only
+     * the decisions at which it was losing.
+     */
     private static void chart(StringBuilder b, List<DecisionPoint> points, List<Evidence.Row> rows) {
         double[] xs = rows.stream().mapToDouble(r -> r.totalTrials() / 1000.0).toArray();
-        Set<String> arms = new LinkedHashSet<>();
-        points.forEach(p -> arms.addAll(p.arms()));
+        String leader = rows.get(rows.size() - 1).leader();
         List<LineChart.Series> series = new ArrayList<>();
         double top = 0;
-        for (String arm : arms) {
+        for (String arm : points.get(points.size() - 1).arms()) {
             double[] ys = rows.stream().mapToDouble(r -> value(r.points().get(arm))).toArray();
-            for (double y : ys) {
-                top = Double.isNaN(y) ? top : Math.max(top, y);
-            }
-            if (Arrays.stream(ys).anyMatch(y -> !Double.isNaN(y))) {
-                series.add(new LineChart.Series(arm, ys));
-            }
-        }
-        if (series.isEmpty()) {
-            return;
+            top = Math.max(top, Arrays.stream(ys).filter(y -> !Double.isNaN(y)).max().orElse(0));
+            series.add(new LineChart.Series(arm.equals(leader) ? arm + " (leader now)" : arm, ys));
         }
         b.append(LineChart.svg("evidence", "Evidence against each losing arm, -ln P(best)",
                 "trials so far (thousands); bounds not drawn", xs, top > 0 ? top * 1.1 : 1, series)).append('\n');
