@@ -28,8 +28,9 @@ final class EvidenceWriter {
                 last.leader(), Evidence.windowShare()));
         int width = last.points().keySet().stream().mapToInt(String::length).max().orElse(0);
         last.points().forEach((arm, p) -> out.append(String.format(Locale.ROOT, "  %-" + width + "s  evidence %s%s (%s)"
-                + "  rate %s%n", arm, p.isBound() ? ">= " : "", number(p.evidence()), p.source().description(),
-                Double.isNaN(p.ratePerThousand()) ? "n/a" : number(p.ratePerThousand()))));
+                + "  rate %s%n", arm, p.isBound() ? ">= " : "", Evidence.number(p.evidence()),
+                p.source().description(),
+                Double.isNaN(p.ratePerThousand()) ? "n/a" : Evidence.number(p.ratePerThousand()))));
         if (view.reference() != null) {
             out.append(referenceLine(view)).append('\n');
         }
@@ -42,10 +43,10 @@ final class EvidenceWriter {
         for (double r : view.estimatedRates()) {
             rates.add(String.format(Locale.ROOT, "%.4f", r));
         }
-        String gamma = Double.isNaN(ref.betaOptimal()) ? "Gamma*_beta n/a (beta " + number(ref.beta()) + ")"
-                : "Gamma*_beta " + number(ref.betaOptimal()) + " at beta " + number(ref.beta());
+        String gamma = Double.isNaN(ref.betaOptimal()) ? "Gamma*_beta n/a (beta " + Evidence.number(ref.beta()) + ")"
+                : "Gamma*_beta " + Evidence.number(ref.betaOptimal()) + " at beta " + Evidence.number(ref.beta());
         return "Predicted rates per 1,000 trials at the estimated rates (" + String.join(", ", rates) + "): " + gamma
-                + "; uniform split " + number(ref.uniform());
+                + "; uniform split " + Evidence.number(ref.uniform());
     }
 
     /** CSV header cells: evidence_, evidenceSource_ and evidenceRate_ per arm. */
@@ -121,9 +122,5 @@ final class EvidenceWriter {
     /** The lower-case name of a source, as CSV and JSON spell it. */
     static String source(Evidence.Source source) {
         return source.name().toLowerCase(Locale.ROOT);
-    }
-
-    private static String number(double v) {
-        return Evidence.number(v);
     }
 }

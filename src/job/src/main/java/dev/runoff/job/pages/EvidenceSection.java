@@ -11,8 +11,8 @@ import java.util.List;
  * the balance verdict in the words of the audit report, and a chart of the evidence against the trials.
  *
  * <p>The numbers are the records' own P(best) values: unlike the audit, the page does not recompute Monte
- * Carlo values by numerical integration (that would cost a quadrature per arm on every request), so an arm
- * that won no draw shows a bound. The slopes run over the page's chart points, which past
+ * Carlo values by numerical integration (that would cost a quadrature per arm on every request), so a P(best)
+ * of zero shows as a lower bound. The slopes run over the page's chart points, which past
  * {@value ExperimentHistory#MAX_POINTS} decisions are thinned evenly (every other one dropped): with steady
  * traffic per decision the window (the decisions in the last half of the trials) still holds about half of the
  * 120 to 240 points kept, far above the {@value Evidence#MIN_POINTS} a slope needs, and a least-squares slope
@@ -37,8 +37,8 @@ final class EvidenceSection {
         b.append("<p>").append(Html.escape(Evidence.balanceLine(Evidence.balance(last), last))).append(".</p>\n")
                 .append("<p class=\"note\">Evidence is -ln P(best): it grows about linearly in the trials while an "
                         + "arm is being ruled out, and top-two sampling drives the losing arms to one common rate "
-                        + "(Russo 2020). Values as the decision records state them, without recomputation: a Monte "
-                        + "Carlo zero is shown as a bound (&ge;), never as infinite evidence; "
+                        + "(Russo 2020). Values as the decision records state them, without recomputation: a P(best) "
+                        + "of zero is shown as a lower bound (&ge;), never as infinite evidence; "
                         + "<code>audit report</code> recomputes Monte Carlo values exactly for up to ")
                 .append(Evidence.MAX_EXACT_ARMS).append(" arms, so its figures can differ. Growth: least-squares "
                         + "slope over the charted decisions in the last ").append(Evidence.windowShare())
