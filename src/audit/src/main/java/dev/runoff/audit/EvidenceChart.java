@@ -56,7 +56,7 @@ public final class EvidenceChart {
 
     private String render() {
         canvas.text(LEFT, 28, "start", 17, "bold", title(timeline));
-        canvas.text(LEFT, 48, "start", 12, "normal", EvidenceWriter.balanceLine(view.balance(), view.last()));
+        canvas.text(LEFT, 48, "start", 12, "normal", Evidence.balanceLine(view.balance(), view.last()));
         canvas.text(LEFT, 66, "start", 12, "normal", "Height: -ln P(best); slope: growth per 1,000 trials. Open"
                 + " triangles: P(best) 0, drawn at a lower bound.");
         axes();

@@ -25,32 +25,16 @@ final class EvidenceWriter {
         out.append(String.format(Locale.ROOT, "Evidence against the losing arms at decision %d (%,d trials; leader %s):"
                 + " -ln P(best), and its growth per 1,000 trials (least-squares slope over the decisions in the last"
                 + " %s of the trials)%n", view.sequences().get(view.sequences().size() - 1), last.totalTrials(),
-                last.leader(), share()));
+                last.leader(), Evidence.windowShare()));
         int width = last.points().keySet().stream().mapToInt(String::length).max().orElse(0);
         last.points().forEach((arm, p) -> out.append(String.format(Locale.ROOT, "  %-" + width + "s  evidence %s%s (%s)"
-                + "  rate %s%n", arm, p.isBound() ? ">= " : "", number(p.evidence()), describe(p.source()),
-                Double.isNaN(p.ratePerThousand()) ? "n/a" : number(p.ratePerThousand()))));
+                + "  rate %s%n", arm, p.isBound() ? ">= " : "", Evidence.number(p.evidence()),
+                p.source().description(),
+                Double.isNaN(p.ratePerThousand()) ? "n/a" : Evidence.number(p.ratePerThousand()))));
         if (view.reference() != null) {
             out.append(referenceLine(view)).append('\n');
         }
-        return out.append(balanceLine(view.balance(), last)).append('\n').toString();
-    }
-
-    /** One line: whether the rates are balanced, against the stated tolerance, and which arm lags. */
-    static String balanceLine(Evidence.Balance balance, Evidence.Row row) {
-        String tolerance = number(Evidence.BALANCE_TOLERANCE);
-        return switch (balance.verdict()) {
-            case BALANCED -> String.format(Locale.ROOT, "Rates balanced: fastest/slowest %s <= %s (tolerance);"
-                    + " slowest %s at %s per 1,000 trials", number(balance.ratio()), tolerance, balance.slowest(),
-                    number(rate(row, balance.slowest())));
-            case UNBALANCED -> String.format(Locale.ROOT, "Rates not balanced: fastest/slowest %s > %s (tolerance);"
-                    + " %s lags at %s per 1,000 trials against %s for %s",
-                    Double.isInfinite(balance.ratio()) ? "infinite" : number(balance.ratio()), tolerance,
-                    balance.slowest(), number(rate(row, balance.slowest())), number(rate(row, balance.fastest())),
-                    balance.fastest());
-            case UNDETERMINED -> "Rates balanced: undetermined (fewer than two losing arms with a rate over the last "
-                    + share() + " of the trials)";
-        };
+        return out.append(Evidence.balanceLine(view.balance(), last)).append('\n').toString();
     }
 
     private static String referenceLine(EvidenceView view) {
@@ -59,10 +43,10 @@ final class EvidenceWriter {
         for (double r : view.estimatedRates()) {
             rates.add(String.format(Locale.ROOT, "%.4f", r));
         }
-        String gamma = Double.isNaN(ref.betaOptimal()) ? "Gamma*_beta n/a (beta " + number(ref.beta()) + ")"
-                : "Gamma*_beta " + number(ref.betaOptimal()) + " at beta " + number(ref.beta());
+        String gamma = Double.isNaN(ref.betaOptimal()) ? "Gamma*_beta n/a (beta " + Evidence.number(ref.beta()) + ")"
+                : "Gamma*_beta " + Evidence.number(ref.betaOptimal()) + " at beta " + Evidence.number(ref.beta());
         return "Predicted rates per 1,000 trials at the estimated rates (" + String.join(", ", rates) + "): " + gamma
-                + "; uniform split " + number(ref.uniform());
+                + "; uniform split " + Evidence.number(ref.uniform());
     }
 
     /** CSV header cells: evidence_, evidenceSource_ and evidenceRate_ per arm. */
@@ -111,7 +95,7 @@ final class EvidenceWriter {
         map.put("slowestArm", view.balance().slowest());
         map.put("fastestArm", view.balance().fastest());
         map.put("rateRatio", finite(view.balance().ratio()));
-        map.put("line", balanceLine(view.balance(), view.last()));
+        map.put("line", Evidence.balanceLine(view.balance(), view.last()));
         Evidence.Reference ref = view.reference();
         if (ref != null) {
             Map<String, Object> reference = new LinkedHashMap<>();
@@ -131,15 +115,6 @@ final class EvidenceWriter {
         return p == null ? "" : f.apply(p);
     }
 
-    /** The window as a percentage of the trials. */
-    private static String share() {
-        return String.format(Locale.ROOT, "%.0f%%", 100 * Evidence.WINDOW_SHARE);
-    }
-
-    private static double rate(Evidence.Row row, String arm) {
-        return row.points().get(arm).ratePerThousand();
-    }
-
     private static Double finite(double v) {
         return Double.isFinite(v) ? v : null;
     }
@@ -147,19 +122,5 @@ final class EvidenceWriter {
     /** The lower-case name of a source, as CSV and JSON spell it. */
     static String source(Evidence.Source source) {
         return source.name().toLowerCase(Locale.ROOT);
-    }
-
-    private static String describe(Evidence.Source source) {
-        return switch (source) {
-            case EXACT -> "integrated";
-            case RECOMPUTED -> "recomputed exactly";
-            case CONDITIONAL -> "conditional Monte Carlo";
-            case COUNT -> "share of Monte Carlo draws";
-            case BOUND -> "a zero probability: lower bound";
-        };
-    }
-
-    private static String number(double v) {
-        return String.format(Locale.ROOT, "%.3g", v);
     }
 }

@@ -5,8 +5,8 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import static org.junit.jupiter.api.Assumptions.assumeTrue;
 
 import dev.runoff.records.avro.DecisionRecord;
+import dev.runoff.testkit.Browser;
 import java.awt.image.BufferedImage;
-import java.io.File;
 import java.io.IOException;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
@@ -18,9 +18,9 @@ import javax.imageio.ImageIO;
 import org.junit.jupiter.api.Test;
 
 /**
- * Opens the SVG charts in a real headless browser (Debian's chromium) and keeps the screenshots as
- * {@code target/audit-report.png} and {@code target/audit-evidence.png} for review. Skipped, and reported as skipped, where chromium is not
- * installed ({@code .ci/run} installs it).
+ * Opens the SVG charts in a real headless browser (Debian's chromium, found by {@link Browser}) and keeps the
+ * screenshots as {@code target/audit-report.png} and {@code target/audit-evidence.png} for review. Skipped, and
+ * reported as skipped, where chromium is not installed ({@code .ci/run} installs it).
  */
 class BrowserScreenshotIT {
 
@@ -30,7 +30,7 @@ class BrowserScreenshotIT {
 
     @Test
     void chartRendersInAHeadlessBrowserWithEveryArmVisible() throws Exception {
-        String chromium = chromium();
+        String chromium = Browser.chromium();
         assumeTrue(chromium != null, "chromium is not installed (apt-get install -y chromium): browser test skipped");
         List<DecisionRecord> chain = SimulatedJob.run(SimulatedJob.definition("checkout", List.of("control", "green",
                 "blue"), 0), new double[] {0.04, 0.05, 0.09}, 40, 600, 11);
@@ -44,13 +44,13 @@ class BrowserScreenshotIT {
         assertEquals(HEIGHT, image.getHeight());
         // The first three series colours of SvgChart (Okabe-Ito blue, vermillion, bluish green) must be drawn.
         for (int rgb : new int[] {0x0072B2, 0xD55E00, 0x009E73}) {
-            assertTrue(pixelsNear(image, rgb) > 100, String.format("colour %06x drawn", rgb));
+            assertTrue(Browser.pixelsNear(image, rgb) > 100, String.format("colour %06x drawn", rgb));
         }
     }
 
     @Test
     void evidenceChartRendersInAHeadlessBrowserWithItsSeriesAndReferenceSlopes() throws Exception {
-        String chromium = chromium();
+        String chromium = Browser.chromium();
         assumeTrue(chromium != null, "chromium is not installed (apt-get install -y chromium): browser test skipped");
         List<DecisionRecord> chain = SimulatedJob.run(SimulatedJob.definition("checkout", List.of("control", "green",
                 "blue"), 60 * SimulatedJob.PERIOD_MS), new double[] {0.04, 0.05, 0.09}, 60, 600, 11);
@@ -64,19 +64,8 @@ class BrowserScreenshotIT {
         // the two losing arms keep SvgChart's colours (Okabe-Ito blue, vermillion); the Gamma*_beta slope is
         // black and the uniform one grey #777777
         for (int rgb : new int[] {0x0072B2, 0xD55E00, 0x777777}) {
-            assertTrue(pixelsNear(image, rgb) > 100, String.format("colour %06x drawn", rgb));
+            assertTrue(Browser.pixelsNear(image, rgb) > 100, String.format("colour %06x drawn", rgb));
         }
-    }
-
-    static String chromium() {
-        for (String name : List.of("chromium", "chromium-browser")) {
-            for (String dir : System.getenv().getOrDefault("PATH", "").split(File.pathSeparator)) {
-                if (!dir.isEmpty() && Files.isExecutable(Path.of(dir, name))) {
-                    return Path.of(dir, name).toString();
-                }
-            }
-        }
-        return null;
     }
 
     /** Runs chromium headless on {@code page} and waits (at most 90 s) for the screenshot {@code png}. */
@@ -93,18 +82,5 @@ class BrowserScreenshotIT {
             throw new AssertionError("chromium did not finish within 90 s; see target/chromium.log");
         }
         assertTrue(Files.size(png) > 0, "screenshot written; see target/chromium.log");
-    }
-
-    private static int pixelsNear(BufferedImage image, int rgb) {
-        int count = 0;
-        for (int y = 0; y < image.getHeight(); y++) {
-            for (int x = 0; x < image.getWidth(); x++) {
-                int p = image.getRGB(x, y);
-                int d = Math.abs(((p >> 16) & 0xFF) - ((rgb >> 16) & 0xFF)) + Math.abs(((p >> 8) & 0xFF)
-                        - ((rgb >> 8) & 0xFF)) + Math.abs((p & 0xFF) - (rgb & 0xFF));
-                count += d < 40 ? 1 : 0;
-            }
-        }
-        return count;
     }
 }

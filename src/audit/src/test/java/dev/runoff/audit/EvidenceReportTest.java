@@ -120,7 +120,7 @@ class EvidenceReportTest {
         assertTrue(Pattern.compile(">1e-[0-9]+<").matcher(svgText).find(),
                 "log-probability tick labels");
         assertTrue(svgText.contains("P(best) of the arm (log scale)"));
-        assertTrue(svgText.contains(SvgCanvas.escape(EvidenceWriter.balanceLine(evidence.balance(), evidence.last()))),
+        assertTrue(svgText.contains(SvgCanvas.escape(Evidence.balanceLine(evidence.balance(), evidence.last()))),
                 "the balance line as subtitle");
     }
 }

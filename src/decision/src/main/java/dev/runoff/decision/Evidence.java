@@ -8,6 +8,7 @@ import java.util.Arrays;
 import java.util.Collections;
 import java.util.LinkedHashMap;
 import java.util.List;
+import java.util.Locale;
 import java.util.Map;
 import java.util.Objects;
 
@@ -77,7 +78,18 @@ public final class Evidence {
         /** The record's share of Monte Carlo draws won. */
         COUNT,
         /** A zero probability: the evidence shown is a lower bound. */
-        BOUND
+        BOUND;
+
+        /** How reports and pages describe the source in words. */
+        public String description() {
+            return switch (this) {
+                case EXACT -> "integrated";
+                case RECOMPUTED -> "recomputed exactly";
+                case CONDITIONAL -> "conditional Monte Carlo";
+                case COUNT -> "share of Monte Carlo draws";
+                case BOUND -> "a zero probability: lower bound";
+            };
+        }
     }
 
     /**
@@ -280,6 +292,40 @@ public final class Evidence {
         double ratio = low > 0 ? row.points().get(fastest).ratePerThousand() / low : Double.POSITIVE_INFINITY;
         return new Balance(ratio <= BALANCE_TOLERANCE ? Verdict.BALANCED : Verdict.UNBALANCED, slowest, fastest,
                 ratio);
+    }
+
+    /**
+     * One line, as reports and pages state it: whether {@code row}'s rates are balanced (its {@code balance}),
+     * against the stated tolerance, and which arm lags.
+     */
+    public static String balanceLine(Balance balance, Row row) {
+        String tolerance = number(BALANCE_TOLERANCE);
+        return switch (balance.verdict()) {
+            case BALANCED -> String.format(Locale.ROOT, "Rates balanced: fastest/slowest %s <= %s (tolerance);"
+                    + " slowest %s at %s per 1,000 trials", number(balance.ratio()), tolerance, balance.slowest(),
+                    number(rate(row, balance.slowest())));
+            case UNBALANCED -> String.format(Locale.ROOT, "Rates not balanced: fastest/slowest %s > %s (tolerance);"
+                    + " %s lags at %s per 1,000 trials against %s for %s",
+                    Double.isInfinite(balance.ratio()) ? "infinite" : number(balance.ratio()), tolerance,
+                    balance.slowest(), number(rate(row, balance.slowest())), number(rate(row, balance.fastest())),
+                    balance.fastest());
+            case UNDETERMINED -> "Rates balanced: undetermined (fewer than two losing arms with a rate over the last "
+                    + windowShare() + " of the trials)";
+        };
+    }
+
+    /** The window of the slopes as a percentage of the trials, as text ("50%"). */
+    public static String windowShare() {
+        return String.format(Locale.ROOT, "%.0f%%", 100 * WINDOW_SHARE);
+    }
+
+    /** A number with three significant digits, as the evidence lines print them. */
+    public static String number(double v) {
+        return String.format(Locale.ROOT, "%.3g", v);
+    }
+
+    private static double rate(Row row, String arm) {
+        return row.points().get(arm).ratePerThousand();
     }
 
     /**

@@ -1,12 +1,14 @@
 package dev.runoff.job.pages;
 
+import dev.runoff.decision.Evidence;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
 import java.util.List;
 
 /**
  * What the charts of an experiment page need from one decision record: when, the arms with their published
- * weight and P(best), the trials counted, and the stopping statistic with its threshold.
+ * weight and P(best), the trials counted, the stopping statistic with its threshold, and what the evidence
+ * view needs (per-arm trials, P(best) with its standard error, the Monte Carlo draws).
  *
  * @param sequence   the record's sequence number in its experiment's chain
  * @param streamTime the record's stream time (ms since the epoch)
@@ -16,9 +18,10 @@ import java.util.List;
  * @param trials     trials counted over all arms
  * @param statistic  the stopping statistic, or {@code null} when the rule reported none
  * @param threshold  its threshold, or {@code null}
+ * @param evidence   the record's numbers as the evidence view reads them, without any recomputation
  */
 record DecisionPoint(long sequence, long streamTime, List<String> arms, double[] weights, double[] alphas,
-                     long trials, Double statistic, Double threshold) {
+                     long trials, Double statistic, Double threshold, Evidence.Snapshot evidence) {
 
     /** The point of {@code record}. */
     static DecisionPoint of(DecisionRecord record) {
@@ -31,9 +34,12 @@ record DecisionPoint(long sequence, long streamTime, List<String> arms, double[]
             alphas[i] = states.get(i).getAlpha();
             trials += states.get(i).getTrials();
         }
-        return new DecisionPoint(record.getSequence(), record.getStreamTime(),
-                states.stream().map(ArmState::getArm).toList(), weights, alphas, trials, record.getStatistic(),
-                record.getThreshold());
+        List<String> arms = states.stream().map(ArmState::getArm).toList();
+        return new DecisionPoint(record.getSequence(), record.getStreamTime(), arms, weights, alphas, trials,
+                record.getStatistic(), record.getThreshold(), new Evidence.Snapshot(arms,
+                        states.stream().mapToLong(ArmState::getTrials).toArray(), alphas,
+                        states.stream().mapToDouble(ArmState::getAlphaStandardError).toArray(), record.getDraws(),
+                        null));
     }
 
     /** Weight of {@code arm} at this point, or NaN when the arm was not in the experiment then. */

@@ -10,18 +10,19 @@ import java.util.function.ToDoubleBiFunction;
 
 /**
  * The page at {@code /experiments/{id}} (for a browser): the weights and P(best) over the experiment's
- * decision records as SVG line charts, the per-arm table of the latest record, the stopping statistic
- * against its threshold, and the planner's prediction of the remaining traffic.
+ * decision records as SVG line charts, the per-arm table of the latest record, the
+ * evidence against each losing arm ({@link EvidenceSection}), the stopping statistic against its threshold, and
+ * the planner's prediction of the remaining traffic.
  *
  * <p>The page is a list of {@link #SECTIONS}, each drawing from the experiment's {@link ExperimentHistory}; a
- * further view of the same records (say, the evidence against each losing arm over the trials) is one more
- * entry in that list.
+ * further view of the same records is one more entry in that list.
  */
 final class ExperimentPage {
 
     /** The sections of the page, in order. */
     private static final List<BiConsumer<StringBuilder, View>> SECTIONS = List.of(ExperimentPage::summary,
-            ExperimentPage::charts, ExperimentPage::armTable, ExperimentPage::stopping, ExperimentPage::remaining);
+            ExperimentPage::charts, ExperimentPage::armTable, ExperimentPage::evidence, ExperimentPage::stopping,
+            ExperimentPage::remaining);
 
     /**
      * What a section draws from.
@@ -110,6 +111,10 @@ final class ExperimentPage {
                     .append(Html.number(a.getWeight(), 3)).append("</td></tr>\n");
         }
         b.append("</tbody></table>\n");
+    }
+
+    private static void evidence(StringBuilder b, View v) {
+        EvidenceSection.render(b, v.points());
     }
 
     private static void stopping(StringBuilder b, View v) {

@@ -36,6 +36,7 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Duration;
 import java.util.ArrayList;
+import java.util.Comparator;
 import java.util.HashMap;
 import java.util.List;
 import java.util.Locale;
@@ -153,13 +154,14 @@ class LiveJobPagesIT {
             assertTrue(cells.contains(String.format(Locale.ROOT, "%.3f", arm.getWeight())), "weight of " + name);
         }
         assertFalse(dom.contains("<b>bold</b>"), "the hostile arm name became markup");
+        assertEvidenceOfALosingArm(dom, record);
         Matcher svg = Pattern.compile("<svg [^>]*width=\"(\\d+)\" height=\"(\\d+)\"").matcher(dom);
         int charts = 0;
         while (svg.find()) {
             charts++;
             assertTrue(Integer.parseInt(svg.group(1)) >= 600 && Integer.parseInt(svg.group(2)) >= 200, svg.group());
         }
-        assertEquals(3, charts, "weights, P(best), statistic against threshold");
+        assertEquals(4, charts, "weights, P(best), evidence against trials, statistic against threshold");
 
         Path png = TARGET.resolve("experiment-page.png").toAbsolutePath();
         Files.deleteIfExists(png);
@@ -213,6 +215,24 @@ class LiveJobPagesIT {
     }
 
     /** Metric names in a Prometheus text exposition. */
+    /**
+     * The evidence table names the same decision record as the arm table and shows, for a losing arm with a
+     * positive P(best), -ln of the record's P(best) (Russo 2020's evidence against the arm).
+     */
+    private static void assertEvidenceOfALosingArm(String dom, DecisionRecord record) {
+        assertTrue(dom.contains("Evidence at decision #" + record.getSequence() + " "), "the evidence table's record");
+        ArmState leader = record.getArms().stream().max(Comparator.comparingDouble(ArmState::getAlpha))
+                .orElseThrow();
+        ArmState loser = record.getArms().stream().filter(a -> a != leader && a.getAlpha() > 0).findFirst()
+                .orElseThrow(() -> new AssertionError("no losing arm with a positive P(best) in #" + record.getSequence()));
+        String name = loser.getArm().replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;");
+        Matcher row = Pattern.compile("<tr><th scope=\"row\">" + Pattern.quote(name) + "</th><td class=\"n\">([^<]*)</td>")
+                .matcher(dom.substring(dom.indexOf("Evidence at decision #")));
+        assertTrue(row.find(), "an evidence row for " + loser.getArm());
+        assertEquals(String.format(Locale.ROOT, "%.3g", -Math.log(loser.getAlpha())), row.group(1),
+                "evidence against " + loser.getArm());
+    }
+
     private static Set<String> exported(String exposition) {
         Set<String> names = new TreeSet<>();
         exposition.lines().filter(l -> !l.isEmpty() && !l.startsWith("#"))

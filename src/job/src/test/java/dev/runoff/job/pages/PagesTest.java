@@ -59,7 +59,7 @@ class PagesTest {
         DecisionRecord last = chain.get(chain.size() - 1);
         String html = pages(List.of(chain)).experiment("fares", null).html();
         List<String> svgs = matches(html, "<svg [^>]*width=\"760\" height=\"300\"");
-        assertEquals(3, svgs.size(), "weights, P(best), statistic against threshold");
+        assertEquals(4, svgs.size(), "weights, P(best), evidence against trials, statistic against threshold");
         for (ArmState arm : last.getArms()) {
             String row = matches(html, "<tr><th scope=\"row\">" + arm.getArm() + "( \\(leader\\))?</th>.*?</tr>").get(0);
             assertTrue(row.contains(String.format(java.util.Locale.ROOT, "%,d", arm.getTrials())), row);
