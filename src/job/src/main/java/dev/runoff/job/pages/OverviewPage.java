@@ -109,7 +109,7 @@ final class OverviewPage {
         b.append("<th scope=\"col\">Arms</th><th scope=\"col\">Leader</th>");
         header(b, "P(best) of leader", Sort.PBEST, options);
         header(b, "Traffic (trials)", Sort.TRAFFIC, options);
-        b.append("<th scope=\"col\">Pending units</th>");
+        b.append("<th scope=\"col\">Pending units</th><th scope=\"col\">Suspended by a guardrail</th>");
         header(b, "Last decision (UTC)", Sort.LAST, options);
         b.append("<th scope=\"col\">Decision and reason</th></tr></thead>\n<tbody>\n");
         for (DecisionRecord r : rows) {
@@ -155,7 +155,8 @@ final class OverviewPage {
                 .append(Html.escape(String.join(", ", r.getArms().stream().map(ArmState::getArm).toList())))
                 .append("</td><td>").append(Html.escape(leader.getArm())).append("</td><td class=\"n\">")
                 .append(Html.number(leader.getAlpha(), 4)).append("</td><td class=\"n\">").append(Html.whole(trials(r)))
-                .append("</td><td class=\"n\">").append(pending(r)).append("</td><td>#").append(r.getSequence())
+                .append("</td><td class=\"n\">").append(pending(r)).append("</td><td>").append(suspensions(r))
+                .append("</td><td>#").append(r.getSequence())
                 .append(' ').append(Html.time(r.getStreamTime())).append("</td><td>").append(r.getDecision())
                 .append(": ").append(Html.escape(r.getReason())).append("</td></tr>\n");
     }
@@ -196,6 +197,16 @@ final class OverviewPage {
 
     static long trials(DecisionRecord r) {
         return r.getArms().stream().mapToLong(ArmState::getTrials).sum();
+    }
+
+    /**
+     * The arms the record suspends, each with the guardrail that suspended it ({@code arm (guardrail)}, in
+     * definition order), or "none".
+     */
+    static String suspensions(DecisionRecord r) {
+        List<String> suspended = r.getArms().stream().filter(a -> a.getSuspendedBy() != null)
+                .map(a -> Html.escape(a.getArm()) + " (" + Html.escape(a.getSuspendedBy()) + ")").toList();
+        return suspended.isEmpty() ? "none" : String.join(", ", suspended);
     }
 
     /** Pending units over all arms, or an en dash when the records do not report them. */

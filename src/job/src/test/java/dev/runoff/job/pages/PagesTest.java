@@ -73,6 +73,21 @@ class PagesTest {
     }
 
     @Test
+    void overviewNamesEachArmAGuardrailSuspendedAndTheGuardrail() {
+        List<DecisionRecord> quiet = chain("quiet", "a", "b");
+        List<DecisionRecord> held = chain("held", "grid", HOSTILE_ARM, "calendar");
+        DecisionRecord last = held.get(held.size() - 1);
+        last.getArms().get(1).setSuspendedBy("failed-payments");
+        String html = pages(List.of(quiet, held)).overview(null).html();
+        String heldRow = matches(html, "<tr><th scope=\"row\"><a href=\"/experiments/held\">.*?</tr>").get(0);
+        assertTrue(heldRow.contains("<td>&lt;script&gt;alert(&#39;x&#39;)&lt;/script&gt;&quot;&amp; (failed-payments)</td>"),
+                heldRow);
+        String quietRow = matches(html, "<tr><th scope=\"row\"><a href=\"/experiments/quiet\">.*?</tr>").get(0);
+        assertTrue(quietRow.contains("<td>none</td>"), quietRow);
+        assertTrue(html.contains("<th scope=\"col\">Suspended by a guardrail</th>"));
+    }
+
+    @Test
     void overviewFiltersByStatusAndSortsByTraffic() {
         List<DecisionRecord> small = chain("alpha", "a", "b");
         List<DecisionRecord> big = DecisionChains.run(TestDefinitions.bernoulli("beta", "a", "b"), 3,
