@@ -21,7 +21,7 @@ import java.util.Locale;
  * lies more than {@code sigmas} of its recorded standard errors (plus {@value #SLACK} for the integration
  * and rounding) from the exact value is a {@link Check#CROSS_CHECK} finding. The recorded decision is not
  * changed: the check says whether the estimator behaved like an unbiased estimator with the standard errors
- * it claims. A correct estimator misses by more than 5 standard errors with probability about 5.7e-7 per
+ * it claims (over the arms the job estimated them for: see {@link #exact}). A correct estimator misses by more than 5 standard errors with probability about 5.7e-7 per
  * arm (normal approximation, common practice).
  */
 final class CrossCheck {
@@ -77,9 +77,28 @@ final class CrossCheck {
         return String.format(Locale.ROOT, "%.4g", value);
     }
 
-    /** The probabilities of being best integrated exactly from the posteriors {@code arms} state. */
+    /**
+     * The probabilities of being best integrated exactly from the posteriors {@code arms} state, over the arms
+     * the job estimated them for: when a guardrail suspended some arms and at least two others remain, the job
+     * leaves the suspended ones out of its estimate (they get alpha 0) and the others' alphas are among
+     * themselves (decision.Narrowing); the integration does the same, so that like is compared with like.
+     */
     static ProbabilityBest exact(List<ArmState> arms) {
-        return new ExactProbabilityBest().estimate(posteriors(arms), 0);
+        List<Integer> kept = new ArrayList<>();
+        for (int i = 0; i < arms.size(); i++) {
+            if (arms.get(i).getSuspendedBy() == null) {
+                kept.add(i);
+            }
+        }
+        if (kept.size() == arms.size() || kept.size() < 2) {
+            return new ExactProbabilityBest().estimate(posteriors(arms), 0);
+        }
+        ProbabilityBest sub = new ExactProbabilityBest().estimate(posteriors(kept.stream().map(arms::get).toList()), 0);
+        double[] alpha = new double[arms.size()];
+        for (int k = 0; k < kept.size(); k++) {
+            alpha[kept.get(k)] = sub.alpha(k);
+        }
+        return new ProbabilityBest(alpha, new double[arms.size()], sub.method(), sub.draws());
     }
 
     /** The posteriors the record states, in arm order. */

@@ -58,6 +58,21 @@ class GuardrailVerificationTest {
     }
 
     @Test
+    void theCrossCheckIntegratesOverTheArmsTheJobKeptWhenOneIsSuspended() {
+        // A suspended arm is left out of the job's P(best) (alpha 0, the others' alphas among the kept arms);
+        // the exact cross-check must compare like with like, or every record after a suspension is a finding.
+        List<DecisionRecord> records = chain();
+        ExperimentAudit audit = new Verifier(0.001).withCrossCheck(5).verifyExperiment("ferry-layout",
+                Chains.entries(records));
+        assertEquals(List.of(), audit.findings());
+        DecisionRecord suspended = records.stream().filter(r -> r.getArms().get(1).getSuspendedBy() != null)
+                .findFirst().orElseThrow();
+        assertEquals(0.0, CrossCheck.exact(suspended.getArms()).alpha(1), "a suspended arm's exact alpha");
+        assertEquals(1.0, CrossCheck.exact(suspended.getArms()).alpha(0) + CrossCheck.exact(suspended.getArms())
+                .alpha(2), 1e-12, "the kept arms' exact alphas sum to 1 among themselves");
+    }
+
+    @Test
     void aChangedGuardrailCountWithARebuiltChainFailsRecomputation() {
         List<DecisionRecord> records = new ArrayList<>(chain());
         int k = records.size() - 1;
