@@ -67,7 +67,7 @@ public record EvidenceView(List<Evidence.Row> rows, List<Long> sequences, Eviden
                 arms.stream().mapToLong(ArmState::getTrials).toArray(),
                 arms.stream().mapToDouble(ArmState::getAlpha).toArray(),
                 arms.stream().mapToDouble(ArmState::getAlphaStandardError).toArray(), record.getDraws(),
-                recompute ? CrossCheck.exact(arms).alpha() : null);
+                recompute ? CrossCheck.exact(arms).alpha() : null, Evidence.suspended(arms));
     }
 
     /** Posterior mean rate a / (a + b) per arm, or {@code null} unless every posterior is a Beta. */

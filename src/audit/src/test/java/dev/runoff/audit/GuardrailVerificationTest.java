@@ -1,9 +1,11 @@
 package dev.runoff.audit;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.decision.Evaluator;
+import dev.runoff.decision.Evidence;
 import dev.runoff.decision.ExperimentState;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.records.HashChain;
@@ -70,6 +72,8 @@ class GuardrailVerificationTest {
         assertEquals(0.0, CrossCheck.exact(suspended.getArms()).alpha(1), "a suspended arm's exact alpha");
         assertEquals(1.0, CrossCheck.exact(suspended.getArms()).alpha(0) + CrossCheck.exact(suspended.getArms())
                 .alpha(2), 1e-12, "the kept arms' exact alphas sum to 1 among themselves");
+        Evidence.Row last = EvidenceView.of(records).last();
+        assertFalse(last.points().containsKey("wide"), "a suspended arm is no losing arm of the evidence view");
     }
 
     @Test

@@ -3,6 +3,7 @@ package dev.runoff.decision;
 import dev.runoff.engine.best.AdaptiveMonteCarlo;
 import dev.runoff.engine.planning.ArmModel;
 import dev.runoff.engine.planning.PosteriorRates;
+import dev.runoff.records.avro.ArmState;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.Collections;
@@ -101,18 +102,22 @@ public final class Evidence {
      * @param standardError its standard error per arm
      * @param draws         Monte Carlo draws, 0 for numerical integration
      * @param exact         exact probabilities recomputed from the record's posteriors, or {@code null}
+     * @param suspended     per arm, whether a guardrail suspended it at this decision ({@code null}: none); a
+     *                      suspended arm is left out of the estimate (alpha 0 by suspension, not by evidence),
+     *                      so it has no point, like the leader
      */
     public record Snapshot(List<String> arms, long[] trials, double[] alpha, double[] standardError, int draws,
-                           double[] exact) {
+                           double[] exact, boolean[] suspended) {
 
         /** Checks the lengths and copies the arrays. */
         public Snapshot {
             arms = List.copyOf(arms);
             int k = arms.size();
             if (trials.length != k || alpha.length != k || standardError.length != k
-                    || (exact != null && exact.length != k)) {
+                    || (exact != null && exact.length != k) || (suspended != null && suspended.length != k)) {
                 throw new IllegalArgumentException("snapshot arrays must have one entry per arm (" + k + ")");
             }
+            suspended = suspended == null ? new boolean[k] : suspended.clone();
             if (draws < 0) {
                 throw new IllegalArgumentException("draws must be >= 0, got " + draws);
             }
@@ -120,6 +125,12 @@ public final class Evidence {
             alpha = alpha.clone();
             standardError = standardError.clone();
             exact = exact == null ? null : exact.clone();
+        }
+
+        /** A snapshot in which no arm is suspended. */
+        public Snapshot(List<String> arms, long[] trials, double[] alpha, double[] standardError, int draws,
+                        double[] exact) {
+            this(arms, trials, alpha, standardError, draws, exact, null);
         }
 
         /** Trials of all arms together. */
@@ -168,6 +179,15 @@ public final class Evidence {
         }
     }
 
+    /** Per arm of a decision record, whether a guardrail suspended it ({@code suspendedBy} set). */
+    public static boolean[] suspended(List<ArmState> arms) {
+        boolean[] out = new boolean[arms.size()];
+        for (int i = 0; i < out.length; i++) {
+            out[i] = arms.get(i).getSuspendedBy() != null;
+        }
+        return out;
+    }
+
     /** The rows of {@code snapshots}, in their order (each slope over the window ending at its row). */
     public static List<Row> of(List<Snapshot> snapshots) {
         List<Map<String, Point>> losing = new ArrayList<>(snapshots.size());
@@ -177,7 +197,7 @@ public final class Evidence {
             int leader = now.leader();
             Map<String, Point> values = new LinkedHashMap<>();
             for (int i = 0; i < now.arms().size(); i++) {
-                if (i != leader) {
+                if (i != leader && !now.suspended()[i]) {
                     values.put(now.arms().get(i), value(now, i));
                 }
             }

@@ -33,6 +33,15 @@ class EvidenceTest {
     }
 
     @Test
+    void anArmAGuardrailSuspendedHasNoPointLikeTheLeader() {
+        // its alpha is 0 because the job left it out of the estimate, not because the data rule it out
+        Evidence.Row row = Evidence.of(List.of(new Evidence.Snapshot(ARMS, new long[] {100, 100, 100},
+                new double[] {0.9, 0, 0.1}, new double[3], 0, null, new boolean[] {false, true, false}))).get(0);
+        assertEquals(List.of("c"), List.copyOf(row.points().keySet()));
+        assertEquals(-Math.log(0.1), row.points().get("c").evidence(), 1e-15);
+    }
+
+    @Test
     void monteCarloZeroIsTheClopperPearsonBoundNeverInfinite() {
         // one-sided 95% Clopper-Pearson bound at 0 wins in 10,000 draws: 1 - 0.05^(1/10000) = 2.9953e-4
         // (Clopper and Pearson 1934); its -ln is 8.1133.

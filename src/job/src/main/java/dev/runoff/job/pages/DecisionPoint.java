@@ -39,7 +39,7 @@ record DecisionPoint(long sequence, long streamTime, List<String> arms, double[]
                 record.getStatistic(), record.getThreshold(), new Evidence.Snapshot(arms,
                         states.stream().mapToLong(ArmState::getTrials).toArray(), alphas,
                         states.stream().mapToDouble(ArmState::getAlphaStandardError).toArray(), record.getDraws(),
-                        null));
+                        null, Evidence.suspended(states)));
     }
 
     /** Weight of {@code arm} at this point, or NaN when the arm was not in the experiment then. */
