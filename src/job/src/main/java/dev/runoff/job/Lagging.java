@@ -10,13 +10,13 @@ import dev.runoff.decision.ExperimentState;
  * Stopped experiments, and experiments never evaluated yet, are never lagging. An evaluation that failed
  * counts as an evaluation here (it is counted as a rejection with reason {@code evaluation-error}).
  */
-final class Lagging {
+public final class Lagging {
 
     private Lagging() {
     }
 
     /** Whether {@code state} is lagging at wall-clock time {@code nowMillis}. */
-    static boolean lagging(ExperimentState state, long nowMillis) {
+    public static boolean lagging(ExperimentState state, long nowMillis) {
         if (state.stopped() || state.lastComputedAt() < 0) {
             return false;
         }
