@@ -58,19 +58,18 @@ import org.apache.kafka.streams.state.KeyValueStore;
  * default 60 s recompute period) are defined; in the first recompute period each experiment gets five new
  * units (one exposure per arm, a click on one in five), in each later period one experiment in ten does
  * (its statistics change, so it is due again), and the wall clock advances by the allocation
- * interval in steps, so each step fires one allocation pass. The first period also holds the first
- * evaluation of every experiment. At the end of each period the experiments store is read whole: experiments
+ * interval in steps, so each step fires one allocation pass. Every experiment's first evaluation is due from
+ * its definition on. At the end of each period the experiments store is read whole: experiments
  * evaluated in the period, never evaluated, and lagging by the rule of the {@code runoff_experiments_lagging}
  * gauge ({@link Lagging}). At the end: heap used after full collections (with the driver and its stores
  * open), less the heap before the driver was built; the RocksDB properties the stores expose as metrics; the
  * size of the state directory.
  *
- * The job's own logging is set to WARN (it logs one line per accepted definition).
+ * <p>The job's own logging is set to WARN (it logs one line per accepted definition).
  *
- * <p>Run (after {@code mvn -B -o -q compile dependency:build-classpath -Dmdep.outputFile=cp.txt -pl src/bench
- * -am}): {@code java -Xmx4g -cp src/bench/target/classes:$(cat src/bench/cp.txt)
- * dev.runoff.bench.ManyExperimentsBench 100000 3 [runoff.key=value ...]}
- * (experiments, recompute periods, then any job settings, e.g. {@code runoff.allocate.max.evaluations=2000}).
+ * <p>Run: {@code java -Xmx4g -cp CLASSPATH dev.runoff.bench.ManyExperimentsBench 100000 3 [runoff.key=value ...]}
+ * (experiments, recompute periods, then any job settings, e.g. {@code runoff.allocate.max.evaluations=2000}),
+ * CLASSPATH being this module's {@code target/classes} and its compile class path (DEVELOPERS.md).
  */
 public final class ManyExperimentsBench {
 
