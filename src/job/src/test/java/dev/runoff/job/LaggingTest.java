@@ -20,8 +20,12 @@ class LaggingTest {
             new BernoulliStats(10, 2));
 
     private static ExperimentState state(long computedAt, boolean dirty, ExperimentState.Stop stop) {
-        return new ExperimentState(DEF, STATS, stop, 1, 1, HashChain.GENESIS, new double[] {0.5, 0.5}, 0, computedAt,
-                computedAt, dirty, false);
+        return started(0, computedAt, dirty, stop);
+    }
+
+    private static ExperimentState started(long startedAt, long computedAt, boolean dirty, ExperimentState.Stop stop) {
+        return new ExperimentState(DEF, STATS, stop, 1, 1, HashChain.GENESIS, new double[] {0.5, 0.5}, startedAt,
+                computedAt, computedAt, dirty, computedAt < 0);
     }
 
     @Test
@@ -39,9 +43,21 @@ class LaggingTest {
     }
 
     @Test
-    void stoppedOrNeverEvaluatedExperimentsAreNeverLagging() {
+    void stoppedExperimentsAreNeverLagging() {
         ExperimentState.Stop stop = new ExperimentState.Stop("a", 1, List.of("a", "b"), new double[] {1, 0});
         assertFalse(Lagging.lagging(state(0, true, stop), 1_000_000));
-        assertFalse(Lagging.lagging(state(-1, true, null), 1_000_000));
+    }
+
+    @Test
+    void anExperimentNeverEvaluatedLagsOnePeriodAfterItsFirstStatistics() {
+        // due since it was accepted, which is no later than its first statistics (startedAt = 5 s)
+        assertFalse(Lagging.lagging(started(5_000, -1, true, null), 6_000), "within one period");
+        assertTrue(Lagging.lagging(started(5_000, -1, true, null), 6_001), "first decision overdue");
+    }
+
+    @Test
+    void anExperimentWithoutStatisticsNorEvaluationIsNotCountedLagging() {
+        // its acceptance time is not kept, so how long it has waited is not known
+        assertFalse(Lagging.lagging(started(-1, -1, false, null), 1_000_000));
     }
 }
