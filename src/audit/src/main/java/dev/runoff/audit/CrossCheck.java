@@ -1,5 +1,6 @@
 package dev.runoff.audit;
 
+import dev.runoff.decision.EstimatedArms;
 import dev.runoff.engine.best.ExactProbabilityBest;
 import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.posterior.BetaPosterior;
@@ -79,18 +80,12 @@ final class CrossCheck {
 
     /**
      * The probabilities of being best integrated exactly from the posteriors {@code arms} state, over the arms
-     * the job estimated them for: when a guardrail suspended some arms and at least two others remain, the job
-     * leaves the suspended ones out of its estimate (they get alpha 0) and the others' alphas are among
-     * themselves (decision.Narrowing); the integration does the same, so that like is compared with like.
+     * the job estimated them for ({@link EstimatedArms}: a suspended arm gets alpha 0 and the others' alphas
+     * are among themselves), so that like is compared with like.
      */
     static ProbabilityBest exact(List<ArmState> arms) {
-        List<Integer> kept = new ArrayList<>();
-        for (int i = 0; i < arms.size(); i++) {
-            if (arms.get(i).getSuspendedBy() == null) {
-                kept.add(i);
-            }
-        }
-        if (kept.size() == arms.size() || kept.size() < 2) {
+        List<Integer> kept = EstimatedArms.of(EstimatedArms.suspended(arms));
+        if (kept.size() == arms.size()) {
             return new ExactProbabilityBest().estimate(posteriors(arms), 0);
         }
         ProbabilityBest sub = new ExactProbabilityBest().estimate(posteriors(kept.stream().map(arms::get).toList()), 0);

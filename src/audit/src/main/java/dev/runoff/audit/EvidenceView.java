@@ -1,5 +1,6 @@
 package dev.runoff.audit;
 
+import dev.runoff.decision.EstimatedArms;
 import dev.runoff.decision.Evidence;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.BetaParams;
@@ -67,7 +68,7 @@ public record EvidenceView(List<Evidence.Row> rows, List<Long> sequences, Eviden
                 arms.stream().mapToLong(ArmState::getTrials).toArray(),
                 arms.stream().mapToDouble(ArmState::getAlpha).toArray(),
                 arms.stream().mapToDouble(ArmState::getAlphaStandardError).toArray(), record.getDraws(),
-                recompute ? CrossCheck.exact(arms).alpha() : null, Evidence.suspended(arms));
+                recompute ? CrossCheck.exact(arms).alpha() : null, EstimatedArms.suspended(arms));
     }
 
     /** Posterior mean rate a / (a + b) per arm, or {@code null} unless every posterior is a Beta. */

@@ -3,7 +3,6 @@ package dev.runoff.decision;
 import dev.runoff.engine.best.AdaptiveMonteCarlo;
 import dev.runoff.engine.planning.ArmModel;
 import dev.runoff.engine.planning.PosteriorRates;
-import dev.runoff.records.avro.ArmState;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.Collections;
@@ -177,15 +176,6 @@ public final class Evidence {
         public Row {
             points = Collections.unmodifiableMap(new LinkedHashMap<>(points));
         }
-    }
-
-    /** Per arm of a decision record, whether a guardrail suspended it ({@code suspendedBy} set). */
-    public static boolean[] suspended(List<ArmState> arms) {
-        boolean[] out = new boolean[arms.size()];
-        for (int i = 0; i < out.length; i++) {
-            out[i] = arms.get(i).getSuspendedBy() != null;
-        }
-        return out;
     }
 
     /** The rows of {@code snapshots}, in their order (each slope over the window ending at its row). */

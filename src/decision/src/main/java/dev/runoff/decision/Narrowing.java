@@ -5,7 +5,6 @@ import dev.runoff.engine.EngineConfig;
 import dev.runoff.engine.Evaluation;
 import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.core.Arm;
-import java.util.ArrayList;
 import java.util.List;
 
 /**
@@ -26,13 +25,12 @@ record Narrowing(Evaluation evaluation, List<Arm> kept, Evaluation keptEval) {
     /** {@code full} narrowed to the arms {@code findings} did not suspend, when at least two remain. */
     static Narrowing of(AllocationEngine engine, List<Arm> arms, EngineConfig config, long seed,
                         double[] lastWeights, Evaluation full, GuardrailFindings findings) {
-        List<Integer> index = new ArrayList<>();
-        for (int i = 0; i < arms.size(); i++) {
-            if (!findings.isSuspended(i)) {
-                index.add(i);
-            }
+        boolean[] suspended = new boolean[arms.size()];
+        for (int i = 0; i < suspended.length; i++) {
+            suspended[i] = findings.isSuspended(i);
         }
-        if (index.size() == arms.size() || index.size() < 2) {
+        List<Integer> index = EstimatedArms.of(suspended);
+        if (index.size() == arms.size()) {
             return new Narrowing(full, arms, full);
         }
         List<Arm> kept = index.stream().map(arms::get).toList();

@@ -1,5 +1,6 @@
 package dev.runoff.job.pages;
 
+import dev.runoff.decision.EstimatedArms;
 import dev.runoff.decision.Evidence;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
@@ -39,7 +40,7 @@ record DecisionPoint(long sequence, long streamTime, List<String> arms, double[]
                 record.getStatistic(), record.getThreshold(), new Evidence.Snapshot(arms,
                         states.stream().mapToLong(ArmState::getTrials).toArray(), alphas,
                         states.stream().mapToDouble(ArmState::getAlphaStandardError).toArray(), record.getDraws(),
-                        null, Evidence.suspended(states)));
+                        null, EstimatedArms.suspended(states)));
     }
 
     /** Weight of {@code arm} at this point, or NaN when the arm was not in the experiment then. */
