@@ -29,7 +29,7 @@ class SequentialTTest {
     void theMartingaleMatchesTheStatedFormulaFromRawSums() {
         // Reference: G_n(m) = sqrt(c^2/(n+c^2)) ((n+c^2) V / ((n+c^2) V - S^2))^(n/2) with S = sum(x - m),
         // V = sum (x - m)^2, evaluated from the raw observations in mpmath 1.3.0 (40 digits): the Gaussian
-        // mixture of scale-invariant likelihood ratios of Wang & Ramdas (2024), arXiv 2310.03722, section 4
+        // mixture of scale-invariant likelihood ratios of Wang & Ramdas (2024), arXiv 2310.03722
         // (derived again in src/docs/planning-and-stopping.md; it matches the formula a public implementation
         // attributes to the paper's Theorem 4.9, whose text could not be read here).
         assertEquals(2.903893210262789, SequentialT.logMartingale(of(X), 10.0), 1e-12);
