@@ -198,7 +198,7 @@ public final class SampleRatio {
 
         Period flagged(String note) {
             return new Period(from, to, observed, weights, earlier, candidates.size(), null, null, null, null,
-                    null, null, Outcome.FLAGGED, note);
+                    null, null, null, Outcome.FLAGGED, note);
         }
     }
 
@@ -246,7 +246,44 @@ public final class SampleRatio {
                     + " weight vectors valid in the period (best mix: " + describe(mixture) + ")";
         }
         return new Period(c.from(), c.to(), c.observed(), c.weights(), c.earlier(), k, mixture, shares, lagShare,
-                fit.statistic(), fit.gap(), p, note == null ? Outcome.PASSED : Outcome.FLAGGED, note);
+                fit.statistic(), fit.gap(), p, alpha, note == null ? Outcome.PASSED : Outcome.FLAGGED, note);
+    }
+
+    /**
+     * The periods of one experiment judged together, so that {@code alpha} bounds the chance of flagging any
+     * period of an honest experiment, however many periods it has: the periods with a p-value go through Holm's
+     * step-down procedure ({@link Holm}); a period flagged at {@code alpha} alone but not at its Holm level is
+     * passed, with a note saying so. Skipped periods, periods flagged without a p-value (exposures at weight 0,
+     * falling counts: impossible under the serving contract) and {@code null} entries are kept as they are.
+     *
+     * @param periods the experiment's periods in order, each judged alone by {@link #test}
+     * @return a new list, in the same order
+     */
+    public List<Period> acrossPeriods(List<Period> periods) {
+        List<Integer> tested = new ArrayList<>();
+        for (int i = 0; i < periods.size(); i++) {
+            if (periods.get(i) != null && periods.get(i).pValue() != null) {
+                tested.add(i);
+            }
+        }
+        double[] p = tested.stream().mapToDouble(i -> periods.get(i).pValue()).toArray();
+        Holm.Result holm = Holm.test(p, alpha);
+        boolean[] rejected = holm.rejected();
+        List<Period> out = new ArrayList<>(periods);
+        for (int j = 0; j < p.length; j++) {
+            Period q = periods.get(tested.get(j));
+            double level = holm.levels()[j];
+            String note = q.note();
+            Outcome outcome = rejected[j] ? Outcome.FLAGGED : Outcome.PASSED;
+            if (!rejected[j] && q.outcome() == Outcome.FLAGGED) {
+                note = String.format(Locale.ROOT, "p = %.3g is below alpha %s but not below Holm's level %.4g"
+                        + " over the experiment's %d tested periods", q.pValue(), alpha, level, p.length);
+            }
+            out.set(tested.get(j), new Period(q.fromSequence(), q.toSequence(), q.observed, q.weights,
+                    q.previousWeights, q.candidates(), q.mixture(), q.fittedShares, q.lagShare(), q.statistic(),
+                    q.gap(), q.pValue(), level, outcome, note));
+        }
+        return out;
     }
 
     /** The candidates with a share of the fitted mixture, largest first. */
@@ -322,13 +359,16 @@ public final class SampleRatio {
      * @param gap             the Frank-Wolfe duality gap of the fit (the statistic minus it bounds the minimum
      *                        from below), or {@code null}
      * @param pValue          the p-value of that lower bound, or {@code null} when not computed
+     * @param level           the level the p-value was compared with: {@code alpha} for a period judged alone,
+     *                        Holm's step-down level when judged with the experiment's other periods
+     *                        ({@link #acrossPeriods}); {@code null} when not computed
      * @param outcome         passed, flagged or skipped
      * @param note            why it was flagged or skipped, or {@code null} when passed
      */
     public record Period(long fromSequence, long toSequence, long[] observed, double[] weights,
                          double[] previousWeights, Integer candidates, List<Component> mixture,
                          double[] fittedShares, Double lagShare, Double statistic, Double gap, Double pValue,
-                         Outcome outcome, String note) {
+                         Double level, Outcome outcome, String note) {
 
         /** Copies the arrays. */
         public Period {
@@ -340,7 +380,7 @@ public final class SampleRatio {
         }
 
         static Period skipped(long from, long to, long[] observed, double[] weights, String note) {
-            return new Period(from, to, observed, weights, null, null, null, null, null, null, null, null,
+            return new Period(from, to, observed, weights, null, null, null, null, null, null, null, null, null,
                     Outcome.SKIPPED, note);
         }
 
@@ -369,7 +409,7 @@ public final class SampleRatio {
             return "Period[" + fromSequence + "->" + toSequence + " " + outcome + ", observed="
                     + Arrays.toString(observed) + ", weights=" + Arrays.toString(weights) + ", candidates="
                     + candidates + ", mix=" + (mixture == null ? null : describe(mixture)) + ", chi2=" + statistic
-                    + ", gap=" + gap + ", p=" + pValue + (note == null ? "" : ", " + note) + "]";
+                    + ", gap=" + gap + ", p=" + pValue + ", level=" + level + (note == null ? "" : ", " + note) + "]";
         }
     }
 

@@ -114,16 +114,19 @@ public final class Verifier {
                 history.add(entries.get(i - 1).record());
             }
             SampleRatio.Period period = period(history, entries.get(i - 1), entries.get(i));
-            if (period != null) {
-                periods.add(period);
-                if (period.outcome() == SampleRatio.Outcome.FLAGGED) {
-                    findings.add(Finding.of(i, entries.get(i), Check.SAMPLE_RATIO, "arms.trials",
-                            describe(entries.get(i).record(), period)));
-                }
+            periods.add(period);
+        }
+        List<SampleRatio.Period> judged = sampleRatio.acrossPeriods(periods);
+        for (int i = 1; i < entries.size(); i++) {
+            SampleRatio.Period period = judged.get(i - 1);
+            if (period != null && period.outcome() == SampleRatio.Outcome.FLAGGED) {
+                findings.add(Finding.of(i, entries.get(i), Check.SAMPLE_RATIO, "arms.trials",
+                        describe(entries.get(i).record(), period)));
             }
         }
+        judged.removeIf(java.util.Objects::isNull);
         findings.sort(Finding.ORDER);
-        return new ExperimentAudit(experimentId, entries.size(), recomputed.reproduced(), findings, periods,
+        return new ExperimentAudit(experimentId, entries.size(), recomputed.reproduced(), findings, judged,
                 recomputed.notes());
     }
 
@@ -152,7 +155,7 @@ public final class Verifier {
         DecisionRecord b = after.record();
         if (b.getSequence() != a.getSequence() + 1) {
             return new SampleRatio.Period(a.getSequence(), b.getSequence(), null, null, null, null, null, null,
-                    null, null, null, null, SampleRatio.Outcome.SKIPPED, "the records are not consecutive");
+                    null, null, null, null, null, SampleRatio.Outcome.SKIPPED, "the records are not consecutive");
         }
         return sampleRatio.test(history, b);
     }
@@ -172,9 +175,11 @@ public final class Verifier {
             text.append(" among ").append(period.candidates()).append(" weight vectors valid in the period");
         }
         if (period.pValue() != null) {
-            text.append(String.format(Locale.ROOT, "; chi-square %.4g (certified minimum >= %.4g), p = %.3g < alpha %s",
+            text.append(String.format(Locale.ROOT, "; chi-square %.4g (certified minimum >= %.4g), p = %.3g < %s",
                     period.statistic(), Math.max(0.0, period.statistic() - period.gap()), period.pValue(),
-                    number(sampleRatio.alpha())));
+                    period.level() == null ? "alpha " + number(sampleRatio.alpha())
+                            : "Holm's level " + number(period.level()) + " (alpha " + number(sampleRatio.alpha())
+                            + " over the experiment's tested periods)"));
         }
         return text.toString();
     }

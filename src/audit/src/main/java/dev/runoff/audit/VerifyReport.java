@@ -140,6 +140,7 @@ public final class VerifyReport {
         map.put("chiSquare", p.statistic());
         map.put("dualityGap", p.gap());
         map.put("pValue", p.pValue());
+        map.put("level", p.level());
         map.put("note", p.note());
         return map;
     }

@@ -146,7 +146,8 @@ final class AuditCommand implements Runnable {
         private SourceOptions source;
 
         @Option(names = "--alpha", paramLabel = "A", defaultValue = "0.001",
-                description = "Significance level of the sample-ratio test (default: ${DEFAULT-VALUE}).")
+                description = "Significance level of the sample-ratio test, for each experiment as a whole (Holm's"
+                        + " procedure across its periods) (default: ${DEFAULT-VALUE}).")
         private double alpha;
 
         @Option(names = "--json", description = "Print the result as JSON.")
