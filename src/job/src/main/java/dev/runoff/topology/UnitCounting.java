@@ -32,10 +32,10 @@ package dev.runoff.topology;
  * contribution (winsorising at a fixed, pre-registered cap) bounds its variance, which the Normal-Gamma
  * posterior and the t-based stopping rules need to behave: the capped per-unit values are bounded and
  * independent across units, so their arm means are asymptotically Normal (central limit theorem), which is
- * what the Student-t marginals approximate. Capping per-user revenue in online experiments is common
- * practice; see Kohavi, Tang and Xu, "Trustworthy Online Controlled Experiments" (2020), on capping
- * (winsorising) revenue metrics to reduce variance. A fixed cap in the definition, rather than one fitted to
- * the data, keeps every observation a pure function of that unit's events, so decisions replay exactly.
+ * what the Student-t marginals approximate. Capping (winsorising) per-user revenue to cut its variance is
+ * common practice in online experiments (no source read for it here). A fixed cap in the definition, rather
+ * than a percentile fitted to the data, keeps every observation a pure function of that unit's events, so
+ * decisions replay exactly, and cannot be tuned after the results are seen.
  *
  * <p><b>Per-exposure counting</b> (the {@code EXPOSURE} option): every trial event is a trial at once and
  * every attributed success a success at once, never more successes than trials per unit.
