@@ -86,6 +86,21 @@ class ValuePerUnitTopologyTest {
     }
 
     @Test
+    void theCapOfAnExperimentNeverChanges() {
+        job.define(definition());
+        job.advance(150);
+        ExperimentDefinition recapped = definition();
+        recapped.getMetric().setValueCap(2 * CAP);
+        job.define(recapped);
+        List<TestRecord<String, byte[]>> refused = job.rejected();
+        assertEquals(1, refused.size());
+        assertEquals("metric-change", TopologyFixture.header(refused.get(0), Rejections.REASON_HEADER));
+        assertTrue(TopologyFixture.header(refused.get(0), Rejections.MESSAGE_HEADER).startsWith(
+                "metric.valueCap: experiment 'cabins' caps per-unit sums at 100.0, not 200.0"));
+        assertEquals(1, job.state("cabins").definition().getVersion());
+    }
+
+    @Test
     void valueEventsOutsideTheWindowOrAfterTheCountAreRejectedNamingTheField() {
         job.define(definition());
         job.advance(150);
