@@ -86,6 +86,20 @@ class ValuePerUnitTopologyTest {
     }
 
     @Test
+    void aValueEventBeforeItsUnitsExposureWaitsAndAddsToTheUnitsSum() {
+        job.define(definition());
+        job.advance(150);
+        long t = job.clock();
+        job.event("u1", Events.value("cabins", "u1", "v1", null, t, 45));
+        job.advance(100);
+        job.event("u1", Events.exposure("cabins", "u1", "x1", "wide", t + 50));
+        job.event("u1", Events.value("cabins", "u1", "v2", null, t + 60, 15));
+        job.advance(WINDOW + TestDefinitions.RECOMPUTE_MS);
+        assertTrue(job.rejected().isEmpty(), "the early value waited for the exposure");
+        assertEquals(ValueStats.EMPTY.add(60), stats(job.state("cabins"), 1), "one unit: 45 + 15");
+    }
+
+    @Test
     void theCapOfAnExperimentNeverChanges() {
         job.define(definition());
         job.advance(150);
