@@ -44,7 +44,8 @@ import org.apache.commons.math3.distribution.ChiSquaredDistribution;
  * must be to be flagged. With one candidate this is exactly the plain test.
  *
  * <p>A period is skipped, and says why, when the counts are not exposures (a trial event other than
- * EXPOSURE, or a VALUE metric whose trials are value events), when the arms changed, when there were no
+ * EXPOSURE, or a VALUE metric whose trials are value events; a VALUE_PER_UNIT metric's trials are exposed
+ * units, counted like a Bernoulli metric's, and are tested), when the arms changed, when there were no
  * exposures, when only one arm has a share, or when an arm with a share has an expected count, under the
  * fitted mixture, below {@value #MIN_EXPECTED} (the chi-square approximation is poor there: a common
  * practice rule, Cochran 1954). An arm with weight 0 in every candidate is left out of the test; any exposure
@@ -78,8 +79,8 @@ public final class SampleRatio {
     }
 
     /**
-     * Why this experiment's trials are not exposures, or {@code null} when they are (a BERNOULLI metric whose
-     * trial event is EXPOSURE).
+     * Why this experiment's trials are not exposures, or {@code null} when they are (a BERNOULLI or
+     * VALUE_PER_UNIT metric whose trial event is EXPOSURE).
      */
     public static String notExposures(ExperimentDefinition definition) {
         if (definition.getMetric().getKind() == MetricKind.VALUE) {

@@ -8,6 +8,7 @@ import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.ExperimentDefinition;
+import dev.runoff.records.avro.MetricKind;
 import dev.runoff.records.avro.MetricSpec;
 import java.util.ArrayList;
 import java.util.List;
@@ -146,6 +147,28 @@ class SampleRatioTest {
         SampleRatio.Period p = new SampleRatio(0.001).test(before, after);
         assertEquals(SampleRatio.Outcome.SKIPPED, p.outcome());
         assertTrue(p.note().contains("CLICK events, not exposures"), p.note());
+    }
+
+    @Test
+    void valuePerUnitTrialsAreExposedUnitsAndAreTestedWhileValueEventsAreNot() {
+        ExperimentDefinition perUnit = Chains.definition("srm", List.of("a", "b"));
+        perUnit.setMetric(MetricSpec.newBuilder().setKind(MetricKind.VALUE_PER_UNIT).setValueEvent(EventType.VALUE)
+                .setValueCap(100.0).build());
+        ExperimentDefinition perEvent = Chains.definition("srm", List.of("a", "b"));
+        perEvent.setMetric(MetricSpec.newBuilder().setKind(MetricKind.VALUE).setValueEvent(EventType.VALUE).build());
+        SampleRatio.Period tested = periodOf(perUnit);
+        assertEquals(SampleRatio.Outcome.FLAGGED, tested.outcome(), "90 to 10 exposed units at weights 1/2, 1/2");
+        SampleRatio.Period skipped = periodOf(perEvent);
+        assertEquals(SampleRatio.Outcome.SKIPPED, skipped.outcome());
+        assertTrue(skipped.note().contains("count value events, not exposures"), skipped.note());
+    }
+
+    private static SampleRatio.Period periodOf(ExperimentDefinition def) {
+        DecisionRecord before = DecisionRecord.newBuilder(record(1, new long[] {0, 0}, new double[] {0.5, 0.5}))
+                .setDefinition(def).build();
+        DecisionRecord after = DecisionRecord.newBuilder(record(2, new long[] {90, 10}, new double[] {0.5, 0.5}))
+                .setDefinition(def).build();
+        return new SampleRatio(0.001).test(before, after);
     }
 
     @Test

@@ -8,6 +8,7 @@ import dev.runoff.records.Definitions;
 import dev.runoff.records.Format;
 import dev.runoff.records.RecordCodec;
 import dev.runoff.records.avro.ExperimentDefinition;
+import dev.runoff.records.avro.MetricKind;
 import java.io.IOException;
 import java.io.PrintWriter;
 import java.nio.file.Files;
@@ -93,9 +94,34 @@ final class ExperimentCommand implements Runnable {
                 return OneLineErrors.USAGE;
             }
             spec.commandLine().getOut().println("valid: " + summary(d));
+            String advice = advice(d);
+            if (advice != null) {
+                spec.commandLine().getOut().println(advice);
+            }
             spec.commandLine().getOut().flush();
             return 0;
         }
+    }
+
+    private static String plain(double value) {
+        return java.math.BigDecimal.valueOf(value).stripTrailingZeros().toPlainString();
+    }
+
+    /**
+     * What to know before publishing {@code d}, or {@code null}. A VALUE_PER_UNIT metric is planned with the
+     * mean and standard deviation of one unit's capped sum; a value in [0, cap] has a standard deviation of at
+     * most cap/2 (Popoviciu's inequality on variances, Var X <= (b - a)^2 / 4 for X in [a, b], from memory), a
+     * conservative figure when nothing better is known.
+     */
+    static String advice(ExperimentDefinition d) {
+        if (d.getMetric().getKind() != MetricKind.VALUE_PER_UNIT) {
+            return null;
+        }
+        double cap = d.getMetric().getValueCap();
+        return "note: each unit counts once, with the sum of its " + d.getMetric().getValueEvent()
+                + " values within " + d.getAttributionWindowMs() + " ms of its first exposure, capped into [0, "
+                + plain(cap) + "]; plan it with `plan --means M1,M2,... --stddev S`, S the standard"
+                + " deviation of one unit's capped sum (at most " + plain(cap / 2) + ", half the cap)";
     }
 
     /** The options every cluster command shares. */

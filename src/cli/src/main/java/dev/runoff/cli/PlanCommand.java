@@ -48,7 +48,8 @@ final class PlanCommand implements Callable<Integer> {
     private double[] rates;
 
     @Option(names = "--means", split = ",", paramLabel = "M", hideParamSyntax = true,
-            description = "True means of the arms, comma-separated, for a value metric (with --stddev).")
+            description = "True means of the arms, comma-separated, for a value metric (with --stddev; value per unit:"
+                    + " of one unit's capped sum).")
     private double[] means;
 
     @Option(names = "--stddev", split = ",", paramLabel = "S", hideParamSyntax = true,

@@ -2,7 +2,6 @@ package dev.runoff.decision;
 
 import dev.runoff.records.Definitions;
 import dev.runoff.engine.Evaluation;
-import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.posterior.BetaPosterior;
 import dev.runoff.engine.posterior.Posterior;
@@ -12,7 +11,6 @@ import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.BetaParams;
-import dev.runoff.records.avro.CountingMode;
 import dev.runoff.records.avro.StudentTParams;
 import java.util.ArrayList;
 import java.util.List;
@@ -48,10 +46,12 @@ final class ArmStates {
         return out;
     }
 
-    /** Pending units are reported for Bernoulli metrics with unit counting, when the state knows them. */
+    /**
+     * Pending units are reported when trials are units counted at window close (Bernoulli metrics with unit
+     * counting, value per unit), when the state knows them.
+     */
     private static boolean reportsPending(ExperimentState state) {
-        return state.pending() != null && state.metric() == Metric.BERNOULLI
-                && Definitions.counting(state.definition()) == CountingMode.UNIT;
+        return state.pending() != null && Definitions.unitLevel(state.definition());
     }
 
     private static void statistics(ArmState.Builder arm, ArmStats stats) {

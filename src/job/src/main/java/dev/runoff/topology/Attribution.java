@@ -1,6 +1,7 @@
 package dev.runoff.topology;
 
 import dev.runoff.engine.core.Metric;
+import dev.runoff.engine.stats.ArmStats;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
 import java.nio.charset.StandardCharsets;
@@ -29,13 +30,15 @@ import org.apache.kafka.streams.state.KeyValueStore;
  *       stamped more than the conversion window after the first exposure is {@code unattributed}, a second
  *       one {@code excess-success}, one arriving after the unit was counted {@code late-outcome}. Per
  *       exposure: an arm-less event must lie within the window of the latest exposure, and successes never
- *       exceed trials.</li>
+ *       exceed trials. Value per unit: a value event within the window of the first exposure is added to the
+ *       unit's sum (any number of them), outside it {@code unattributed}, after the unit was counted
+ *       {@code late-outcome}; the unit reports its capped sum when its window closes.</li>
  *   <li>An outcome whose unit has no trial event yet waits up to the definition's early-outcome grace
  *       ({@link #MAX_WAITING_PER_UNIT} per unit) and is replayed when the trial event comes; after the grace
  *       it is rejected as {@code unattributed}.</li>
  *   <li>A punctuation every flush interval (wall clock) closes the windows that have ended by the close time
  *       of {@link UnitCounting#closeTime}: each such unit enters its arm's trials, as a success if it
- *       converted.</li>
+ *       converted (value per unit: as one observation, its capped sum, 0 without value events).</li>
  * </ul>
  * Time: windows compare event timestamps with each other. A window counts as closed only once both the wall
  * clock and the task's stream time (the largest record timestamp it has read; records on the events-by-unit
@@ -102,7 +105,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
 
     private void trial(UnitEvent event, long timestamp, String key, UnitState unit, long now) {
         UnitCounting.Step step = UnitCounting.expose(unit, event.arm(), event.version(), event.unitLevel(),
-                event.timestamp(), event.attributionWindowMs(), now);
+                event.timestamp(), event.attributionWindowMs(), event.valueCap(), now);
         if (step.verdict() == UnitCounting.Verdict.ARM_CONFLICT) {
             reject(event, timestamp, RejectReason.ARM_CONFLICT, "arm: the unit was first counted on arm "
                     + EventValidator.quote(unit.arm()) + ", not " + EventValidator.quote(event.arm())
@@ -113,7 +116,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         if (unit == null && step.unit().unitLevel()) {
             deadlines.put(deadline(step.unit().closesAt(), CLOSE, key), new byte[0]);
         }
-        if (event.metric() == Metric.BERNOULLI) {
+        if (event.metric() == Metric.BERNOULLI || step.unit().valuePerUnit()) {
             pass(step.unit(), event.experimentId(), step.count(), timestamp);
         }
         if (unit == null) {
@@ -126,6 +129,10 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         if (event.arm() != null && !event.arm().equals(unit.arm())) {
             reject(event, timestamp, RejectReason.ARM_MISMATCH, "arm: " + EventValidator.quote(event.arm())
                     + " differs from the arm " + EventValidator.quote(unit.arm()) + " the unit was first exposed to");
+            return;
+        }
+        if (event.role() == UnitEvent.Role.VALUE && unit.valuePerUnit()) {
+            unitValue(event, timestamp, key, unit, now);
             return;
         }
         if (event.role() == UnitEvent.Role.VALUE) {
@@ -158,15 +165,29 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
 
     /** A guardrail signal: marks the unit, which reports it when its window closes. */
     private void signal(UnitEvent event, long timestamp, String key, UnitState unit, long now) {
-        UnitCounting.Step step = UnitCounting.signal(unit, event.signal(), event.timestamp(), now);
+        marked(event, timestamp, key, unit, UnitCounting.signal(unit, event.signal(), event.timestamp(), now),
+                "it was counted for the guardrails before this signal arrived");
+    }
+
+    /** Value per unit: adds the value to the unit's sum, which the unit reports when its window closes. */
+    private void unitValue(UnitEvent event, long timestamp, String key, UnitState unit, long now) {
+        marked(event, timestamp, key, unit, UnitCounting.addValue(unit, event.value(), event.timestamp(), now),
+                "its value was counted before this value arrived");
+    }
+
+    /**
+     * Stores the unit an outcome marked (a signal, a value to add up), or rejects the outcome naming its
+     * timestamp: outside the window of the first exposure, or after the unit was counted ({@code lateWhy}).
+     */
+    private void marked(UnitEvent event, long timestamp, String key, UnitState unit, UnitCounting.Step step,
+                        String lateWhy) {
         switch (step.verdict()) {
             case TAKEN -> units.put(key, step.unit());
             case OUTSIDE_WINDOW -> reject(event, timestamp, RejectReason.UNATTRIBUTED, "timestamp: "
                     + (event.timestamp() - unit.firstTrialAt()) + " ms from the unit's first trial event, outside"
                     + " the conversion window of " + unit.windowMs() + " ms");
             case LATE -> reject(event, timestamp, RejectReason.LATE_OUTCOME, "timestamp: the unit's conversion"
-                    + " window closed at " + unit.closesAt() + " and it was counted for the guardrails before this"
-                    + " signal arrived");
+                    + " window closed at " + unit.closesAt() + " and " + lateWhy);
             default -> throw new IllegalStateException("unexpected verdict " + step.verdict());
         }
     }
@@ -215,10 +236,17 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
 
     private void pass(UnitState unit, String experimentId, UnitCounting.Count count, long timestamp) {
         if (!count.isEmpty()) {
-            forward(new ArmDelta(experimentId, unit.arm(), unit.version(),
-                    new BernoulliStats(count.trials(), count.successes()), count.pending(),
+            forward(new ArmDelta(experimentId, unit.arm(), unit.version(), stats(unit, count), count.pending(),
                     ArmDelta.ofUnit(count.signals())), timestamp);
         }
+    }
+
+    /** The statistics a count adds: Bernoulli, or (value per unit) the counted unit's observation, if any. */
+    private static ArmStats stats(UnitState unit, UnitCounting.Count count) {
+        if (!unit.valuePerUnit()) {
+            return new BernoulliStats(count.trials(), count.successes());
+        }
+        return count.trials() > 0 ? ValueStats.EMPTY.add(count.value()) : ValueStats.EMPTY;
     }
 
     private void forward(ArmDelta delta, long timestamp) {

@@ -2,7 +2,6 @@ package dev.runoff.topology;
 
 import dev.runoff.engine.core.Metric;
 import dev.runoff.records.Definitions;
-import dev.runoff.records.avro.CountingMode;
 import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.ExperimentDefinition;
 import java.util.Set;
@@ -17,13 +16,14 @@ import java.util.Set;
  * @param trialEvent          the event type that counts as a trial
  * @param outcomeEvent        the success event (Bernoulli) or the value event (value metric)
  * @param attributionWindowMs its conversion (attribution) window
- * @param unitLevel           whether it counts units (Bernoulli metric with {@code UNIT} counting)
+ * @param unitLevel           whether it counts units (Bernoulli metric with {@code UNIT} counting, value per unit)
  * @param earlyGraceMs        how long an outcome that arrives before its unit's first trial event waits
  * @param signals             the signals its guardrails count
+ * @param valueCap            value per unit: the cap of a unit's sum; NaN for every other metric
  */
 record DefinitionView(String experimentId, long version, Set<String> arms, Metric metric, EventType trialEvent,
                       EventType outcomeEvent, long attributionWindowMs, boolean unitLevel, long earlyGraceMs,
-                      Set<String> signals) {
+                      Set<String> signals, double valueCap) {
 
     static DefinitionView of(ExperimentDefinition def) {
         Metric metric = Definitions.metric(def);
@@ -31,9 +31,9 @@ record DefinitionView(String experimentId, long version, Set<String> arms, Metri
                 : def.getMetric().getValueEvent();
         return new DefinitionView(def.getExperimentId(), def.getVersion(), Set.copyOf(def.getArms()), metric,
                 def.getMetric().getTrialEvent(), outcome, def.getAttributionWindowMs(),
-                metric == Metric.BERNOULLI && Definitions.counting(def) == CountingMode.UNIT,
-                Definitions.earlyOutcomeGraceMs(def), Definitions.guardrails(def).stream()
-                        .map(dev.runoff.records.avro.GuardrailSpec::getSignal).collect(java.util.stream.Collectors.toSet()));
+                Definitions.unitLevel(def), Definitions.earlyOutcomeGraceMs(def), Definitions.guardrails(def).stream()
+                        .map(dev.runoff.records.avro.GuardrailSpec::getSignal).collect(java.util.stream.Collectors.toSet()),
+                Definitions.valueCap(def));
     }
 
     /** The role of an event of type {@code type}, or {@code null} when the metric does not use it. */

@@ -82,7 +82,7 @@ final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], R
             UnitEvent valid = new UnitEvent(event.getExperimentId(), event.getUnitId(), event.getEventId(), role,
                     view.metric(), arm, event.getValue() == null ? Double.NaN : event.getValue(),
                     event.getTimestamp(), view.attributionWindowMs(), view.version(), view.unitLevel(),
-                    view.earlyGraceMs(), source, record.key(), record.value(), signal);
+                    view.earlyGraceMs(), source, record.key(), record.value(), signal, view.valueCap());
             context().forward(new Record<>(valid.unitKeyBytes(), Routed.pass(valid), record.timestamp(),
                     new RecordHeaders()));
         }

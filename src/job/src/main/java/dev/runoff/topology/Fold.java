@@ -32,7 +32,8 @@ import org.slf4j.LoggerFactory;
  *       adds 1), replaces the configuration (see {@link ExperimentState#withDefinition}) and is published on
  *       the accepted-definitions topic, which feeds event validation.</li>
  *   <li>A definition that reuses the id of an ended experiment ({@code experiment-id-ended}) or changes the
- *       metric kind or the counting mode ({@code metric-change}) is refused: start a new experiment.</li>
+ *       metric kind, the counting mode or a value-per-unit metric's cap ({@code metric-change}) is refused:
+ *       start a new experiment.</li>
  *   <li>The end of an experiment deletes its state, remembers its id and publishes tombstones on the control
  *       and accepted topics.</li>
  *   <li>Statistics and pending-unit changes are merged into their arm; those for an unknown experiment or
@@ -109,7 +110,8 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
 
     /**
      * Why {@code submitted} may not be accepted, or {@code null}: an ended id is never reused, and the metric
-     * kind and the counting mode of an experiment never change (its counts would mix two meanings).
+     * kind, the counting mode and the cap of per-unit values of an experiment never change (its counts would
+     * mix two meanings).
      */
     private String refusal(String id, ExperimentState current, ExperimentDefinition submitted) {
         if (current == null) {
@@ -127,6 +129,13 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
             return "counting: experiment " + EventValidator.quote(id) + " counts " + Definitions.counting(current.definition())
                     + ", not " + Definitions.counting(submitted)
                     + "; the counting of an experiment never changes, start a new experiment with a new id";
+        }
+        Double cap = submitted.getMetric().getValueCap();
+        Double currentCap = current.definition().getMetric().getValueCap();
+        if (!java.util.Objects.equals(cap, currentCap)) {
+            return "metric.valueCap: experiment " + EventValidator.quote(id) + " caps per-unit sums at " + currentCap
+                    + ", not " + cap + "; units already counted keep their cap, so it never changes, start a new"
+                    + " experiment with a new id";
         }
         return null;
     }

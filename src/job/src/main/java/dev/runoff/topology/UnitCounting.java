@@ -19,6 +19,24 @@ package dev.runoff.topology;
  * recently fed arm look worse (respectively better), and the allocation feeds on that bias. The price is
  * delay: a decision does not know the pending units, which the decision record reports per arm.
  *
+ * <p><b>Value per unit</b> ({@code VALUE_PER_UNIT}): the same unit rule with a value in place of the
+ * conversion: each value event stamped within the window adds its value to the unit's sum, and at window
+ * close the unit enters its arm's value statistics as one observation, its sum winsorised into
+ * [0, cap] (a unit without value events is a 0). Negative values (refunds) are added as they come, so they
+ * net against the unit's purchases; a net negative sum counts as 0, the lower end of what the metric
+ * measures (what a unit spent), so that one refund-heavy unit cannot drag its arm down by more than a unit
+ * that bought nothing. Non-finite values never get here: event validation rejects them.
+ *
+ * <p>Design: per-unit sums of revenue are zero-inflated and heavy-tailed (most units spend nothing, a few
+ * spend a lot), and a handful of extreme units dominate sample means and variances. Capping each unit's
+ * contribution (winsorising at a fixed, pre-registered cap) bounds its variance, which the Normal-Gamma
+ * posterior and the t-based stopping rules need to behave: the capped per-unit values are bounded and
+ * independent across units, so their arm means are asymptotically Normal (central limit theorem), which is
+ * what the Student-t marginals approximate. Capping (winsorising) per-user revenue to cut its variance is
+ * common practice in online experiments (no source read for it here). A fixed cap in the definition, rather
+ * than a percentile fitted to the data, keeps every observation a pure function of that unit's events, so
+ * decisions replay exactly, and cannot be tuned after the results are seen.
+ *
  * <p><b>Per-exposure counting</b> (the {@code EXPOSURE} option): every trial event is a trial at once and
  * every attributed success a success at once, never more successes than trials per unit.
  */
@@ -28,10 +46,11 @@ final class UnitCounting {
     }
 
     /**
-     * What a step adds to the unit's arm: trials, successes, the change of the arm's pending units, and the
-     * guardrail signals of a unit counted now.
+     * What a step adds to the unit's arm: trials, successes, the change of the arm's pending units, the
+     * guardrail signals of a unit counted now, and (value per unit) the observation of a unit counted now
+     * (NaN otherwise).
      */
-    record Count(long trials, long successes, long pending, java.util.List<String> signals) {
+    record Count(long trials, long successes, long pending, java.util.List<String> signals, double value) {
 
         /** Nothing to add. */
         static final Count NONE = new Count(0, 0, 0);
@@ -39,6 +58,11 @@ final class UnitCounting {
         /** Copies the signals. */
         Count {
             signals = java.util.List.copyOf(signals);
+        }
+
+        /** A count without a value. */
+        Count(long trials, long successes, long pending, java.util.List<String> signals) {
+            this(trials, successes, pending, signals, Double.NaN);
         }
 
         /** A count without signals. */
@@ -88,8 +112,19 @@ final class UnitCounting {
      */
     static Step expose(UnitState unit, String arm, long version, boolean unitLevel, long timestamp, long windowMs,
                        long now) {
+        return expose(unit, arm, version, unitLevel, timestamp, windowMs, Double.NaN, now);
+    }
+
+    /**
+     * {@link #expose(UnitState, String, long, boolean, long, long, long)} for a metric whose per-unit values
+     * are capped at {@code valueCap} (value per unit; NaN for every other metric), kept from the first trial
+     * event.
+     */
+    static Step expose(UnitState unit, String arm, long version, boolean unitLevel, long timestamp, long windowMs,
+                       double valueCap, long now) {
         if (unit == null) {
-            UnitState first = new UnitState(arm, version, unitLevel, timestamp, timestamp, 1, 0, windowMs, false, now);
+            UnitState first = new UnitState(arm, version, unitLevel, timestamp, timestamp, 1, 0, windowMs, false, now,
+                    java.util.List.of(), valueCap, 0);
             return new Step(first, unitLevel ? new Count(0, 0, 1) : new Count(1, 0, 0), Verdict.TAKEN);
         }
         if (!unit.arm().equals(arm)) {
@@ -97,7 +132,8 @@ final class UnitCounting {
         }
         UnitState next = new UnitState(unit.arm(), unit.version(), unit.unitLevel(), unit.firstTrialAt(),
                 Math.max(unit.lastTrialAt(), timestamp), unit.trials() + 1, unit.successes(),
-                unit.unitLevel() ? unit.windowMs() : windowMs, unit.counted(), now, unit.signals());
+                unit.unitLevel() ? unit.windowMs() : windowMs, unit.counted(), now, unit.signals(), unit.valueCap(),
+                unit.valueSum());
         return new Step(next, unit.unitLevel() ? Count.NONE : new Count(1, 0, 0), Verdict.TAKEN);
     }
 
@@ -138,14 +174,32 @@ final class UnitCounting {
      * the window of its first exposure (either side, as for successes) and the unit has not been counted yet.
      */
     static Step signal(UnitState unit, String signal, long timestamp, long now) {
+        Verdict refusal = openWindowRefusal(unit, timestamp);
+        return refusal != null ? Step.refused(unit, refusal)
+                : new Step(unit.withSignal(signal, now), Count.NONE, Verdict.TAKEN);
+    }
+
+    /**
+     * Value per unit: a value event stamped {@code timestamp} with {@code value}, seen at wall-clock
+     * {@code now}. It is added to the unit's sum when it lies within the window of the first exposure (either
+     * side, as for successes) and the unit has not been counted yet; any number of value events may add up.
+     */
+    static Step addValue(UnitState unit, double value, long timestamp, long now) {
+        Verdict refusal = openWindowRefusal(unit, timestamp);
+        return refusal != null ? Step.refused(unit, refusal)
+                : new Step(unit.withValue(value, now), Count.NONE, Verdict.TAKEN);
+    }
+
+    /**
+     * Why an outcome stamped {@code timestamp} cannot mark a counted-at-close unit: outside the window of its
+     * first exposure (either side), or the unit already counted; {@code null} when it can.
+     */
+    private static Verdict openWindowRefusal(UnitState unit, long timestamp) {
         long gap = timestamp - unit.firstTrialAt();
         if (gap > unit.windowMs() || gap < -unit.windowMs()) {
-            return Step.refused(unit, Verdict.OUTSIDE_WINDOW);
+            return Verdict.OUTSIDE_WINDOW;
         }
-        if (unit.counted()) {
-            return Step.refused(unit, Verdict.LATE);
-        }
-        return new Step(unit.withSignal(signal, now), Count.NONE, Verdict.TAKEN);
+        return unit.counted() ? Verdict.LATE : null;
     }
 
     /**
@@ -180,8 +234,8 @@ final class UnitCounting {
 
     /**
      * Unit counting: once the unit's window has closed by {@code closeTime} (see {@link #closeTime}), the unit
-     * enters its arm's trials, as a success if it converted; otherwise (window still open, already counted,
-     * per-exposure counting) nothing changes.
+     * enters its arm's trials, as a success if it converted (value per unit: with its capped sum as the
+     * observation); otherwise (window still open, already counted, per-exposure counting) nothing changes.
      *
      * @param now the wall clock, recorded as the entry's last update
      */
@@ -189,13 +243,14 @@ final class UnitCounting {
         if (!unit.unitLevel() || unit.counted() || closeTime < unit.closesAt()) {
             return new Step(unit, Count.NONE, Verdict.TAKEN);
         }
-        UnitState counted = new UnitState(unit.arm(), unit.version(), true, unit.firstTrialAt(), unit.lastTrialAt(),
-                unit.trials(), unit.successes(), unit.windowMs(), true, now, unit.signals());
-        return new Step(counted, new Count(1, unit.successes() > 0 ? 1 : 0, -1, unit.signals()), Verdict.TAKEN);
+        double value = unit.valuePerUnit() ? unit.cappedValue() : Double.NaN;
+        return new Step(unit.countedAt(now), new Count(1, unit.successes() > 0 ? 1 : 0, -1, unit.signals(), value),
+                Verdict.TAKEN);
     }
 
     private static UnitState withSuccess(UnitState unit, long now) {
         return new UnitState(unit.arm(), unit.version(), unit.unitLevel(), unit.firstTrialAt(), unit.lastTrialAt(),
-                unit.trials(), unit.successes() + 1, unit.windowMs(), unit.counted(), now, unit.signals());
+                unit.trials(), unit.successes() + 1, unit.windowMs(), unit.counted(), now, unit.signals(),
+                unit.valueCap(), unit.valueSum());
     }
 }

@@ -20,21 +20,26 @@ import java.util.Objects;
  * @param timestamp           the event's timestamp field (ms since the epoch)
  * @param attributionWindowMs the experiment's conversion (attribution) window
  * @param version             the definition version the event was checked against
- * @param unitLevel           whether the experiment counts units (Bernoulli, {@code UNIT}) rather than exposures
+ * @param unitLevel           whether the experiment counts units (Bernoulli with {@code UNIT}, value per unit)
+ *                            rather than exposures
  * @param earlyGraceMs        how long an outcome that arrives before its unit's first trial event waits
  * @param source              where the record was read
  * @param originalKey         the original record key, or {@code null}
  * @param originalValue       the original record value
  * @param signal              GUARDRAIL: the signal the event carries; otherwise {@code null}
+ * @param valueCap            value per unit: the metric's cap of a unit's sum; NaN for every other metric
  */
 record UnitEvent(String experimentId, String unitId, String eventId, Role role, Metric metric, String arm,
                  double value, long timestamp, long attributionWindowMs, long version, boolean unitLevel,
-                 long earlyGraceMs, Source source, byte[] originalKey, byte[] originalValue, String signal) {
+                 long earlyGraceMs, Source source, byte[] originalKey, byte[] originalValue, String signal,
+                 double valueCap) {
 
     /** Serde of the repartition topic. */
     static final InternalSerde<UnitEvent> SERDE = new InternalSerde<>(UnitEvent::encode, UnitEvent::decode);
 
-    private static final int FORMAT = 3;
+    private static final int FORMAT = 4;
+    /** The format before values per unit (no cap field); still read, from a repartition topic an earlier job wrote. */
+    private static final int FORMAT_WITHOUT_CAP = 3;
     /** The format before guardrail signals (no signal field); still read, from a repartition topic an earlier job wrote. */
     private static final int FORMAT_WITHOUT_SIGNAL = 2;
 
@@ -53,7 +58,15 @@ record UnitEvent(String experimentId, String unitId, String eventId, Role role, 
         }
     }
 
-    /** An event without a guardrail signal. */
+    /** An event of a metric other than value per unit. */
+    UnitEvent(String experimentId, String unitId, String eventId, Role role, Metric metric, String arm, double value,
+              long timestamp, long attributionWindowMs, long version, boolean unitLevel, long earlyGraceMs,
+              Source source, byte[] originalKey, byte[] originalValue, String signal) {
+        this(experimentId, unitId, eventId, role, metric, arm, value, timestamp, attributionWindowMs, version,
+                unitLevel, earlyGraceMs, source, originalKey, originalValue, signal, Double.NaN);
+    }
+
+    /** An event without a guardrail signal, of a metric other than value per unit. */
     UnitEvent(String experimentId, String unitId, String eventId, Role role, Metric metric, String arm, double value,
               long timestamp, long attributionWindowMs, long version, boolean unitLevel, long earlyGraceMs,
               Source source, byte[] originalKey, byte[] originalValue) {
@@ -67,7 +80,7 @@ record UnitEvent(String experimentId, String unitId, String eventId, Role role, 
         TRIAL,
         /** The Bernoulli metric's success event. */
         SUCCESS,
-        /** The value metric's value event: one observation. */
+        /** The value metric's value event: one observation (value per unit: added to the unit's sum). */
         VALUE,
         /** An event with a guardrail signal: marks its unit for the guardrails that count the signal. */
         GUARDRAIL
@@ -96,20 +109,21 @@ record UnitEvent(String experimentId, String unitId, String eventId, Role role, 
                 .writeLong(e.earlyGraceMs);
         e.source.write(out);
         return out.writeNullableBytes(e.originalKey).writeBytes(e.originalValue).writeNullableString(e.signal)
-                .toByteArray();
+                .writeDouble(e.valueCap).toByteArray();
     }
 
     private static UnitEvent decode(byte[] bytes) {
         BinaryIn in = new BinaryIn(bytes);
         int format = in.readByte();
-        if (format != FORMAT && format != FORMAT_WITHOUT_SIGNAL) {
+        if (format != FORMAT && format != FORMAT_WITHOUT_CAP && format != FORMAT_WITHOUT_SIGNAL) {
             throw new IllegalArgumentException("unit event format " + format + " is not " + FORMAT);
         }
         UnitEvent event = new UnitEvent(in.readString(), in.readString(), in.readString(),
                 Role.values()[in.readByte()], Metric.values()[in.readByte()], in.readNullableString(),
                 in.readDouble(), in.readLong(), in.readLong(), in.readLong(), in.readBoolean(), in.readLong(),
                 Source.read(in), in.readNullableBytes(), in.readBytes(),
-                format == FORMAT ? in.readNullableString() : null);
+                format == FORMAT_WITHOUT_SIGNAL ? null : in.readNullableString(),
+                format == FORMAT ? in.readDouble() : Double.NaN);
         in.end();
         return event;
     }

@@ -20,14 +20,21 @@ import java.util.List;
  * @param counted      unit counting: whether the unit has entered its arm's trials (its window closed)
  * @param touchedAt    wall-clock time of the last update, for the clean-up
  * @param signals      unit counting: the guardrail signals the unit had within its window, sorted, each once
+ * @param valueCap     value per unit: the metric's cap at the first trial event (kept for good); NaN for every
+ *                     other metric
+ * @param valueSum     value per unit: the sum of the unit's values within its window so far, not capped (0
+ *                     without value events)
  */
 record UnitState(String arm, long version, boolean unitLevel, long firstTrialAt, long lastTrialAt, long trials,
-                 long successes, long windowMs, boolean counted, long touchedAt, List<String> signals) {
+                 long successes, long windowMs, boolean counted, long touchedAt, List<String> signals,
+                 double valueCap, double valueSum) {
 
     /** Serde of the units store. */
     static final InternalSerde<UnitState> SERDE = new InternalSerde<>(UnitState::encode, UnitState::decode);
 
-    private static final int FORMAT = 3;
+    private static final int FORMAT = 4;
+    /** The format before values per unit; entries an earlier job wrote are still read (no cap, no sum). */
+    private static final int FORMAT_WITHOUT_VALUES = 3;
     /** The format before guardrail signals; entries an earlier job wrote are still read (no signals). */
     private static final int FORMAT_WITHOUT_SIGNALS = 2;
 
@@ -36,11 +43,23 @@ record UnitState(String arm, long version, boolean unitLevel, long firstTrialAt,
         signals = List.copyOf(signals);
     }
 
-    /** A unit without guardrail signals. */
+    /** A unit without a value per unit. */
+    UnitState(String arm, long version, boolean unitLevel, long firstTrialAt, long lastTrialAt, long trials,
+              long successes, long windowMs, boolean counted, long touchedAt, List<String> signals) {
+        this(arm, version, unitLevel, firstTrialAt, lastTrialAt, trials, successes, windowMs, counted, touchedAt,
+                signals, Double.NaN, 0);
+    }
+
+    /** A unit without guardrail signals and without a value per unit. */
     UnitState(String arm, long version, boolean unitLevel, long firstTrialAt, long lastTrialAt, long trials,
               long successes, long windowMs, boolean counted, long touchedAt) {
         this(arm, version, unitLevel, firstTrialAt, lastTrialAt, trials, successes, windowMs, counted, touchedAt,
                 List.of());
+    }
+
+    /** Whether the unit belongs to a value-per-unit metric (it has a cap). */
+    boolean valuePerUnit() {
+        return !Double.isNaN(valueCap);
     }
 
     /** This unit with {@code signal} among its signals (once), touched at {@code now}. */
@@ -48,7 +67,27 @@ record UnitState(String arm, long version, boolean unitLevel, long firstTrialAt,
         java.util.TreeSet<String> all = new java.util.TreeSet<>(signals);
         all.add(signal);
         return new UnitState(arm, version, unitLevel, firstTrialAt, lastTrialAt, trials, successes, windowMs, counted,
-                now, List.copyOf(all));
+                now, List.copyOf(all), valueCap, valueSum);
+    }
+
+    /** This unit with {@code value} added to its sum, touched at {@code now}. */
+    UnitState withValue(double value, long now) {
+        return new UnitState(arm, version, unitLevel, firstTrialAt, lastTrialAt, trials, successes, windowMs, counted,
+                now, signals, valueCap, valueSum + value);
+    }
+
+    /** This unit marked counted at {@code now}. */
+    UnitState countedAt(long now) {
+        return new UnitState(arm, version, true, firstTrialAt, lastTrialAt, trials, successes, windowMs, true, now,
+                signals, valueCap, valueSum);
+    }
+
+    /**
+     * Value per unit: the unit's observation, its sum winsorised into [0, cap] (see {@link UnitCounting}).
+     * {@code Math.min}/{@code max} only, so the observation is the same bits on every JVM.
+     */
+    double cappedValue() {
+        return Math.min(valueCap, Math.max(0.0, valueSum));
     }
 
     /** When the unit's conversion window closes: its first trial event's timestamp plus the window. */
@@ -68,18 +107,19 @@ record UnitState(String arm, long version, boolean unitLevel, long firstTrialAt,
                 .writeLong(u.successes).writeLong(u.windowMs).writeBoolean(u.counted).writeLong(u.touchedAt)
                 .writeInt(u.signals.size());
         u.signals.forEach(out::writeString);
-        return out.toByteArray();
+        return out.writeDouble(u.valueCap).writeDouble(u.valueSum).toByteArray();
     }
 
     private static UnitState decode(byte[] bytes) {
         BinaryIn in = new BinaryIn(bytes);
         int format = in.readByte();
-        if (format != FORMAT && format != FORMAT_WITHOUT_SIGNALS) {
+        if (format != FORMAT && format != FORMAT_WITHOUT_VALUES && format != FORMAT_WITHOUT_SIGNALS) {
             throw new IllegalArgumentException("unit entry format " + format + " is not " + FORMAT);
         }
         UnitState state = new UnitState(in.readString(), in.readLong(), in.readBoolean(), in.readLong(),
                 in.readLong(), in.readLong(), in.readLong(), in.readLong(), in.readBoolean(), in.readLong(),
-                format == FORMAT ? readSignals(in) : List.of());
+                format == FORMAT_WITHOUT_SIGNALS ? List.of() : readSignals(in),
+                format == FORMAT ? in.readDouble() : Double.NaN, format == FORMAT ? in.readDouble() : 0);
         in.end();
         return state;
     }

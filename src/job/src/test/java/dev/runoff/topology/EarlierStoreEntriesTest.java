@@ -1,6 +1,7 @@
 package dev.runoff.topology;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.decision.ExperimentState;
 import dev.runoff.decision.GuardrailCounts;
@@ -41,6 +42,38 @@ class EarlierStoreEntriesTest {
         UnitState signalled = unit.withSignal("payment-failed", 100);
         assertEquals(signalled, UnitState.SERDE.deserializer().deserialize("t",
                 UnitState.SERDE.serializer().serialize("t", signalled)));
+    }
+
+    @Test
+    void aUnitEntryOfTheFormatBeforeValuesPerUnitReadsWithoutCapOrSum() {
+        byte[] bytes = new BinaryOut().writeByte(3).writeString("a").writeLong(1).writeBoolean(true).writeLong(10)
+                .writeLong(12).writeLong(2).writeLong(1).writeLong(60_000).writeBoolean(false).writeLong(99)
+                .writeInt(1).writeString("payment-failed").toByteArray();
+        UnitState unit = UnitState.SERDE.deserializer().deserialize("t", bytes);
+        assertEquals(new UnitState("a", 1, true, 10, 12, 2, 1, 60_000, false, 99, List.of("payment-failed")), unit);
+        assertEquals(false, unit.valuePerUnit());
+        assertEquals(0.0, unit.valueSum());
+        UnitState valued = new UnitState("a", 1, true, 10, 12, 1, 0, 60_000, false, 99, List.of(), 250.0, 0)
+                .withValue(-12.5, 100).withValue(40, 101);
+        UnitState back = UnitState.SERDE.deserializer().deserialize("t", UnitState.SERDE.serializer().serialize("t",
+                valued));
+        assertEquals(valued, back);
+        assertEquals(27.5, back.valueSum());
+        assertEquals(250.0, back.valueCap());
+    }
+
+    @Test
+    void aUnitEventOfTheFormatBeforeValuesPerUnitReadsWithoutCap() {
+        BinaryOut out = new BinaryOut().writeByte(3).writeString("e").writeString("u").writeString("ev")
+                .writeByte(UnitEvent.Role.GUARDRAIL.ordinal()).writeByte(Metric.BERNOULLI.ordinal())
+                .writeNullableString("a").writeDouble(Double.NaN).writeLong(7).writeLong(60_000).writeLong(3)
+                .writeBoolean(true).writeLong(500);
+        new Source("in", 3, 99L).write(out);
+        byte[] bytes = out.writeNullableBytes(null).writeBytes(new byte[] {1}).writeNullableString("payment-failed")
+                .toByteArray();
+        UnitEvent event = UnitEvent.SERDE.deserializer().deserialize("t", bytes);
+        assertEquals("payment-failed", event.signal());
+        assertTrue(Double.isNaN(event.valueCap()));
     }
 
     @Test

@@ -43,6 +43,10 @@ class InternalEncodingTest {
                         back.timestamp(), back.attributionWindowMs(), back.version(), back.unitLevel(),
                         back.earlyGraceMs(), back.source()));
         assertArrayEquals(event.originalValue(), back.originalValue());
+        UnitEvent capped = new UnitEvent("e", "u", "ev", UnitEvent.Role.TRIAL, Metric.VALUE, "a", Double.NaN, 7L,
+                60_000L, 3L, true, 500L, new Source("in", 3, 99L), null, new byte[] {1}, null, 250.0);
+        assertEquals(250.0, UnitEvent.SERDE.deserializer().deserialize("t", UnitEvent.SERDE.serializer()
+                .serialize("t", capped)).valueCap());
         for (StageTwo s : List.of(StageTwo.delta(new ArmDelta("e", "a", 2, new ValueStats(3, 1.5, 0.25), -4)),
                 StageTwo.definition(TestDefinitions.value("e", "a", "b")), StageTwo.ended("e"))) {
             byte[] bytes = StageTwo.SERDE.serializer().serialize("t", s);

@@ -4,6 +4,7 @@ import dev.runoff.records.avro.AfterStopPolicy;
 import dev.runoff.records.avro.AllocationRule;
 import dev.runoff.records.avro.AllocationSpec;
 import dev.runoff.records.avro.BetaParams;
+import dev.runoff.records.avro.CountingMode;
 import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.records.avro.MetricKind;
@@ -29,6 +30,10 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
         problems.atLeast("version", def.getVersion(), 0);
         checkArms(def, limits, problems);
         checkMetric(def.getMetric(), problems.under("metric"));
+        if (def.getMetric().getKind() == MetricKind.VALUE_PER_UNIT && Definitions.counting(def) != CountingMode.UNIT) {
+            problems.add("counting", Reason.INCONSISTENT, "metric.kind VALUE_PER_UNIT counts units (UNIT), got "
+                    + def.getCounting());
+        }
         checkAllocation(def, problems.under("allocation"));
         checkStopping(def, problems.under("stopping"));
         if (def.getAfterStop() == AfterStopPolicy.ALL_TO_CONTROL && def.getControlArm() == null) {
@@ -62,6 +67,7 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
         checkEvent("successEvent", metric.getSuccessEvent(), bernoulli, metric, SUCCESS_EXCLUDED, problems);
         checkEvent("valueEvent", metric.getValueEvent(), !bernoulli, metric, VALUE_EXCLUDED, problems);
         Object prior = metric.getPrior();
+        checkValueCap(metric, problems);
         if (prior instanceof BetaParams beta) {
             if (!bernoulli) {
                 problems.add("prior", Reason.INCONSISTENT, "a Beta prior (a, b) needs kind BERNOULLI");
@@ -71,11 +77,25 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
         } else if (prior instanceof NormalGammaPriorSpec normalGamma) {
             if (bernoulli) {
                 problems.add("prior", Reason.INCONSISTENT,
-                        "a Normal-Gamma prior (mu0, kappa0, alpha0, beta0) needs kind VALUE");
+                        "a Normal-Gamma prior (mu0, kappa0, alpha0, beta0) needs kind VALUE or VALUE_PER_UNIT");
             }
             problems.positive("prior.kappa0", normalGamma.getKappa0());
             problems.positive("prior.alpha0", normalGamma.getAlpha0());
             problems.positive("prior.beta0", normalGamma.getBeta0());
+        }
+    }
+
+    /** valueCap: required, finite and > 0 for VALUE_PER_UNIT; null for every other kind. */
+    private static void checkValueCap(MetricSpec metric, Problems problems) {
+        Double cap = metric.getValueCap();
+        if (metric.getKind() != MetricKind.VALUE_PER_UNIT) {
+            if (cap != null) {
+                problems.add("valueCap", Reason.INCONSISTENT, "only used by kind VALUE_PER_UNIT, got " + cap);
+            }
+            return;
+        }
+        if (problems.present("valueCap", cap) && !(cap > 0 && Double.isFinite(cap))) {
+            problems.add("valueCap", Reason.OUT_OF_RANGE, "must be a finite number > 0, got " + cap);
         }
     }
 
@@ -88,7 +108,7 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
     }
 
     /**
-     * successEvent belongs to BERNOULLI metrics, valueEvent to VALUE metrics; either must differ from the
+     * successEvent belongs to BERNOULLI metrics, valueEvent to VALUE and VALUE_PER_UNIT metrics; either must differ from the
      * trial event and not be one of the {@code excluded} types.
      */
     private static void checkEvent(String field, EventType event, boolean used, MetricSpec metric,
@@ -138,8 +158,8 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
         if (maxStep != null && !(maxStep > 0 && maxStep <= 1)) {
             problems.add("maxStep", Reason.OUT_OF_RANGE, "must be in (0, 1], got " + maxStep);
         }
-        if (allocation.getRule() == AllocationRule.TOP_TWO_EI && def.getMetric().getKind() != MetricKind.VALUE) {
-            problems.add("rule", Reason.INCONSISTENT, "TOP_TWO_EI needs metric.kind VALUE");
+        if (allocation.getRule() == AllocationRule.TOP_TWO_EI && def.getMetric().getKind() == MetricKind.BERNOULLI) {
+            problems.add("rule", Reason.INCONSISTENT, "TOP_TWO_EI needs metric.kind VALUE or VALUE_PER_UNIT");
         }
     }
 
@@ -150,8 +170,8 @@ final class DefinitionRules implements RecordRules<ExperimentDefinition> {
         if (stopping.getRule() == StoppingRule.MIXTURE && def.getMetric().getKind() != MetricKind.BERNOULLI) {
             problems.add("rule", Reason.INCONSISTENT, "MIXTURE needs metric.kind BERNOULLI");
         }
-        if (stopping.getRule() == StoppingRule.SEQUENTIAL_T && def.getMetric().getKind() != MetricKind.VALUE) {
-            problems.add("rule", Reason.INCONSISTENT, "SEQUENTIAL_T needs metric.kind VALUE");
+        if (stopping.getRule() == StoppingRule.SEQUENTIAL_T && def.getMetric().getKind() == MetricKind.BERNOULLI) {
+            problems.add("rule", Reason.INCONSISTENT, "SEQUENTIAL_T needs metric.kind VALUE or VALUE_PER_UNIT");
         }
         problems.atLeast("minTrialsPerArm", stopping.getMinTrialsPerArm(), 0);
         problems.atLeast("minDurationMs", stopping.getMinDurationMs(), 0);

@@ -88,10 +88,28 @@ public final class Definitions {
         return ExperimentDefinition.newBuilder(submitted).setVersion(version).build();
     }
 
-    /** The engine's metric kind. */
     /** How the definition counts trials: UNIT when {@code counting} is unset. */
     public static CountingMode counting(ExperimentDefinition definition) {
         return definition.getCounting() == null ? CountingMode.UNIT : definition.getCounting();
+    }
+
+    /**
+     * Whether a trial of {@code definition} is a unit counted when its window closes: a BERNOULLI metric with
+     * UNIT counting, or a VALUE_PER_UNIT metric (which accepts UNIT counting only).
+     */
+    public static boolean unitLevel(ExperimentDefinition definition) {
+        MetricKind kind = definition.getMetric().getKind();
+        return kind == MetricKind.VALUE_PER_UNIT
+                || kind == MetricKind.BERNOULLI && counting(definition) == CountingMode.UNIT;
+    }
+
+    /**
+     * The cap of a VALUE_PER_UNIT metric's per-unit sums ({@code metric.valueCap}), or NaN for every other
+     * kind.
+     */
+    public static double valueCap(ExperimentDefinition definition) {
+        Double cap = definition.getMetric().getValueCap();
+        return definition.getMetric().getKind() == MetricKind.VALUE_PER_UNIT && cap != null ? cap : Double.NaN;
     }
 
     /** The definition's early-outcome grace in milliseconds; {@value #DEFAULT_EARLY_OUTCOME_GRACE_MS} when unset. */
@@ -126,7 +144,10 @@ public final class Definitions {
         return definition.getGuardrails() == null ? java.util.List.of() : definition.getGuardrails();
     }
 
-    /** The metric kind of {@code definition}. */
+    /**
+     * The engine's metric kind of {@code definition}: VALUE_PER_UNIT is a VALUE metric for the engine (its
+     * observations are per-unit sums).
+     */
     public static Metric metric(ExperimentDefinition definition) {
         return definition.getMetric().getKind() == MetricKind.BERNOULLI ? Metric.BERNOULLI : Metric.VALUE;
     }

@@ -20,10 +20,10 @@ import org.apache.avro.Schema;
 final class WriterSchemas {
 
     /** How many earlier versions each record has; a change adds one. */
-    private static final int DECISION_RECORD_VERSIONS = 3;
+    private static final int DECISION_RECORD_VERSIONS = 4;
     private static final int ALLOCATION_UPDATE_VERSIONS = 1;
     private static final int OUTCOME_EVENT_VERSIONS = 1;
-    private static final int EXPERIMENT_DEFINITION_VERSIONS = 1;
+    private static final int EXPERIMENT_DEFINITION_VERSIONS = 2;
 
     private WriterSchemas() {
     }

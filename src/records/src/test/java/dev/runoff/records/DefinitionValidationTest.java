@@ -158,6 +158,66 @@ class DefinitionValidationTest {
     }
 
     @Test
+    void aValuePerUnitDefinitionIsValidAndIsAUnitLevelValueMetricForTheEngine() {
+        ExperimentDefinition def = Samples.valuePerUnit();
+        assertSame(def, Definitions.validate(def, Samples.NOW).orThrow());
+        assertEquals(Metric.VALUE, Definitions.metric(def));
+        assertTrue(Definitions.unitLevel(def));
+        assertEquals(500.0, Definitions.valueCap(def));
+        assertEquals(NormalGammaPrior.WEAK, Definitions.prior(def));
+        def.getStopping().setRule(StoppingRule.SEQUENTIAL_T);
+        def.getAllocation().setRule(AllocationRule.TOP_TWO_EI);
+        assertSame(def, Definitions.validate(def, Samples.NOW).orThrow(), "the rules VALUE allows");
+        assertTrue(Double.isNaN(Definitions.valueCap(Samples.valueMetric())));
+        assertTrue(!Definitions.unitLevel(Samples.valueMetric()));
+    }
+
+    static Stream<Arguments> brokenValuePerUnitDefinitions() {
+        return Stream.of(
+                Arguments.of("no cap", (Consumer<ExperimentDefinition>) d -> d.getMetric().setValueCap(null),
+                        "metric.valueCap", Reason.MISSING, ""),
+                Arguments.of("zero cap", (Consumer<ExperimentDefinition>) d -> d.getMetric().setValueCap(0.0),
+                        "metric.valueCap", Reason.OUT_OF_RANGE, "must be a finite number > 0, got 0.0"),
+                Arguments.of("infinite cap", (Consumer<ExperimentDefinition>) d -> d.getMetric()
+                        .setValueCap(Double.POSITIVE_INFINITY), "metric.valueCap", Reason.NOT_FINITE, "not a finite number"),
+                Arguments.of("NaN cap", (Consumer<ExperimentDefinition>) d -> d.getMetric().setValueCap(Double.NaN),
+                        "metric.valueCap", Reason.NOT_FINITE, "not a finite number"),
+                Arguments.of("exposure counting", (Consumer<ExperimentDefinition>) d -> d.setCounting(
+                        CountingMode.EXPOSURE), "counting", Reason.INCONSISTENT,
+                        "metric.kind VALUE_PER_UNIT counts units (UNIT), got EXPOSURE"),
+                Arguments.of("no value event", (Consumer<ExperimentDefinition>) d -> d.getMetric().setValueEvent(null),
+                        "metric.valueEvent", Reason.MISSING, ""),
+                Arguments.of("mixture stopping", (Consumer<ExperimentDefinition>) d -> d.getStopping()
+                        .setRule(StoppingRule.MIXTURE), "stopping.rule", Reason.INCONSISTENT,
+                        "MIXTURE needs metric.kind BERNOULLI"),
+                Arguments.of("beta prior", (Consumer<ExperimentDefinition>) d -> d.getMetric()
+                        .setPrior(new BetaParams(1.0, 1.0)), "metric.prior", Reason.INCONSISTENT,
+                        "a Beta prior (a, b) needs kind BERNOULLI"));
+    }
+
+    @ParameterizedTest(name = "{0}")
+    @MethodSource("brokenValuePerUnitDefinitions")
+    void brokenValuePerUnitDefinitionIsRejectedNamingTheField(String name, Consumer<ExperimentDefinition> change,
+                                                             String field, Reason reason, String message) {
+        ExperimentDefinition def = Samples.valuePerUnit();
+        change.accept(def);
+        Decoded<ExperimentDefinition> decoded = Definitions.validate(def, Samples.NOW);
+        Rejections.assertFirstProblem(decoded, field, reason, message);
+        assertEquals(1, decoded.problems().size(), decoded.problems().toString());
+    }
+
+    @Test
+    void aValueCapIsRefusedForEveryOtherKind() {
+        for (ExperimentDefinition def : List.of(Samples.bernoulli(), Samples.valueMetric())) {
+            def.getMetric().setValueCap(100.0);
+            Decoded<ExperimentDefinition> decoded = Definitions.validate(def, Samples.NOW);
+            Rejections.assertFirstProblem(decoded, "metric.valueCap", Reason.INCONSISTENT,
+                    "only used by kind VALUE_PER_UNIT, got 100.0");
+            assertEquals(1, decoded.problems().size(), decoded.problems().toString());
+        }
+    }
+
+    @Test
     void aBetaPriorAtTheShapeFloorIsAccepted() {
         ExperimentDefinition def = Samples.bernoulli();
         def.getMetric().setPrior(new BetaParams(Definitions.MIN_BETA_PRIOR_SHAPE, Definitions.MIN_BETA_PRIOR_SHAPE));

@@ -81,6 +81,18 @@ final class Samples {
                 .build();
     }
 
+    /** A VALUE_PER_UNIT definition: revenue per visitor, each visitor's sum capped at 500. */
+    static ExperimentDefinition valuePerUnit() {
+        return ExperimentDefinition.newBuilder()
+                .setExperimentId("cabin-upsell")
+                .setArms(List.of("plain", "bundle"))
+                .setMetric(MetricSpec.newBuilder().setKind(MetricKind.VALUE_PER_UNIT).setValueEvent(EventType.VALUE)
+                        .setValueCap(500.0).build())
+                .setAllocation(AllocationSpec.newBuilder().build())
+                .setStopping(StoppingSpec.newBuilder().build())
+                .build();
+    }
+
     static AllocationUpdate update() {
         return AllocationUpdate.newBuilder()
                 .setExperimentId("checkout-button")

@@ -9,6 +9,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import dev.runoff.records.avro.AllocationUpdate;
 import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.EventType;
+import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.records.avro.OutcomeEvent;
 import java.io.ByteArrayOutputStream;
 import java.nio.ByteBuffer;
@@ -78,8 +79,8 @@ class SchemaCompatibilityTest {
     void aDecisionRecordWrittenByEveryEarlierSchemaDecodesAndKeepsItsHash() throws Exception {
         DecisionRecord original = Samples.decision();
         List<Schema> writers = WriterSchemas.previous("DecisionRecord");
-        assertEquals(3, writers.size(), "DecisionRecord-1 (first release), -2 (signature and counting fields) and"
-                + " -3 (adaptive rule and estimator field)");
+        assertEquals(4, writers.size(), "DecisionRecord-1 (first release), -2 (signature and counting fields),"
+                + " -3 (adaptive rule and estimator field) and -4 (guardrail fields)");
         for (Schema writer : writers) {
             Decoded<DecisionRecord> decoded = RecordCodec.decisionRecords().decode(writtenBy(writer, original),
                     Samples.NOW);
@@ -117,6 +118,22 @@ class SchemaCompatibilityTest {
         assertTrue(decoded.isValid(), decoded.problems().toString());
         assertEquals(original, decoded.orThrow());
         assertAddedFieldsAreWhenSet(OutcomeEvent.getClassSchema(), writer, "OutcomeEvent");
+    }
+
+    @Test
+    void aDefinitionWrittenBeforeValuePerUnitDecodesAndTheFieldsAddedSinceAreWhenSet() throws Exception {
+        List<Schema> writers = WriterSchemas.previous("ExperimentDefinition");
+        Schema last = writers.get(writers.size() - 1);
+        Schema kind = last.getField("metric").schema().getField("kind").schema();
+        assertFalse(kind.getEnumSymbols().contains("VALUE_PER_UNIT"));
+        assertNull(last.getField("metric").schema().getField("valueCap"));
+        ExperimentDefinition original = Samples.valueMetric();
+        Decoded<ExperimentDefinition> decoded = RecordCodec.definitions().decode(writtenBy(last, original),
+                Samples.NOW);
+        assertTrue(decoded.isValid(), decoded.problems().toString());
+        assertEquals(original, decoded.orThrow());
+        assertAddedFieldsAreWhenSet(ExperimentDefinition.getClassSchema(), last, "ExperimentDefinition");
+        assertFalse(CanonicalJson.of(original).contains("valueCap"), "an unset cap stays out of the canonical text");
     }
 
     @Test
