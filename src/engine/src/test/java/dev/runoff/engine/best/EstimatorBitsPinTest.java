@@ -16,9 +16,9 @@ import org.junit.jupiter.api.Test;
 /**
  * Pins the exact output bits of the estimators, so that a change made for speed is seen to keep every
  * decision replayable (the audit reproduces decision records bit for bit). The expected bits in
- * {@code pins/estimator-bits.txt} were written by the code as it stood before the speed work of issue 15;
- * they pin replay, not correctness: the accuracy of these numbers is checked by the other tests of this
- * package against outside references.
+ * {@code pins/estimator-bits.txt} were written by the code as it stood before the second round of speed
+ * work on issue 15 (src/docs/performance.md); they pin replay, not correctness: the accuracy of these
+ * numbers is checked by the other tests of this package against outside references.
  *
  * <p>Inputs: five-arm Beta posteriors like the job's (2,000 to 20,000 trials, rates 2% to 12%, from a
  * seeded generator), small and sub-1 shapes, a near-tie, and Student-t arms; for each, the adaptive Monte
