@@ -39,5 +39,6 @@ def main():
         print(f"numpy {np.__version__} ({name}): median {np.median(per_call_ms):.3f} ms per evaluation "
               f"(min {min(per_call_ms):.3f}, max {max(per_call_ms):.3f}; {repeats} repeats of {number} calls)")
 
+
 if __name__ == "__main__":
     main()

@@ -195,9 +195,10 @@ public final class IncompleteBeta {
      * The continued fraction by its forward recurrence. The term index is carried as a double ({@code m} and
      * {@code 2m} are small integers, exact in either type, so every term has the same bits as with an
      * {@code int} index): with an {@code int} index converted to a double several times per term, the loop
-     * ran about 3.5 times slower on the build machine (measured side by side on 200,000 random points near
-     * the centre of five-arm posteriors; the likely cause, not checked, is that each conversion writes only
-     * part of its register and so waits for that register's previous value).
+     * ran up to 3.5 times slower on the build machine, depending on how the JIT compiled it (measured side
+     * by side on 200,000 random points near the centre of five-arm posteriors, and in src/docs/performance.md;
+     * the likely cause, not checked, is that each conversion writes only part of its register and so waits
+     * for that register's previous value).
      */
     private double continuedFraction(double x, double p, double q) {
         double sum = p + q;
