@@ -15,6 +15,9 @@ import dev.runoff.records.avro.StoppingSpec;
 import dev.runoff.decision.Evaluator;
 import dev.runoff.decision.ExperimentState;
 import dev.runoff.topology.TopologySettings;
+import java.security.MessageDigest;
+import java.security.NoSuchAlgorithmException;
+import java.util.HexFormat;
 import java.util.List;
 import java.util.SplittableRandom;
 import java.util.concurrent.TimeUnit;
@@ -99,6 +102,28 @@ public class RecomputeBench {
             bytes += recompute(state);
         }
         return bytes;
+    }
+
+    /**
+     * SHA-256 over both encoded records of every experiment of the pool, in order: equal digests under two
+     * class paths ({@link SameOutput}) show that a change kept every output bit.
+     */
+    public String digestAll() {
+        MessageDigest sha = sha256();
+        for (ExperimentState state : states) {
+            Evaluator.Result result = evaluator.evaluate(state, NOW);
+            sha.update(decisions.encode(result.decision(), Format.AVRO));
+            sha.update(updates.encode(result.update(), Format.AVRO));
+        }
+        return HexFormat.of().formatHex(sha.digest());
+    }
+
+    private static MessageDigest sha256() {
+        try {
+            return MessageDigest.getInstance("SHA-256");
+        } catch (NoSuchAlgorithmException e) {
+            throw new IllegalStateException("the JDK must provide SHA-256", e);
+        }
     }
 
     private int recompute(ExperimentState state) {

@@ -79,7 +79,7 @@ public final class SideBySide {
     }
 
     /** A bench instance loaded from one class path, set up and ready to call. */
-    private record Pass(Object bench, Method method) {
+    record Pass(Object bench, Method method) {
 
         static Pass of(String className, String methodName, String classPath, List<String> settings)
                 throws ReflectiveOperationException, MalformedURLException {

@@ -191,6 +191,15 @@ public final class IncompleteBeta {
         return Stirling.rlog1(e);
     }
 
+    /**
+     * The continued fraction by its forward recurrence. The term index is carried as a double ({@code m} and
+     * {@code 2m} are small integers, exact in either type, so every term has the same bits as with an
+     * {@code int} index): with an {@code int} index converted to a double several times per term, the loop
+     * ran up to 3.5 times slower on the build machine, depending on how the JIT compiled it (measured side
+     * by side on 200,000 random points near the centre of five-arm posteriors, and in src/docs/performance.md;
+     * the likely cause, not checked, is that each conversion writes only part of its register and so waits
+     * for that register's previous value).
+     */
     private double continuedFraction(double x, double p, double q) {
         double sum = p + q;
         double pPlus = p + 1;
@@ -200,12 +209,15 @@ public final class IncompleteBeta {
         double numerator = 1;
         double denominator = 1 - sum * x / pPlus;
         double h = numerator / denominator;
-        for (int m = 1; m <= maxIterations; m++) {
-            int m2 = 2 * m;
-            double even = m * (q - m) * x / ((pMinus + m2) * (p + m2));
+        double m = 0;
+        for (int step = 1; step <= maxIterations; step++) {
+            m += 1;
+            double m2 = m + m;
+            double pTwoM = p + m2;
+            double even = m * (q - m) * x / ((pMinus + m2) * pTwoM);
+            double odd = -(p + m) * (sum + m) * x / (pTwoM * (pPlus + m2));
             double numeratorEven = numerator + even * numeratorPrev;
             double denominatorEven = denominator + even * denominatorPrev;
-            double odd = -(p + m) * (sum + m) * x / ((p + m2) * (pPlus + m2));
             numeratorPrev = numeratorEven;
             denominatorPrev = denominatorEven;
             numerator = numeratorEven + odd * numerator;

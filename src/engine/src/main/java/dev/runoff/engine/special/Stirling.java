@@ -34,15 +34,19 @@ final class Stirling {
     /**
      * {@code e - log(1 + e)} for {@code |e| <= 0.6} without cancellation. With {@code r = e / (2 + e)},
      * {@code log(1 + e) = 2 atanh(r)} and {@code e - 2r = r e}, so the value is
-     * {@code r e - 2 (r^3/3 + r^5/5 + ...)}; every term is of order {@code r^2} or smaller.
+     * {@code r e - 2 (r^3/3 + r^5/5 + ...)}; every term is of order {@code r^2} or smaller. The divisor
+     * {@code 2k + 1} is carried as a double, exact and so the same bits as the integer, but without a
+     * conversion per term (see {@code IncompleteBeta}'s continued fraction).
      */
     static double rlog1(double e) {
         double r = e / (2 + e);
         double r2 = r * r;
         double term = r * r2;
         double series = 0;
+        double odd = 1;
         for (int k = 1; k <= RLOG1_TERMS; k++) {
-            double add = term / (2 * k + 1);
+            odd += 2;
+            double add = term / odd;
             series += add;
             if (Math.abs(add) <= 1e-17 * Math.abs(series)) {
                 break;
