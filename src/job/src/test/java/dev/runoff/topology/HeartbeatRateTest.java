@@ -10,12 +10,18 @@ import dev.runoff.testkit.TestDefinitions;
 import java.util.List;
 import org.junit.jupiter.api.AfterEach;
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.parallel.Execution;
+import org.junit.jupiter.api.parallel.ExecutionMode;
 
 /**
  * How many decision records an experiment writes: without new data, one per heartbeat (never one per
  * allocation pass), so at most one per {@link Definitions#MIN_HEARTBEAT_MS}; with new data, one per recompute
  * period at most.
+ *
+ * <p>The tests run concurrently when the build runs tests in parallel: each builds its own job under its own
+ * test driver.
  */
+@Execution(ExecutionMode.CONCURRENT)
 class HeartbeatRateTest {
 
     private static final long TEN_MINUTES = 600_000;

@@ -24,12 +24,18 @@ import java.util.OptionalInt;
 import java.util.SplittableRandom;
 import java.util.stream.IntStream;
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.parallel.Execution;
+import org.junit.jupiter.api.parallel.ExecutionMode;
 
 /**
  * Every decision the job publishes can be recomputed bit for bit from its record alone (see {@link Replay}),
  * for the guards that depend on the previous weights, for Monte Carlo estimates with their seeds, for the
  * indifference rule and for each after-stop policy.
+ *
+ * <p>The tests run concurrently when the build runs tests in parallel: each builds its own job under its own
+ * test driver.
  */
+@Execution(ExecutionMode.CONCURRENT)
 class RecomputationTest {
 
     @Test

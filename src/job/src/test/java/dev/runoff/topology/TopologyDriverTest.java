@@ -30,8 +30,16 @@ import java.util.OptionalInt;
 import org.apache.kafka.streams.test.TestRecord;
 import org.junit.jupiter.api.AfterEach;
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.parallel.Execution;
+import org.junit.jupiter.api.parallel.ExecutionMode;
 
-/** The whole job under the TopologyTestDriver, its wall clock advanced by the tests. */
+/**
+ * The whole job under the TopologyTestDriver, its wall clock advanced by the tests.
+ *
+ * <p>The tests run concurrently when the build runs tests in parallel: each builds its own job under its own
+ * test driver.
+ */
+@Execution(ExecutionMode.CONCURRENT)
 class TopologyDriverTest {
 
     private final TopologyFixture job = new TopologyFixture();

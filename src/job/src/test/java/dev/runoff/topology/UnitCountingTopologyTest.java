@@ -24,12 +24,18 @@ import java.util.SplittableRandom;
 import org.apache.kafka.streams.test.TestRecord;
 import org.junit.jupiter.api.AfterEach;
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.parallel.Execution;
+import org.junit.jupiter.api.parallel.ExecutionMode;
 
 /**
  * Unit counting through the whole topology (TopologyTestDriver, wall clock advanced by the test): trials
  * and successes are units, counted when their conversion window closes; outcomes credited to the first
  * exposure; early outcomes wait for it; lifecycles keep the counts consistent.
+ *
+ * <p>The tests run concurrently when the build runs tests in parallel: each builds its own job under its own
+ * test driver.
  */
+@Execution(ExecutionMode.CONCURRENT)
 class UnitCountingTopologyTest {
 
     private static final long WINDOW = 1_000;
