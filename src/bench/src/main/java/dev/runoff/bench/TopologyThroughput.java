@@ -70,25 +70,27 @@ import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
  * Within a round the runs alternate in the order given; each round's ratios to the bare run of the same
  * input are printed, then their medians.
  *
- * <p>Run: {@code mvn -B -q -o -pl src/bench org.codehaus.mojo:exec-maven-plugin:3.5.0:java
- * -Dexec.mainClass=dev.runoff.bench.TopologyThroughput -Dexec.args="200000 3 inputs=murmur2,crc32"}: events,
+ * <p>Run (after {@code mvn -B -q -DskipTests package -pl src/bench -am}): {@code java -cp
+ * src/bench/target/classes:target/runoff.jar dev.runoff.bench.TopologyThroughput 200000 3 inputs=murmur2,crc32}: events,
  * rounds, then options {@code partitions=4} (of the input topic), {@code threads=1} (stream threads of every
- * application), {@code apps=bare,job,unit}, {@code inputs=murmur2} and {@code commit.interval.ms=} (default:
+ * application; a list such as {@code 1,2,3} runs each count in every round, alternating, for a scale-out
+ * figure), {@code apps=bare,job,unit}, {@code inputs=murmur2} and {@code commit.interval.ms=} (default:
  * Kafka Streams', 100 ms with exactly_once_v2).
  */
 public final class TopologyThroughput {
 
     private static final int EXPERIMENTS = 20;
-    private static final Path DIR = Path.of("target", "bench-throughput");
+    /** One directory per process, so that two runs side by side never share a broker's files. */
+    private static final Path DIR = Path.of("target", "bench-throughput-" + ProcessHandle.current().pid());
     private static final List<String> APPS = List.of("bare", "job", "unit");
     private static final List<String> INPUTS = List.of("murmur2", "crc32");
 
     private final int events;
     private final int partitions;
-    private final int threads;
+    private final List<Integer> threads;
     private final String commitIntervalMs;
 
-    private TopologyThroughput(int events, int partitions, int threads, String commitIntervalMs) {
+    private TopologyThroughput(int events, int partitions, List<Integer> threads, String commitIntervalMs) {
         this.events = events;
         this.partitions = partitions;
         this.threads = threads;
@@ -117,27 +119,32 @@ public final class TopologyThroughput {
         List<String> inputs = listOption(options.getOrDefault("inputs", "murmur2"), INPUTS);
         TopologyThroughput bench = new TopologyThroughput(events,
                 Integer.parseInt(options.getOrDefault("partitions", "4")),
-                Integer.parseInt(options.getOrDefault("threads", "1")), options.get("commit.interval.ms"));
+                Stream.of(options.getOrDefault("threads", "1").split(",")).map(Integer::valueOf).toList(),
+                options.get("commit.interval.ms"));
         delete(DIR);
         Map<String, List<Double>> rates = new LinkedHashMap<>();
         try (EmbeddedKafkaBroker broker = EmbeddedKafkaBroker.builder(DIR.resolve("broker")).build().start()) {
             for (int round = 0; round < rounds; round++) {
-                for (String input : inputs) {
-                    for (String app : apps) {
-                        rates.computeIfAbsent(app + "/" + input, k -> new ArrayList<>())
-                                .add(bench.run(broker, app + "-" + input + "-" + round, app, input));
+                for (int threads : bench.threads) {
+                    for (String input : inputs) {
+                        for (String app : apps) {
+                            String variant = input + (bench.threads.size() > 1 ? "/" + threads + "t" : "");
+                            rates.computeIfAbsent(app + "/" + variant, k -> new ArrayList<>()).add(bench.run(broker,
+                                    app + "-" + variant.replace('/', '-') + "-" + round, app, input, threads));
+                        }
                     }
                 }
             }
         }
-        System.out.printf(Locale.ROOT, "events=%d partitions=%d threads=%d experiments=%d cores=%d "
+        delete(DIR);
+        System.out.printf(Locale.ROOT, "events=%d partitions=%d threads=%s experiments=%d cores=%d "
                         + "commit.interval.ms=%s%n", events, bench.partitions, bench.threads, EXPERIMENTS,
                 Runtime.getRuntime().availableProcessors(),
                 bench.commitIntervalMs == null ? "default (100 with exactly_once_v2)" : bench.commitIntervalMs);
         for (Map.Entry<String, List<Double>> e : rates.entrySet()) {
-            String input = e.getKey().substring(e.getKey().indexOf('/') + 1);
-            List<Double> bare = rates.get("bare/" + input);
-            StringBuilder line = new StringBuilder(String.format(Locale.ROOT, "%-14s events/s %s, median %.0f",
+            String variant = e.getKey().substring(e.getKey().indexOf('/') + 1);
+            List<Double> bare = rates.get("bare/" + variant);
+            StringBuilder line = new StringBuilder(String.format(Locale.ROOT, "%-18s events/s %s, median %.0f",
                     e.getKey(), format(e.getValue(), "%.0f"), median(e.getValue())));
             if (bare != null && !e.getKey().startsWith("bare/")) {
                 List<Double> ratios = new ArrayList<>();
@@ -256,7 +263,8 @@ public final class TopologyThroughput {
      * then writes the events and times from the first write until the input and, for the job, its repartition
      * topic of events are fully consumed. Returns events per second.
      */
-    private double run(EmbeddedKafkaBroker broker, String name, String app, String input) throws Exception {
+    private double run(EmbeddedKafkaBroker broker, String name, String app, String input, int threads)
+            throws Exception {
         boolean job = !app.equals("bare");
         Map<String, String> config = settingsMap(name);
         if (app.equals("unit")) {
