@@ -20,8 +20,10 @@ import org.apache.kafka.streams.processor.StreamPartitioner;
  * partition decides: an event keyed otherwise that happens to sit on its unit's partition is already where it
  * belongs.
  *
- * <p>{@code partitions} is the repartition topic's partition count, which Kafka Streams sets to the outcomes
- * topic's; this object learns it the first time the partitioner runs. Until then no event counts as in place,
+ * <p>{@code partitions} is the repartition topic's partition count, which Kafka Streams sets to the largest
+ * count of the source topics of the sub-topology that writes it (the outcomes topic and, through the merge
+ * before the by-experiment repartition, the experiments topic); this object learns it the first time the
+ * partitioner runs. Any count keeps the job exact; only the share of events in place depends on it. Until then no event counts as in place,
  * so the first event of each stream thread takes the repartition: correct, only slower.
  */
 final class UnitPlacement implements StreamPartitioner<byte[], UnitEvent> {
