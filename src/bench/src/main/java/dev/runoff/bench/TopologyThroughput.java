@@ -73,9 +73,11 @@ import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
  * <p>Run (after {@code mvn -B -q -DskipTests package -pl src/bench -am}): {@code java -cp
  * src/bench/target/classes:target/runoff.jar dev.runoff.bench.TopologyThroughput 200000 3 inputs=murmur2,crc32}: events,
  * rounds, then options {@code partitions=4} (of the input topic), {@code threads=1} (stream threads of every
- * application; a list such as {@code 1,2,3} runs each count in every round, alternating, for a scale-out
- * figure), {@code apps=bare,job,unit}, {@code inputs=murmur2} and {@code commit.interval.ms=} (default:
- * Kafka Streams', 100 ms with exactly_once_v2).
+ * application; a list such as {@code 1,2,3} runs each count in every round, for a scale-out figure),
+ * {@code apps=bare,job,unit}, {@code inputs=murmur2} and {@code commit.interval.ms=default} (Kafka Streams',
+ * 100 ms with exactly_once_v2; a list such as {@code default,1000} runs each). Every combination of thread
+ * count and commit interval runs once per round, in an order rotated by one each round so that none always
+ * runs first.
  */
 public final class TopologyThroughput {
 
@@ -88,13 +90,30 @@ public final class TopologyThroughput {
     private final int events;
     private final int partitions;
     private final List<Integer> threads;
-    private final String commitIntervalMs;
+    private final List<String> commitIntervals;
 
-    private TopologyThroughput(int events, int partitions, List<Integer> threads, String commitIntervalMs) {
+    private TopologyThroughput(int events, int partitions, List<Integer> threads, List<String> commitIntervals) {
         this.events = events;
         this.partitions = partitions;
         this.threads = threads;
-        this.commitIntervalMs = commitIntervalMs;
+        this.commitIntervals = commitIntervals;
+    }
+
+    /** Stream threads and commit interval of one group of runs; {@code label} tells groups apart in the output. */
+    private record Setup(int threads, String commitIntervalMs, String label) {
+    }
+
+    /** Every combination of the thread counts and commit intervals asked for. */
+    private List<Setup> setups() {
+        List<Setup> setups = new ArrayList<>();
+        for (int t : threads) {
+            for (String commit : commitIntervals) {
+                String label = (threads.size() > 1 ? "/" + t + "t" : "")
+                        + (commitIntervals.size() > 1 ? "/c" + commit : "");
+                setups.add(new Setup(t, commit.equals("default") ? null : commit, label));
+            }
+        }
+        return setups;
     }
 
     /**
@@ -120,17 +139,19 @@ public final class TopologyThroughput {
         TopologyThroughput bench = new TopologyThroughput(events,
                 Integer.parseInt(options.getOrDefault("partitions", "4")),
                 Stream.of(options.getOrDefault("threads", "1").split(",")).map(Integer::valueOf).toList(),
-                options.get("commit.interval.ms"));
+                List.of(options.getOrDefault("commit.interval.ms", "default").split(",")));
+        List<Setup> setups = bench.setups();
         delete(DIR);
         Map<String, List<Double>> rates = new LinkedHashMap<>();
         try (EmbeddedKafkaBroker broker = EmbeddedKafkaBroker.builder(DIR.resolve("broker")).build().start()) {
             for (int round = 0; round < rounds; round++) {
-                for (int threads : bench.threads) {
+                for (int i = 0; i < setups.size(); i++) {
+                    Setup setup = setups.get((i + round) % setups.size());
                     for (String input : inputs) {
                         for (String app : apps) {
-                            String variant = input + (bench.threads.size() > 1 ? "/" + threads + "t" : "");
+                            String variant = input + setup.label();
                             rates.computeIfAbsent(app + "/" + variant, k -> new ArrayList<>()).add(bench.run(broker,
-                                    app + "-" + variant.replace('/', '-') + "-" + round, app, input, threads));
+                                    app + "-" + variant.replace('/', '-') + "-" + round, app, input, setup));
                         }
                     }
                 }
@@ -138,9 +159,8 @@ public final class TopologyThroughput {
         }
         delete(DIR);
         System.out.printf(Locale.ROOT, "events=%d partitions=%d threads=%s experiments=%d cores=%d "
-                        + "commit.interval.ms=%s%n", events, bench.partitions, bench.threads, EXPERIMENTS,
-                Runtime.getRuntime().availableProcessors(),
-                bench.commitIntervalMs == null ? "default (100 with exactly_once_v2)" : bench.commitIntervalMs);
+                        + "commit.interval.ms=%s (default: 100 with exactly_once_v2)%n", events, bench.partitions,
+                bench.threads, EXPERIMENTS, Runtime.getRuntime().availableProcessors(), bench.commitIntervals);
         for (Map.Entry<String, List<Double>> e : rates.entrySet()) {
             String variant = e.getKey().substring(e.getKey().indexOf('/') + 1);
             List<Double> bare = rates.get("bare/" + variant);
@@ -263,7 +283,7 @@ public final class TopologyThroughput {
      * then writes the events and times from the first write until the input and, for the job, its repartition
      * topic of events are fully consumed. Returns events per second.
      */
-    private double run(EmbeddedKafkaBroker broker, String name, String app, String input, int threads)
+    private double run(EmbeddedKafkaBroker broker, String name, String app, String input, Setup setup)
             throws Exception {
         boolean job = !app.equals("bare");
         Map<String, String> config = settingsMap(name);
@@ -278,10 +298,10 @@ public final class TopologyThroughput {
                 StreamsConfig.APPLICATION_ID_CONFIG, application,
                 StreamsConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers(),
                 StreamsConfig.STATE_DIR_CONFIG, DIR.resolve("state-" + name).toString(),
-                StreamsConfig.NUM_STREAM_THREADS_CONFIG, threads,
+                StreamsConfig.NUM_STREAM_THREADS_CONFIG, setup.threads(),
                 StreamsConfig.consumerPrefix("auto.offset.reset"), "earliest"));
-        if (commitIntervalMs != null) {
-            overrides.put(StreamsConfig.COMMIT_INTERVAL_MS_CONFIG, commitIntervalMs);
+        if (setup.commitIntervalMs() != null) {
+            overrides.put(StreamsConfig.COMMIT_INTERVAL_MS_CONFIG, setup.commitIntervalMs());
         }
         Properties props = RunoffTopology.streamsConfig(settings, counters, overrides);
         Topology topology = job ? RunoffTopology.build(settings, props, counters) : countByKey(settings, props);
