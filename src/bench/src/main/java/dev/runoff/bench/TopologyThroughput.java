@@ -205,6 +205,33 @@ public final class TopologyThroughput {
         broker.createTopic(s.decisionsTopic(), partitions, Map.of());
         broker.createTopic(s.rejectedTopic(), partitions, Map.of());
         broker.createTopic(s.outcomesTopic() + ".counts", partitions, Map.of());
+        awaitLeaders(broker, List.of(s.outcomesTopic(), s.definitionsTopic(), s.acceptedDefinitionsTopic(),
+                s.allocationsTopic(), s.decisionsTopic(), s.rejectedTopic(), s.outcomesTopic() + ".counts"));
+    }
+
+    /**
+     * Waits until every partition of {@code topics} has a leader: a Kafka Streams client started on a topic
+     * the broker has just created can otherwise find no partitions for it and stop.
+     */
+    private void awaitLeaders(EmbeddedKafkaBroker broker, List<String> topics) {
+        try (Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers()))) {
+            for (int attempt = 0; attempt < 600; attempt++) {
+                try {
+                    boolean ready = admin.describeTopics(topics).allTopicNames().get().values().stream()
+                            .allMatch(d -> d.partitions().size() == partitions
+                                    && d.partitions().stream().allMatch(p -> p.leader() != null));
+                    if (ready) {
+                        return;
+                    }
+                } catch (java.util.concurrent.ExecutionException e) {
+                    // not known to the broker's metadata yet: try again
+                }
+                Thread.sleep(50);
+            }
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+        }
+        throw new IllegalStateException("topics " + topics + " have no leader after 30 s");
     }
 
     private void produce(EmbeddedKafkaBroker broker, TopologySettings s, String input) {
