@@ -13,12 +13,14 @@ import dev.runoff.topology.RunoffTopology;
 import dev.runoff.topology.TopologySettings;
 import java.io.IOException;
 import java.io.UncheckedIOException;
+import java.lang.management.ManagementFactory;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.Comparator;
 import java.util.HashMap;
+import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Locale;
 import java.util.Map;
@@ -28,6 +30,7 @@ import java.util.concurrent.CountDownLatch;
 import java.util.concurrent.TimeUnit;
 import java.util.stream.Collectors;
 import java.util.stream.Stream;
+import java.util.zip.CRC32;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.AdminClientConfig;
 import org.apache.kafka.clients.admin.OffsetSpec;
@@ -51,76 +54,187 @@ import org.apache.kafka.streams.state.QueryableStoreTypes;
 import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
 
 /**
- * Throughput of the full job against the embedded broker, measured in the same run as a bare count-by-key
- * topology on the same input (both exactly_once_v2, one stream thread, one instance).
+ * Throughput of the job against the embedded broker, measured in the same run as a bare count-by-key
+ * topology on the same input (all exactly_once_v2, one instance).
  *
  * <p>The input is N outcome events in JSON (exposures keyed by unit id, about 12% followed by an arm-less
- * click) over 20 three-arm experiments, on a 4-partition topic. Each run uses fresh topics and a fresh
- * application: it starts the application, lets the job accept the definitions, then writes the same events
- * and is timed from the first write until the group's committed offsets reach the end of every topic it
- * reads per event: the input, and for the job also its events-by-unit repartition topic (after which every
- * event has been validated, deduplicated, attributed and pre-aggregated). The runs alternate, bare first,
- * {@code rounds} times each.
+ * click) over 20 three-arm experiments. Two inputs: {@code murmur2}, partitioned by the Java client's
+ * default partitioner (the common case), and {@code crc32}, the same records keyed by unit id but placed by
+ * CRC32 of the key modulo the partition count, as producers in other languages often do. Three
+ * applications: {@code bare} (count by key), {@code job} (the job as configured by default: every event
+ * through the events-by-unit repartition) and {@code unit} (the job with {@code runoff.outcomes.keyed.by.unit=
+ * true}). Each run uses fresh topics and a fresh application: it starts the application, lets the job accept
+ * the definitions, then writes the events and is timed from the first write until the group's committed
+ * offsets reach the end of every topic it reads per event: the input, and for the job also its repartition
+ * topic of events (after which every event has been validated, deduplicated, attributed and pre-aggregated).
+ * Within a round the runs alternate in the order given; each round's ratios to the bare run of the same
+ * input are printed, then their medians.
  *
- * <p>Run: {@code mvn -B -q -o -pl src/bench org.codehaus.mojo:exec-maven-plugin:3.5.0:java
- * -Dexec.mainClass=dev.runoff.bench.TopologyThroughput -Dexec.args="200000 2"}
- * (events, rounds, and optionally commit.interval.ms for both applications).
+ * <p>Run (after {@code mvn -B -q -DskipTests package -pl src/bench -am}): {@code java -cp
+ * src/bench/target/classes:target/runoff.jar dev.runoff.bench.TopologyThroughput 200000 3 inputs=murmur2,crc32}: events,
+ * rounds, then options {@code partitions=4} (of the input topic), {@code threads=1} (stream threads of every
+ * application; a list such as {@code 1,2,3} runs each count in every round, for a scale-out figure),
+ * {@code apps=bare,job,unit}, {@code inputs=murmur2} and {@code commit.interval.ms=default} (Kafka Streams',
+ * 100 ms with exactly_once_v2; a list such as {@code default,1000} runs each). Every combination of thread
+ * count and commit interval runs once per round, in an order rotated by one each round so that none always
+ * runs first.
  */
 public final class TopologyThroughput {
 
-    private static final int PARTITIONS = 4;
     private static final int EXPERIMENTS = 20;
-    private static final Path DIR = Path.of("target", "bench-throughput");
-    private static String commitIntervalMs;
+    /** One directory per process, so that two runs side by side never share a broker's files. */
+    private static final Path DIR = Path.of("target", "bench-throughput-" + ProcessHandle.current().pid());
+    private static final List<String> APPS = List.of("bare", "job", "unit");
+    private static final List<String> INPUTS = List.of("murmur2", "crc32");
 
-    private TopologyThroughput() {
+    private final int events;
+    private final int partitions;
+    private final List<Integer> threads;
+    private final List<String> commitIntervals;
+
+    private TopologyThroughput(int events, int partitions, List<Integer> threads, List<String> commitIntervals) {
+        this.events = events;
+        this.partitions = partitions;
+        this.threads = threads;
+        this.commitIntervals = commitIntervals;
+    }
+
+    /** Stream threads and commit interval of one group of runs; {@code label} tells groups apart in the output. */
+    private record Setup(int threads, String commitIntervalMs, String label) {
+    }
+
+    /** Every combination of the thread counts and commit intervals asked for. */
+    private List<Setup> setups() {
+        List<Setup> setups = new ArrayList<>();
+        for (int t : threads) {
+            for (String commit : commitIntervals) {
+                String label = (threads.size() > 1 ? "/" + t + "t" : "")
+                        + (commitIntervals.size() > 1 ? "/c" + commit : "");
+                setups.add(new Setup(t, commit.equals("default") ? null : commit, label));
+            }
+        }
+        return setups;
     }
 
     /**
      * Runs the benchmark.
      *
-     * @param args number of events (default 200000) and rounds (default 2)
+     * @param args number of events (default 200000), rounds (default 2), then {@code name=value} options
      */
     public static void main(String[] args) throws Exception {
         int events = args.length > 0 ? Integer.parseInt(args[0]) : 200_000;
         int rounds = args.length > 1 ? Integer.parseInt(args[1]) : 2;
-        commitIntervalMs = args.length > 2 ? args[2] : null;
-        delete(DIR);
-        try (EmbeddedKafkaBroker broker = EmbeddedKafkaBroker.builder(DIR.resolve("broker")).build().start()) {
-            List<Double> bare = new ArrayList<>();
-            List<Double> full = new ArrayList<>();
-            for (int round = 0; round < rounds; round++) {
-                bare.add(run(broker, "bare-" + round, events, false));
-                full.add(run(broker, "full-" + round, events, true));
+        Map<String, String> options = new HashMap<>();
+        for (int i = 2; i < args.length; i++) {
+            String[] pair = args[i].split("=", 2);
+            if (pair.length != 2 || !List.of("partitions", "threads", "apps", "inputs", "commit.interval.ms")
+                    .contains(pair[0])) {
+                throw new IllegalArgumentException("unknown option '" + args[i] + "' (partitions=, threads=, apps=, "
+                        + "inputs=, commit.interval.ms=)");
             }
-            double bestBare = bare.stream().mapToDouble(d -> d).max().orElseThrow();
-            double bestFull = full.stream().mapToDouble(d -> d).max().orElseThrow();
-            System.out.printf(Locale.ROOT, "events=%d partitions=%d experiments=%d cores=%d commit.interval.ms=%s%n",
-                    events, PARTITIONS, EXPERIMENTS, Runtime.getRuntime().availableProcessors(),
-                    commitIntervalMs == null ? "default (100 with exactly_once_v2)" : commitIntervalMs);
-            System.out.println("bare count-by-key events/s per round: " + format(bare));
-            System.out.println("full job events/s per round:          " + format(full));
-            System.out.printf(Locale.ROOT, "best: bare %.0f/s, full %.0f/s, ratio %.2f%n", bestBare, bestFull,
-                    bestFull / bestBare);
+            options.put(pair[0], pair[1]);
+        }
+        List<String> apps = listOption(options.getOrDefault("apps", String.join(",", APPS)), APPS);
+        List<String> inputs = listOption(options.getOrDefault("inputs", "murmur2"), INPUTS);
+        TopologyThroughput bench = new TopologyThroughput(events,
+                Integer.parseInt(options.getOrDefault("partitions", "4")),
+                Stream.of(options.getOrDefault("threads", "1").split(",")).map(Integer::valueOf).toList(),
+                List.of(options.getOrDefault("commit.interval.ms", "default").split(",")));
+        List<Setup> setups = bench.setups();
+        delete(DIR);
+        Map<String, List<Double>> rates = new LinkedHashMap<>();
+        try (EmbeddedKafkaBroker broker = EmbeddedKafkaBroker.builder(DIR.resolve("broker")).build().start()) {
+            for (int round = 0; round < rounds; round++) {
+                for (int i = 0; i < setups.size(); i++) {
+                    Setup setup = setups.get((i + round) % setups.size());
+                    for (String input : inputs) {
+                        for (String app : apps) {
+                            String variant = input + setup.label();
+                            rates.computeIfAbsent(app + "/" + variant, k -> new ArrayList<>()).add(bench.run(broker,
+                                    app + "-" + variant.replace('/', '-') + "-" + round, app, input, setup));
+                        }
+                    }
+                }
+            }
+        }
+        delete(DIR);
+        System.out.printf(Locale.ROOT, "events=%d partitions=%d threads=%s experiments=%d cores=%d "
+                        + "commit.interval.ms=%s (default: 100 with exactly_once_v2)%n", events, bench.partitions,
+                bench.threads, EXPERIMENTS, Runtime.getRuntime().availableProcessors(), bench.commitIntervals);
+        for (Map.Entry<String, List<Double>> e : rates.entrySet()) {
+            String variant = e.getKey().substring(e.getKey().indexOf('/') + 1);
+            List<Double> bare = rates.get("bare/" + variant);
+            StringBuilder line = new StringBuilder(String.format(Locale.ROOT, "%-18s events/s %s, median %.0f",
+                    e.getKey(), format(e.getValue(), "%.0f"), median(e.getValue())));
+            if (bare != null && !e.getKey().startsWith("bare/")) {
+                List<Double> ratios = new ArrayList<>();
+                for (int i = 0; i < e.getValue().size(); i++) {
+                    ratios.add(e.getValue().get(i) / bare.get(i));
+                }
+                line.append(String.format(Locale.ROOT, "; per-round ratio to bare %s, median %.2f",
+                        format(ratios, "%.2f"), median(ratios)));
+            }
+            System.out.println(line);
         }
     }
 
-    private static String format(List<Double> rates) {
-        return rates.stream().map(r -> String.format(Locale.ROOT, "%.0f", r)).collect(Collectors.joining(", "));
+    private static List<String> listOption(String text, List<String> known) {
+        List<String> values = List.of(text.split(","));
+        if (!known.containsAll(values)) {
+            throw new IllegalArgumentException("'" + text + "': each must be one of " + known);
+        }
+        return values;
     }
 
-    private static void createTopics(EmbeddedKafkaBroker broker, TopologySettings s) {
+    private static double median(List<Double> values) {
+        List<Double> sorted = values.stream().sorted().toList();
+        int n = sorted.size();
+        return n % 2 == 1 ? sorted.get(n / 2) : (sorted.get(n / 2 - 1) + sorted.get(n / 2)) / 2;
+    }
+
+    private static String format(List<Double> values, String pattern) {
+        return values.stream().map(r -> String.format(Locale.ROOT, pattern, r)).collect(Collectors.joining(", "));
+    }
+
+    private void createTopics(EmbeddedKafkaBroker broker, TopologySettings s) {
         Map<String, String> compact = Map.of("cleanup.policy", "compact");
-        broker.createTopic(s.outcomesTopic(), PARTITIONS, Map.of());
-        broker.createTopic(s.definitionsTopic(), PARTITIONS, compact);
-        broker.createTopic(s.acceptedDefinitionsTopic(), PARTITIONS, compact);
-        broker.createTopic(s.allocationsTopic(), PARTITIONS, compact);
-        broker.createTopic(s.decisionsTopic(), PARTITIONS, Map.of());
-        broker.createTopic(s.rejectedTopic(), PARTITIONS, Map.of());
-        broker.createTopic(s.outcomesTopic() + ".counts", PARTITIONS, Map.of());
+        broker.createTopic(s.outcomesTopic(), partitions, Map.of());
+        broker.createTopic(s.definitionsTopic(), partitions, compact);
+        broker.createTopic(s.acceptedDefinitionsTopic(), partitions, compact);
+        broker.createTopic(s.allocationsTopic(), partitions, compact);
+        broker.createTopic(s.decisionsTopic(), partitions, Map.of());
+        broker.createTopic(s.rejectedTopic(), partitions, Map.of());
+        broker.createTopic(s.outcomesTopic() + ".counts", partitions, Map.of());
+        awaitLeaders(broker, List.of(s.outcomesTopic(), s.definitionsTopic(), s.acceptedDefinitionsTopic(),
+                s.allocationsTopic(), s.decisionsTopic(), s.rejectedTopic(), s.outcomesTopic() + ".counts"));
     }
 
-    private static void produce(EmbeddedKafkaBroker broker, TopologySettings s, int events) {
+    /**
+     * Waits until every partition of {@code topics} has a leader: a Kafka Streams client started on a topic
+     * the broker has just created can otherwise find no partitions for it and stop.
+     */
+    private void awaitLeaders(EmbeddedKafkaBroker broker, List<String> topics) {
+        try (Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers()))) {
+            for (int attempt = 0; attempt < 600; attempt++) {
+                try {
+                    boolean ready = admin.describeTopics(topics).allTopicNames().get().values().stream()
+                            .allMatch(d -> d.partitions().size() == partitions
+                                    && d.partitions().stream().allMatch(p -> p.leader() != null));
+                    if (ready) {
+                        return;
+                    }
+                } catch (java.util.concurrent.ExecutionException e) {
+                    // not known to the broker's metadata yet: try again
+                }
+                Thread.sleep(50);
+            }
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+        }
+        throw new IllegalStateException("topics " + topics + " have no leader after 30 s");
+    }
+
+    private void produce(EmbeddedKafkaBroker broker, TopologySettings s, String input) {
         SplittableRandom random = new SplittableRandom(2024);
         long now = System.currentTimeMillis();
         try (KafkaProducer<String, byte[]> producer = producer(broker)) {
@@ -129,16 +243,24 @@ public final class TopologyThroughput {
                 String experiment = "exp-" + random.nextInt(EXPERIMENTS);
                 String arm = "arm" + random.nextInt(3);
                 String unitId = "u" + unit;
-                producer.send(new ProducerRecord<>(s.outcomesTopic(), unitId,
+                Integer partition = input.equals("crc32") ? crc32Partition(unitId) : null;
+                producer.send(new ProducerRecord<>(s.outcomesTopic(), partition, unitId,
                         event(experiment, unitId, unitId + "x", "EXPOSURE", arm, now)));
                 sent++;
                 if (sent < events && random.nextDouble() < 0.12) {
-                    producer.send(new ProducerRecord<>(s.outcomesTopic(), unitId,
+                    producer.send(new ProducerRecord<>(s.outcomesTopic(), partition, unitId,
                             event(experiment, unitId, unitId + "c", "CLICK", null, now + 50)));
                     sent++;
                 }
             }
         }
+    }
+
+    /** The partition a CRC32 partitioner picks for {@code key}: CRC32 of its UTF-8 bytes modulo the count. */
+    private int crc32Partition(String key) {
+        CRC32 crc = new CRC32();
+        crc.update(key.getBytes(StandardCharsets.UTF_8));
+        return (int) (crc.getValue() % partitions);
     }
 
     private static KafkaProducer<String, byte[]> producer(EmbeddedKafkaBroker broker) {
@@ -173,23 +295,29 @@ public final class TopologyThroughput {
     }
 
     /** Topics of one run, named after it so that every run starts from empty topics. */
-    private static TopologySettings settings(String run) {
+    private static Map<String, String> settingsMap(String run) {
         Map<String, String> topics = new HashMap<>();
         for (String key : List.of(TopologySettings.OUTCOMES_TOPIC_KEY, TopologySettings.DEFINITIONS_TOPIC_KEY,
                 TopologySettings.ACCEPTED_TOPIC_KEY, TopologySettings.ALLOCATIONS_TOPIC_KEY,
                 TopologySettings.DECISIONS_TOPIC_KEY, TopologySettings.REJECTED_TOPIC_KEY)) {
             topics.put(key, run + "." + key.substring("runoff.topic.".length()));
         }
-        return TopologySettings.fromMap(topics);
+        return topics;
     }
 
     /**
-     * One run on fresh topics: starts the application, lets the job accept the definitions, then writes the
-     * events and times from the first write until the input and, for the job, its events-by-unit
-     * repartition topic are fully consumed. Returns events per second.
+     * One run of {@code app} on fresh topics: starts the application, lets the job accept the definitions,
+     * then writes the events and times from the first write until the input and, for the job, its repartition
+     * topic of events are fully consumed. Returns events per second.
      */
-    private static double run(EmbeddedKafkaBroker broker, String name, int events, boolean full) throws Exception {
-        TopologySettings settings = settings(name);
+    private double run(EmbeddedKafkaBroker broker, String name, String app, String input, Setup setup)
+            throws Exception {
+        boolean job = !app.equals("bare");
+        Map<String, String> config = settingsMap(name);
+        if (app.equals("unit")) {
+            config.put(TopologySettings.OUTCOMES_KEYED_BY_UNIT_KEY, "true");
+        }
+        TopologySettings settings = TopologySettings.fromMap(config);
         createTopics(broker, settings);
         JobCounters counters = new JobCounters();
         String application = "bench-" + name;
@@ -197,15 +325,16 @@ public final class TopologyThroughput {
                 StreamsConfig.APPLICATION_ID_CONFIG, application,
                 StreamsConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers(),
                 StreamsConfig.STATE_DIR_CONFIG, DIR.resolve("state-" + name).toString(),
+                StreamsConfig.NUM_STREAM_THREADS_CONFIG, setup.threads(),
                 StreamsConfig.consumerPrefix("auto.offset.reset"), "earliest"));
-        if (commitIntervalMs != null) {
-            overrides.put(StreamsConfig.COMMIT_INTERVAL_MS_CONFIG, commitIntervalMs);
+        if (setup.commitIntervalMs() != null) {
+            overrides.put(StreamsConfig.COMMIT_INTERVAL_MS_CONFIG, setup.commitIntervalMs());
         }
         Properties props = RunoffTopology.streamsConfig(settings, counters, overrides);
-        Topology topology = full ? RunoffTopology.build(settings, props, counters) : countByKey(settings, props);
-        List<String> perEvent = full
-                ? List.of(settings.outcomesTopic(), application + "-events-by-unit-repartition")
-                : List.of(settings.outcomesTopic());
+        Topology topology = job ? RunoffTopology.build(settings, props, counters) : countByKey(settings, props);
+        List<String> perEvent = !job ? List.of(settings.outcomesTopic())
+                : List.of(settings.outcomesTopic(), application + (app.equals("unit")
+                        ? "-events-to-unit-repartition" : "-events-by-unit-repartition"));
         try (KafkaStreams streams = new KafkaStreams(topology, props);
              Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG,
                      broker.bootstrapServers()))) {
@@ -219,17 +348,19 @@ public final class TopologyThroughput {
             if (!running.await(120, TimeUnit.SECONDS)) {
                 throw new IllegalStateException(name + " did not reach RUNNING");
             }
-            if (full) {
+            if (job) {
                 produceDefinitions(broker, settings);
                 awaitAccepted(streams);
             }
             long began = System.nanoTime();
-            produce(broker, settings, events);
+            produce(broker, settings, input);
             awaitNoLag(admin, application, perEvent);
             double seconds = (System.nanoTime() - began) / 1e9;
             double rate = events / seconds;
-            System.out.printf(Locale.ROOT, "%s: %d events in %.2f s = %.0f events/s, rejected %s%n", name, events,
-                    seconds, rate, counters.snapshot());
+            System.out.printf(Locale.ROOT, "%s: %d events in %.2f s = %.0f events/s, in place %d, rerouted %d, "
+                            + "counted %s, load average %.1f%n", name, events, seconds, rate, counters.inPlaceEvents(),
+                    counters.reroutedEvents(), counters.snapshot(),
+                    ManagementFactory.getOperatingSystemMXBean().getSystemLoadAverage());
             return rate;
         }
     }
@@ -256,7 +387,10 @@ public final class TopologyThroughput {
         return builder.build(props);
     }
 
-    /** Waits until the group's committed offsets equal the end offsets of every partition of {@code topics}. */
+    /**
+     * Waits until the group's committed offsets equal the end offsets of every partition of {@code topics}
+     * (a partition never written to has nothing to commit).
+     */
     private static void awaitNoLag(Admin admin, String group, List<String> topics) throws Exception {
         while (true) {
             Map<TopicPartition, OffsetAndMetadata> committed = admin.listConsumerGroupOffsets(group)
@@ -267,7 +401,7 @@ public final class TopologyThroughput {
             Map<TopicPartition, OffsetSpec> latest = partitions.stream()
                     .collect(Collectors.toMap(p -> p, p -> OffsetSpec.latest()));
             var ends = admin.listOffsets(latest).all().get();
-            boolean done = partitions.stream().allMatch(p -> committed.containsKey(p)
+            boolean done = partitions.stream().allMatch(p -> ends.get(p).offset() == 0 || committed.containsKey(p)
                     && committed.get(p).offset() >= ends.get(p).offset() - markerSlack(p, topics.get(0)));
             if (done) {
                 return;

@@ -64,6 +64,14 @@ final class JobMetrics implements AutoCloseable {
         FunctionCounter.builder("runoff.events.folded", counters, JobCounters::foldedTrials)
                 .description("Trials folded into experiment statistics (exposures, or value events)")
                 .register(registry);
+        FunctionCounter.builder("runoff.events.placed", counters, JobCounters::inPlaceEvents).tag("path", "in-place")
+                .description("Valid outcome events by the way they reached their unit's task when outcomes are keyed "
+                        + "by unit: read on their unit's partition, or rerouted there through a repartition topic")
+                .register(registry);
+        FunctionCounter.builder("runoff.events.placed", counters, JobCounters::reroutedEvents).tag("path", "rerouted")
+                .description("Valid outcome events by the way they reached their unit's task when outcomes are keyed "
+                        + "by unit: read on their unit's partition, or rerouted there through a repartition topic")
+                .register(registry);
         FunctionCounter.builder("runoff.decisions", counters, JobCounters::decisions)
                 .description("Decision records written").register(registry);
         FunctionTimer.builder("runoff.allocation.pass", counters, JobCounters::allocationPasses,

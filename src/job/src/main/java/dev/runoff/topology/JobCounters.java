@@ -25,6 +25,8 @@ public final class JobCounters {
     private final LongAdder decisions = new LongAdder();
     private final LongAdder allocationPasses = new LongAdder();
     private final LongAdder allocationPassNanos = new LongAdder();
+    private final LongAdder inPlace = new LongAdder();
+    private final LongAdder rerouted = new LongAdder();
 
     /** Empty counters. */
     public JobCounters() {
@@ -65,6 +67,26 @@ public final class JobCounters {
     public void allocationPass(long nanos) {
         allocationPasses.increment();
         allocationPassNanos.add(nanos);
+    }
+
+    /** Counts one valid outcome event read on its unit's partition (outcomes keyed by unit: no repartition). */
+    public void inPlace() {
+        inPlace.increment();
+    }
+
+    /** Counts one valid outcome event sent to its unit's partition through a repartition topic. */
+    public void rerouted() {
+        rerouted.increment();
+    }
+
+    /** Valid outcome events read on their unit's partition so far (0 unless outcomes are keyed by unit). */
+    public long inPlaceEvents() {
+        return inPlace.sum();
+    }
+
+    /** Valid outcome events rerouted to their unit's partition so far (0 unless outcomes are keyed by unit). */
+    public long reroutedEvents() {
+        return rerouted.sum();
     }
 
     /** Trials folded into experiment statistics so far. */

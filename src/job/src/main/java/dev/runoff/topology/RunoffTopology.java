@@ -44,6 +44,16 @@ import org.apache.kafka.streams.state.Stores;
  *                                        (feeds the global store)
  * </pre>
  *
+ * <p>With {@code runoff.outcomes.keyed.by.unit=true} the events-by-unit repartition is replaced: an event
+ * already on its unit's partition of the outcomes topic goes straight to dedupe, any other is written to the
+ * events-to-unit repartition topic, whose partitioner puts it on its unit's partition and which the same
+ * tasks read ({@link UnitPlacement}):
+ *
+ * <pre>
+ *  outcomes ──► validate-events ──┬── on its unit's partition ───────────────────┬──► dedupe ─► ...
+ *                                 └── elsewhere ─► [events-to-unit repartition] ─┘
+ * </pre>
+ *
  * <p>Kafka Streams refuses to read one topic both into a global store and as a stream, so the global store
  * that validates events is fed from the accepted-definitions topic the fold writes, not from the
  * definitions topic itself.
@@ -137,8 +147,7 @@ public final class RunoffTopology {
         KStream<byte[], UnitEvent> events = divert(outcomes.process(
                 () -> new EventValidator(DEFINITIONS_STORE, rejections), Named.as("validate-events")),
                 "validate-events");
-        KStream<byte[], ArmDelta> attributed = divert(events
-                .repartition(Repartitioned.with(Serdes.ByteArray(), UnitEvent.SERDE).withName("events-by-unit"))
+        KStream<byte[], ArmDelta> attributed = divert(byUnit(events, settings, counters)
                 .process(() -> new Dedupe(DEDUPE_STORE, settings.dedupeWindowMs(), counters), Named.as("dedupe"),
                         DEDUPE_STORE)
                 .process(() -> new Attribution(settings, rejections, counters), Named.as("attribute"), UNITS_STORE,
@@ -158,6 +167,26 @@ public final class RunoffTopology {
                         Named.as("fold"), EXPERIMENTS_STORE, ENDED_STORE)
                 .to(DESTINATION, Produced.with(Serdes.ByteArray(), EMIT_SERDE).withName("fold-outputs"));
         return builder.build(streamsConfig);
+    }
+
+    /**
+     * {@code events} in the tasks that own their units: through the events-by-unit repartition (key experiment
+     * and unit), or, when the outcomes topic is keyed by unit, straight on where already on the unit's
+     * partition and through the events-to-unit repartition otherwise ({@link UnitPlacement}).
+     */
+    private static KStream<byte[], UnitEvent> byUnit(KStream<byte[], UnitEvent> events, TopologySettings settings,
+                                                     JobCounters counters) {
+        if (!settings.outcomesKeyedByUnit()) {
+            return events.repartition(Repartitioned.with(Serdes.ByteArray(), UnitEvent.SERDE)
+                    .withName("events-by-unit"));
+        }
+        UnitPlacement placement = new UnitPlacement(counters);
+        Map<String, KStream<byte[], UnitEvent>> paths = events.split(Named.as("unit-"))
+                .branch((key, event) -> placement.inPlace(event), Branched.as("in-place"))
+                .defaultBranch(Branched.as("elsewhere"));
+        KStream<byte[], UnitEvent> rerouted = paths.get("unit-elsewhere").repartition(Repartitioned
+                .with(Serdes.ByteArray(), UnitEvent.SERDE).withStreamPartitioner(placement).withName("events-to-unit"));
+        return paths.get("unit-in-place").merge(rerouted, Named.as("events-at-unit"));
     }
 
     private static void addStores(StreamsBuilder builder, TopologySettings settings) {

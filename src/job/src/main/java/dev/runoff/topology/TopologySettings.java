@@ -48,6 +48,10 @@ import java.util.TreeSet;
  *                                   definition (the cap of {@code AdaptiveMonteCarlo}; {@value #MONTE_CARLO_DRAWS})
  * @param outputFormat               encoding of the output records: AVRO (single-object) or JSON
  *                                   ({@value #OUTPUT_FORMAT})
+ * @param outcomesKeyedByUnit        the producers key outcome events by unit id with the Java client's default
+ *                                   partitioner: an event already on its unit's partition skips the repartition,
+ *                                   the others are sent there ({@value #OUTCOMES_KEYED_BY_UNIT}; see
+ *                                   {@link UnitPlacement})
  */
 public record TopologySettings(String outcomesTopic, String definitionsTopic, String acceptedDefinitionsTopic,
                                String allocationsTopic, String decisionsTopic, String rejectedTopic,
@@ -55,7 +59,7 @@ public record TopologySettings(String outcomesTopic, String definitionsTopic, St
                                long allocateIntervalMs, int allocateMaxEvaluations, long allocateMaxTimeMs,
                                int allocateMaxVisits, long unitsCleanupIntervalMs, int unitsCleanupMaxEntries,
                                long unitsRetentionMarginMs, long unitsCloseIdleMs, int monteCarloDraws,
-                               Format outputFormat) {
+                               Format outputFormat, boolean outcomesKeyedByUnit) {
 
     /** Key of {@link #outcomesTopic()}. */
     public static final String OUTCOMES_TOPIC_KEY = "runoff.topic.outcomes";
@@ -95,6 +99,8 @@ public record TopologySettings(String outcomesTopic, String definitionsTopic, St
     public static final String MONTE_CARLO_DRAWS_KEY = "runoff.montecarlo.draws";
     /** Key of {@link #outputFormat()}. */
     public static final String OUTPUT_FORMAT_KEY = "runoff.output.format";
+    /** Key of {@link #outcomesKeyedByUnit()}. */
+    public static final String OUTCOMES_KEYED_BY_UNIT_KEY = "runoff.outcomes.keyed.by.unit";
 
     /** Default of {@link #outcomesTopic()}. */
     public static final String OUTCOMES_TOPIC = "runoff.outcomes";
@@ -138,6 +144,8 @@ public record TopologySettings(String outcomesTopic, String definitionsTopic, St
     public static final int MONTE_CARLO_DRAWS = EngineConfig.DEFAULT_DRAWS;
     /** Default of {@link #outputFormat()}. */
     public static final String OUTPUT_FORMAT = "AVRO";
+    /** Default of {@link #outcomesKeyedByUnit()}. */
+    public static final boolean OUTCOMES_KEYED_BY_UNIT = false;
 
     private static final String PREFIX = "runoff.";
 
@@ -212,7 +220,8 @@ public record TopologySettings(String outcomesTopic, String definitionsTopic, St
                 r.count(UNITS_CLEANUP_MAX_ENTRIES_KEY, UNITS_CLEANUP_MAX_ENTRIES),
                 r.number(UNITS_RETENTION_MARGIN_KEY, UNITS_RETENTION_MARGIN_MS),
                 r.number(UNITS_CLOSE_IDLE_KEY, UNITS_CLOSE_IDLE_MS),
-                r.count(MONTE_CARLO_DRAWS_KEY, MONTE_CARLO_DRAWS), r.format(OUTPUT_FORMAT_KEY));
+                r.count(MONTE_CARLO_DRAWS_KEY, MONTE_CARLO_DRAWS), r.format(OUTPUT_FORMAT_KEY),
+                r.flag(OUTCOMES_KEYED_BY_UNIT_KEY, OUTCOMES_KEYED_BY_UNIT));
         r.rejectUnknown();
         return settings;
     }
@@ -255,6 +264,17 @@ public record TopologySettings(String outcomesTopic, String definitionsTopic, St
                 throw new IllegalArgumentException(key + " must be at most " + Integer.MAX_VALUE + ", got " + value);
             }
             return (int) value;
+        }
+
+        boolean flag(String key, boolean fallback) {
+            String text = text(key, null);
+            if (text == null) {
+                return fallback;
+            }
+            if (text.equalsIgnoreCase("true") || text.equalsIgnoreCase("false")) {
+                return Boolean.parseBoolean(text);
+            }
+            throw new IllegalArgumentException(key + " must be true or false, got '" + text + "'");
         }
 
         Format format(String key) {

@@ -24,6 +24,19 @@ class TopologySettingsTest {
         assertEquals(200, s.allocateMaxEvaluations());
         assertEquals(5_000L, s.unitsCloseIdleMs());
         assertEquals(Format.AVRO, s.outputFormat());
+        assertEquals(false, s.outcomesKeyedByUnit());
+    }
+
+    @Test
+    void outcomesKeyedByUnitIsTrueOrFalseInAnyCase() {
+        assertEquals(true, TopologySettings.fromMap(Map.of(TopologySettings.OUTCOMES_KEYED_BY_UNIT_KEY, " TRUE "))
+                .outcomesKeyedByUnit());
+        assertEquals(false, TopologySettings.fromMap(Map.of(TopologySettings.OUTCOMES_KEYED_BY_UNIT_KEY, "false"))
+                .outcomesKeyedByUnit());
+        assertMessage("runoff.outcomes.keyed.by.unit must be true or false, got 'yes'",
+                Map.of(TopologySettings.OUTCOMES_KEYED_BY_UNIT_KEY, "yes"));
+        assertMessage("runoff.outcomes.keyed.by.unit must be true or false, got ''",
+                Map.of(TopologySettings.OUTCOMES_KEYED_BY_UNIT_KEY, ""));
     }
 
     @Test

@@ -1,0 +1,39 @@
+package dev.runoff.job;
+
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import dev.runoff.topology.JobCounters;
+import dev.runoff.topology.RunoffTopology;
+import dev.runoff.topology.TopologySettings;
+import java.nio.file.Path;
+import java.util.Map;
+import java.util.Properties;
+import java.util.UUID;
+import org.apache.kafka.streams.KafkaStreams;
+import org.apache.kafka.streams.StreamsConfig;
+import org.junit.jupiter.api.Test;
+
+/** The job's own counters in the Prometheus scrape (a Kafka Streams client built, never started). */
+class JobMetricsTest {
+
+    @Test
+    void placedEventsAreCountedByPath() {
+        TopologySettings settings = TopologySettings.fromMap(Map.of(TopologySettings.OUTCOMES_KEYED_BY_UNIT_KEY, "true"));
+        JobCounters counters = new JobCounters();
+        Properties props = RunoffTopology.streamsConfig(settings, counters, Map.of(
+                StreamsConfig.APPLICATION_ID_CONFIG, "metrics-test",
+                StreamsConfig.BOOTSTRAP_SERVERS_CONFIG, "localhost:1",
+                StreamsConfig.STATE_DIR_CONFIG, Path.of("target", "metrics-state", UUID.randomUUID().toString())
+                        .toString()));
+        try (KafkaStreams streams = new KafkaStreams(RunoffTopology.build(settings, props, counters), props);
+             JobMetrics metrics = new JobMetrics(streams, counters, "metrics-test")) {
+            counters.inPlace();
+            counters.inPlace();
+            counters.rerouted();
+            String scrape = metrics.scrape();
+            assertTrue(scrape.contains("runoff_events_placed_total{application=\"metrics-test\",path=\"in-place\"} 2.0"),
+                    scrape.lines().filter(l -> l.contains("placed")).toList().toString());
+            assertTrue(scrape.contains("runoff_events_placed_total{application=\"metrics-test\",path=\"rerouted\"} 1.0"));
+        }
+    }
+}
