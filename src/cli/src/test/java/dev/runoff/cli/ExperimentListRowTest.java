@@ -11,12 +11,12 @@ class ExperimentListRowTest {
     /** Every metric kind and stopping rule fits its column: the arms start under the ARMS heading. */
     @Test
     void everyMetricKindAndStoppingRuleKeepsTheArmsColumnAligned() {
-        String header = String.format(ExperimentCommand.ListAll.ROW, "EXPERIMENT", "VERSION", "METRIC", "STOPPING",
+        String header = String.format(ExperimentCommand.ListAll.row(), "EXPERIMENT", "VERSION", "METRIC", "STOPPING",
                 "ARMS");
         int arms = header.indexOf("ARMS");
         for (MetricKind kind : MetricKind.values()) {
             for (StoppingRule rule : StoppingRule.values()) {
-                String row = String.format(ExperimentCommand.ListAll.ROW, "ferry-layout", "3", kind, rule,
+                String row = String.format(ExperimentCommand.ListAll.row(), "ferry-layout", "3", kind, rule,
                         "classic,wide");
                 assertEquals(arms, row.indexOf("classic,wide"), row);
                 assertEquals(header.indexOf("STOPPING"), row.indexOf(rule.name(), header.indexOf("METRIC")), row);
