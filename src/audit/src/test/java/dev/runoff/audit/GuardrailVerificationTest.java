@@ -30,7 +30,7 @@ class GuardrailVerificationTest {
         ExperimentDefinition def = SimulatedJob.definition("ferry-layout", ARMS, 0);
         def.setControlArm("classic");
         def.setGuardrails(List.of(new GuardrailSpec("failed-payments", "payment-failed",
-                GuardrailDirection.HIGHER_IS_WORSE, 0.2, 0.05)));
+                GuardrailDirection.HIGHER_IS_WORSE, 0.2, 0.05, null)));
         Evaluator evaluator = new Evaluator(2_000);
         long now = Chains.T0;
         Evaluator.Result result = evaluator.evaluate(ExperimentState.start(def), now);

@@ -9,6 +9,7 @@ import dev.runoff.records.Format;
 import dev.runoff.records.RecordCodec;
 import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.records.avro.MetricKind;
+import dev.runoff.records.avro.StoppingRule;
 import java.io.IOException;
 import java.io.PrintWriter;
 import java.nio.file.Files;
@@ -198,19 +199,38 @@ final class ExperimentCommand implements Runnable {
             exitCodeList = {"0:listed", "1:the cluster refused or did not answer within --timeout-ms",
                 "2:bad arguments or an invalid configuration"})
     static final class ListAll extends ClusterCommand {
+        /**
+         * The format of one row of the list; the metric and stopping columns are as wide as their longest
+         * symbol. Built when called, not when the command line is assembled: the record classes it reads load
+         * the logging, which {@code run} must configure first.
+         */
+        static String row() {
+            return "%-32s %-9s %-" + widest(MetricKind.values()) + "s %-" + widest(StoppingRule.values())
+                    + "s %s%n";
+        }
+
         @Override
         int run(DefinitionsClient client, PrintWriter out) {
             List<DefinitionsClient.Listed> all = client.list();
-            out.printf("%-32s %-9s %-10s %-9s %s%n", "EXPERIMENT", "VERSION", "METRIC", "STOPPING", "ARMS");
+            String row = row();
+            out.printf(row, "EXPERIMENT", "VERSION", "METRIC", "STOPPING", "ARMS");
             for (DefinitionsClient.Listed l : all) {
                 ExperimentDefinition d = l.accepted() != null ? l.accepted() : l.submitted();
                 String version = l.accepted() == null ? "pending" : l.accepted().getVersion()
                         + (Definitions.sameContent(l.submitted(), l.accepted()) ? "" : "+new");
-                out.printf("%-32s %-9s %-10s %-9s %s%n", d.getExperimentId(), version, d.getMetric().getKind(),
-                        d.getStopping().getRule(), String.join(",", d.getArms()));
+                out.printf(row, d.getExperimentId(), version, d.getMetric().getKind(), d.getStopping().getRule(),
+                        String.join(",", d.getArms()));
             }
             out.println(all.size() + (all.size() == 1 ? " experiment" : " experiments"));
             return 0;
+        }
+
+        private static int widest(Enum<?>[] symbols) {
+            int width = 0;
+            for (Enum<?> symbol : symbols) {
+                width = Math.max(width, symbol.name().length());
+            }
+            return width;
         }
     }
 

@@ -146,7 +146,7 @@ public final class DemoScenario {
                 .setAttributionWindowMs(CONVERSION_WINDOW_MS)
                 .setValidForMs(recomputeMs * 60)
                 .setGuardrails(List.of(new GuardrailSpec(GUARDRAIL, SIGNAL, GuardrailDirection.HIGHER_IS_WORSE, 0.5,
-                        0.05)))
+                        0.05, null)))
                 .build();
     }
 }

@@ -201,12 +201,22 @@ public record ExperimentState(ExperimentDefinition definition, List<ArmStats> st
      * {@code signalUnits.get(s)} had signal s; marked dirty when units were counted.
      */
     public ExperimentState withGuardrailUnits(int index, long units, java.util.Map<String, Long> signalUnits) {
+        return withGuardrailUnits(index, units, signalUnits, java.util.Map.of());
+    }
+
+    /**
+     * This state with {@code units} more counted units of arm {@code index} for every guardrail, of which
+     * {@code signalUnits.get(s)} had signal s, and whose capped sums of signal s's values, each over its
+     * guardrails' valueCap, add up to {@code signalTotals.get(s)}; marked dirty when units were counted.
+     */
+    public ExperimentState withGuardrailUnits(int index, long units, java.util.Map<String, Long> signalUnits,
+                                              java.util.Map<String, Double> signalTotals) {
         if (units == 0 || guardrails.guardrails().isEmpty()) {
             return this;
         }
         return new ExperimentState(definition, stats, stop, decisionSequence, allocationSequence, lastHash,
                 lastWeights, startedAt, lastComputedAt, lastPublishedAt, true, due, pending, armSince,
-                guardrails.plus(index, units, signalUnits, definition));
+                guardrails.plus(index, units, signalUnits, signalTotals, definition));
     }
 
     /** This state after an evaluation published decision {@code sequence} with {@code hash}. */

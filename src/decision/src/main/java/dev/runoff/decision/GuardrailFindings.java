@@ -69,19 +69,30 @@ record GuardrailFindings(List<List<GuardrailState>> states, List<String> suspend
         return leader;
     }
 
+    /**
+     * One arm's test of guardrail {@code g}: a rate guardrail tests the share of units with hits, a value
+     * guardrail the mean of the units' capped values over the cap (observations in [0, 1], for which the same
+     * confidence sequence holds, see {@link RateSequence#meanBounds}).
+     */
     private static GuardrailState test(GuardrailSpec spec, GuardrailCounts counts, int arm, int reference, int g) {
-        MarginCheck.Counts own = new MarginCheck.Counts(counts.counted(arm, g), counts.hits(arm, g));
+        boolean value = spec.getValueCap() != null;
+        MarginCheck.Totals own = observed(counts, arm, g, value);
         GuardrailState.Builder out = GuardrailState.newBuilder().setGuardrail(spec.getName())
-                .setCounted(own.units()).setHits(own.hits());
+                .setCounted(counts.counted(arm, g)).setHits(counts.hits(arm, g))
+                .setTotal(value ? own.total() : null);
         if (arm == reference) {
-            RateSequence.Bounds b = RateSequence.bounds(own.units(), own.hits(), spec.getAlpha() / 2);
+            RateSequence.Bounds b = RateSequence.meanBounds(own.units(), own.total(), spec.getAlpha() / 2);
             return out.setLower(b.lower()).setUpper(b.upper()).setOutcome(GuardrailOutcome.REFERENCE).build();
         }
-        MarginCheck.Result r = MarginCheck.check(own, new MarginCheck.Counts(counts.counted(reference, g),
-                counts.hits(reference, g)), direction(spec.getDirection()), spec.getMargin(), spec.getAlpha());
+        MarginCheck.Result r = MarginCheck.check(own, observed(counts, reference, g, value),
+                direction(spec.getDirection()), spec.getMargin(), spec.getAlpha());
         return out.setLower(r.arm().lower()).setUpper(r.arm().upper())
                 .setOutcome(GuardrailOutcome.valueOf(r.outcome().name())).setStatistic(r.statistic())
                 .setThreshold(r.threshold()).build();
+    }
+
+    private static MarginCheck.Totals observed(GuardrailCounts counts, int arm, int g, boolean value) {
+        return new MarginCheck.Totals(counts.counted(arm, g), value ? counts.total(arm, g) : counts.hits(arm, g));
     }
 
     private static Direction direction(GuardrailDirection direction) {

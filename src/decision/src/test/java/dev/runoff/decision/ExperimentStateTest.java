@@ -63,7 +63,7 @@ class ExperimentStateTest {
 
     private static dev.runoff.records.avro.GuardrailSpec guardrail(String name, String signal) {
         return new dev.runoff.records.avro.GuardrailSpec(name, signal,
-                dev.runoff.records.avro.GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.05);
+                dev.runoff.records.avro.GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.05, null);
     }
 
     @Test

@@ -29,7 +29,7 @@ class GuardrailEvaluationTest {
         def.setVersion(1);
         def.setControlArm("classic");
         def.setGuardrails(List.of(new GuardrailSpec("failed-payments", SIGNAL,
-                GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.05)));
+                GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.05, null)));
         def.getStopping().setBudgetTrials(budget);
         return def;
     }

@@ -139,8 +139,7 @@ public final class Replay {
                     assertEquals(GuardrailOutcome.REFERENCE, recorded.getOutcome(), at);
                     continue;
                 }
-                MarginCheck.Result r = MarginCheck.check(new MarginCheck.Counts(recorded.getCounted(),
-                        recorded.getHits()), new MarginCheck.Counts(ref.getCounted(), ref.getHits()),
+                MarginCheck.Result r = MarginCheck.check(observed(recorded, spec), observed(ref, spec),
                         Direction.valueOf(spec.getDirection().name()), spec.getMargin(), spec.getAlpha());
                 assertEquals(r.outcome().name(), recorded.getOutcome().name(), at);
                 assertArrayEquals(bits(new double[] {r.arm().lower(), r.arm().upper(), r.statistic(), r.threshold()}),
@@ -153,6 +152,12 @@ public final class Replay {
             assertEquals(suspendedBy[a], arm.getSuspendedBy(), where + " arm " + arm.getArm() + " suspendedBy");
         }
         return suspendedBy;
+    }
+
+    /** A rate guardrail's units and hits, or a value guardrail's units and total of capped values over the cap. */
+    private static MarginCheck.Totals observed(GuardrailState state, GuardrailSpec spec) {
+        return new MarginCheck.Totals(state.getCounted(), spec.getValueCap() == null ? state.getHits()
+                : state.getTotal());
     }
 
     private static int reference(DecisionRecord record, double[] alpha) {

@@ -8,6 +8,8 @@ import dev.runoff.engine.stats.ArmStats;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
 import dev.runoff.records.CanonicalJson;
+import dev.runoff.records.Definitions;
+import dev.runoff.records.avro.GuardrailSpec;
 import dev.runoff.decision.ExperimentState;
 import dev.runoff.decision.GuardrailCounts;
 import java.util.List;
@@ -58,22 +60,28 @@ final class ExperimentJson {
             } else {
                 arm.putNull("weight");
             }
-            guardrails(arm, state.guardrails(), i);
+            guardrails(arm, state, i);
         }
     }
 
     /**
      * The arm's guardrail counts, when the definition has guardrails (the tests and suspensions are in the
-     * decision records).
+     * decision records); a value guardrail's entry adds its total (see {@link GuardrailCounts#totals()}).
      */
-    private static void guardrails(ObjectNode arm, GuardrailCounts counts, int index) {
+    private static void guardrails(ObjectNode arm, ExperimentState state, int index) {
+        GuardrailCounts counts = state.guardrails();
         if (counts.guardrails().isEmpty()) {
             return;
         }
+        List<GuardrailSpec> specs =
+                Definitions.guardrails(state.definition());
         ArrayNode list = arm.putArray("guardrails");
         for (int g = 0; g < counts.guardrails().size(); g++) {
-            list.addObject().put("guardrail", counts.guardrails().get(g)).put("counted", counts.counted(index, g))
-                    .put("hits", counts.hits(index, g));
+            ObjectNode entry = list.addObject().put("guardrail", counts.guardrails().get(g))
+                    .put("counted", counts.counted(index, g)).put("hits", counts.hits(index, g));
+            if (g < specs.size() && specs.get(g).getValueCap() != null) {
+                entry.put("total", counts.total(index, g));
+            }
         }
     }
 

@@ -12,13 +12,22 @@ import dev.runoff.engine.stats.ArmStats;
  * @param stats        the statistics to merge (a delta: it may hold a success without its trial)
  * @param pending      the change of the arm's pending units (unit counting: exposed, window still open)
  * @param signalUnits  per guardrail signal, how many of the units counted here had it
+ * @param signalTotals per signal that value guardrails count, the sum over the units counted here of each
+ *                     unit's observation (its sum of the signal's values winsorised into [0, cap], over the cap)
  */
 record ArmDelta(String experimentId, String arm, long version, ArmStats stats, long pending,
-                java.util.Map<String, Long> signalUnits) {
+                java.util.Map<String, Long> signalUnits, java.util.Map<String, Double> signalTotals) {
 
-    /** Copies the signal counts. */
+    /** Copies the signal counts and totals. */
     ArmDelta {
         signalUnits = java.util.Map.copyOf(signalUnits);
+        signalTotals = java.util.Map.copyOf(signalTotals);
+    }
+
+    /** A delta without values of guardrail signals. */
+    ArmDelta(String experimentId, String arm, long version, ArmStats stats, long pending,
+             java.util.Map<String, Long> signalUnits) {
+        this(experimentId, arm, version, stats, pending, signalUnits, java.util.Map.of());
     }
 
     /** A delta without guardrail signals. */
@@ -30,6 +39,32 @@ record ArmDelta(String experimentId, String arm, long version, ArmStats stats, l
     static java.util.Map<String, Long> sum(java.util.Map<String, Long> a, java.util.Map<String, Long> b) {
         java.util.Map<String, Long> out = new java.util.TreeMap<>(a);
         b.forEach((signal, units) -> out.merge(signal, units, Long::sum));
+        return out;
+    }
+
+    /** {@code a} and {@code b} summed per signal. */
+    static java.util.Map<String, Double> sumTotals(java.util.Map<String, Double> a, java.util.Map<String, Double> b) {
+        java.util.Map<String, Double> out = new java.util.TreeMap<>(a);
+        b.forEach((signal, total) -> out.merge(signal, total, Double::sum));
+        return out;
+    }
+
+    /** Writes signal totals: their number, then each signal and total, in signal order. */
+    static void writeTotals(BinaryOut out, java.util.Map<String, Double> signalTotals) {
+        out.writeInt(signalTotals.size());
+        new java.util.TreeMap<>(signalTotals).forEach((signal, total) -> out.writeString(signal).writeDouble(total));
+    }
+
+    /** Reads what {@link #writeTotals} wrote. */
+    static java.util.Map<String, Double> readTotals(BinaryIn in) {
+        int count = in.readInt();
+        if (count < 0 || count > 1024) {
+            throw new IllegalArgumentException("corrupt internal value: " + count + " signal totals");
+        }
+        java.util.Map<String, Double> out = new java.util.TreeMap<>();
+        for (int i = 0; i < count; i++) {
+            out.put(in.readString(), in.readDouble());
+        }
         return out;
     }
 
@@ -65,10 +100,11 @@ record ArmDelta(String experimentId, String arm, long version, ArmStats stats, l
     }
 
     /** The inverse of {@link #key()} with the sums of that key. */
-    static ArmDelta of(String key, ArmStats stats, long pending, java.util.Map<String, Long> signalUnits) {
+    static ArmDelta of(String key, ArmStats stats, long pending, java.util.Map<String, Long> signalUnits,
+                       java.util.Map<String, Double> signalTotals) {
         int first = key.indexOf('\u0000');
         int last = key.lastIndexOf('\u0000');
         return new ArmDelta(key.substring(0, first), key.substring(first + 1, last),
-                Long.parseLong(key.substring(last + 1)), stats, pending, signalUnits);
+                Long.parseLong(key.substring(last + 1)), stats, pending, signalUnits, signalTotals);
     }
 }

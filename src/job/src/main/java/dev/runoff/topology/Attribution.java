@@ -165,8 +165,8 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
 
     /** A guardrail signal: marks the unit, which reports it when its window closes. */
     private void signal(UnitEvent event, long timestamp, String key, UnitState unit, long now) {
-        marked(event, timestamp, key, unit, UnitCounting.signal(unit, event.signal(), event.timestamp(), now),
-                "it was counted for the guardrails before this signal arrived");
+        marked(event, timestamp, key, unit, UnitCounting.signal(unit, event.signal(), event.valueCap(),
+                event.value(), event.timestamp(), now), "it was counted for the guardrails before this signal arrived");
     }
 
     /** Value per unit: adds the value to the unit's sum, which the unit reports when its window closes. */
@@ -237,7 +237,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
     private void pass(UnitState unit, String experimentId, UnitCounting.Count count, long timestamp) {
         if (!count.isEmpty()) {
             forward(new ArmDelta(experimentId, unit.arm(), unit.version(), stats(unit, count), count.pending(),
-                    ArmDelta.ofUnit(count.signals())), timestamp);
+                    ArmDelta.ofUnit(count.signals()), count.signalObservations()), timestamp);
         }
     }
 

@@ -20,10 +20,16 @@ import java.util.Set;
  * @param earlyGraceMs        how long an outcome that arrives before its unit's first trial event waits
  * @param signals             the signals its guardrails count
  * @param valueCap            value per unit: the cap of a unit's sum; NaN for every other metric
+ * @param signalCaps          per signal that value guardrails count, their valueCap
  */
 record DefinitionView(String experimentId, long version, Set<String> arms, Metric metric, EventType trialEvent,
                       EventType outcomeEvent, long attributionWindowMs, boolean unitLevel, long earlyGraceMs,
-                      Set<String> signals, double valueCap) {
+                      Set<String> signals, double valueCap, java.util.Map<String, Double> signalCaps) {
+
+    /** Copies the caps. */
+    DefinitionView {
+        signalCaps = java.util.Map.copyOf(signalCaps);
+    }
 
     static DefinitionView of(ExperimentDefinition def) {
         Metric metric = Definitions.metric(def);
@@ -33,7 +39,20 @@ record DefinitionView(String experimentId, long version, Set<String> arms, Metri
                 def.getMetric().getTrialEvent(), outcome, def.getAttributionWindowMs(),
                 Definitions.unitLevel(def), Definitions.earlyOutcomeGraceMs(def), Definitions.guardrails(def).stream()
                         .map(dev.runoff.records.avro.GuardrailSpec::getSignal).collect(java.util.stream.Collectors.toSet()),
-                Definitions.valueCap(def));
+                Definitions.valueCap(def), signalCaps(def));
+    }
+
+    private static java.util.Map<String, Double> signalCaps(ExperimentDefinition def) {
+        java.util.Map<String, Double> caps = new java.util.HashMap<>();
+        Definitions.guardrails(def).stream().filter(g -> g.getValueCap() != null)
+                .forEach(g -> caps.putIfAbsent(g.getSignal(), g.getValueCap()));
+        return caps;
+    }
+
+    /** The valueCap of the value guardrails that count {@code signal}, or NaN when none does. */
+    double signalCap(String signal) {
+        Double cap = signalCaps.get(signal);
+        return cap == null ? Double.NaN : cap;
     }
 
     /** The role of an event of type {@code type}, or {@code null} when the metric does not use it. */

@@ -78,11 +78,15 @@ final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], R
         } else if (role == UnitEvent.Role.VALUE && event.getValue() == null) {
             reject(record, RejectReason.MISSING_VALUE.code(), "value: missing (the value event " + event.getType()
                     + " of experiment " + quote(view.experimentId()) + " must carry a value)", source);
+        } else if (signal != null && !Double.isNaN(view.signalCap(signal)) && event.getValue() == null) {
+            reject(record, RejectReason.MISSING_VALUE.code(), "value: missing (signal " + quote(signal)
+                    + " feeds a value guardrail of experiment " + quote(view.experimentId()) + ")", source);
         } else {
             UnitEvent valid = new UnitEvent(event.getExperimentId(), event.getUnitId(), event.getEventId(), role,
                     view.metric(), arm, event.getValue() == null ? Double.NaN : event.getValue(),
                     event.getTimestamp(), view.attributionWindowMs(), view.version(), view.unitLevel(),
-                    view.earlyGraceMs(), source, record.key(), record.value(), signal, view.valueCap());
+                    view.earlyGraceMs(), source, record.key(), record.value(), signal,
+                    signal != null ? view.signalCap(signal) : view.valueCap());
             context().forward(new Record<>(valid.unitKeyBytes(), Routed.pass(valid), record.timestamp(),
                     new RecordHeaders()));
         }

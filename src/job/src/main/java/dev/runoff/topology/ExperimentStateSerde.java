@@ -14,7 +14,9 @@ final class ExperimentStateSerde {
     static final InternalSerde<ExperimentState> SERDE =
             new InternalSerde<>(ExperimentStateSerde::encode, ExperimentStateSerde::decode);
 
-    private static final int FORMAT = 3;
+    private static final int FORMAT = 4;
+    /** The format before value guardrails; entries an earlier job wrote are still read (no totals). */
+    private static final int FORMAT_WITHOUT_TOTALS = 3;
     /** The format before guardrail counts; entries an earlier job wrote are still read (no counts). */
     private static final int FORMAT_WITHOUT_GUARDRAILS = 2;
 
@@ -50,7 +52,7 @@ final class ExperimentStateSerde {
     static ExperimentState decode(byte[] bytes) {
         BinaryIn in = new BinaryIn(bytes);
         int format = in.readByte();
-        if (format != FORMAT && format != FORMAT_WITHOUT_GUARDRAILS) {
+        if (format != FORMAT && format != FORMAT_WITHOUT_TOTALS && format != FORMAT_WITHOUT_GUARDRAILS) {
             throw new IllegalArgumentException("experiment state format " + format + " is not " + FORMAT);
         }
         var definition = StageTwo.DefinitionBytes.decode(in.readBytes());
@@ -71,7 +73,8 @@ final class ExperimentStateSerde {
         boolean due = in.readBoolean();
         long[] pending = in.readBoolean() ? readLongs(in, arms) : null;
         long[] armSince = readLongs(in, arms);
-        GuardrailCounts guardrails = format == FORMAT ? readGuardrails(in, arms) : null;
+        GuardrailCounts guardrails = format == FORMAT_WITHOUT_GUARDRAILS ? null
+                : readGuardrails(in, arms, format == FORMAT);
         ExperimentState state = new ExperimentState(definition, stats, stop, decisionSequence, allocationSequence,
                 lastHash, lastWeights, startedAt, lastComputedAt, lastPublishedAt, dirty, due, pending, armSince,
                 guardrails);
@@ -84,12 +87,12 @@ final class ExperimentStateSerde {
         counts.guardrails().forEach(out::writeString);
         for (int a = 0; a < counts.counted().length; a++) {
             for (int g = 0; g < counts.guardrails().size(); g++) {
-                out.writeLong(counts.counted(a, g)).writeLong(counts.hits(a, g));
+                out.writeLong(counts.counted(a, g)).writeLong(counts.hits(a, g)).writeDouble(counts.total(a, g));
             }
         }
     }
 
-    private static GuardrailCounts readGuardrails(BinaryIn in, int arms) {
+    private static GuardrailCounts readGuardrails(BinaryIn in, int arms, boolean totals) {
         int count = in.readInt();
         if (count < 0 || count > 64) {
             throw new IllegalArgumentException("corrupt experiment state: " + count + " guardrails");
@@ -100,13 +103,15 @@ final class ExperimentStateSerde {
         }
         long[][] counted = new long[arms][count];
         long[][] hits = new long[arms][count];
+        double[][] sums = new double[arms][count];
         for (int a = 0; a < arms; a++) {
             for (int g = 0; g < count; g++) {
                 counted[a][g] = in.readLong();
                 hits[a][g] = in.readLong();
+                sums[a][g] = totals ? in.readDouble() : 0;
             }
         }
-        return new GuardrailCounts(names, counted, hits);
+        return new GuardrailCounts(names, counted, hits, sums);
     }
 
     private static ExperimentState.Stop readStop(BinaryIn in) {

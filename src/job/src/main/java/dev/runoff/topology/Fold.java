@@ -13,6 +13,7 @@ import dev.runoff.records.RecordCodec;
 import dev.runoff.records.RecordSigner;
 import dev.runoff.records.avro.MetricKind;
 import dev.runoff.records.avro.ExperimentDefinition;
+import dev.runoff.records.avro.GuardrailSpec;
 import java.nio.charset.StandardCharsets;
 import java.time.Duration;
 import java.util.function.LongSupplier;
@@ -32,8 +33,8 @@ import org.slf4j.LoggerFactory;
  *       adds 1), replaces the configuration (see {@link ExperimentState#withDefinition}) and is published on
  *       the accepted-definitions topic, which feeds event validation.</li>
  *   <li>A definition that reuses the id of an ended experiment ({@code experiment-id-ended}) or changes the
- *       metric kind, the counting mode or a value-per-unit metric's cap ({@code metric-change}) is refused:
- *       start a new experiment.</li>
+ *       metric kind, the counting mode, a value-per-unit metric's cap or a guardrail's valueCap
+ *       ({@code metric-change}) is refused: start a new experiment (or, for a guardrail, rename it).</li>
  *   <li>The end of an experiment deletes its state, remembers its id and publishes tombstones on the control
  *       and accepted topics.</li>
  *   <li>Statistics and pending-unit changes are merged into their arm; those for an unknown experiment or
@@ -137,6 +138,27 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
                     + ", not " + cap + "; units already counted keep their cap, so it never changes, start a new"
                     + " experiment with a new id";
         }
+        return guardrailCapRefusal(id, current.definition(), submitted);
+    }
+
+    /**
+     * Why {@code submitted} may not change a guardrail's valueCap (a rate guardrail becoming a value guardrail
+     * or the reverse included), or {@code null}: the guardrail's counts would mix two meanings.
+     */
+    private static String guardrailCapRefusal(String id, ExperimentDefinition current, ExperimentDefinition submitted) {
+        java.util.Map<String, GuardrailSpec> before = new java.util.HashMap<>();
+        Definitions.guardrails(current).forEach(g -> before.put(g.getName(), g));
+        java.util.List<GuardrailSpec> after = Definitions.guardrails(submitted);
+        for (int i = 0; i < after.size(); i++) {
+            GuardrailSpec was = before.get(after.get(i).getName());
+            if (was != null && !java.util.Objects.equals(was.getValueCap(), after.get(i).getValueCap())) {
+                return "guardrails[" + i + "].valueCap: guardrail " + EventValidator.quote(was.getName())
+                        + " of experiment " + EventValidator.quote(id) + " has valueCap " + was.getValueCap()
+                        + ", not " + after.get(i).getValueCap() + "; units already counted keep their cap, so it"
+                        + " never changes: give the guardrail a new name (it starts at zero) or start a new"
+                        + " experiment";
+            }
+        }
         return null;
     }
 
@@ -178,7 +200,8 @@ final class Fold extends ContextualProcessor<byte[], StageTwo, byte[], Emit> {
             return;
         }
         experiments.put(delta.experimentId(), current.withDelta(index, delta.stats(), delta.pending(),
-                context().currentSystemTimeMs()).withGuardrailUnits(index, delta.stats().trials(), delta.signalUnits()));
+                context().currentSystemTimeMs()).withGuardrailUnits(index, delta.stats().trials(), delta.signalUnits(),
+                        delta.signalTotals()));
         counters.folded(delta.stats().trials());
     }
 

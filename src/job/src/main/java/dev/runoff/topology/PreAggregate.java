@@ -48,9 +48,10 @@ final class PreAggregate extends ContextualProcessor<byte[], ArmDelta, byte[], S
         ArmDelta delta = record.value();
         String key = delta.key();
         Sum sum = sums.get(key);
-        sums.put(key, sum == null ? new Sum(delta.stats(), delta.pending(), delta.signalUnits())
+        sums.put(key, sum == null ? new Sum(delta.stats(), delta.pending(), delta.signalUnits(), delta.signalTotals())
                 : new Sum(ArmStats.merge(sum.stats(), delta.stats()), sum.pending() + delta.pending(),
-                        ArmDelta.sum(sum.signalUnits(), delta.signalUnits())));
+                        ArmDelta.sum(sum.signalUnits(), delta.signalUnits()),
+                        ArmDelta.sumTotals(sum.signalTotals(), delta.signalTotals())));
     }
 
     private void flush(long now) {
@@ -63,7 +64,7 @@ final class PreAggregate extends ContextualProcessor<byte[], ArmDelta, byte[], S
         }
         for (KeyValue<String, Sum> entry : batch) {
             ArmDelta delta = ArmDelta.of(entry.key, entry.value.stats(), entry.value.pending(),
-                    entry.value.signalUnits());
+                    entry.value.signalUnits(), entry.value.signalTotals());
             context().forward(new Record<>(delta.experimentId().getBytes(StandardCharsets.UTF_8),
                     StageTwo.delta(delta), now, new RecordHeaders()));
             sums.delete(entry.key);
@@ -71,10 +72,17 @@ final class PreAggregate extends ContextualProcessor<byte[], ArmDelta, byte[], S
     }
 
     /**
-     * A stored sum: statistics, the change of pending units, and per guardrail signal the counted units that
-     * had it. Sums an earlier job stored end after the pending units; they read as having no signals.
+     * A stored sum: statistics, the change of pending units, per guardrail signal the counted units that
+     * had it, and per signal of value guardrails the total of the units' observations. Sums an earlier job
+     * stored end after the pending units (they read as having no signals) or after the signal counts (no
+     * totals).
      */
-    record Sum(ArmStats stats, long pending, Map<String, Long> signalUnits) {
+    record Sum(ArmStats stats, long pending, Map<String, Long> signalUnits, Map<String, Double> signalTotals) {
+
+        /** A sum without signal totals. */
+        Sum(ArmStats stats, long pending, Map<String, Long> signalUnits) {
+            this(stats, pending, signalUnits, Map.of());
+        }
 
         /** Serde of the store. */
         static final InternalSerde<Sum> SERDE = new InternalSerde<>(Sum::encode, Sum::decode);
@@ -84,12 +92,14 @@ final class PreAggregate extends ContextualProcessor<byte[], ArmDelta, byte[], S
             Stats.write(out, sum.stats);
             out.writeLong(sum.pending);
             ArmDelta.writeSignals(out, sum.signalUnits);
+            ArmDelta.writeTotals(out, sum.signalTotals);
             return out.toByteArray();
         }
 
         private static Sum decode(byte[] bytes) {
             BinaryIn in = new BinaryIn(bytes);
-            Sum sum = new Sum(Stats.read(in), in.readLong(), in.hasMore() ? ArmDelta.readSignals(in) : Map.of());
+            Sum sum = new Sum(Stats.read(in), in.readLong(), in.hasMore() ? ArmDelta.readSignals(in) : Map.of(),
+                    in.hasMore() ? ArmDelta.readTotals(in) : Map.of());
             in.end();
             return sum;
         }

@@ -21,14 +21,19 @@ import java.util.Objects;
  * @param pending      DELTA: the change of the arm's pending units; otherwise 0
  * @param definition   DEFINITION: the validated definition as submitted; otherwise {@code null}
  * @param signalUnits  DELTA: per guardrail signal, the counted units that had it; otherwise empty
+ * @param signalTotals DELTA: per signal of value guardrails, the total of the counted units' observations;
+ *                     otherwise empty
  */
 record StageTwo(Kind kind, String experimentId, String arm, long version, ArmStats stats, long pending,
-                ExperimentDefinition definition, java.util.Map<String, Long> signalUnits) {
+                ExperimentDefinition definition, java.util.Map<String, Long> signalUnits,
+                java.util.Map<String, Double> signalTotals) {
 
     /** Serde of the repartition topic. */
     static final InternalSerde<StageTwo> SERDE = new InternalSerde<>(StageTwo::encode, StageTwo::decode);
 
-    private static final int FORMAT = 3;
+    private static final int FORMAT = 4;
+    /** The format before value guardrails (no signal totals); still read, from a repartition topic an earlier job wrote. */
+    private static final int FORMAT_WITHOUT_TOTALS = 3;
     /** The format before guardrail signals; still read, from a repartition topic an earlier job wrote. */
     private static final int FORMAT_WITHOUT_SIGNALS = 2;
 
@@ -44,6 +49,13 @@ record StageTwo(Kind kind, String experimentId, String arm, long version, ArmSta
             Objects.requireNonNull(definition, "definition");
         }
         signalUnits = java.util.Map.copyOf(signalUnits);
+        signalTotals = java.util.Map.copyOf(signalTotals);
+    }
+
+    /** An envelope without signal totals. */
+    StageTwo(Kind kind, String experimentId, String arm, long version, ArmStats stats, long pending,
+             ExperimentDefinition definition, java.util.Map<String, Long> signalUnits) {
+        this(kind, experimentId, arm, version, stats, pending, definition, signalUnits, java.util.Map.of());
     }
 
     /** An envelope without guardrail signals. */
@@ -64,7 +76,7 @@ record StageTwo(Kind kind, String experimentId, String arm, long version, ArmSta
 
     static StageTwo delta(ArmDelta delta) {
         return new StageTwo(Kind.DELTA, delta.experimentId(), delta.arm(), delta.version(), delta.stats(),
-                delta.pending(), null, delta.signalUnits());
+                delta.pending(), null, delta.signalUnits(), delta.signalTotals());
     }
 
     static StageTwo definition(ExperimentDefinition definition) {
@@ -83,6 +95,7 @@ record StageTwo(Kind kind, String experimentId, String arm, long version, ArmSta
                 Stats.write(out, s.stats);
                 out.writeLong(s.pending);
                 ArmDelta.writeSignals(out, s.signalUnits);
+                ArmDelta.writeTotals(out, s.signalTotals);
             }
             case DEFINITION -> out.writeBytes(DefinitionBytes.encode(s.definition));
             case ENDED -> {
@@ -95,14 +108,15 @@ record StageTwo(Kind kind, String experimentId, String arm, long version, ArmSta
     private static StageTwo decode(byte[] bytes) {
         BinaryIn in = new BinaryIn(bytes);
         int format = in.readByte();
-        if (format != FORMAT && format != FORMAT_WITHOUT_SIGNALS) {
+        if (format != FORMAT && format != FORMAT_WITHOUT_TOTALS && format != FORMAT_WITHOUT_SIGNALS) {
             throw new IllegalArgumentException("stage-two format " + format + " is not " + FORMAT);
         }
         Kind kind = Kind.values()[in.readByte()];
         String experimentId = in.readString();
         StageTwo result = switch (kind) {
             case DELTA -> new StageTwo(kind, experimentId, in.readString(), in.readLong(), Stats.read(in),
-                    in.readLong(), null, format == FORMAT ? ArmDelta.readSignals(in) : java.util.Map.of());
+                    in.readLong(), null, format == FORMAT_WITHOUT_SIGNALS ? java.util.Map.of() : ArmDelta.readSignals(in),
+                    format == FORMAT ? ArmDelta.readTotals(in) : java.util.Map.of());
             case DEFINITION -> new StageTwo(kind, experimentId, null, 0, null, 0,
                     DefinitionBytes.decode(in.readBytes()));
             case ENDED -> new StageTwo(kind, experimentId, null, 0, null, 0, null);

@@ -50,14 +50,21 @@ final class UnitCounting {
      * guardrail signals of a unit counted now, and (value per unit) the observation of a unit counted now
      * (NaN otherwise).
      */
-    record Count(long trials, long successes, long pending, java.util.List<String> signals, double value) {
+    record Count(long trials, long successes, long pending, java.util.List<String> signals, double value,
+                 java.util.Map<String, Double> signalObservations) {
 
         /** Nothing to add. */
         static final Count NONE = new Count(0, 0, 0);
 
-        /** Copies the signals. */
+        /** Copies the signals and their observations. */
         Count {
             signals = java.util.List.copyOf(signals);
+            signalObservations = java.util.Map.copyOf(signalObservations);
+        }
+
+        /** A count without values of guardrail signals. */
+        Count(long trials, long successes, long pending, java.util.List<String> signals, double value) {
+            this(trials, successes, pending, signals, value, java.util.Map.of());
         }
 
         /** A count without a value. */
@@ -133,7 +140,7 @@ final class UnitCounting {
         UnitState next = new UnitState(unit.arm(), unit.version(), unit.unitLevel(), unit.firstTrialAt(),
                 Math.max(unit.lastTrialAt(), timestamp), unit.trials() + 1, unit.successes(),
                 unit.unitLevel() ? unit.windowMs() : windowMs, unit.counted(), now, unit.signals(), unit.valueCap(),
-                unit.valueSum());
+                unit.valueSum(), unit.signalValues());
         return new Step(next, unit.unitLevel() ? Count.NONE : new Count(1, 0, 0), Verdict.TAKEN);
     }
 
@@ -174,9 +181,22 @@ final class UnitCounting {
      * the window of its first exposure (either side, as for successes) and the unit has not been counted yet.
      */
     static Step signal(UnitState unit, String signal, long timestamp, long now) {
+        return signal(unit, signal, Double.NaN, Double.NaN, timestamp, now);
+    }
+
+    /**
+     * {@link #signal(UnitState, String, long, long)} for a signal that value guardrails count with
+     * {@code cap} (NaN when none does): the event's {@code value} is also added to the unit's sum of that
+     * signal's values, any number of them, as a value event adds to a value-per-unit sum.
+     */
+    static Step signal(UnitState unit, String signal, double cap, double value, long timestamp, long now) {
         Verdict refusal = openWindowRefusal(unit, timestamp);
-        return refusal != null ? Step.refused(unit, refusal)
-                : new Step(unit.withSignal(signal, now), Count.NONE, Verdict.TAKEN);
+        if (refusal != null) {
+            return Step.refused(unit, refusal);
+        }
+        UnitState marked = unit.withSignal(signal, now);
+        return new Step(Double.isNaN(cap) ? marked : marked.withSignalValue(signal, cap, value, now), Count.NONE,
+                Verdict.TAKEN);
     }
 
     /**
@@ -244,13 +264,13 @@ final class UnitCounting {
             return new Step(unit, Count.NONE, Verdict.TAKEN);
         }
         double value = unit.valuePerUnit() ? unit.cappedValue() : Double.NaN;
-        return new Step(unit.countedAt(now), new Count(1, unit.successes() > 0 ? 1 : 0, -1, unit.signals(), value),
-                Verdict.TAKEN);
+        return new Step(unit.countedAt(now), new Count(1, unit.successes() > 0 ? 1 : 0, -1, unit.signals(), value,
+                unit.signalObservations()), Verdict.TAKEN);
     }
 
     private static UnitState withSuccess(UnitState unit, long now) {
         return new UnitState(unit.arm(), unit.version(), unit.unitLevel(), unit.firstTrialAt(), unit.lastTrialAt(),
                 unit.trials(), unit.successes() + 1, unit.windowMs(), unit.counted(), now, unit.signals(),
-                unit.valueCap(), unit.valueSum());
+                unit.valueCap(), unit.valueSum(), unit.signalValues());
     }
 }

@@ -27,7 +27,8 @@ import java.util.Objects;
  * @param originalKey         the original record key, or {@code null}
  * @param originalValue       the original record value
  * @param signal              GUARDRAIL: the signal the event carries; otherwise {@code null}
- * @param valueCap            value per unit: the metric's cap of a unit's sum; NaN for every other metric
+ * @param valueCap            value per unit: the metric's cap of a unit's sum; GUARDRAIL: the valueCap of the
+ *                            value guardrails that count the signal; NaN otherwise
  */
 record UnitEvent(String experimentId, String unitId, String eventId, Role role, Metric metric, String arm,
                  double value, long timestamp, long attributionWindowMs, long version, boolean unitLevel,

@@ -24,23 +24,51 @@ import java.util.List;
  *                     other metric
  * @param valueSum     value per unit: the sum of the unit's values within its window so far, not capped (0
  *                     without value events)
+ * @param signalValues value guardrails: per signal they count that the unit had, the cap and the sum of the
+ *                     signal's values within its window so far, not capped; sorted by signal, each once
  */
 record UnitState(String arm, long version, boolean unitLevel, long firstTrialAt, long lastTrialAt, long trials,
                  long successes, long windowMs, boolean counted, long touchedAt, List<String> signals,
-                 double valueCap, double valueSum) {
+                 double valueCap, double valueSum, List<SignalValue> signalValues) {
 
     /** Serde of the units store. */
     static final InternalSerde<UnitState> SERDE = new InternalSerde<>(UnitState::encode, UnitState::decode);
 
-    private static final int FORMAT = 4;
+    private static final int FORMAT = 5;
+    /** The format before value guardrails; entries an earlier job wrote are still read (no signal values). */
+    private static final int FORMAT_WITHOUT_SIGNAL_VALUES = 4;
     /** The format before values per unit; entries an earlier job wrote are still read (no cap, no sum). */
     private static final int FORMAT_WITHOUT_VALUES = 3;
     /** The format before guardrail signals; entries an earlier job wrote are still read (no signals). */
     private static final int FORMAT_WITHOUT_SIGNALS = 2;
 
-    /** Copies the signals. */
+    /** Copies the signals and their values. */
     UnitState {
         signals = List.copyOf(signals);
+        signalValues = List.copyOf(signalValues);
+    }
+
+    /** A unit without values of guardrail signals. */
+    UnitState(String arm, long version, boolean unitLevel, long firstTrialAt, long lastTrialAt, long trials,
+              long successes, long windowMs, boolean counted, long touchedAt, List<String> signals,
+              double valueCap, double valueSum) {
+        this(arm, version, unitLevel, firstTrialAt, lastTrialAt, trials, successes, windowMs, counted, touchedAt,
+                signals, valueCap, valueSum, List.of());
+    }
+
+    /**
+     * The running sum of one signal's values for the value guardrails that count it.
+     *
+     * @param signal the signal
+     * @param cap    those guardrails' valueCap, as the signal's first event carried it
+     * @param sum    the sum of the signal's values so far, not capped
+     */
+    record SignalValue(String signal, double cap, double sum) {
+
+        /** The unit's observation: its sum winsorised into [0, cap], over the cap, in [0, 1]. */
+        double observation() {
+            return Math.min(cap, Math.max(0.0, sum)) / cap;
+        }
     }
 
     /** A unit without a value per unit. */
@@ -67,19 +95,39 @@ record UnitState(String arm, long version, boolean unitLevel, long firstTrialAt,
         java.util.TreeSet<String> all = new java.util.TreeSet<>(signals);
         all.add(signal);
         return new UnitState(arm, version, unitLevel, firstTrialAt, lastTrialAt, trials, successes, windowMs, counted,
-                now, List.copyOf(all), valueCap, valueSum);
+                now, List.copyOf(all), valueCap, valueSum, signalValues);
+    }
+
+    /**
+     * This unit with {@code value} added to the sum of {@code signal}'s values (started with {@code cap} at
+     * the signal's first value), touched at {@code now}.
+     */
+    UnitState withSignalValue(String signal, double cap, double value, long now) {
+        java.util.TreeMap<String, SignalValue> all = new java.util.TreeMap<>();
+        signalValues.forEach(v -> all.put(v.signal(), v));
+        all.merge(signal, new SignalValue(signal, cap, value),
+                (old, added) -> new SignalValue(signal, old.cap(), old.sum() + value));
+        return new UnitState(arm, version, unitLevel, firstTrialAt, lastTrialAt, trials, successes, windowMs, counted,
+                now, signals, valueCap, valueSum, List.copyOf(all.values()));
     }
 
     /** This unit with {@code value} added to its sum, touched at {@code now}. */
     UnitState withValue(double value, long now) {
         return new UnitState(arm, version, unitLevel, firstTrialAt, lastTrialAt, trials, successes, windowMs, counted,
-                now, signals, valueCap, valueSum + value);
+                now, signals, valueCap, valueSum + value, signalValues);
     }
 
     /** This unit marked counted at {@code now}. */
     UnitState countedAt(long now) {
         return new UnitState(arm, version, true, firstTrialAt, lastTrialAt, trials, successes, windowMs, true, now,
-                signals, valueCap, valueSum);
+                signals, valueCap, valueSum, signalValues);
+    }
+
+    /** Value guardrails: per signal the unit had, its observation in [0, 1] (see {@link SignalValue}). */
+    java.util.Map<String, Double> signalObservations() {
+        java.util.Map<String, Double> out = new java.util.TreeMap<>();
+        signalValues.forEach(v -> out.put(v.signal(), v.observation()));
+        return out;
     }
 
     /**
@@ -107,21 +155,38 @@ record UnitState(String arm, long version, boolean unitLevel, long firstTrialAt,
                 .writeLong(u.successes).writeLong(u.windowMs).writeBoolean(u.counted).writeLong(u.touchedAt)
                 .writeInt(u.signals.size());
         u.signals.forEach(out::writeString);
-        return out.writeDouble(u.valueCap).writeDouble(u.valueSum).toByteArray();
+        out.writeDouble(u.valueCap).writeDouble(u.valueSum).writeInt(u.signalValues.size());
+        u.signalValues.forEach(v -> out.writeString(v.signal()).writeDouble(v.cap()).writeDouble(v.sum()));
+        return out.toByteArray();
     }
 
     private static UnitState decode(byte[] bytes) {
         BinaryIn in = new BinaryIn(bytes);
         int format = in.readByte();
-        if (format != FORMAT && format != FORMAT_WITHOUT_VALUES && format != FORMAT_WITHOUT_SIGNALS) {
+        if (format != FORMAT && format != FORMAT_WITHOUT_SIGNAL_VALUES && format != FORMAT_WITHOUT_VALUES
+                && format != FORMAT_WITHOUT_SIGNALS) {
             throw new IllegalArgumentException("unit entry format " + format + " is not " + FORMAT);
         }
+        boolean values = format >= FORMAT_WITHOUT_SIGNAL_VALUES;
         UnitState state = new UnitState(in.readString(), in.readLong(), in.readBoolean(), in.readLong(),
                 in.readLong(), in.readLong(), in.readLong(), in.readLong(), in.readBoolean(), in.readLong(),
                 format == FORMAT_WITHOUT_SIGNALS ? List.of() : readSignals(in),
-                format == FORMAT ? in.readDouble() : Double.NaN, format == FORMAT ? in.readDouble() : 0);
+                values ? in.readDouble() : Double.NaN, values ? in.readDouble() : 0,
+                format == FORMAT ? readSignalValues(in) : List.of());
         in.end();
         return state;
+    }
+
+    private static List<SignalValue> readSignalValues(BinaryIn in) {
+        int count = in.readInt();
+        if (count < 0 || count > 64) {
+            throw new IllegalArgumentException("corrupt unit entry: " + count + " signal values");
+        }
+        List<SignalValue> values = new ArrayList<>(count);
+        for (int i = 0; i < count; i++) {
+            values.add(new SignalValue(in.readString(), in.readDouble(), in.readDouble()));
+        }
+        return values;
     }
 
     private static List<String> readSignals(BinaryIn in) {

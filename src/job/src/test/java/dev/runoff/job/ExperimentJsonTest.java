@@ -21,7 +21,7 @@ class ExperimentJsonTest {
     void eachArmListsItsGuardrailCounts() throws Exception {
         ExperimentDefinition def = TestDefinitions.bernoulli("e", "a", "b");
         def.setGuardrails(List.of(new GuardrailSpec("failed-payments", "payment-failed",
-                GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.05)));
+                GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.05, null)));
         ExperimentState state = ExperimentState.start(def).withGuardrailUnits(1, 40, Map.of("payment-failed", 3L));
         JsonNode b = new ObjectMapper().readTree(ExperimentJson.of(state)).get("arms").get(1);
         JsonNode counts = b.get("guardrails").get(0);

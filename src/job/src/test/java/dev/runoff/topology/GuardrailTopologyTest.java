@@ -38,7 +38,7 @@ class GuardrailTopologyTest {
                 WINDOW);
         def.setControlArm("classic");
         def.setGuardrails(List.of(new GuardrailSpec("failed-payments", SIGNAL, GuardrailDirection.HIGHER_IS_WORSE,
-                0.1, 0.05)));
+                0.1, 0.05, null)));
         return def;
     }
 

@@ -36,13 +36,32 @@ final class GuardrailRules {
         if (guardrails.size() > MAX_GUARDRAILS) {
             problems.add("guardrails", Reason.TOO_MANY, guardrails.size() + " items, at most " + MAX_GUARDRAILS);
         }
-        if (def.getMetric().getKind() != MetricKind.BERNOULLI || Definitions.counting(def) != CountingMode.UNIT) {
-            problems.add("guardrails", Reason.INCONSISTENT, "need metric.kind BERNOULLI with counting UNIT (a"
-                    + " guardrail counts units whose conversion window has closed)");
+        MetricKind kind = def.getMetric().getKind();
+        if (kind == MetricKind.VALUE || Definitions.counting(def) != CountingMode.UNIT) {
+            problems.add("guardrails", Reason.INCONSISTENT, "need metric.kind BERNOULLI with counting UNIT, or"
+                    + " VALUE_PER_UNIT (a guardrail counts units whose conversion window has closed)");
         }
         problems.uniqueNames("guardrails", guardrails.stream().map(GuardrailSpec::getName).toList(), ".name");
         for (int i = 0; i < guardrails.size(); i++) {
             checkOne(guardrails.get(i), problems.under("guardrails[" + i + "]"));
+        }
+        checkSharedCaps(guardrails, problems);
+    }
+
+    /** Value guardrails that count one signal cap its per-unit sums alike (a unit keeps one sum per signal). */
+    private static void checkSharedCaps(List<GuardrailSpec> guardrails, Problems problems) {
+        java.util.Map<String, Double> caps = new java.util.HashMap<>();
+        for (int i = 0; i < guardrails.size(); i++) {
+            GuardrailSpec g = guardrails.get(i);
+            if (g.getValueCap() == null) {
+                continue;
+            }
+            Double first = caps.putIfAbsent(g.getSignal(), g.getValueCap());
+            if (first != null && !first.equals(g.getValueCap())) {
+                problems.under("guardrails[" + i + "]").add("valueCap", Reason.INCONSISTENT, "must equal " + first
+                        + ", the valueCap of an earlier guardrail counting signal " + Problems.quote(g.getSignal())
+                        + ", got " + g.getValueCap());
+            }
         }
     }
 
@@ -58,6 +77,10 @@ final class GuardrailRules {
             problems.add("margin", Reason.OUT_OF_RANGE, "must be a finite number >= 0, got " + margin);
         }
         problems.open("alpha", guardrail.getAlpha(), 0, 1);
+        Double cap = guardrail.getValueCap();
+        if (cap != null && !(cap > 0 && Double.isFinite(cap))) {
+            problems.add("valueCap", Reason.OUT_OF_RANGE, "must be a finite number > 0, got " + cap);
+        }
     }
 
     /** A signal on an outcome event: well formed, and not on an exposure. */
@@ -77,7 +100,8 @@ final class GuardrailRules {
      * order, with hits in [0, counted] and bounds in [0, 1]; a suspension names a guardrail the arm FAILED.
      */
     static void checkStates(ArmState state, ExperimentDefinition def, Problems problems) {
-        List<String> names = Definitions.guardrails(def).stream().map(GuardrailSpec::getName).toList();
+        List<GuardrailSpec> specs = Definitions.guardrails(def);
+        List<String> names = specs.stream().map(GuardrailSpec::getName).toList();
         List<GuardrailState> states = state.getGuardrails();
         if (states == null) {
             if (!names.isEmpty() || state.getSuspendedBy() != null) {
@@ -97,6 +121,7 @@ final class GuardrailRules {
                 one.add("hits", Reason.OUT_OF_RANGE, "must be in [0, counted=" + g.getCounted() + "], got "
                         + g.getHits());
             }
+            checkTotal(g, i < specs.size() && specs.get(i).getValueCap() != null, one);
             one.closed("lower", g.getLower(), 0, 1);
             one.closed("upper", g.getUpper(), g.getLower(), 1);
         }
@@ -105,6 +130,21 @@ final class GuardrailRules {
                 && g.getOutcome() == GuardrailOutcome.FAIL)) {
             problems.add("suspendedBy", Reason.INCONSISTENT, Problems.quote(suspendedBy)
                     + " is not a guardrail this arm FAILED");
+        }
+    }
+
+    /** total: set, in [0, counted], exactly for value guardrails. */
+    private static void checkTotal(GuardrailState g, boolean value, Problems problems) {
+        Double total = g.getTotal();
+        if (!value) {
+            if (total != null) {
+                problems.add("total", Reason.INCONSISTENT, "only set for a guardrail with a valueCap, got " + total);
+            }
+            return;
+        }
+        if (problems.present("total", total) && !(total >= 0 && total <= g.getCounted())) {
+            problems.add("total", Reason.OUT_OF_RANGE, "must be in [0, counted=" + g.getCounted() + "], got "
+                    + total);
         }
     }
 

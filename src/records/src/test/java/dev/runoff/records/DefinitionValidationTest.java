@@ -86,13 +86,13 @@ class DefinitionValidationTest {
                 broken("guardrail signal with capitals", d -> d.setGuardrails(List.of(guard("errors", "Payment"))),
                         "guardrails[0].signal", Reason.INVALID_TEXT, "'Payment' must be 1 to 64 of a-z 0-9 and -"),
                 broken("guardrail margin of 1 when lower is worse", d -> d.setGuardrails(List.of(
-                        new GuardrailSpec("loads", "page-loaded", GuardrailDirection.LOWER_IS_WORSE, 1.0, 0.05))),
+                        new GuardrailSpec("loads", "page-loaded", GuardrailDirection.LOWER_IS_WORSE, 1.0, 0.05, null))),
                         "guardrails[0].margin", Reason.OUT_OF_RANGE, "must be in [0, 1) when lower is worse"),
                 broken("negative guardrail margin", d -> d.setGuardrails(List.of(
-                        new GuardrailSpec("errors", "error", GuardrailDirection.HIGHER_IS_WORSE, -0.1, 0.05))),
+                        new GuardrailSpec("errors", "error", GuardrailDirection.HIGHER_IS_WORSE, -0.1, 0.05, null))),
                         "guardrails[0].margin", Reason.OUT_OF_RANGE, "got -0.1"),
                 broken("guardrail alpha of 0", d -> d.setGuardrails(List.of(
-                        new GuardrailSpec("errors", "error", GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.0))),
+                        new GuardrailSpec("errors", "error", GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.0, null))),
                         "guardrails[0].alpha", Reason.OUT_OF_RANGE, "must be in (0.0, 1.0), got 0.0"),
                 broken("guardrails with exposure counting", d -> {
                     d.setCounting(CountingMode.EXPOSURE);
@@ -353,7 +353,7 @@ class DefinitionValidationTest {
     void aDefinitionWithGuardrailsIsValid() {
         ExperimentDefinition def = Samples.bernoulli();
         def.setGuardrails(List.of(failedPayments(), new GuardrailSpec("loads", "page-loaded",
-                GuardrailDirection.LOWER_IS_WORSE, 0.05, 0.01)));
+                GuardrailDirection.LOWER_IS_WORSE, 0.05, 0.01, null)));
         Decoded<ExperimentDefinition> decoded = Definitions.validate(def, Samples.NOW);
         assertTrue(decoded.isValid(), decoded.problems().toString());
     }
@@ -363,7 +363,7 @@ class DefinitionValidationTest {
     }
 
     private static GuardrailSpec guard(String name, String signal) {
-        return new GuardrailSpec(name, signal, GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.05);
+        return new GuardrailSpec(name, signal, GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.05, null);
     }
 
     private static Arguments broken(String name, Consumer<ExperimentDefinition> change, String field, Reason reason,

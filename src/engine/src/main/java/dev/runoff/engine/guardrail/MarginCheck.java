@@ -52,6 +52,23 @@ public final class MarginCheck {
     }
 
     /**
+     * One arm's units and the sum of their observations, each in [0, 1]: for a value guardrail, each unit's
+     * capped value divided by the cap (see {@link RateSequence#meanBounds(long, double, double)}).
+     *
+     * @param units units counted
+     * @param total sum of their observations, a finite number in [0, units]
+     */
+    public record Totals(long units, double total) {
+        /** Checks {@code 0 <= total <= units}. */
+        public Totals {
+            Checks.nonNegative("units", units);
+            if (!(total >= 0 && total <= units)) {
+                throw new IllegalArgumentException("total must be in [0, units=" + units + "], got " + total);
+            }
+        }
+    }
+
+    /**
      * The test's result: the outcome, both arms' bounds, and the comparison behind the outcome (the FAIL
      * comparison when it failed, else the PASS comparison).
      *
@@ -72,14 +89,27 @@ public final class MarginCheck {
      * @param alpha  error level of the test, in (0, 1)
      */
     public static Result check(Counts arm, Counts reference, Direction direction, double margin, double alpha) {
+        return check(new Totals(arm.units(), arm.hits()), new Totals(reference.units(), reference.hits()),
+                direction, margin, alpha);
+    }
+
+    /**
+     * Tests {@code arm} against {@code reference} on the means of observations in [0, 1]; with 0/1
+     * observations it is {@link #check(Counts, Counts, Direction, double, double)}. The error argument of the
+     * class comment holds unchanged, the sequences being valid for any observations in [0, 1].
+     *
+     * @param margin relative margin, >= 0 (and < 1 for {@link Direction#LOWER_IS_WORSE})
+     * @param alpha  error level of the test, in (0, 1)
+     */
+    public static Result check(Totals arm, Totals reference, Direction direction, double margin, double alpha) {
         Objects.requireNonNull(direction, "direction");
         Checks.nonNegative("margin", margin);
         if (direction == Direction.LOWER_IS_WORSE && margin >= 1) {
             throw new IllegalArgumentException("margin must be < 1 when lower is worse, got " + margin);
         }
         Checks.inOpenRange("alpha", alpha, 0, 1);
-        RateSequence.Bounds a = RateSequence.bounds(arm.units(), arm.hits(), alpha / 2);
-        RateSequence.Bounds r = RateSequence.bounds(reference.units(), reference.hits(), alpha / 2);
+        RateSequence.Bounds a = RateSequence.meanBounds(arm.units(), arm.total(), alpha / 2);
+        RateSequence.Bounds r = RateSequence.meanBounds(reference.units(), reference.total(), alpha / 2);
         return direction == Direction.HIGHER_IS_WORSE ? higherIsWorse(a, r, 1 + margin)
                 : lowerIsWorse(a, r, 1 - margin);
     }
