@@ -22,7 +22,8 @@ import org.apache.kafka.streams.KafkaStreams;
  * The job's metrics in one Prometheus registry: Kafka Streams' own metrics (Micrometer's
  * {@link KafkaStreamsMetrics} binder: thread, task, processor, store and client metrics), JVM memory, and the
  * job's counters: rejected records by reason ({@code runoff_rejected_total{reason=...}}), dropped duplicates
- * ({@code runoff_duplicates_total}), stream threads replaced after an uncaught exception
+ * ({@code runoff_duplicates_total}), outcomes that came before their unit's first trial event
+ * ({@code runoff_early_outcomes_total{state="held"|"matched"}}), stream threads replaced after an uncaught exception
  * ({@code runoff_stream_thread_replacements_total}), the experiments this instance holds
  * ({@code runoff_experiments{status="running"|"stopped"}}), the running ones whose next decision is overdue
  * ({@code runoff_experiments_lagging}, see {@link Lagging}) and the client's state ({@code runoff_streams_running}).
@@ -41,6 +42,10 @@ final class JobMetrics implements AutoCloseable {
     private final PrometheusMeterRegistry registry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
     private final JobCounters counters;
     private final LongAdder replacements = new LongAdder();
+    /** Counter keys that are not rejection reasons (each has a metric of its own). */
+    private static final Set<String> NOT_REJECTIONS = Set.of(JobCounters.DUPLICATE, JobCounters.EARLY_HELD,
+            JobCounters.EARLY_MATCHED);
+
     private final Set<String> registeredReasons = ConcurrentHashMap.newKeySet();
     private final KafkaStreamsMetrics streamsMetrics;
     /** Held here: Micrometer gauges keep only a weak reference to the object they read. */
@@ -72,6 +77,12 @@ final class JobMetrics implements AutoCloseable {
                 .description("Valid outcome events by the way they reached their unit's task when outcomes are keyed "
                         + "by unit: read on their unit's partition, or rerouted there through a repartition topic")
                 .register(registry);
+        FunctionCounter.builder("runoff.early.outcomes", counters, c -> c.count(JobCounters.EARLY_HELD))
+                .tag("state", "held").description("Outcome events that arrived before their unit's first trial event:"
+                        + " held to wait for it, and held ones matched when it came").register(registry);
+        FunctionCounter.builder("runoff.early.outcomes", counters, c -> c.count(JobCounters.EARLY_MATCHED))
+                .tag("state", "matched").description("Outcome events that arrived before their unit's first trial"
+                        + " event: held to wait for it, and held ones matched when it came").register(registry);
         FunctionCounter.builder("runoff.decisions", counters, JobCounters::decisions)
                 .description("Decision records written").register(registry);
         FunctionTimer.builder("runoff.allocation.pass", counters, JobCounters::allocationPasses,
@@ -100,7 +111,7 @@ final class JobMetrics implements AutoCloseable {
     /** The metrics in Prometheus text format (registers counters for reasons seen since the last scrape). */
     String scrape() {
         for (String key : counters.snapshot().keySet()) {
-            if (!key.equals(JobCounters.DUPLICATE) && registeredReasons.add(key)) {
+            if (!NOT_REJECTIONS.contains(key) && registeredReasons.add(key)) {
                 FunctionCounter.builder("runoff.rejected", counters, c -> c.count(key)).tag("reason", key)
                         .description("Records set aside on the rejected topic, by reason").register(registry);
             }
