@@ -95,6 +95,8 @@ final class ExperimentPage {
         ArmState leader = OverviewPage.leader(r);
         for (ArmState a : r.getArms()) {
             b.append("<tr><th scope=\"row\">").append(Html.escape(a.getArm())).append(a == leader ? " (leader)" : "")
+                    .append(a.getSuspendedBy() == null ? ""
+                            : " (suspended by " + Html.escape(a.getSuspendedBy()) + ")")
                     .append("</th><td class=\"n\">").append(Html.whole(a.getTrials())).append("</td>");
             if (rates) {
                 long successes = a.getSuccesses() == null ? 0 : a.getSuccesses();

@@ -85,6 +85,9 @@ class PagesTest {
         String quietRow = matches(html, "<tr><th scope=\"row\"><a href=\"/experiments/quiet\">.*?</tr>").get(0);
         assertTrue(quietRow.contains("<td>none</td>"), quietRow);
         assertTrue(html.contains("<th scope=\"col\">Suspended by a guardrail</th>"));
+        String page = pages(List.of(quiet, held)).experiment("held", null).html();
+        assertTrue(page.contains("&lt;script&gt;alert(&#39;x&#39;)&lt;/script&gt;&quot;&amp; (suspended by"
+                + " failed-payments)</th>"), page);
     }
 
     @Test
