@@ -69,7 +69,7 @@ public final class VerifyReport {
     }
 
     private static void sampleRatio(StringBuilder out, ExperimentAudit audit, double alpha) {
-        out.append("  sample ratio (chi-square, alpha ").append(alpha).append("): ")
+        out.append("  sample ratio (chi-square, alpha ").append(alpha).append(" per experiment, Holm across periods): ")
                 .append(audit.count(SampleRatio.Outcome.PASSED) + audit.count(SampleRatio.Outcome.FLAGGED))
                 .append(" periods tested, ").append(audit.count(SampleRatio.Outcome.FLAGGED)).append(" flagged, ")
                 .append(audit.count(SampleRatio.Outcome.SKIPPED)).append(" skipped")
