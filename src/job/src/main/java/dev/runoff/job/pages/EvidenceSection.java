@@ -63,7 +63,8 @@ final class EvidenceSection {
     /**
      * Evidence against the trials (thousands), one line per arm of the latest record in its order, so that each
      * arm keeps the colour and marker it has in the page's other charts; the current leader's line holds only
-     * the decisions at which it was losing.
+     * the decisions at which it was losing, and the title names it (a legend entry has room for an arm's name
+     * only).
      */
     private static void chart(StringBuilder b, List<DecisionPoint> points, List<Evidence.Row> rows) {
         double[] xs = rows.stream().mapToDouble(r -> r.totalTrials() / 1000.0).toArray();
@@ -73,9 +74,9 @@ final class EvidenceSection {
         for (String arm : points.get(points.size() - 1).arms()) {
             double[] ys = rows.stream().mapToDouble(r -> value(r.points().get(arm))).toArray();
             top = Math.max(top, Arrays.stream(ys).filter(y -> !Double.isNaN(y)).max().orElse(0));
-            series.add(new LineChart.Series(arm.equals(leader) ? arm + " (leader now)" : arm, ys));
+            series.add(new LineChart.Series(arm, ys));
         }
-        b.append(LineChart.svg("evidence", "Evidence against each losing arm, -ln P(best)",
+        b.append(LineChart.svg("evidence", "Evidence against each losing arm, -ln P(best); leader now: " + leader,
                 "trials so far (thousands); bounds not drawn", xs, top > 0 ? top * 1.1 : 1, series)).append('\n');
     }
 

@@ -78,6 +78,9 @@ class EvidenceSectionTest {
             assertEquals(Evidence.number(rate), cells[2], "growth per 1,000 trials of " + arm.getArm());
         }
         assertTrue(section.contains(Html.escape(Evidence.balanceLine(Evidence.balance(row), row))), section);
+        assertTrue(section.contains("Evidence against each losing arm, -ln P(best); leader now: "
+                + Html.escape(row.leader()) + "</title>"), "the chart's title names the leader");
+        assertFalse(section.contains("(leader now)"), "legend entries carry the arm's name only");
         assertTrue(section.contains("(tolerance)"), "the verdict states its tolerance");
         assertTrue(section.contains(HOSTILE_ESCAPED), "the hostile arm name escaped");
         assertFalse(section.contains("<i>"), "the hostile arm name became markup");
