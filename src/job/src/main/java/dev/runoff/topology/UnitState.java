@@ -67,7 +67,7 @@ record UnitState(String arm, long version, boolean unitLevel, long firstTrialAt,
 
         /** The unit's observation: its sum winsorised into [0, cap], over the cap, in [0, 1]. */
         double observation() {
-            return Math.min(cap, Math.max(0.0, sum)) / cap;
+            return winsorised(sum, cap) / cap;
         }
     }
 
@@ -130,12 +130,17 @@ record UnitState(String arm, long version, boolean unitLevel, long firstTrialAt,
         return out;
     }
 
-    /**
-     * Value per unit: the unit's observation, its sum winsorised into [0, cap] (see {@link UnitCounting}).
-     * {@code Math.min}/{@code max} only, so the observation is the same bits on every JVM.
-     */
+    /** Value per unit: the unit's observation, its sum winsorised into [0, cap] (see {@link UnitCounting}). */
     double cappedValue() {
-        return Math.min(valueCap, Math.max(0.0, valueSum));
+        return winsorised(valueSum, valueCap);
+    }
+
+    /**
+     * {@code sum} winsorised into [0, cap], the rule of values per unit and of value guardrails alike.
+     * {@code Math.min}/{@code max} only, so the result is the same bits on every JVM.
+     */
+    static double winsorised(double sum, double cap) {
+        return Math.min(cap, Math.max(0.0, sum));
     }
 
     /** When the unit's conversion window closes: its first trial event's timestamp plus the window. */
