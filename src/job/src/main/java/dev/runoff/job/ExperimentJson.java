@@ -73,8 +73,7 @@ final class ExperimentJson {
         if (counts.guardrails().isEmpty()) {
             return;
         }
-        List<GuardrailSpec> specs =
-                Definitions.guardrails(state.definition());
+        List<GuardrailSpec> specs = Definitions.guardrails(state.definition());
         ArrayNode list = arm.putArray("guardrails");
         for (int g = 0; g < counts.guardrails().size(); g++) {
             ObjectNode entry = list.addObject().put("guardrail", counts.guardrails().get(g))
