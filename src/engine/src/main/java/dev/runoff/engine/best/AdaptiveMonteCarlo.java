@@ -2,6 +2,7 @@ package dev.runoff.engine.best;
 
 import dev.runoff.engine.posterior.Posterior;
 import java.util.List;
+import java.util.Objects;
 import org.apache.commons.rng.UniformRandomProvider;
 import org.apache.commons.rng.simple.RandomSource;
 
@@ -10,7 +11,8 @@ import org.apache.commons.rng.simple.RandomSource;
  * number adapts to the question the weights ask (which arm leads, which challenges), with conditional Monte
  * Carlo for the arms that win no draw.
  *
- * <p><b>Draw count.</b> Stage 0 makes {@code min(FIRST_STAGE, maxDraws)} joint draws; each further stage
+ * <p><b>Draw count.</b> Stage 0 makes {@code min(firstStage, maxDraws)} joint draws ({@value #FIRST_STAGE}
+ * unless constructed otherwise); each further stage
  * doubles the total, capped at {@code maxDraws}. After each stage, with leader L and runner-up R the two arms
  * with the most wins (ties to the lower index) and {@code d = (w_L - w_R) / M}, the standard error of d is
  * {@code s = sqrt((p_L + p_R - d^2) / M)} (the variance of a difference of two multinomial cell proportions;
@@ -54,17 +56,37 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
     public static final double UPPER_BOUND_LEVEL = 0.95;
 
     private final int maxDraws;
+    private final int firstStage;
+    private final DrawSource source;
+    private final ExactAlphas exact;
 
     /**
-     * An estimator drawing at most {@code maxDraws} joint draws.
+     * An estimator drawing at most {@code maxDraws} joint draws, with a first stage of {@value #FIRST_STAGE},
+     * each posterior's own sampler and the quadrature of {@link ExactProbabilityBest}.
      *
      * @throws IllegalArgumentException if {@code maxDraws < 1}
      */
     public AdaptiveMonteCarlo(int maxDraws) {
+        this(maxDraws, FIRST_STAGE, DrawSource.POSTERIOR, ExactAlphas.QUADRATURE);
+    }
+
+    /**
+     * An estimator drawing at most {@code maxDraws} joint draws, {@code min(firstStage, maxDraws)} in its first
+     * stage, from {@code source}, and integrating the arms that win no draw with {@code exact}.
+     *
+     * @throws IllegalArgumentException if {@code maxDraws < 1} or {@code firstStage < 1}
+     */
+    public AdaptiveMonteCarlo(int maxDraws, int firstStage, DrawSource source, ExactAlphas exact) {
         if (maxDraws < 1) {
             throw new IllegalArgumentException("maxDraws must be >= 1, got " + maxDraws);
         }
+        if (firstStage < 1) {
+            throw new IllegalArgumentException("firstStage must be >= 1, got " + firstStage);
+        }
         this.maxDraws = maxDraws;
+        this.firstStage = firstStage;
+        this.source = Objects.requireNonNull(source, "source");
+        this.exact = Objects.requireNonNull(exact, "exact");
     }
 
     /** The cap on joint draws. */
@@ -92,10 +114,10 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
     @Override
     public ProbabilityBest estimate(List<? extends Posterior> posteriors, long seed) {
         UniformRandomProvider rng = RandomSource.XO_SHI_RO_256_PP.create(seed);
-        Posterior.Sampler[] samplers = MonteCarloProbabilityBest.samplers(posteriors, rng);
+        Posterior.Sampler[] samplers = MonteCarloProbabilityBest.samplers(posteriors, rng, source);
         long[] wins = new long[samplers.length];
         int done = 0;
-        int target = Math.min(FIRST_STAGE, maxDraws);
+        int target = Math.min(firstStage, maxDraws);
         while (true) {
             MonteCarloProbabilityBest.addWins(samplers, target - done, wins);
             done = target;
@@ -129,7 +151,7 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
         return best;
     }
 
-    private static ProbabilityBest estimates(List<? extends Posterior> posteriors, long[] wins, int draws) {
+    private ProbabilityBest estimates(List<? extends Posterior> posteriors, long[] wins, int draws) {
         int k = wins.length;
         int leader = rank(wins, -1);
         boolean[] conditional = new boolean[k];
@@ -138,7 +160,7 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
             conditional[i] = wins[i] == 0 && i != leader;
             any |= conditional[i];
         }
-        double[] integrated = any ? ExactProbabilityBest.selected(posteriors, conditional) : new double[k];
+        double[] integrated = any ? exact.selected(posteriors, conditional) : new double[k];
         double[] alpha = new double[k];
         double[] se = new double[k];
         double others = 0;

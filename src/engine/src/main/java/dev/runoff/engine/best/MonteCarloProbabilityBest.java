@@ -2,6 +2,7 @@ package dev.runoff.engine.best;
 
 import dev.runoff.engine.posterior.Posterior;
 import java.util.List;
+import java.util.Objects;
 import org.apache.commons.rng.UniformRandomProvider;
 import org.apache.commons.rng.simple.RandomSource;
 
@@ -23,18 +24,31 @@ public final class MonteCarloProbabilityBest implements ProbabilityBestEstimator
     static final int BLOCK = 1024;
 
     private final int draws;
+    private final DrawSource source;
 
     /**
-     * An estimator using {@code draws} joint posterior draws.
+     * An estimator using {@code draws} joint posterior draws from each posterior's own sampler.
      *
      * @param draws number of joint draws M, {@code >= 1}
      * @throws IllegalArgumentException if {@code draws < 1}
      */
     public MonteCarloProbabilityBest(int draws) {
+        this(draws, DrawSource.POSTERIOR);
+    }
+
+    /**
+     * An estimator using {@code draws} joint posterior draws from {@code source}.
+     *
+     * @param draws  number of joint draws M, {@code >= 1}
+     * @param source how each posterior is sampled
+     * @throws IllegalArgumentException if {@code draws < 1}
+     */
+    public MonteCarloProbabilityBest(int draws, DrawSource source) {
         if (draws < 1) {
             throw new IllegalArgumentException("draws must be >= 1, got " + draws);
         }
         this.draws = draws;
+        this.source = Objects.requireNonNull(source, "source");
     }
 
     /** Number of joint draws per estimate. */
@@ -49,7 +63,7 @@ public final class MonteCarloProbabilityBest implements ProbabilityBestEstimator
      */
     @Override
     public ProbabilityBest estimate(List<? extends Posterior> posteriors, long seed) {
-        Posterior.Sampler[] samplers = samplers(posteriors, RandomSource.XO_SHI_RO_256_PP.create(seed));
+        Posterior.Sampler[] samplers = samplers(posteriors, RandomSource.XO_SHI_RO_256_PP.create(seed), source);
         long[] wins = countWins(samplers);
         double[] alpha = new double[wins.length];
         double[] standardError = new double[wins.length];
@@ -60,7 +74,8 @@ public final class MonteCarloProbabilityBest implements ProbabilityBestEstimator
         return new ProbabilityBest(alpha, standardError, ProbabilityBest.Method.MONTE_CARLO, draws);
     }
 
-    static Posterior.Sampler[] samplers(List<? extends Posterior> posteriors, UniformRandomProvider rng) {
+    static Posterior.Sampler[] samplers(List<? extends Posterior> posteriors, UniformRandomProvider rng,
+                                        DrawSource source) {
         if (posteriors == null || posteriors.size() < 2) {
             throw new IllegalArgumentException("need at least 2 posteriors, got "
                     + (posteriors == null ? "null" : posteriors.size()));
@@ -71,7 +86,7 @@ public final class MonteCarloProbabilityBest implements ProbabilityBestEstimator
             if (posterior == null) {
                 throw new IllegalArgumentException("posterior of arm " + i + " is null");
             }
-            samplers[i] = posterior.sampler(rng);
+            samplers[i] = source.sampler(posterior, rng);
         }
         return samplers;
     }

@@ -1,0 +1,22 @@
+package dev.runoff.engine.best;
+
+import dev.runoff.engine.posterior.Posterior;
+import java.util.List;
+
+/**
+ * The exact probability of being best of selected arms, by numerical integration; {@link AdaptiveMonteCarlo}
+ * uses it for arms that win no draw. Each engine version names the integration it uses.
+ */
+@FunctionalInterface
+public interface ExactAlphas {
+
+    /** The quadrature of {@link ExactProbabilityBest}: the integration of engine version 1.2. */
+    ExactAlphas QUADRATURE = ExactProbabilityBest::selected;
+
+    /**
+     * The alphas of the arms selected by {@code which}, 0 for the others.
+     *
+     * @throws IllegalArgumentException if fewer than two posteriors are given or one is null
+     */
+    double[] selected(List<? extends Posterior> posteriors, boolean[] which);
+}
