@@ -47,7 +47,7 @@ class SamplersTest {
      * {@code sqrt((m4 - s^4) / n)} with the sample fourth central moment m4 (the large-sample variance of
      * the sample variance; common practice).
      */
-    private static void assertMoments(double[] x, double mean, double variance) {
+    static void assertMoments(double[] x, double mean, double variance) {
         int n = x.length;
         double sum = 0;
         for (double v : x) {
