@@ -2,6 +2,7 @@ package dev.runoff.bench;
 
 import dev.runoff.engine.best.MonteCarloProbabilityBest;
 import dev.runoff.engine.best.ProbabilityBest;
+import dev.runoff.engine.best.TableDrawSource;
 import dev.runoff.engine.posterior.BetaPosterior;
 import java.util.ArrayList;
 import java.util.List;
@@ -19,7 +20,8 @@ import org.openjdk.jmh.annotations.State;
  * Probability that each arm is best for 5 Beta arms, rates 0.10 .. 0.14 on 1,000 trials each (uniform
  * prior), with 10,000 joint draws: the engine's {@link MonteCarloProbabilityBest} against a naive baseline
  * that calls Commons Math {@code BetaDistribution.sample()} (its default generator) for every draw and takes
- * the argmax. The numpy equivalent is src/bench/alpha_numpy.py.
+ * the argmax; and the same estimator drawing from {@link TableDrawSource} (the table-based Beta sampler
+ * meant for the next engine version). The numpy equivalent is src/bench/alpha_numpy.py.
  */
 @State(Scope.Thread)
 @BenchmarkMode(Mode.AverageTime)
@@ -31,6 +33,7 @@ public class MonteCarloAlphaBench {
 
     private List<BetaPosterior> posteriors;
     private MonteCarloProbabilityBest estimator;
+    private MonteCarloProbabilityBest tableEstimator;
     private BetaDistribution[] commonsMath;
     private long seed;
 
@@ -46,12 +49,19 @@ public class MonteCarloAlphaBench {
             commonsMath[i] = new BetaDistribution(p.a(), p.b());
         }
         estimator = new MonteCarloProbabilityBest(DRAWS);
+        tableEstimator = new MonteCarloProbabilityBest(DRAWS, TableDrawSource.always());
     }
 
     /** The engine's estimator; a new seed per call so no two evaluations repeat. */
     @Benchmark
     public ProbabilityBest engine() {
         return estimator.estimate(posteriors, seed++);
+    }
+
+    /** The engine's estimator with the table draw source (tables built afresh in every call). */
+    @Benchmark
+    public ProbabilityBest engineTable() {
+        return tableEstimator.estimate(posteriors, seed++);
     }
 
     /** Naive baseline: one Commons Math {@code sample()} per arm per draw, then argmax and counts. */

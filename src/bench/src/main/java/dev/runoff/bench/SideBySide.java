@@ -23,7 +23,9 @@ import java.util.List;
  * <p>Usage: {@code java -cp src/bench/target/classes dev.runoff.bench.SideBySide CLASS METHOD CALLS ROUNDS
  * CLASSPATH_A CLASSPATH_B [FIELD=VALUE ...]}; {@code CALLS} calls of {@code METHOD} make one pass; each
  * class path must hold the bench class and everything it needs; {@code FIELD=VALUE} sets a public
- * {@code int} or {@code String} field (the JMH parameters) before {@code setUp()} runs.
+ * {@code int} or {@code String} field (the JMH parameters) before {@code setUp()} runs. {@code METHOD} may
+ * name two methods, {@code A_METHOD,B_METHOD}, to compare two methods of one bench (the same class path may
+ * then be given twice).
  */
 public final class SideBySide {
     private static final int WARM_UP_ROUNDS = 2;
@@ -46,7 +48,9 @@ public final class SideBySide {
         int calls = Integer.parseInt(args[2]);
         int rounds = Integer.parseInt(args[3]);
         List<String> settings = Arrays.asList(args).subList(6, args.length);
-        Pass[] passes = {Pass.of(args[0], args[1], args[4], settings), Pass.of(args[0], args[1], args[5], settings)};
+        String[] methods = args[1].split(",", 2);
+        String methodB = methods.length == 2 ? methods[1] : methods[0];
+        Pass[] passes = {Pass.of(args[0], methods[0], args[4], settings), Pass.of(args[0], methodB, args[5], settings)};
         double[][] cpu = new double[2][rounds];
         ThreadMXBean threads = ManagementFactory.getThreadMXBean();
         for (int round = -WARM_UP_ROUNDS; round < rounds; round++) {

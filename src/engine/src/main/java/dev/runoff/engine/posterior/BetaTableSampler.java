@@ -48,7 +48,7 @@ import org.apache.commons.rng.UniformRandomProvider;
  * draws are a pure function of (a, b) and the generator's state. Instances are not thread-safe and share
  * nothing.
  */
-public final class BetaTableSampler implements Posterior.Sampler {
+public final class BetaTableSampler implements BlockSampler {
     /** Slots of the alias table: two pieces per bin and the two tails fill it exactly. */
     static final int SLOT_BITS = 8;
     /** Bins of the body. */
@@ -111,13 +111,20 @@ public final class BetaTableSampler implements Posterior.Sampler {
         return new BetaTableSampler(rng, h, bins, left, right);
     }
 
+    /**
+     * One draw. The slot-or-alias choice is made without a branch ({@code keep} is all ones when the 53 low
+     * bits fall below the slot's threshold, else 0): the choice is unpredictable, and the branch form ran
+     * about 15% slower in a scratch loop.
+     */
     @Override
     public double draw() {
         while (true) {
             long r = rng.nextLong();
             int slot = (int) (r >>> (64 - SLOT_BITS));
             long entry = slots[slot];
-            int piece = (r & LOW_53) < (entry & THRESHOLD_MASK) ? slot : (int) (entry >>> AliasTable.ALIAS_SHIFT);
+            int alias = (int) (entry >>> AliasTable.ALIAS_SHIFT);
+            int keep = (int) (((r & LOW_53) - (entry & THRESHOLD_MASK)) >> 63);
+            int piece = alias ^ ((alias ^ slot) & keep);
             double u = (rng.nextLong() >>> 11) * UNIT;
             if (piece < BINS) {
                 return edge[piece] + width * u;
@@ -126,6 +133,13 @@ public final class BetaTableSampler implements Posterior.Sampler {
             if (x == x) {
                 return x;
             }
+        }
+    }
+
+    @Override
+    public void fill(double[] out, int n) {
+        for (int j = 0; j < n; j++) {
+            out[j] = draw();
         }
     }
 

@@ -102,6 +102,13 @@ class BetaTableSamplerTest {
     }
 
     @Test
+    void aBlockHoldsTheDrawsOneByOneWouldGive() {
+        double[] block = new double[3_000];
+        sampler(12, 3, 70).fill(block, block.length);
+        assertArrayEquals(draw(sampler(12, 3, 70), block.length), block);
+    }
+
+    @Test
     void drawsStayInsideTheSupport() {
         for (double[] ab : new double[][] {{1, 1}, {1, 1e7}, {1e7, 1}, {1.0001, 1.0001}, {2, 2}}) {
             for (double v : draw(sampler(3, ab[0], ab[1]), 100_000)) {
