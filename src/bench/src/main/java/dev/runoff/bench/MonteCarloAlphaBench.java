@@ -12,6 +12,7 @@ import org.openjdk.jmh.annotations.Benchmark;
 import org.openjdk.jmh.annotations.BenchmarkMode;
 import org.openjdk.jmh.annotations.Mode;
 import org.openjdk.jmh.annotations.OutputTimeUnit;
+import org.openjdk.jmh.annotations.Param;
 import org.openjdk.jmh.annotations.Scope;
 import org.openjdk.jmh.annotations.Setup;
 import org.openjdk.jmh.annotations.State;
@@ -27,7 +28,9 @@ import org.openjdk.jmh.annotations.State;
 @BenchmarkMode(Mode.AverageTime)
 @OutputTimeUnit(TimeUnit.MILLISECONDS)
 public class MonteCarloAlphaBench {
-    static final int DRAWS = 10_000;
+    /** Joint draws per estimate (10,000, as in alpha_numpy.py; other values to find where the table pays). */
+    @Param({"10000"})
+    public int draws = 10_000;
     static final int TRIALS = 1_000;
     static final double[] RATES = {0.10, 0.11, 0.12, 0.13, 0.14};
 
@@ -48,8 +51,8 @@ public class MonteCarloAlphaBench {
             posteriors.add(p);
             commonsMath[i] = new BetaDistribution(p.a(), p.b());
         }
-        estimator = new MonteCarloProbabilityBest(DRAWS);
-        tableEstimator = new MonteCarloProbabilityBest(DRAWS, TableDrawSource.always());
+        estimator = new MonteCarloProbabilityBest(draws);
+        tableEstimator = new MonteCarloProbabilityBest(draws, TableDrawSource.always());
     }
 
     /** The engine's estimator; a new seed per call so no two evaluations repeat. */
@@ -68,7 +71,7 @@ public class MonteCarloAlphaBench {
     @Benchmark
     public double[] commonsMathBaseline() {
         int[] wins = new int[commonsMath.length];
-        for (int m = 0; m < DRAWS; m++) {
+        for (int m = 0; m < draws; m++) {
             int best = 0;
             double bestValue = commonsMath[0].sample();
             for (int i = 1; i < commonsMath.length; i++) {
@@ -82,7 +85,7 @@ public class MonteCarloAlphaBench {
         }
         double[] alpha = new double[wins.length];
         for (int i = 0; i < wins.length; i++) {
-            alpha[i] = (double) wins[i] / DRAWS;
+            alpha[i] = (double) wins[i] / draws;
         }
         return alpha;
     }

@@ -6,9 +6,10 @@ import dev.runoff.engine.posterior.Posterior;
 import org.apache.commons.rng.UniformRandomProvider;
 
 /**
- * A draw source that samples Beta posteriors with both shapes at least 1 by {@link BetaTableSampler} (a table
- * built per estimate and arm, then about two random words per draw), and every other posterior (shapes
- * below 1, Student-t) by its own sampler. The draws differ from {@link DrawSource#POSTERIOR}'s (same
+ * A draw source that samples the Beta posteriors {@link BetaTableSampler} supports (both shapes at least 1,
+ * their sum at most {@value BetaTableSampler#MAX_SHAPE_SUM}) by that sampler (a table built per estimate and
+ * arm, then about two random words per draw), and every other posterior (a shape below 1, Student-t) by its
+ * own sampler. The draws differ from {@link DrawSource#POSTERIOR}'s (same
  * distribution, other bits), so this source belongs to a new engine version, never to 1.2.
  *
  * <p>The table costs about {@value #MIN_DRAWS} draws' worth of time to build; {@link #forDraws} falls back to

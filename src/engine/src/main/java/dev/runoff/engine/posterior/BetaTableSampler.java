@@ -57,6 +57,8 @@ public final class BetaTableSampler implements BlockSampler {
     static final double K = 4.5;
     /** Relative widening of every upper bound of the density and narrowing of every lower bound. */
     static final double SLACK = 1e-9;
+    /** The largest {@code a + b} this sampler takes. */
+    public static final double MAX_SHAPE_SUM = 1e15;
     private static final int LEFT_TAIL = 2 * BINS;
     private static final long LOW_53 = (1L << 53) - 1;
     private static final long THRESHOLD_MASK = (1L << AliasTable.ALIAS_SHIFT) - 1;
@@ -84,9 +86,13 @@ public final class BetaTableSampler implements BlockSampler {
         this.slots = AliasTable.build(bins.areas(left.area(), right.area()), 1 << SLOT_BITS);
     }
 
-    /** Whether this sampler applies: both shapes finite and at least 1 (where the density is log-concave). */
+    /**
+     * Whether this sampler applies: both shapes at least 1 (where the density is log-concave) and their sum at
+     * most {@value #MAX_SHAPE_SUM} (far beyond that the body's bins would shrink towards the spacing of doubles
+     * near the mode).
+     */
     public static boolean supports(double a, double b) {
-        return a >= 1 && b >= 1 && a < Double.POSITIVE_INFINITY && b < Double.POSITIVE_INFINITY;
+        return a >= 1 && b >= 1 && a + b <= MAX_SHAPE_SUM;
     }
 
     /**
@@ -97,12 +103,12 @@ public final class BetaTableSampler implements BlockSampler {
      */
     public static BetaTableSampler of(UniformRandomProvider rng, double a, double b) {
         if (!supports(a, b)) {
-            throw new IllegalArgumentException("table Beta sampler needs finite shapes >= 1, got a=" + a
-                    + ", b=" + b);
+            throw new IllegalArgumentException("table Beta sampler needs shapes >= 1 with a + b <= "
+                    + MAX_SHAPE_SUM + ", got a=" + a + ", b=" + b);
         }
         RelativeLogDensity h = new RelativeLogDensity(a, b);
         double s = a + b;
-        double sd = StrictMath.sqrt(a * b / (s * s * (s + 1)));
+        double sd = StrictMath.sqrt((a / s) * (b / s) / (s + 1));
         double lo = Math.max(0.0, h.mode() - K * sd);
         double hi = Math.min(1.0, h.mode() + K * sd);
         TableBins bins = TableBins.of(h, lo, hi, BINS, SLACK);

@@ -81,7 +81,8 @@ class TableDrawSourceTest {
 
     @Test
     void unsupportedPosteriorsGetTheirOwnSamplersDraws() {
-        for (Posterior p : List.of(new BetaPosterior(0.7, 4), new StudentTPosterior(1, 2, 5))) {
+        for (Posterior p : List.of(new BetaPosterior(0.7, 4), new BetaPosterior(1e200, 3e200),
+                new StudentTPosterior(1, 2, 5))) {
             Posterior.Sampler own = p.sampler(RandomSource.XO_SHI_RO_256_PP.create(4));
             Posterior.Sampler viaSource = TableDrawSource.always().sampler(p, RandomSource.XO_SHI_RO_256_PP.create(4));
             for (int i = 0; i < 100; i++) {
