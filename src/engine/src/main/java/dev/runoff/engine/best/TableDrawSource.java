@@ -9,11 +9,12 @@ import org.apache.commons.rng.UniformRandomProvider;
  * A draw source that samples the Beta posteriors {@link BetaTableSampler} supports (both shapes at least 1,
  * their sum at most {@value BetaTableSampler#MAX_SHAPE_SUM}) by that sampler (a table built per estimate and
  * arm, then about two random words per draw), and every other posterior (a shape below 1, Student-t) by its
- * own sampler. The draws differ from {@link DrawSource#POSTERIOR}'s (same
- * distribution, other bits), so this source belongs to a new engine version, never to 1.2.
+ * own sampler. The draws differ from {@link DrawSource#POSTERIOR}'s (same distribution, other bits), so this
+ * source belongs to a new engine version, never to 1.2.
  *
- * <p>The table costs about {@value #MIN_DRAWS} draws' worth of time to build; {@link #forDraws} falls back to
- * the posterior's own sampler below that many draws per arm, where the table would not pay for itself.
+ * <p>Building a table costs about as much as 500 to 1,000 draws of the posterior's own sampler (measured side
+ * by side: src/docs/performance.md); {@link #forDraws} falls back to the posterior's own sampler below
+ * {@value #MIN_DRAWS} draws per arm, where the table would not pay for itself.
  */
 public final class TableDrawSource implements DrawSource {
     /** Draws per arm from which the table pays for its construction (measured: src/docs/performance.md). */
