@@ -21,7 +21,9 @@ import java.util.List;
  * time, so the per-round ratio of CPU times is the figure to quote.
  *
  * <p>Usage: {@code java -cp src/bench/target/classes dev.runoff.bench.SideBySide CLASS METHOD CALLS ROUNDS
- * CLASSPATH_A CLASSPATH_B [FIELD=VALUE ...]}; {@code CALLS} calls of {@code METHOD} make one pass; each
+ * CLASSPATH_A CLASSPATH_B [FIELD=VALUE ...]}; {@code CALLS} calls of {@code METHOD} make one pass
+ * ({@code METHOD_A,METHOD_B} runs a different method on each side, say an earlier and a new estimator, with
+ * the same class path twice); each
  * class path must hold the bench class and everything it needs; {@code FIELD=VALUE} sets a public
  * {@code int} or {@code String} field (the JMH parameters) before {@code setUp()} runs.
  */
@@ -46,7 +48,9 @@ public final class SideBySide {
         int calls = Integer.parseInt(args[2]);
         int rounds = Integer.parseInt(args[3]);
         List<String> settings = Arrays.asList(args).subList(6, args.length);
-        Pass[] passes = {Pass.of(args[0], args[1], args[4], settings), Pass.of(args[0], args[1], args[5], settings)};
+        String[] methods = args[1].split(",", 2);
+        Pass[] passes = {Pass.of(args[0], methods[0], args[4], settings),
+            Pass.of(args[0], methods[methods.length - 1], args[5], settings)};
         double[][] cpu = new double[2][rounds];
         ThreadMXBean threads = ManagementFactory.getThreadMXBean();
         for (int round = -WARM_UP_ROUNDS; round < rounds; round++) {

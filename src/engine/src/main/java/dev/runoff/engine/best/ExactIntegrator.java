@@ -25,10 +25,6 @@ import java.util.List;
  * {@code log F_i} from the total.
  */
 final class ExactIntegrator {
-    private static final int POINTS = 10;
-    private static final double PANEL_FACTOR = 2.5;
-    private static final GaussLegendre RULE = GaussLegendre.of(POINTS);
-    private static final double[] LOG_WEIGHTS = logWeights();
     private static final int MAX_PANELS = 200_000;
     private static final double NEGLIGIBLE = 50;
     private static final int MAX_HALVINGS = 60;
@@ -41,15 +37,37 @@ final class ExactIntegrator {
         SURVIVAL
     }
 
-    private ExactIntegrator() {
+    /**
+     * The panels of one engine version: a Gauss-Legendre rule, the panel factor, and whether a panel may
+     * step over the centre of a Beta arm whose range it starts in (see {@link #nextEdge}).
+     */
+    static final class Panels {
+        /** Engine version 1.2: 10 points, factor 2.5, no panel steps over a centre, every node evaluated. */
+        static final Panels ENGINE_1_2 = new Panels(10, 2.5, false, false);
+
+        private final GaussLegendre rule;
+        private final double[] logWeights;
+        private final double factor;
+        private final boolean overActiveBetaCentres;
+        private final boolean pruned;
+
+        /**
+         * @param pruned evaluate nodes with {@link PrunedNodes} when every arm is log-concave (ends integrals
+         *               whose remainder is negligible and stops computing saturated distribution functions)
+         */
+        Panels(int points, double factor, boolean overActiveBetaCentres, boolean pruned) {
+            this.rule = GaussLegendre.of(points);
+            this.logWeights = new double[points];
+            for (int k = 0; k < points; k++) {
+                logWeights[k] = StrictMath.log(rule.weight(k));
+            }
+            this.factor = factor;
+            this.overActiveBetaCentres = overActiveBetaCentres;
+            this.pruned = pruned;
+        }
     }
 
-    private static double[] logWeights() {
-        double[] w = new double[RULE.size()];
-        for (int k = 0; k < w.length; k++) {
-            w[k] = StrictMath.log(RULE.weight(k));
-        }
-        return w;
+    private ExactIntegrator() {
     }
 
     /**
@@ -62,7 +80,7 @@ final class ExactIntegrator {
      * @param which which integrals to compute (others are returned as 0)
      */
     static double[] integrate(List<ExactArm> arms, double[] from, double[] to, Own own, boolean[] which) {
-        return integrate(arms, from, to, own, which, true);
+        return integrate(arms, from, to, own, which, true, Panels.ENGINE_1_2);
     }
 
     /**
@@ -71,7 +89,7 @@ final class ExactIntegrator {
      * that part).
      */
     static double[] integrate(List<ExactArm> arms, double[] from, double[] to, Own own, boolean[] which,
-                              boolean close) {
+                              boolean close, Panels grid) {
         int n = arms.size();
         double start = Double.POSITIVE_INFINITY;
         double end = Double.NEGATIVE_INFINITY;
@@ -88,10 +106,13 @@ final class ExactIntegrator {
         Accumulator acc = new Accumulator(n);
         double[] logCdf = new double[n];
         double[] prefix = new double[n + 1];
+        PrunedNodes pruned = grid.pruned && own == Own.DENSITY && PrunedNodes.applies(arms) ? new PrunedNodes(which)
+                : null;
+        boolean[] live = pruned == null ? which : pruned.live();
         double left = start;
         int panels = 0;
-        while (left < end) {
-            double right = nextEdge(arms, from, to, which, left, end);
+        while (left < end && (pruned == null || pruned.anyLive())) {
+            double right = nextEdge(arms, from, to, live, left, end, grid);
             if (++panels > MAX_PANELS) {
                 throw new ArithmeticException("exact integration needs more than " + MAX_PANELS
                         + " panels on [" + start + ", " + end + "]");
@@ -99,9 +120,14 @@ final class ExactIntegrator {
             double half = 0.5 * (right - left);
             double mid = left + half;
             double logHalf = StrictMath.log(half);
-            for (int k = 0; k < POINTS; k++) {
-                double x = mid + half * RULE.node(k);
-                addNode(arms, from, to, own, which, x, logHalf + LOG_WEIGHTS[k], logCdf, prefix, acc);
+            for (int k = 0; k < grid.logWeights.length; k++) {
+                double x = mid + half * grid.rule.node(k);
+                double logWeight = logHalf + grid.logWeights[k];
+                if (pruned != null) {
+                    pruned.add(arms, from, to, x, logWeight, logCdf, prefix, acc);
+                } else {
+                    addNode(arms, from, to, own, which, x, logWeight, logCdf, prefix, acc);
+                }
             }
             left = right;
         }
@@ -195,16 +221,17 @@ final class ExactIntegrator {
      * the whole body of the distribution.
      */
     private static double nextEdge(List<ExactArm> arms, double[] from, double[] to, boolean[] which,
-                                   double left, double end) {
-        double h = Math.min(end - left, width(arms, from, to, which, left));
+                                   double left, double end, Panels panels) {
+        double h = Math.min(end - left, width(arms, from, to, which, left, panels.factor));
         for (ExactArm arm : arms) {
             double center = arm.center();
-            if (center > left && center < left + h) {
+            if (center > left && center < left + h && !(panels.overActiveBetaCentres && arm.isBeta()
+                    && arm.active(left))) {
                 h = center - left;
             }
         }
         for (int halving = 0; halving < MAX_HALVINGS; halving++) {
-            double limit = width(arms, from, to, which, Math.min(left + h, end));
+            double limit = width(arms, from, to, which, Math.min(left + h, end), panels.factor);
             if (h <= limit) {
                 break;
             }
@@ -222,10 +249,11 @@ final class ExactIntegrator {
      * panels that {@code K ~ C / d^2} gives further out. Before this, the panels shrank to a few ulps and
      * integration gave up (issue 14: prior shapes below about 0.15).
      */
-    private static double width(List<ExactArm> arms, double[] from, double[] to, boolean[] which, double x) {
+    private static double width(List<ExactArm> arms, double[] from, double[] to, boolean[] which, double x,
+                                double factor) {
         double k = curvature(arms, from, to, which, x);
         if (!Double.isInfinite(k)) {
-            return PANEL_FACTOR / Math.sqrt(k);
+            return factor / Math.sqrt(k);
         }
         double distance = Double.POSITIVE_INFINITY;
         double coefficient = 0;
@@ -235,7 +263,7 @@ final class ExactIntegrator {
                 coefficient += arm.endCoefficient(x);
             }
         }
-        return PANEL_FACTOR * distance / Math.sqrt(Math.max(coefficient, 0.25));
+        return factor * distance / Math.sqrt(Math.max(coefficient, 0.25));
     }
 
     /** Sum of the curvatures of the log factors that vary at {@code x}. */
@@ -259,7 +287,7 @@ final class ExactIntegrator {
      * Per-arm log-sum-exp of weighted terms (weights included in the logs, since far in a heavy tail a
      * tiny integrand on a huge panel still counts), rescaled to a running maximum.
      */
-    private static final class Accumulator {
+    static final class Accumulator {
         private final double[] max;
         private final double[] sum;
 
@@ -282,6 +310,11 @@ final class ExactIntegrator {
                 sum[i] = sum[i] * StrictMath.exp(max[i] - logTerm) + 1;
                 max[i] = logTerm;
             }
+        }
+
+        /** The log of the sum so far ({@code -infinity} while it is empty). */
+        double logValue(int i) {
+            return sum[i] == 0 ? Double.NEGATIVE_INFINITY : max[i] + StrictMath.log(sum[i]);
         }
 
         double value(int i) {

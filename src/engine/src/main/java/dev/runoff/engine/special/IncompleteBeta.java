@@ -103,7 +103,15 @@ public final class IncompleteBeta {
         if (!(y > 0)) {
             return 0.0;
         }
-        return logTail(x, y, a, b, logOfA, logOfB, logKernel(x, y));
+        return logLower(x, y, logKernel(x, y), 1);
+    }
+
+    /**
+     * {@code log I_x(a, b)} for {@code 0 < x < 1}, {@code y = 1 - x}, from the kernel {@link #logKernel} at
+     * {@code (x, y)}, testing the continued fraction's convergence every {@code checkEvery} terms.
+     */
+    double logLower(double x, double y, double kernel, int checkEvery) {
+        return logTail(x, y, a, b, logOfA, logOfB, kernel, checkEvery);
     }
 
     /**
@@ -120,7 +128,12 @@ public final class IncompleteBeta {
         if (!(x > 0)) {
             return 0.0;
         }
-        return logTail(y, x, b, a, logOfB, logOfA, logKernel(x, y));
+        return logUpper(x, y, logKernel(x, y), 1);
+    }
+
+    /** {@code log(1 - I_x(a, b))}, otherwise as {@link #logLower(double, double, double, int)}. */
+    double logUpper(double x, double y, double kernel, int checkEvery) {
+        return logTail(y, x, b, a, logOfB, logOfA, kernel, checkEvery);
     }
 
     /**
@@ -128,11 +141,12 @@ public final class IncompleteBeta {
      * the same for both tails): the continued fraction where it converges fast, else the complement of the
      * other tail.
      */
-    private double logTail(double u, double v, double p, double q, double logP, double logQ, double kernel) {
+    private double logTail(double u, double v, double p, double q, double logP, double logQ, double kernel,
+                           int checkEvery) {
         if (u * (p + q + 2) < p + 1) {
-            return kernel - logP + StrictMath.log(continuedFraction(u, p, q));
+            return kernel - logP + StrictMath.log(continuedFraction(u, p, q, checkEvery));
         }
-        return LogMath.log1mExp(kernel - logQ + StrictMath.log(continuedFraction(v, q, p)));
+        return LogMath.log1mExp(kernel - logQ + StrictMath.log(continuedFraction(v, q, p, checkEvery)));
     }
 
     /**
@@ -179,7 +193,7 @@ public final class IncompleteBeta {
      * {@code log v} where {@code v + w = 1}: the smaller of the two is taken as the accurate one, so the log
      * of the larger is {@code log1p(-smaller)} (a rounded {@code 1 - x} would cost {@code b * 1e-16}).
      */
-    private static double logOf(double v, double w) {
+    static double logOf(double v, double w) {
         return v <= w ? StrictMath.log(v) : StrictMath.log1p(-w);
     }
 
@@ -198,9 +212,11 @@ public final class IncompleteBeta {
      * ran up to 3.5 times slower on the build machine, depending on how the JIT compiled it (measured side
      * by side on 200,000 random points near the centre of five-arm posteriors, and in src/docs/performance.md;
      * the likely cause, not checked, is that each conversion writes only part of its register and so waits
-     * for that register's previous value).
+     * for that register's previous value). The convergence test (renormalisation, then the convergent against
+     * the one of the last test) runs every {@code checkEvery} terms: 1 for engine version 1.2, whose bits
+     * this must keep; {@link CachedIncompleteBeta} explains the other value.
      */
-    private double continuedFraction(double x, double p, double q) {
+    private double continuedFraction(double x, double p, double q, int checkEvery) {
         double sum = p + q;
         double pPlus = p + 1;
         double pMinus = p - 1;
@@ -210,18 +226,20 @@ public final class IncompleteBeta {
         double denominator = 1 - sum * x / pPlus;
         double h = numerator / denominator;
         double m = 0;
-        for (int step = 1; step <= maxIterations; step++) {
-            m += 1;
-            double m2 = m + m;
-            double pTwoM = p + m2;
-            double even = m * (q - m) * x / ((pMinus + m2) * pTwoM);
-            double odd = -(p + m) * (sum + m) * x / (pTwoM * (pPlus + m2));
-            double numeratorEven = numerator + even * numeratorPrev;
-            double denominatorEven = denominator + even * denominatorPrev;
-            numeratorPrev = numeratorEven;
-            denominatorPrev = denominatorEven;
-            numerator = numeratorEven + odd * numerator;
-            denominator = denominatorEven + odd * denominator;
+        for (int step = 0; step < maxIterations; step += checkEvery) {
+            for (int k = 0; k < checkEvery; k++) {
+                m += 1;
+                double m2 = m + m;
+                double pTwoM = p + m2;
+                double even = m * (q - m) * x / ((pMinus + m2) * pTwoM);
+                double odd = -(p + m) * (sum + m) * x / (pTwoM * (pPlus + m2));
+                double numeratorEven = numerator + even * numeratorPrev;
+                double denominatorEven = denominator + even * denominatorPrev;
+                numeratorPrev = numeratorEven;
+                denominatorPrev = denominatorEven;
+                numerator = numeratorEven + odd * numerator;
+                denominator = denominatorEven + odd * denominator;
+            }
             double size = Math.abs(denominator);
             if (size > RESCALE || size < 1 / RESCALE) {
                 double r = 1 / size;
