@@ -103,15 +103,15 @@ public final class IncompleteBeta {
         if (!(y > 0)) {
             return 0.0;
         }
-        return logLower(x, y, logKernel(x, y), 1);
+        return logLower(x, y, logKernel(x, y));
     }
 
     /**
-     * {@code log I_x(a, b)} for {@code 0 < x < 1}, {@code y = 1 - x}, from the kernel {@link #logKernel} at
-     * {@code (x, y)}, testing the continued fraction's convergence every {@code checkEvery} terms.
+     * {@code log I_x(a, b)} for {@code 0 < x < 1}, {@code y = 1 - x}, given the kernel {@link #logKernel} at
+     * {@code (x, y)} (for a caller that has it already).
      */
-    double logLower(double x, double y, double kernel, int checkEvery) {
-        return logTail(x, y, a, b, logOfA, logOfB, kernel, checkEvery);
+    double logLower(double x, double y, double kernel) {
+        return logTail(x, y, a, b, logOfA, logOfB, kernel);
     }
 
     /**
@@ -128,12 +128,12 @@ public final class IncompleteBeta {
         if (!(x > 0)) {
             return 0.0;
         }
-        return logUpper(x, y, logKernel(x, y), 1);
+        return logUpper(x, y, logKernel(x, y));
     }
 
-    /** {@code log(1 - I_x(a, b))}, otherwise as {@link #logLower(double, double, double, int)}. */
-    double logUpper(double x, double y, double kernel, int checkEvery) {
-        return logTail(y, x, b, a, logOfB, logOfA, kernel, checkEvery);
+    /** {@code log(1 - I_x(a, b))}, otherwise as {@link #logLower(double, double, double)}. */
+    double logUpper(double x, double y, double kernel) {
+        return logTail(y, x, b, a, logOfB, logOfA, kernel);
     }
 
     /**
@@ -141,12 +141,11 @@ public final class IncompleteBeta {
      * the same for both tails): the continued fraction where it converges fast, else the complement of the
      * other tail.
      */
-    private double logTail(double u, double v, double p, double q, double logP, double logQ, double kernel,
-                           int checkEvery) {
+    private double logTail(double u, double v, double p, double q, double logP, double logQ, double kernel) {
         if (u * (p + q + 2) < p + 1) {
-            return kernel - logP + StrictMath.log(continuedFraction(u, p, q, checkEvery));
+            return kernel - logP + StrictMath.log(continuedFraction(u, p, q));
         }
-        return LogMath.log1mExp(kernel - logQ + StrictMath.log(continuedFraction(v, q, p, checkEvery)));
+        return LogMath.log1mExp(kernel - logQ + StrictMath.log(continuedFraction(v, q, p)));
     }
 
     /**
@@ -212,11 +211,9 @@ public final class IncompleteBeta {
      * ran up to 3.5 times slower on the build machine, depending on how the JIT compiled it (measured side
      * by side on 200,000 random points near the centre of five-arm posteriors, and in src/docs/performance.md;
      * the likely cause, not checked, is that each conversion writes only part of its register and so waits
-     * for that register's previous value). The convergence test (renormalisation, then the convergent against
-     * the one of the last test) runs every {@code checkEvery} terms: 1 for engine version 1.2, whose bits
-     * this must keep; {@link CachedIncompleteBeta} explains the other value.
+     * for that register's previous value).
      */
-    private double continuedFraction(double x, double p, double q, int checkEvery) {
+    private double continuedFraction(double x, double p, double q) {
         double sum = p + q;
         double pPlus = p + 1;
         double pMinus = p - 1;
@@ -226,20 +223,18 @@ public final class IncompleteBeta {
         double denominator = 1 - sum * x / pPlus;
         double h = numerator / denominator;
         double m = 0;
-        for (int step = 0; step < maxIterations; step += checkEvery) {
-            for (int k = 0; k < checkEvery; k++) {
-                m += 1;
-                double m2 = m + m;
-                double pTwoM = p + m2;
-                double even = m * (q - m) * x / ((pMinus + m2) * pTwoM);
-                double odd = -(p + m) * (sum + m) * x / (pTwoM * (pPlus + m2));
-                double numeratorEven = numerator + even * numeratorPrev;
-                double denominatorEven = denominator + even * denominatorPrev;
-                numeratorPrev = numeratorEven;
-                denominatorPrev = denominatorEven;
-                numerator = numeratorEven + odd * numerator;
-                denominator = denominatorEven + odd * denominator;
-            }
+        for (int step = 1; step <= maxIterations; step++) {
+            m += 1;
+            double m2 = m + m;
+            double pTwoM = p + m2;
+            double even = m * (q - m) * x / ((pMinus + m2) * pTwoM);
+            double odd = -(p + m) * (sum + m) * x / (pTwoM * (pPlus + m2));
+            double numeratorEven = numerator + even * numeratorPrev;
+            double denominatorEven = denominator + even * denominatorPrev;
+            numeratorPrev = numeratorEven;
+            denominatorPrev = denominatorEven;
+            numerator = numeratorEven + odd * numerator;
+            denominator = denominatorEven + odd * denominator;
             double size = Math.abs(denominator);
             if (size > RESCALE || size < 1 / RESCALE) {
                 double r = 1 / size;
