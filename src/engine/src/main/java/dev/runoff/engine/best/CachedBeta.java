@@ -8,8 +8,8 @@ import org.apache.commons.rng.UniformRandomProvider;
 
 /**
  * A Beta posterior as seen by one exact integration of engine version 1.3: the same distribution, with
- * its log density and log tails inside {@code (0, 1)} from a {@link CachedIncompleteBeta} (tabulated
- * continued-fraction factors, one kernel per point for the density and the tail). Not thread-safe: made
+ * its log density and log tails inside {@code (0, 1)} from a {@link CachedIncompleteBeta} (Taylor steps
+ * between increasing points, one kernel per point for the density and the tail). Not thread-safe: made
  * afresh for each integration.
  */
 final class CachedBeta implements Posterior {
