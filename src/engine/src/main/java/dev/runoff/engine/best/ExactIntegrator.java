@@ -15,14 +15,15 @@ import java.util.List;
  *
  * <p>Design: composite Gauss-Legendre panels on one grid shared by all arms, so {@code log F_j} is computed
  * once per node and reused by every integral. The panel width at {@code x} is
- * {@code PANEL_FACTOR / sqrt(K(x))} where {@code K} adds the curvatures of the log factors that vary at x
- * (see {@link ExactArm#curvature}); with 10 points per panel the rule is exact for polynomials of degree
+ * {@code factor / sqrt(K(x))} where {@code K} adds the curvatures of the log factors that vary at x
+ * (see {@link ExactArm#curvature}) and the factor and the rule are those of {@link Panels} (engine version
+ * 1.2: 2.5 and 10 points; 1.3: 8 and 20); with 10 points per panel the rule is exact for polynomials of degree
  * 19, and its error on a Gaussian-like factor 2.5 local standard deviations wide is near double precision
  * (the Gauss error term, Davis and Rabinowitz 1984, "Methods of Numerical Integration", section 2.7).
  * Measured against the same integrals on panels six times narrower over 60 random configurations of 2 to
  * 20 Beta or Student-t arms: worst relative difference 2.5e-13, about 360 nodes per configuration.
  * {@code prod_{j != i}} is formed from prefix and suffix sums of the logs, never by subtracting
- * {@code log F_i} from the total.
+ * {@code log F_i} from the total. Engine version 1.3 adds node terms through {@link PrunedNodes}.
  */
 final class ExactIntegrator {
     private static final int MAX_PANELS = 200_000;
@@ -212,13 +213,15 @@ final class ExactIntegrator {
 
     /**
      * Right edge of the panel starting at {@code left}: the width {@code h} must satisfy
-     * {@code h <= PANEL_FACTOR / sqrt(K)} at both ends, halved until it does (geometric panels towards a
+     * {@code h <= factor / sqrt(K)} at both ends, halved until it does (geometric panels towards a
      * singular end of the support need one or two halvings; the far end is checked at {@code end} when
      * {@code left + h} rounds beyond it, since beyond every range the curvature is 0 and the check would
      * pass: a range ending at {@code -1e-30} was crossed from {@code -0.001} in one panel). A panel never
      * steps over an arm's centre,
      * where that arm's curvature peaks: the wide geometric panels of a heavy tail would otherwise jump over
-     * the whole body of the distribution.
+     * the whole body of the distribution. With {@link Panels} of engine version 1.3 a panel may step over the
+     * centre of a Beta arm whose range it starts in: below that centre the arm's curvature is at least
+     * {@code 1 / variance}, so the panel is at most {@code factor} of its standard deviations wide anyway.
      */
     private static double nextEdge(List<ExactArm> arms, double[] from, double[] to, boolean[] which,
                                    double left, double end, Panels panels) {
@@ -242,9 +245,9 @@ final class ExactIntegrator {
     }
 
     /**
-     * Panel width {@code PANEL_FACTOR / sqrt(K(x))}. Within about 1e-154 of a Beta support end with a
+     * Panel width {@code factor / sqrt(K(x))}. Within about 1e-154 of a Beta support end with a
      * non-integer shape the squared distance underflows and K is infinite; the width is then taken in the
-     * form {@code PANEL_FACTOR * d / sqrt(C)}, with {@code d} the distance to the nearest such end and
+     * form {@code factor * d / sqrt(C)}, with {@code d} the distance to the nearest such end and
      * {@code C} the sum of the end coefficients there ({@link ExactArm#endCoefficient}), the same geometric
      * panels that {@code K ~ C / d^2} gives further out. Before this, the panels shrank to a few ulps and
      * integration gave up (issue 14: prior shapes below about 0.15).
