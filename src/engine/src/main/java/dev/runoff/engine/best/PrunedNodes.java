@@ -11,9 +11,11 @@ import java.util.List;
  * <p>Design:
  * <ul>
  *   <li>Ended integrals. When every arm's density is log-concave (Beta with both shapes at least 1), so is
- *       each integrand {@code g_i = f_i prod_{j != i} F_j} (distribution functions of log-concave densities
- *       are log-concave, and so are products; Bagnoli and Bergstrom 2005, "Log-concave probability and its
- *       applications", Economic Theory 26, theorem 1 and section 2). Then {@code phi = log g_i} is concave, and
+ *       each integrand {@code g_i = f_i prod_{j != i} F_j}: products of log-concave functions are log-concave,
+ *       so are the distribution functions of log-concave densities, and Beta densities are log-concave when
+ *       both shapes are at least 1 (Wikipedia, "Logarithmically concave function", sections on operations
+ *       preserving log-concavity and on log-concave distributions; proved in Bagnoli and Bergstrom 2005,
+ *       "Log-concave probability and its applications", Economic Theory 26, from memory). Then {@code phi = log g_i} is concave, and
  *       once it decreases between two nodes {@code x' < x} its slope beyond {@code x} is at most the secant's
  *       {@code -s}, so {@code integral_x^infinity g_i <= g_i(x) / s}. When that bound is {@code e^-STOP}
  *       below the integral so far, integral i ends: its later nodes are not evaluated. An integral whose

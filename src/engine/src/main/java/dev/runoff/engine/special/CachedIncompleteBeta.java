@@ -31,6 +31,11 @@ public final class CachedIncompleteBeta {
     private static final double STEP_ZONE = 12;
     /** Steps at most from one value of the continued fraction to the next. */
     private static final int STEPS = 16;
+    /**
+     * Longest step as a share of the distance from the last point to the nearer end of the support, the
+     * radius of convergence of the density's series there (its singular points are 0 and 1).
+     */
+    private static final double RADIUS_SHARE = 0.25;
     private static final int MAX_TERMS = 60;
     private static final double TERM_TOLERANCE = 1e-17;
 
@@ -76,7 +81,7 @@ public final class CachedIncompleteBeta {
         double logLower;
         double h = x - lastX;
         if (steps && h > 0 && h <= STEP_LENGTH * spread && chained < STEPS
-                && Math.abs(x - mean) <= STEP_ZONE * spread) {
+                && Math.abs(x - mean) <= STEP_ZONE * spread && h <= RADIUS_SHARE * Math.min(lastX, 1 - lastX)) {
             logLower = stepped(lastX, h);
             chained++;
         } else {
@@ -95,9 +100,9 @@ public final class CachedIncompleteBeta {
      * {@code x (1 - x) f' = ((a - 1) - (a + b - 2) x) f}, so with {@code x = x0 + t} its coefficients
      * {@code f(x0 + t) = f(x0) sum_k c_k t^k} follow {@code c_0 = 1}, {@code c_-1 = 0},
      * {@code c_k+1 = ((C - B k) c_k + (D + k - 1) c_k-1) / (A (k + 1))} with {@code A = x0 (1 - x0)},
-     * {@code B = 1 - 2 x0}, {@code C = (a - 1) - (a + b - 2) x0}, {@code D = -(a + b - 2)} (equate powers of
-     * t; the method of Frobenius at an ordinary point, e.g. Boyce and DiPrima, "Elementary Differential
-     * Equations", section 5.2). Then {@code I_x = I_x0 (1 + (f(x0) / I_x0) h sum_k c_k h^k / (k + 1))}.
+     * {@code B = 1 - 2 x0}, {@code C = (a - 1) - (a + b - 2) x0}, {@code D = -(a + b - 2)} (equate the powers
+     * of t on both sides; a power series about an ordinary point of the equation, which converges up to the
+     * nearer singular point, 0 or 1: steps are at most {@value #RADIUS_SHARE} of that distance). Then {@code I_x = I_x0 (1 + (f(x0) / I_x0) h sum_k c_k h^k / (k + 1))}.
      */
     private double stepped(double x0, double h) {
         double a = beta.a();
