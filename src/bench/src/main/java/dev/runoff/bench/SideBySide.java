@@ -21,11 +21,11 @@ import java.util.List;
  * time, so the per-round ratio of CPU times is the figure to quote.
  *
  * <p>Usage: {@code java -cp src/bench/target/classes dev.runoff.bench.SideBySide CLASS METHOD CALLS ROUNDS
- * CLASSPATH_A CLASSPATH_B [FIELD=VALUE ...]}; {@code CALLS} calls of {@code METHOD} make one pass; each
- * class path must hold the bench class and everything it needs; {@code FIELD=VALUE} sets a public
- * {@code int} or {@code String} field (the JMH parameters) before {@code setUp()} runs. {@code METHOD} may
- * name two methods, {@code A_METHOD,B_METHOD}, to compare two methods of one bench (the same class path may
- * then be given twice).
+ * CLASSPATH_A CLASSPATH_B [FIELD=VALUE ...]}; {@code CALLS} calls of {@code METHOD} make one pass
+ * ({@code METHOD_A,METHOD_B} runs a different method on each side, say an earlier and a new estimator, with
+ * the same class path twice); each class path must hold the bench class and everything it needs;
+ * {@code FIELD=VALUE} sets a public {@code int} or {@code String} field (the JMH parameters) before
+ * {@code setUp()} runs.
  */
 public final class SideBySide {
     private static final int WARM_UP_ROUNDS = 2;
@@ -49,8 +49,8 @@ public final class SideBySide {
         int rounds = Integer.parseInt(args[3]);
         List<String> settings = Arrays.asList(args).subList(6, args.length);
         String[] methods = args[1].split(",", 2);
-        String methodB = methods.length == 2 ? methods[1] : methods[0];
-        Pass[] passes = {Pass.of(args[0], methods[0], args[4], settings), Pass.of(args[0], methodB, args[5], settings)};
+        Pass[] passes = {Pass.of(args[0], methods[0], args[4], settings),
+            Pass.of(args[0], methods[methods.length - 1], args[5], settings)};
         double[][] cpu = new double[2][rounds];
         ThreadMXBean threads = ManagementFactory.getThreadMXBean();
         for (int round = -WARM_UP_ROUNDS; round < rounds; round++) {

@@ -13,6 +13,9 @@ public interface ExactAlphas {
     /** The quadrature of {@link ExactProbabilityBest}: the integration of engine version 1.2. */
     ExactAlphas QUADRATURE = ExactProbabilityBest::selected;
 
+    /** The quadrature of {@link FastExactProbabilityBest}: the integration of engine version 1.3. */
+    ExactAlphas FAST_QUADRATURE = FastExactProbabilityBest::selected;
+
     /**
      * The alphas of the arms selected by {@code which}, 0 for the others.
      *

@@ -85,7 +85,27 @@ final class ExactArm {
         if (p instanceof BetaPosterior b) {
             return b;
         }
-        return p instanceof Reflected r && r.inner() instanceof BetaPosterior b ? b : null;
+        if (p instanceof CachedBeta c) {
+            return c.beta();
+        }
+        return p instanceof Reflected r ? unreflectedBeta(r.inner()) : null;
+    }
+
+    private static BetaPosterior unreflectedBeta(Posterior inner) {
+        if (inner instanceof BetaPosterior b) {
+            return b;
+        }
+        return inner instanceof CachedBeta c ? c.beta() : null;
+    }
+
+    /** Whether this arm is a Beta posterior (possibly reflected). */
+    boolean isBeta() {
+        return beta != null;
+    }
+
+    /** Whether the density is log-concave: a Beta posterior (possibly reflected) with both shapes at least 1. */
+    boolean logConcave() {
+        return beta != null && beta.a() >= 1 && beta.b() >= 1;
     }
 
     /** Whether the range was cut at {@link #upperCap}: some mass lies above it. */
@@ -112,6 +132,9 @@ final class ExactArm {
     private static double maxLogDensityOf(Posterior p) {
         if (p instanceof Reflected r) {
             return maxLogDensityOf(r.inner());
+        }
+        if (p instanceof CachedBeta c) {
+            return maxLogDensityOf(c.beta());
         }
         if (p instanceof StudentTPosterior t) {
             return t.logDensity(t.location());

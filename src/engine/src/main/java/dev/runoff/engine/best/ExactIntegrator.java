@@ -15,20 +15,17 @@ import java.util.List;
  *
  * <p>Design: composite Gauss-Legendre panels on one grid shared by all arms, so {@code log F_j} is computed
  * once per node and reused by every integral. The panel width at {@code x} is
- * {@code PANEL_FACTOR / sqrt(K(x))} where {@code K} adds the curvatures of the log factors that vary at x
- * (see {@link ExactArm#curvature}); with 10 points per panel the rule is exact for polynomials of degree
+ * {@code factor / sqrt(K(x))} where {@code K} adds the curvatures of the log factors that vary at x
+ * (see {@link ExactArm#curvature}) and the factor and the rule are those of {@link Panels} (engine version
+ * 1.2: 2.5 and 10 points; 1.3: 8 and 20); with 10 points per panel the rule is exact for polynomials of degree
  * 19, and its error on a Gaussian-like factor 2.5 local standard deviations wide is near double precision
  * (the Gauss error term, Davis and Rabinowitz 1984, "Methods of Numerical Integration", section 2.7).
  * Measured against the same integrals on panels six times narrower over 60 random configurations of 2 to
  * 20 Beta or Student-t arms: worst relative difference 2.5e-13, about 360 nodes per configuration.
  * {@code prod_{j != i}} is formed from prefix and suffix sums of the logs, never by subtracting
- * {@code log F_i} from the total.
+ * {@code log F_i} from the total. Engine version 1.3 adds node terms through {@link PrunedNodes}.
  */
 final class ExactIntegrator {
-    private static final int POINTS = 10;
-    private static final double PANEL_FACTOR = 2.5;
-    private static final GaussLegendre RULE = GaussLegendre.of(POINTS);
-    private static final double[] LOG_WEIGHTS = logWeights();
     private static final int MAX_PANELS = 200_000;
     private static final double NEGLIGIBLE = 50;
     private static final int MAX_HALVINGS = 60;
@@ -41,15 +38,37 @@ final class ExactIntegrator {
         SURVIVAL
     }
 
-    private ExactIntegrator() {
+    /**
+     * The panels of one engine version: a Gauss-Legendre rule, the panel factor, and whether a panel may
+     * step over the centre of a Beta arm whose range it starts in (see {@link #nextEdge}).
+     */
+    static final class Panels {
+        /** Engine version 1.2: 10 points, factor 2.5, no panel steps over a centre, every node evaluated. */
+        static final Panels ENGINE_1_2 = new Panels(10, 2.5, false, false);
+
+        private final GaussLegendre rule;
+        private final double[] logWeights;
+        private final double factor;
+        private final boolean overActiveBetaCentres;
+        private final boolean pruned;
+
+        /**
+         * @param pruned evaluate nodes with {@link PrunedNodes} when every arm is log-concave (ends integrals
+         *               whose remainder is negligible and stops computing saturated distribution functions)
+         */
+        Panels(int points, double factor, boolean overActiveBetaCentres, boolean pruned) {
+            this.rule = GaussLegendre.of(points);
+            this.logWeights = new double[points];
+            for (int k = 0; k < points; k++) {
+                logWeights[k] = StrictMath.log(rule.weight(k));
+            }
+            this.factor = factor;
+            this.overActiveBetaCentres = overActiveBetaCentres;
+            this.pruned = pruned;
+        }
     }
 
-    private static double[] logWeights() {
-        double[] w = new double[RULE.size()];
-        for (int k = 0; k < w.length; k++) {
-            w[k] = StrictMath.log(RULE.weight(k));
-        }
-        return w;
+    private ExactIntegrator() {
     }
 
     /**
@@ -62,7 +81,7 @@ final class ExactIntegrator {
      * @param which which integrals to compute (others are returned as 0)
      */
     static double[] integrate(List<ExactArm> arms, double[] from, double[] to, Own own, boolean[] which) {
-        return integrate(arms, from, to, own, which, true);
+        return integrate(arms, from, to, own, which, true, Panels.ENGINE_1_2);
     }
 
     /**
@@ -71,7 +90,7 @@ final class ExactIntegrator {
      * that part).
      */
     static double[] integrate(List<ExactArm> arms, double[] from, double[] to, Own own, boolean[] which,
-                              boolean close) {
+                              boolean close, Panels grid) {
         int n = arms.size();
         double start = Double.POSITIVE_INFINITY;
         double end = Double.NEGATIVE_INFINITY;
@@ -88,10 +107,13 @@ final class ExactIntegrator {
         Accumulator acc = new Accumulator(n);
         double[] logCdf = new double[n];
         double[] prefix = new double[n + 1];
+        PrunedNodes pruned = grid.pruned && own == Own.DENSITY && PrunedNodes.applies(arms) ? new PrunedNodes(which)
+                : null;
+        boolean[] live = pruned == null ? which : pruned.live();
         double left = start;
         int panels = 0;
-        while (left < end) {
-            double right = nextEdge(arms, from, to, which, left, end);
+        while (left < end && (pruned == null || pruned.anyLive())) {
+            double right = nextEdge(arms, from, to, live, left, end, grid);
             if (++panels > MAX_PANELS) {
                 throw new ArithmeticException("exact integration needs more than " + MAX_PANELS
                         + " panels on [" + start + ", " + end + "]");
@@ -99,9 +121,14 @@ final class ExactIntegrator {
             double half = 0.5 * (right - left);
             double mid = left + half;
             double logHalf = StrictMath.log(half);
-            for (int k = 0; k < POINTS; k++) {
-                double x = mid + half * RULE.node(k);
-                addNode(arms, from, to, own, which, x, logHalf + LOG_WEIGHTS[k], logCdf, prefix, acc);
+            for (int k = 0; k < grid.logWeights.length; k++) {
+                double x = mid + half * grid.rule.node(k);
+                double logWeight = logHalf + grid.logWeights[k];
+                if (pruned != null) {
+                    pruned.add(arms, from, to, x, logWeight, logCdf, prefix, acc);
+                } else {
+                    addNode(arms, from, to, own, which, x, logWeight, logCdf, prefix, acc);
+                }
             }
             left = right;
         }
@@ -186,25 +213,28 @@ final class ExactIntegrator {
 
     /**
      * Right edge of the panel starting at {@code left}: the width {@code h} must satisfy
-     * {@code h <= PANEL_FACTOR / sqrt(K)} at both ends, halved until it does (geometric panels towards a
+     * {@code h <= factor / sqrt(K)} at both ends, halved until it does (geometric panels towards a
      * singular end of the support need one or two halvings; the far end is checked at {@code end} when
      * {@code left + h} rounds beyond it, since beyond every range the curvature is 0 and the check would
      * pass: a range ending at {@code -1e-30} was crossed from {@code -0.001} in one panel). A panel never
      * steps over an arm's centre,
      * where that arm's curvature peaks: the wide geometric panels of a heavy tail would otherwise jump over
-     * the whole body of the distribution.
+     * the whole body of the distribution. With {@link Panels} of engine version 1.3 a panel may step over the
+     * centre of a Beta arm whose range it starts in: below that centre the arm's curvature is at least
+     * {@code 1 / variance}, so the panel is at most {@code factor} of its standard deviations wide anyway.
      */
     private static double nextEdge(List<ExactArm> arms, double[] from, double[] to, boolean[] which,
-                                   double left, double end) {
-        double h = Math.min(end - left, width(arms, from, to, which, left));
+                                   double left, double end, Panels panels) {
+        double h = Math.min(end - left, width(arms, from, to, which, left, panels.factor));
         for (ExactArm arm : arms) {
             double center = arm.center();
-            if (center > left && center < left + h) {
+            if (center > left && center < left + h && !(panels.overActiveBetaCentres && arm.isBeta()
+                    && arm.active(left))) {
                 h = center - left;
             }
         }
         for (int halving = 0; halving < MAX_HALVINGS; halving++) {
-            double limit = width(arms, from, to, which, Math.min(left + h, end));
+            double limit = width(arms, from, to, which, Math.min(left + h, end), panels.factor);
             if (h <= limit) {
                 break;
             }
@@ -215,17 +245,18 @@ final class ExactIntegrator {
     }
 
     /**
-     * Panel width {@code PANEL_FACTOR / sqrt(K(x))}. Within about 1e-154 of a Beta support end with a
+     * Panel width {@code factor / sqrt(K(x))}. Within about 1e-154 of a Beta support end with a
      * non-integer shape the squared distance underflows and K is infinite; the width is then taken in the
-     * form {@code PANEL_FACTOR * d / sqrt(C)}, with {@code d} the distance to the nearest such end and
+     * form {@code factor * d / sqrt(C)}, with {@code d} the distance to the nearest such end and
      * {@code C} the sum of the end coefficients there ({@link ExactArm#endCoefficient}), the same geometric
      * panels that {@code K ~ C / d^2} gives further out. Before this, the panels shrank to a few ulps and
      * integration gave up (issue 14: prior shapes below about 0.15).
      */
-    private static double width(List<ExactArm> arms, double[] from, double[] to, boolean[] which, double x) {
+    private static double width(List<ExactArm> arms, double[] from, double[] to, boolean[] which, double x,
+                                double factor) {
         double k = curvature(arms, from, to, which, x);
         if (!Double.isInfinite(k)) {
-            return PANEL_FACTOR / Math.sqrt(k);
+            return factor / Math.sqrt(k);
         }
         double distance = Double.POSITIVE_INFINITY;
         double coefficient = 0;
@@ -235,7 +266,7 @@ final class ExactIntegrator {
                 coefficient += arm.endCoefficient(x);
             }
         }
-        return PANEL_FACTOR * distance / Math.sqrt(Math.max(coefficient, 0.25));
+        return factor * distance / Math.sqrt(Math.max(coefficient, 0.25));
     }
 
     /** Sum of the curvatures of the log factors that vary at {@code x}. */
@@ -259,7 +290,7 @@ final class ExactIntegrator {
      * Per-arm log-sum-exp of weighted terms (weights included in the logs, since far in a heavy tail a
      * tiny integrand on a huge panel still counts), rescaled to a running maximum.
      */
-    private static final class Accumulator {
+    static final class Accumulator {
         private final double[] max;
         private final double[] sum;
 
@@ -282,6 +313,11 @@ final class ExactIntegrator {
                 sum[i] = sum[i] * StrictMath.exp(max[i] - logTerm) + 1;
                 max[i] = logTerm;
             }
+        }
+
+        /** The log of the sum so far ({@code -infinity} while it is empty). */
+        double logValue(int i) {
+            return sum[i] == 0 ? Double.NEGATIVE_INFINITY : max[i] + StrictMath.log(sum[i]);
         }
 
         double value(int i) {

@@ -1,7 +1,6 @@
 package dev.runoff.engine.best;
 
 import dev.runoff.engine.core.Checks;
-import dev.runoff.engine.posterior.BetaPosterior;
 import dev.runoff.engine.posterior.Posterior;
 import java.util.ArrayList;
 import java.util.Arrays;
@@ -60,7 +59,7 @@ public final class ExactProbabilityBest implements ProbabilityBestEstimator {
         checkPosteriors(posteriors);
         boolean[] all = new boolean[posteriors.size()];
         Arrays.fill(all, true);
-        double[] alpha = alphas(posteriors, -1, 0, all);
+        double[] alpha = alphas(posteriors, -1, 0, all, ExactScheme.ENGINE_1_2);
         return new ProbabilityBest(alpha, new double[alpha.length], ProbabilityBest.Method.EXACT, 0);
     }
 
@@ -70,7 +69,7 @@ public final class ExactProbabilityBest implements ProbabilityBestEstimator {
      */
     static double[] selected(List<? extends Posterior> posteriors, boolean[] which) {
         checkPosteriors(posteriors);
-        return alphas(posteriors, -1, 0, which.clone());
+        return alphas(posteriors, -1, 0, which.clone(), ExactScheme.ENGINE_1_2);
     }
 
     /**
@@ -92,25 +91,33 @@ public final class ExactProbabilityBest implements ProbabilityBestEstimator {
         }
         boolean[] only = new boolean[posteriors.size()];
         only[leader] = true;
-        return alphas(posteriors, leader, epsilon, only)[leader];
+        return alphas(posteriors, leader, epsilon, only, ExactScheme.ENGINE_1_2)[leader];
     }
 
-    /** The selected integrals, redone once with deeper tails if some alpha is too small for the first. */
-    private static double[] alphas(List<? extends Posterior> posteriors, int leader, double epsilon,
-                                   boolean[] which) {
+    /**
+     * The selected integrals, redone with deeper tails while some alpha is too small for the last pass; the
+     * scheme says which arms a deeper pass integrates again and how the posteriors are evaluated.
+     */
+    static double[] alphas(List<? extends Posterior> given, int leader, double epsilon, boolean[] which,
+                           ExactScheme scheme) {
+        List<? extends Posterior> posteriors = scheme.view(given);
         double logTail = LOG_TAIL;
         List<ExactArm> arms = arms(posteriors, leader, epsilon, logTail);
         double start = jointLower(arms, logTail);
-        double[] alpha = integrate(arms, start, which, posteriors, leader, epsilon, logTail);
+        double[] alpha = integrate(arms, start, which, posteriors, leader, epsilon, logTail, scheme);
+        boolean[] again = which;
         for (int pass = 1; pass < MAX_PASSES; pass++) {
-            double deeper = deeperTail(arms, start, alpha, which, logTail);
+            double deeper = deeperTail(arms, start, alpha, again, logTail);
             if (!(deeper < logTail)) {
                 break;
             }
+            double[] previous = alpha;
+            again = scheme.again(again, previous, logTail);
             logTail = deeper;
             arms = arms(posteriors, leader, epsilon, logTail);
             start = jointLower(arms, logTail);
-            alpha = integrate(arms, start, which, posteriors, leader, epsilon, logTail);
+            alpha = scheme.merge(previous, again,
+                    integrate(arms, start, again, posteriors, leader, epsilon, logTail, scheme));
         }
         for (int i = 0; i < alpha.length; i++) {
             alpha[i] = Math.min(1.0, alpha[i]);
@@ -123,13 +130,13 @@ public final class ExactProbabilityBest implements ProbabilityBestEstimator {
      * {@link #splitIntegrals}).
      */
     private static double[] integrate(List<ExactArm> arms, double start, boolean[] which, List<? extends Posterior>
-            posteriors, int leader, double epsilon, double logTail) {
+            posteriors, int leader, double epsilon, double logTail, ExactScheme scheme) {
         for (ExactArm arm : arms) {
             if (arm.capped()) {
-                return splitIntegrals(arms, start, which, posteriors, leader, epsilon, logTail);
+                return splitIntegrals(arms, start, which, posteriors, leader, epsilon, logTail, scheme);
             }
         }
-        return integrate(arms, start, which);
+        return integrate(arms, start, which, scheme);
     }
 
     /**
@@ -142,7 +149,7 @@ public final class ExactProbabilityBest implements ProbabilityBestEstimator {
      */
     private static double[] splitIntegrals(List<ExactArm> arms, double start, boolean[] which,
                                            List<? extends Posterior> posteriors, int leader, double epsilon,
-                                           double logTail) {
+                                           double logTail, ExactScheme scheme) {
         int n = arms.size();
         double[] from = new double[n];
         double[] to = new double[n];
@@ -150,31 +157,27 @@ public final class ExactProbabilityBest implements ProbabilityBestEstimator {
             from[i] = start;
             to[i] = Math.min(arms.get(i).upper(), SPLIT);
         }
-        double[] lower = ExactIntegrator.integrate(arms, from, to, ExactIntegrator.Own.DENSITY, which, false);
+        double[] lower = ExactIntegrator.integrate(arms, from, to, ExactIntegrator.Own.DENSITY, which, false,
+                scheme.panels());
         List<ExactArm> top = new ArrayList<>(n);
         for (int i = 0; i < n; i++) {
             double shift = leader == -1 || i == leader ? 0 : epsilon;
-            top.add(new ExactArm(new Reflected(mirror(posteriors.get(i))), shift, logTail));
+            top.add(new ExactArm(new Reflected(scheme.mirror(posteriors.get(i))), shift, logTail));
         }
         double topStart = Math.max(jointLower(top, logTail), SPLIT - 1);
         for (int i = 0; i < n; i++) {
             from[i] = topStart;
             to[i] = top.get(i).upper();
         }
-        double[] upper = ExactIntegrator.integrate(top, from, to, ExactIntegrator.Own.DENSITY, which);
+        double[] upper = ExactIntegrator.integrate(top, from, to, ExactIntegrator.Own.DENSITY, which, true,
+                scheme.panels());
         for (int i = 0; i < n; i++) {
             lower[i] += upper[i];
         }
         return lower;
     }
 
-    /** {@code Beta(b, a)}, the posterior of {@code 1 - theta}. */
-    private static BetaPosterior mirror(Posterior p) {
-        BetaPosterior beta = (BetaPosterior) p;
-        return new BetaPosterior(beta.b(), beta.a());
-    }
-
-    private static double[] integrate(List<ExactArm> arms, double start, boolean[] which) {
+    private static double[] integrate(List<ExactArm> arms, double start, boolean[] which, ExactScheme scheme) {
         int n = arms.size();
         double[] from = new double[n];
         double[] to = new double[n];
@@ -182,7 +185,7 @@ public final class ExactProbabilityBest implements ProbabilityBestEstimator {
             from[i] = start;
             to[i] = arms.get(i).upper();
         }
-        return ExactIntegrator.integrate(arms, from, to, ExactIntegrator.Own.DENSITY, which);
+        return ExactIntegrator.integrate(arms, from, to, ExactIntegrator.Own.DENSITY, which, true, scheme.panels());
     }
 
     /**
@@ -208,6 +211,14 @@ public final class ExactProbabilityBest implements ProbabilityBestEstimator {
             return logTail;
         }
         return Math.max(needed, DEEPEST_LOG_TAIL);
+    }
+
+    /**
+     * Whether an alpha from a pass with tails at {@code logTail} fails the check of {@link #deeperTail} (is
+     * not {@code e^MARGIN} times its truncation bound {@code 2 e^logTail}).
+     */
+    static boolean tooSmall(double alpha, double logTail) {
+        return !(alpha > 0) || StrictMath.log(alpha) - MARGIN < logTail - StrictMath.log(2);
     }
 
     /**

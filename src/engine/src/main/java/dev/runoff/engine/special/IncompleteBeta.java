@@ -103,7 +103,15 @@ public final class IncompleteBeta {
         if (!(y > 0)) {
             return 0.0;
         }
-        return logTail(x, y, a, b, logOfA, logOfB, logKernel(x, y));
+        return logLower(x, y, logKernel(x, y));
+    }
+
+    /**
+     * {@code log I_x(a, b)} for {@code 0 < x < 1}, {@code y = 1 - x}, given the kernel {@link #logKernel} at
+     * {@code (x, y)} (for a caller that has it already).
+     */
+    double logLower(double x, double y, double kernel) {
+        return logTail(x, y, a, b, logOfA, logOfB, kernel);
     }
 
     /**
@@ -120,7 +128,12 @@ public final class IncompleteBeta {
         if (!(x > 0)) {
             return 0.0;
         }
-        return logTail(y, x, b, a, logOfB, logOfA, logKernel(x, y));
+        return logUpper(x, y, logKernel(x, y));
+    }
+
+    /** {@code log(1 - I_x(a, b))}, otherwise as {@link #logLower(double, double, double)}. */
+    double logUpper(double x, double y, double kernel) {
+        return logTail(y, x, b, a, logOfB, logOfA, kernel);
     }
 
     /**
@@ -179,7 +192,7 @@ public final class IncompleteBeta {
      * {@code log v} where {@code v + w = 1}: the smaller of the two is taken as the accurate one, so the log
      * of the larger is {@code log1p(-smaller)} (a rounded {@code 1 - x} would cost {@code b * 1e-16}).
      */
-    private static double logOf(double v, double w) {
+    static double logOf(double v, double w) {
         return v <= w ? StrictMath.log(v) : StrictMath.log1p(-w);
     }
 

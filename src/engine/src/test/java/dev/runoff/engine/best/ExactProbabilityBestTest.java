@@ -16,31 +16,46 @@ import java.util.List;
 import java.util.SplittableRandom;
 import org.apache.commons.math3.distribution.NormalDistribution;
 import org.apache.commons.math3.fraction.BigFraction;
+import java.util.stream.Stream;
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.params.ParameterizedTest;
+import org.junit.jupiter.params.provider.MethodSource;
 
+/**
+ * The exact estimators against outside references: the cases that take an estimator run for engine version
+ * 1.2's {@link ExactProbabilityBest} and 1.3's {@link FastExactProbabilityBest} alike, with the same
+ * tolerances.
+ */
 class ExactProbabilityBestTest {
 
     private final ExactProbabilityBest exact = new ExactProbabilityBest();
 
-    private double[] alphas(Posterior... posteriors) {
-        return exact.estimate(List.of(posteriors), 0).alpha();
+    /** The estimators the shared cases run for. */
+    static Stream<ProbabilityBestEstimator> estimators() {
+        return Stream.of(new ExactProbabilityBest(), new FastExactProbabilityBest());
     }
 
-    @Test
-    void reproducesThePublishedWorkedValues() {
+    private static double[] alphas(ProbabilityBestEstimator estimator, Posterior... posteriors) {
+        return estimator.estimate(List.of(posteriors), 0).alpha();
+    }
+
+    @ParameterizedTest
+    @MethodSource("estimators")
+    void reproducesThePublishedWorkedValues(ProbabilityBestEstimator exact) {
         // Cook's recursion (MD Anderson technical report) and Miller (2015), "Formulas for Bayesian A/B
         // Testing": P(Beta(6,6) > Beta(4,8)) = 521/646, P(Beta(4,5) > Beta(2,3)) = 19/33,
         // P(Beta(2,1) > Beta(1,1)) = 2/3. The test implementation of Miller's sum must give them exactly.
         assertEquals(new BigFraction(521, 646), MillerFormula.probabilityBBeatsA(4, 8, 6, 6));
         assertEquals(new BigFraction(19, 33), MillerFormula.probabilityBBeatsA(2, 3, 4, 5));
         assertEquals(new BigFraction(2, 3), MillerFormula.probabilityBBeatsA(1, 1, 2, 1));
-        assertEquals(521.0 / 646, alphas(new BetaPosterior(6, 6), new BetaPosterior(4, 8))[0], 1e-14);
-        assertEquals(19.0 / 33, alphas(new BetaPosterior(4, 5), new BetaPosterior(2, 3))[0], 1e-14);
-        assertEquals(2.0 / 3, alphas(new BetaPosterior(2, 1), new BetaPosterior(1, 1))[0], 1e-14);
+        assertEquals(521.0 / 646, alphas(exact, new BetaPosterior(6, 6), new BetaPosterior(4, 8))[0], 1e-14);
+        assertEquals(19.0 / 33, alphas(exact, new BetaPosterior(4, 5), new BetaPosterior(2, 3))[0], 1e-14);
+        assertEquals(2.0 / 3, alphas(exact, new BetaPosterior(2, 1), new BetaPosterior(1, 1))[0], 1e-14);
     }
 
-    @Test
-    void matchesMillersClosedFormOverAGridOfIntegerParameters() {
+    @ParameterizedTest
+    @MethodSource("estimators")
+    void matchesMillersClosedFormOverAGridOfIntegerParameters(ProbabilityBestEstimator exact) {
         // Reference: Miller (2015) closed form in exact rational arithmetic; both alphas computed directly.
         int[] values = {1, 2, 5, 13, 40};
         double worst = 0;
@@ -48,7 +63,7 @@ class ExactProbabilityBestTest {
             for (int bA : values) {
                 for (int aB : values) {
                     for (int bB : values) {
-                        double[] alpha = alphas(new BetaPosterior(aA, bA), new BetaPosterior(aB, bB));
+                        double[] alpha = alphas(exact, new BetaPosterior(aA, bA), new BetaPosterior(aB, bB));
                         double bWins = MillerFormula.probabilityBBeatsA(aA, bA, aB, bB).doubleValue();
                         double aWins = MillerFormula.probabilityBBeatsA(aB, bB, aA, bA).doubleValue();
                         String what = "A=Beta(" + aA + "," + bA + ") B=Beta(" + aB + "," + bB + ")";
@@ -63,39 +78,42 @@ class ExactProbabilityBestTest {
         assertTrue(worst < 1e-11, "worst relative error " + worst);
     }
 
-    @Test
-    void tinyAlphasAroundOneInATrillionKeepRelativeAccuracy() {
+    @ParameterizedTest
+    @MethodSource("estimators")
+    void tinyAlphasAroundOneInATrillionKeepRelativeAccuracy(ProbabilityBestEstimator exact) {
         // Reference: Miller (2015) closed form, exact. P(B > A) is 1e-11..1e-12 in the first four cases and
         // 2e-16 and 3e-19 in the last two (these need the deeper second pass).
         int[][] cases = {{200, 800, 95, 905}, {200, 800, 90, 910}, {30, 10, 2, 38}, {500, 500, 350, 650},
             {60, 940, 3, 997}, {60, 940, 1, 999}};
         for (int[] c : cases) {
-            double[] alpha = alphas(new BetaPosterior(c[0], c[1]), new BetaPosterior(c[2], c[3]));
+            double[] alpha = alphas(exact, new BetaPosterior(c[0], c[1]), new BetaPosterior(c[2], c[3]));
             double expected = MillerFormula.probabilityBBeatsA(c[0], c[1], c[2], c[3]).doubleValue();
             assertTrue(expected < 1e-10 && expected > 1e-20, "case not tiny enough: " + expected);
             assertEquals(expected, alpha[1], 1e-12 * expected, Arrays.toString(c));
         }
     }
 
-    @Test
-    void tinyAlphasDownToOneInTenToTheThreeHundredKeepRelativeAccuracy() {
+    @ParameterizedTest
+    @MethodSource("estimators")
+    void tinyAlphasDownToOneInTenToTheThreeHundredKeepRelativeAccuracy(ProbabilityBestEstimator exact) {
         // Issue 14, bug 3. Reference: Miller (2015) closed form in exact rational arithmetic, converted with
         // BigDecimal (BigFraction.doubleValue gives 0 below about 1e-308 of its operands' range). P(B > A)
         // for A = Beta(501, 501): 1.795e-188 for B = Beta(1, 1001), 2.294e-65 for B = Beta(151, 851) (these
         // came out 0 and 23% low with a single unchecked retry), and about 1e-95 .. 1e-299 for the others.
         int[][] cases = {{1, 1001}, {151, 851}, {1, 400}, {1, 700}, {1, 1500}, {1, 1900}, {3, 1700}, {40, 3000}};
         for (int[] c : cases) {
-            double[] alpha = alphas(new BetaPosterior(501, 501), new BetaPosterior(c[0], c[1]));
+            double[] alpha = alphas(exact, new BetaPosterior(501, 501), new BetaPosterior(c[0], c[1]));
             double expected = toDouble(MillerFormula.probabilityBBeatsA(501, 501, c[0], c[1]));
             assertTrue(expected >= 1e-300 && expected < 1e-60, "case not tiny enough: " + expected);
             assertEquals(expected, alpha[1], 1e-9 * expected, Arrays.toString(c));
         }
-        assertEquals(1.79479216788302e-188, alphas(new BetaPosterior(501, 501), new BetaPosterior(1, 1001))[1],
+        assertEquals(1.79479216788302e-188, alphas(exact, new BetaPosterior(501, 501), new BetaPosterior(1, 1001))[1],
                 1e-9 * 1.79479216788302e-188);
     }
 
-    @Test
-    void tinyStudentTAlphasKeepRelativeAccuracy() {
+    @ParameterizedTest
+    @MethodSource("estimators")
+    void tinyStudentTAlphasKeepRelativeAccuracy(ProbabilityBestEstimator exact) {
         // Issue 14, bug 3, Student-t posteriors. Reference: mpmath 1.3.0 at 40 digits,
         // P(T1 > T2) = sum of quad(f2(x) * S1(x)) over 800 equal pieces of [l1 - 200 s1, l2 + 200 s2] and the two
         // infinite tails (1,600 pieces at 50 digits for the fourth case, whose coarser runs disagreed in the
@@ -113,13 +131,14 @@ class ExactProbabilityBestTest {
             {0, 1, 5000, 48, 1, 5000, 2.3986052700689534476e-239},
             {0, 1, 20000, 52, 1, 20000, 2.1205825760295168517e-291}};
         for (double[] c : cases) {
-            double alpha = alphas(new StudentTPosterior(c[0], c[1], c[2]), new StudentTPosterior(c[3], c[4], c[5]))[0];
+            double alpha = alphas(exact, new StudentTPosterior(c[0], c[1], c[2]), new StudentTPosterior(c[3], c[4], c[5]))[0];
             assertEquals(c[6], alpha, 1e-9 * c[6], Arrays.toString(c));
         }
     }
 
-    @Test
-    void smallPriorShapesIntegrateAtBothSingularEnds() {
+    @ParameterizedTest
+    @MethodSource("estimators")
+    void smallPriorShapesIntegrateAtBothSingularEnds(ProbabilityBestEstimator exact) {
         // Issue 14, bugs 1 and 2. Prior (0.1, 0.1): arms 0/10 and 0/20 give Beta(0.1, 10.1) and
         // Beta(0.1, 20.1), singular at 0 (integration used to give up); arms 10/10 and 20/20 give
         // Beta(10.1, 0.1) and Beta(20.1, 0.1), singular at 1 (1.2% of the mass was lost); shapes down to 0.03
@@ -130,14 +149,14 @@ class ExactProbabilityBestTest {
         // removes the singularity: quad((1 - t^10)^9.1 * (1 - betainc(0.1, 20.1, 0, t^10, regularized=True))
         // / (0.1 * beta(0.1, 10.1)), [0, 0.5, 0.8, 1]) = 0.468744116060519091543710114562.
         double reference = 0.468744116060519091543710114562;
-        double[] atZero = alphas(new BetaPosterior(0.1, 10.1), new BetaPosterior(0.1, 20.1));
-        double[] atOne = alphas(new BetaPosterior(10.1, 0.1), new BetaPosterior(20.1, 0.1));
+        double[] atZero = alphas(exact, new BetaPosterior(0.1, 10.1), new BetaPosterior(0.1, 20.1));
+        double[] atOne = alphas(exact, new BetaPosterior(10.1, 0.1), new BetaPosterior(20.1, 0.1));
         assertEquals(1 - reference, atZero[0], 1e-12);
         assertEquals(reference, atZero[1], 1e-12);
         assertEquals(reference, atOne[0], 1e-12);
         assertEquals(1 - reference, atOne[1], 1e-12);
         for (double shape : new double[] {0.03, 0.05, 0.1, 0.15, 0.2}) {
-            double sum = Arrays.stream(alphas(new BetaPosterior(shape, 10 + shape), new BetaPosterior(shape,
+            double sum = Arrays.stream(alphas(exact, new BetaPosterior(shape, 10 + shape), new BetaPosterior(shape,
                     20 + shape), new BetaPosterior(5 + shape, shape))).sum();
             assertEquals(1.0, sum, 1e-10, "shape " + shape);
         }
@@ -149,8 +168,9 @@ class ExactProbabilityBestTest {
                 .doubleValue();
     }
 
-    @Test
-    void matchesCommonsMathIntegrationForThreeToSixArms() {
+    @ParameterizedTest
+    @MethodSource("estimators")
+    void matchesCommonsMathIntegrationForThreeToSixArms(ProbabilityBestEstimator exact) {
         // Reference: independent quadrature with Commons Math (CommonsMathReference).
         List<List<Posterior>> cases = List.of(
                 List.of(new BetaPosterior(1, 1), new BetaPosterior(2, 1), new BetaPosterior(1, 3)),
@@ -174,8 +194,9 @@ class ExactProbabilityBestTest {
         }
     }
 
-    @Test
-    void alphasSumToOneOverManyRandomConfigurations() {
+    @ParameterizedTest
+    @MethodSource("estimators")
+    void alphasSumToOneOverManyRandomConfigurations(ProbabilityBestEstimator exact) {
         // Not normalised by the code: the sum is a check of the integration (common practice).
         SplittableRandom random = new SplittableRandom(20260101L);
         for (int config = 0; config < 120; config++) {
@@ -190,8 +211,9 @@ class ExactProbabilityBestTest {
         }
     }
 
-    @Test
-    void fiftyArmsOfEitherFamilySumToOne() {
+    @ParameterizedTest
+    @MethodSource("estimators")
+    void fiftyArmsOfEitherFamilySumToOne(ProbabilityBestEstimator exact) {
         SplittableRandom random = new SplittableRandom(50L);
         for (boolean beta : new boolean[] {true, false}) {
             List<Posterior> ps = randomConfiguration(random, 50, beta);
@@ -219,8 +241,9 @@ class ExactProbabilityBestTest {
         return ps;
     }
 
-    @Test
-    void identicalArmsShareTheProbabilityEqually() {
+    @ParameterizedTest
+    @MethodSource("estimators")
+    void identicalArmsShareTheProbabilityEqually(ProbabilityBestEstimator exact) {
         // By symmetry each of n exchangeable arms is best with probability 1/n.
         Posterior p = new BetaPosterior(30, 70);
         double[] alpha = exact.estimate(List.of(p, p, p, p, p, p, p), 0).alpha();
@@ -235,23 +258,25 @@ class ExactProbabilityBestTest {
         assertArrayEquals(new double[] {0.5, 0.5}, exact.estimate(List.of(t, t), 0).alpha(), 1e-12);
     }
 
-    @Test
-    void armsAgainstUniformsGiveTheMomentsOfTheBeta() {
+    @ParameterizedTest
+    @MethodSource("estimators")
+    void armsAgainstUniformsGiveTheMomentsOfTheBeta(ProbabilityBestEstimator exact) {
         // With k independent uniforms U_j (F(x) = x), P(X > max_j U_j) = E[X^k]; for X ~ Beta(a, b),
         // E[X^k] = prod_{r<k} (a + r) / (a + b + r) (moments of the Beta distribution; elementary).
-        assertEquals(0.5, alphas(new BetaPosterior(0.5, 0.5), new BetaPosterior(1, 1))[0], 1e-11);
-        assertEquals(2.5 * 3.5 / (6.5 * 7.5), alphas(new BetaPosterior(2.5, 4), new BetaPosterior(1, 1),
+        assertEquals(0.5, alphas(exact, new BetaPosterior(0.5, 0.5), new BetaPosterior(1, 1))[0], 1e-11);
+        assertEquals(2.5 * 3.5 / (6.5 * 7.5), alphas(exact, new BetaPosterior(2.5, 4), new BetaPosterior(1, 1),
                 new BetaPosterior(1, 1))[0], 1e-13);
         // b < 1: the density is singular at 1, where doubles are coarse; accuracy drops to about 1e-10.
-        assertEquals(0.5 * 1.5 / (0.8 * 1.8), alphas(new BetaPosterior(0.5, 0.3), new BetaPosterior(1, 1),
+        assertEquals(0.5 * 1.5 / (0.8 * 1.8), alphas(exact, new BetaPosterior(0.5, 0.3), new BetaPosterior(1, 1),
                 new BetaPosterior(1, 1))[0], 1e-9);
     }
 
-    @Test
-    void nearNormalArmsMatchTheNormalDifference() {
+    @ParameterizedTest
+    @MethodSource("estimators")
+    void nearNormalArmsMatchTheNormalDifference(ProbabilityBestEstimator exact) {
         // For independent normals, P(X > Y) = Phi((mx - my) / sqrt(sx^2 + sy^2)); Student-t with 1e7 degrees
         // of freedom differs from the normal by O(1/nu) (reference: Commons Math NormalDistribution).
-        double[] alpha = alphas(new StudentTPosterior(1.0, 0.3, 1e7), new StudentTPosterior(0.2, 0.4, 1e7));
+        double[] alpha = alphas(exact, new StudentTPosterior(1.0, 0.3, 1e7), new StudentTPosterior(0.2, 0.4, 1e7));
         double expected = new NormalDistribution(null, 0, 1).cumulativeProbability(0.8 / 0.5);
         assertEquals(expected, alpha[0], 1e-6);
     }
