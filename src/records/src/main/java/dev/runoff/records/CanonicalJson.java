@@ -114,36 +114,13 @@ public final class CanonicalJson {
         }
     }
 
-    /**
-     * Where a value sits in the record (a field of a parent, or an item of a list), turned into the dotted path
-     * of the error messages ({@link Problems#path}, {@code [i]} for items) only when a value cannot be written.
-     */
-    private record Where(Where parent, String field, int item) {
-
-        static Where field(Where parent, String name) {
-            return new Where(parent, name, -1);
-        }
-
-        static Where item(Where list, int index) {
-            return new Where(list, null, index);
-        }
-
-        static String path(Where where) {
-            if (where == null) {
-                return "";
-            }
-            String parent = path(where.parent);
-            return where.field != null ? Problems.path(parent, where.field) : parent + "[" + where.item + "]";
-        }
-    }
-
     /** Writes one text; remembers the last double written, since adjacent fields often hold the same one. */
     private static final class Writer {
         private final StringBuilder out = new StringBuilder(1024);
         private long lastBits = Double.doubleToRawLongBits(0.0);
         private String lastNumber = "0";
 
-        void record(IndexedRecord record, Schema schema, Where where, Set<String> excluded) {
+        void record(IndexedRecord record, Schema schema, FieldPath where, Set<String> excluded) {
             out.append('{');
             boolean first = true;
             for (Key key : KEYS.computeIfAbsent(schema, Key::of)) {
@@ -157,15 +134,16 @@ public final class CanonicalJson {
                 }
                 first = false;
                 out.append(key.text());
-                value(value, field.schema(), Where.field(where, field.name()));
+                value(value, field.schema(), FieldPath.field(where, field.name()));
             }
             out.append('}');
         }
 
-        private void value(Object value, Schema schema, Where where) {
+        private void value(Object value, Schema schema, FieldPath where) {
             if (value == null) {
                 if (!schema.isNullable()) {
-                    throw new IllegalArgumentException(Where.path(where) + ": null in a field that is not nullable");
+                    throw new IllegalArgumentException(FieldPath.text(where)
+                            + ": null in a field that is not nullable");
                 }
                 out.append("null");
                 return;
@@ -181,22 +159,23 @@ public final class CanonicalJson {
             }
         }
 
-        private void array(List<?> items, Schema itemSchema, Where where) {
+        private void array(List<?> items, Schema itemSchema, FieldPath where) {
             out.append('[');
             for (int i = 0; i < items.size(); i++) {
                 if (i > 0) {
                     out.append(',');
                 }
-                value(items.get(i), itemSchema, Where.item(where, i));
+                value(items.get(i), itemSchema, FieldPath.item(where, i));
             }
             out.append(']');
         }
 
-        private String number(double value, Where where) {
+        private String number(double value, FieldPath where) {
             long bits = Double.doubleToRawLongBits(value);
             if (bits != lastBits) {
                 if (!Double.isFinite(value)) {
-                    throw new IllegalArgumentException(Where.path(where) + ": " + value + " cannot be written in JSON");
+                    throw new IllegalArgumentException(FieldPath.text(where) + ": " + value
+                            + " cannot be written in JSON");
                 }
                 lastNumber = CanonicalJson.number("number", value);
                 lastBits = bits;
@@ -209,7 +188,7 @@ public final class CanonicalJson {
      * Appends {@code text} as a JSON string; {@code where} names it in the error about an unpaired surrogate.
      * Text with nothing to escape (the usual case) is appended as it is.
      */
-    private static void string(String text, Where where, StringBuilder out) {
+    private static void string(String text, FieldPath where, StringBuilder out) {
         out.append('"');
         if (plain(text)) {
             out.append(text);
@@ -230,7 +209,7 @@ public final class CanonicalJson {
         return true;
     }
 
-    private static void escaped(String text, Where where, StringBuilder out) {
+    private static void escaped(String text, FieldPath where, StringBuilder out) {
         for (int i = 0; i < text.length(); i++) {
             char c = text.charAt(i);
             switch (c) {
@@ -245,7 +224,7 @@ public final class CanonicalJson {
                     if (c < 0x20) {
                         out.append(String.format("\\u%04x", (int) c));
                     } else if (Character.isSurrogate(c) && !pairedAt(text, i)) {
-                        throw new IllegalArgumentException(Where.path(where) + ": unpaired surrogate at index " + i
+                        throw new IllegalArgumentException(FieldPath.text(where) + ": unpaired surrogate at index " + i
                                 + " cannot be written as UTF-8");
                     } else {
                         out.append(c);
