@@ -55,8 +55,10 @@ public final class CanonicalJson {
     private static final int PLAIN_UPPER_EXPONENT = 21;
     private static final int PLAIN_LOWER_EXPONENT = -6;
     private static final SpecificData DATA = SpecificData.get();
-    /** Sorted fields per record schema; schemas are few (one per record type and version). */
-    private static final Map<Schema, List<Schema.Field>> SORTED_FIELDS = new ConcurrentHashMap<>();
+    /** The keys of each record schema in canonical order; schemas are few (one per record type and version). */
+    private static final Map<Schema, List<Key>> KEYS = new ConcurrentHashMap<>();
+    /** Doubles with an integer value below this are written as that integer (see {@link #number(String, double)}). */
+    private static final double EXACT_INTEGERS = 0x1p53;
 
     private CanonicalJson() {
     }
@@ -88,68 +90,126 @@ public final class CanonicalJson {
      * @throws IllegalArgumentException as {@link #of(IndexedRecord)}
      */
     public static String without(IndexedRecord record, Set<String> excluded) {
-        StringBuilder out = new StringBuilder(256);
-        writeRecord(record, record.getSchema(), "", excluded, out);
-        return out.toString();
+        Writer writer = new Writer();
+        writer.record(record, record.getSchema(), null, excluded);
+        return writer.out.toString();
     }
 
-    private static void writeRecord(IndexedRecord record, Schema schema, String path, Set<String> excluded,
-                                    StringBuilder out) {
-        out.append('{');
-        boolean first = true;
-        for (Schema.Field field : SORTED_FIELDS.computeIfAbsent(schema, CanonicalJson::sortedFields)) {
-            if (excluded.contains(field.name())
-                    || record.get(field.pos()) == null && WHEN_SET.equals(field.getProp(CANONICAL_PROPERTY))) {
-                continue;
-            }
-            if (!first) {
-                out.append(',');
-            }
-            first = false;
-            string(field.name(), path, out);
-            out.append(':');
-            write(record.get(field.pos()), field.schema(), Problems.path(path, field.name()), out);
+    /**
+     * One field of a record schema as it is written: the field, its key already quoted and followed by the
+     * colon, and whether the compatibility rule leaves it out when null.
+     */
+    private record Key(Schema.Field field, String text, boolean whenSet) {
+
+        /** The record's keys in key order (by name); the same for every record of a schema, so computed once. */
+        static List<Key> of(Schema schema) {
+            return schema.getFields().stream().sorted(Comparator.comparing(Schema.Field::name))
+                    .map(Key::of).toList();
         }
-        out.append('}');
-    }
 
-    /** The record's fields in key order (by name); the same for every record of a schema, so computed once. */
-    private static List<Schema.Field> sortedFields(Schema schema) {
-        return schema.getFields().stream().sorted(Comparator.comparing(Schema.Field::name)).toList();
-    }
-
-    private static void write(Object value, Schema schema, String path, StringBuilder out) {
-        if (value == null) {
-            if (!schema.isNullable()) {
-                throw new IllegalArgumentException(path + ": null in a field that is not nullable");
-            }
-            out.append("null");
-            return;
-        }
-        switch (schema.getType()) {
-            case UNION -> write(value, schema.getTypes().get(DATA.resolveUnion(schema, value)), path, out);
-            case RECORD -> writeRecord((IndexedRecord) value, schema, path, Set.of(), out);
-            case ARRAY -> writeArray((List<?>) value, schema.getElementType(), path, out);
-            case ENUM, STRING -> string(value.toString(), path, out);
-            case LONG, INT, BOOLEAN -> out.append(value);
-            case DOUBLE -> out.append(number(path, (Double) value));
-            default -> throw new IllegalStateException("schema type " + schema.getType() + " is not supported");
+        private static Key of(Schema.Field field) {
+            StringBuilder text = new StringBuilder();
+            string(field.name(), null, text);
+            return new Key(field, text.append(':').toString(), WHEN_SET.equals(field.getProp(CANONICAL_PROPERTY)));
         }
     }
 
-    private static void writeArray(List<?> items, Schema itemSchema, String path, StringBuilder out) {
-        out.append('[');
-        for (int i = 0; i < items.size(); i++) {
-            if (i > 0) {
-                out.append(',');
+    /** Writes one text; remembers the last double written, since adjacent fields often hold the same one. */
+    private static final class Writer {
+        private final StringBuilder out = new StringBuilder(1024);
+        private long lastBits = Double.doubleToRawLongBits(0.0);
+        private String lastNumber = "0";
+
+        void record(IndexedRecord record, Schema schema, FieldPath where, Set<String> excluded) {
+            out.append('{');
+            boolean first = true;
+            for (Key key : KEYS.computeIfAbsent(schema, Key::of)) {
+                Schema.Field field = key.field();
+                Object value = record.get(field.pos());
+                if (value == null && key.whenSet() || !excluded.isEmpty() && excluded.contains(field.name())) {
+                    continue;
+                }
+                if (!first) {
+                    out.append(',');
+                }
+                first = false;
+                out.append(key.text());
+                value(value, field.schema(), FieldPath.field(where, field.name()));
             }
-            write(items.get(i), itemSchema, path + "[" + i + "]", out);
+            out.append('}');
         }
-        out.append(']');
+
+        private void value(Object value, Schema schema, FieldPath where) {
+            if (value == null) {
+                if (!schema.isNullable()) {
+                    throw new IllegalArgumentException(FieldPath.text(where)
+                            + ": null in a field that is not nullable");
+                }
+                out.append("null");
+                return;
+            }
+            switch (schema.getType()) {
+                case UNION -> value(value, schema.getTypes().get(DATA.resolveUnion(schema, value)), where);
+                case RECORD -> record((IndexedRecord) value, schema, where, Set.of());
+                case ARRAY -> array((List<?>) value, schema.getElementType(), where);
+                case ENUM, STRING -> string(value.toString(), where, out);
+                case LONG, INT, BOOLEAN -> out.append(value);
+                case DOUBLE -> out.append(number((Double) value, where));
+                default -> throw new IllegalStateException("schema type " + schema.getType() + " is not supported");
+            }
+        }
+
+        private void array(List<?> items, Schema itemSchema, FieldPath where) {
+            out.append('[');
+            for (int i = 0; i < items.size(); i++) {
+                if (i > 0) {
+                    out.append(',');
+                }
+                value(items.get(i), itemSchema, FieldPath.item(where, i));
+            }
+            out.append(']');
+        }
+
+        private String number(double value, FieldPath where) {
+            long bits = Double.doubleToRawLongBits(value);
+            if (bits != lastBits) {
+                if (!Double.isFinite(value)) {
+                    throw new IllegalArgumentException(FieldPath.text(where) + ": " + value
+                            + " cannot be written in JSON");
+                }
+                lastNumber = CanonicalJson.number("number", value);
+                lastBits = bits;
+            }
+            return lastNumber;
+        }
     }
 
-    private static void string(String text, String path, StringBuilder out) {
+    /**
+     * Appends {@code text} as a JSON string; {@code where} names it in the error about an unpaired surrogate.
+     * Text with nothing to escape (the usual case) is appended as it is.
+     */
+    private static void string(String text, FieldPath where, StringBuilder out) {
         out.append('"');
+        if (plain(text)) {
+            out.append(text);
+        } else {
+            escaped(text, where, out);
+        }
+        out.append('"');
+    }
+
+    /** True when no character of {@code text} is escaped or checked: none below U+0020, quote, backslash, surrogate. */
+    private static boolean plain(String text) {
+        for (int i = 0; i < text.length(); i++) {
+            char c = text.charAt(i);
+            if (c < 0x20 || c == '"' || c == '\\' || Character.isSurrogate(c)) {
+                return false;
+            }
+        }
+        return true;
+    }
+
+    private static void escaped(String text, FieldPath where, StringBuilder out) {
         for (int i = 0; i < text.length(); i++) {
             char c = text.charAt(i);
             switch (c) {
@@ -164,7 +224,7 @@ public final class CanonicalJson {
                     if (c < 0x20) {
                         out.append(String.format("\\u%04x", (int) c));
                     } else if (Character.isSurrogate(c) && !pairedAt(text, i)) {
-                        throw new IllegalArgumentException(path + ": unpaired surrogate at index " + i
+                        throw new IllegalArgumentException(FieldPath.text(where) + ": unpaired surrogate at index " + i
                                 + " cannot be written as UTF-8");
                     } else {
                         out.append(c);
@@ -172,7 +232,6 @@ public final class CanonicalJson {
                 }
             }
         }
-        out.append('"');
     }
 
     private static boolean pairedAt(String text, int i) {
@@ -193,6 +252,13 @@ public final class CanonicalJson {
         return number("number", value);
     }
 
+    /**
+     * Why an integer value below 2^53 is written as its digits: the reals that round to it lie within half a
+     * unit of it (its neighbours are at most 1 away), while a decimal with fewer significant digits than the
+     * integer's, once its trailing zeros are dropped, is a multiple of a power of ten that the integer is not,
+     * so at least 1 away; and of the decimals with as many digits the integer itself is the closest. Written in
+     * plain notation, since it is below 1e21.
+     */
     private static String number(String path, double value) {
         if (!Double.isFinite(value)) {
             throw new IllegalArgumentException(path + ": " + value + " cannot be written in JSON");
@@ -202,6 +268,9 @@ public final class CanonicalJson {
         }
         if (value < 0) {
             return "-" + number(path, -value);
+        }
+        if (value < EXACT_INTEGERS && value == Math.rint(value)) {
+            return Long.toString((long) value);
         }
         String fast = JavaDigits.canonical(value);
         return fast != null ? fast : exactNumber(value);

@@ -33,6 +33,13 @@ public final class HashChain {
 
     private static final Pattern HEX_64 = Pattern.compile("[0-9a-f]{64}");
 
+    /**
+     * The content and hash of the record this thread sealed last. A sealed record is usually checked again
+     * before it is written ({@link RecordCodec#encode} checks its hash); when its content still matches, the
+     * hash computed at sealing is the answer, and the canonical JSON is not written twice.
+     */
+    private static final ThreadLocal<SealedContent> LAST_SEALED = new ThreadLocal<>();
+
     private HashChain() {
     }
 
@@ -52,6 +59,14 @@ public final class HashChain {
      * @throws IllegalArgumentException when the record holds a value canonical JSON cannot represent
      */
     public static String hashOf(DecisionRecord record) {
+        SealedContent last = LAST_SEALED.get();
+        if (last != null && last.matches(record)) {
+            return last.hash();
+        }
+        return computeHash(record);
+    }
+
+    private static String computeHash(DecisionRecord record) {
         return sha256Hex(CanonicalJson.without(record, UNHASHED).getBytes(StandardCharsets.UTF_8));
     }
 
@@ -67,7 +82,9 @@ public final class HashChain {
         }
         DecisionRecord sealed = DecisionRecord.newBuilder(record).setPreviousHash(previousHash).setHash("")
                 .setKeyId(null).setSignature(null).build();
-        sealed.setHash(hashOf(sealed));
+        String hash = computeHash(sealed);
+        sealed.setHash(hash);
+        LAST_SEALED.set(SealedContent.of(sealed, hash));
         return sealed;
     }
 

@@ -20,19 +20,19 @@ final class SchemaChecks {
 
     /** Adds a problem for every field of {@code record} that breaks a generic rule. */
     void check(IndexedRecord record, Problems problems) {
-        checkRecord(record, record.getSchema(), "", problems);
+        checkRecord(record, record.getSchema(), null, problems);
     }
 
-    private void checkRecord(IndexedRecord record, Schema schema, String path, Problems problems) {
+    private void checkRecord(IndexedRecord record, Schema schema, FieldPath path, Problems problems) {
         for (Schema.Field field : schema.getFields()) {
-            check(record.get(field.pos()), field.schema(), Problems.path(path, field.name()), problems);
+            check(record.get(field.pos()), field.schema(), FieldPath.field(path, field.name()), problems);
         }
     }
 
-    private void check(Object value, Schema schema, String path, Problems problems) {
+    private void check(Object value, Schema schema, FieldPath path, Problems problems) {
         if (value == null) {
             if (!schema.isNullable()) {
-                problems.add(path, Reason.MISSING, "missing");
+                problems.add(FieldPath.text(path), Reason.MISSING, "missing");
             }
             return;
         }
@@ -49,32 +49,33 @@ final class SchemaChecks {
         }
     }
 
-    private void checkArray(List<?> items, Schema itemSchema, String path, Problems problems) {
+    private void checkArray(List<?> items, Schema itemSchema, FieldPath path, Problems problems) {
         if (items.size() > limits.maxArms()) {
-            problems.add(path, Reason.TOO_MANY, items.size() + " items, at most " + limits.maxArms() + " allowed");
+            problems.add(FieldPath.text(path), Reason.TOO_MANY,
+                    items.size() + " items, at most " + limits.maxArms() + " allowed");
             return;
         }
         for (int i = 0; i < items.size(); i++) {
-            check(items.get(i), itemSchema, path + "[" + i + "]", problems);
+            check(items.get(i), itemSchema, FieldPath.item(path, i), problems);
         }
     }
 
-    private static void checkFinite(double value, String path, Problems problems) {
+    private static void checkFinite(double value, FieldPath path, Problems problems) {
         if (!Double.isFinite(value)) {
-            problems.add(path, Reason.NOT_FINITE, value + " is not a finite number");
+            problems.add(FieldPath.text(path), Reason.NOT_FINITE, value + " is not a finite number");
         }
     }
 
-    private void checkText(String text, String path, Problems problems) {
+    private void checkText(String text, FieldPath path, Problems problems) {
         int length = text.codePointCount(0, text.length());
         if (length > limits.maxStringLength()) {
-            problems.add(path, Reason.TOO_LONG,
+            problems.add(FieldPath.text(path), Reason.TOO_LONG,
                     length + " characters, at most " + limits.maxStringLength() + " allowed");
             return;
         }
         String bad = firstInvalidCharacter(text);
         if (bad != null) {
-            problems.add(path, Reason.INVALID_TEXT, bad + " in " + Problems.quote(text));
+            problems.add(FieldPath.text(path), Reason.INVALID_TEXT, bad + " in " + Problems.quote(text));
         }
     }
 

@@ -107,6 +107,36 @@ class CanonicalJsonTest {
         assertTrue(decided > total * 9 / 10, "fast path decided " + decided + " of " + total);
     }
 
+    @Test
+    void wholeNumbersAreWrittenAsTheExactSearchWritesThem() {
+        // Whole numbers below 2^53 (posterior parameters, counts) take a shortcut; ECMAScript Number::toString
+        // step 5, as the exact search implements it, decides their text too: every digit, no exponent.
+        SplittableRandom random = new SplittableRandom(53L);
+        List<Double> xs = new java.util.ArrayList<>(List.of(1.0, 9.0, 10.0, 100.0, 391.0, 8489.0, 0x1p52,
+                0x1p53 - 1, 0x1p53 - 2, 1e15, 1e15 + 1, 4503599627370500.0));
+        for (int i = 0; i < 3_000; i++) {
+            xs.add((double) random.nextLong(1, 1L << 53));
+            xs.add((double) random.nextInt(1, 1_000_000));
+            xs.add(random.nextInt(1, 1_000) * Math.pow(10, random.nextInt(0, 13)));
+        }
+        for (double x : xs) {
+            assertEquals(CanonicalJson.exactNumber(x), CanonicalJson.number(x), "bits " + Long.toHexString(
+                    Double.doubleToRawLongBits(x)));
+            assertEquals("-" + CanonicalJson.exactNumber(x), CanonicalJson.number(-x));
+        }
+        assertEquals("9007199254740991", CanonicalJson.number(0x1p53 - 1));
+    }
+
+    @Test
+    void aRepeatedNumberIsWrittenEachTime() {
+        AllocationUpdate update = Samples.update();
+        update.setWeights(List.of(new ArmWeight("a", 0.25), new ArmWeight("b", 0.25), new ArmWeight("c", -0.0),
+                new ArmWeight("d", 0.5)));
+        assertTrue(CanonicalJson.of(update).contains("\"weights\":[{\"arm\":\"a\",\"weight\":0.25},"
+                + "{\"arm\":\"b\",\"weight\":0.25},{\"arm\":\"c\",\"weight\":0},{\"arm\":\"d\",\"weight\":0.5}]"),
+                CanonicalJson.of(update));
+    }
+
     private static List<Double> sampleDoubles(SplittableRandom random) {
         List<Double> xs = new java.util.ArrayList<>();
         for (int i = 0; i < 1_500; i++) {

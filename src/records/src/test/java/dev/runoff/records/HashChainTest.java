@@ -5,11 +5,14 @@ import static org.junit.jupiter.api.Assertions.assertNotEquals;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
+import dev.runoff.records.avro.StudentTParams;
 import java.nio.charset.StandardCharsets;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.OptionalInt;
+import java.util.Set;
 import org.apache.avro.Schema;
 import org.apache.avro.generic.GenericData;
 import org.apache.avro.generic.IndexedRecord;
@@ -91,6 +94,69 @@ class HashChainTest {
         String hash = HashChain.hashOf(record);
         record.setHash("f".repeat(64));
         assertEquals(hash, HashChain.hashOf(record));
+    }
+
+    @Test
+    void aSealedRecordChangedAfterwardsIsHashedAnew() {
+        // Sealing remembers the record's content with its hash (the codec checks the hash again before
+        // writing); a change to that very record, at any leaf, must still give the hash of the new content.
+        DecisionRecord unsealed = Samples.decisionUnsealed();
+        DecisionRecord probe = HashChain.seal(unsealed, HashChain.GENESIS);
+        int changed = 0;
+        for (List<Object> path : leafPaths(probe, probe.getSchema(), new ArrayList<>())) {
+            if (path.equals(List.of("hash"))) {
+                continue;
+            }
+            DecisionRecord sealed = HashChain.seal(unsealed, HashChain.GENESIS);
+            String hash = sealed.getHash();
+            mutate(sealed, path);
+            assertEquals(hashFromScratch(sealed), HashChain.hashOf(sealed), path.toString());
+            assertNotEquals(hash, HashChain.hashOf(sealed), "changing " + path + " kept the hash");
+            changed++;
+        }
+        assertTrue(changed > 40, "leaves changed: " + changed);
+    }
+
+    @Test
+    void aSealedRecordWithAnotherArmOrAnotherPosteriorKindIsHashedAnew() {
+        DecisionRecord unsealed = Samples.decisionUnsealed();
+        DecisionRecord longer = HashChain.seal(unsealed, HashChain.GENESIS);
+        String hash = longer.getHash();
+        longer.getArms().add(ArmState.newBuilder(longer.getArms().get(0)).build());
+        assertEquals(hashFromScratch(longer), HashChain.hashOf(longer));
+        assertNotEquals(hash, HashChain.hashOf(longer));
+
+        DecisionRecord other = HashChain.seal(unsealed, HashChain.GENESIS);
+        other.getArms().get(0).setPosterior(new StudentTParams(2.0, 3.0, 4.0));
+        assertEquals(hashFromScratch(other), HashChain.hashOf(other));
+        assertNotEquals(hash, HashChain.hashOf(other));
+    }
+
+    @Test
+    void theCodecRefusesASealedRecordChangedAfterwards() {
+        DecisionRecord unsealed = Samples.decisionUnsealed();
+        DecisionRecord sealed = HashChain.seal(unsealed, HashChain.GENESIS);
+        RecordCodec<DecisionRecord> codec = RecordCodec.decisionRecords();
+        codec.encode(sealed);
+        sealed.setStreamTime(sealed.getStreamTime() + 1);
+        RecordRejectedException e = assertThrows(RecordRejectedException.class, () -> codec.encode(sealed));
+        assertTrue(e.getMessage().contains("does not match the record's content"), e.getMessage());
+    }
+
+    @Test
+    void signingASealedRecordKeepsItsHash() {
+        DecisionRecord unsealed = Samples.decisionUnsealed();
+        DecisionRecord sealed = HashChain.seal(unsealed, HashChain.GENESIS);
+        sealed.setKeyId("k1");
+        sealed.setSignature("c2lnbmF0dXJl");
+        assertEquals(hashFromScratch(sealed), HashChain.hashOf(sealed));
+        assertEquals(sealed.getHash(), HashChain.hashOf(sealed));
+    }
+
+    /** SHA-256 of the canonical JSON without the unhashed fields, written anew. */
+    private static String hashFromScratch(DecisionRecord record) {
+        return HashChain.sha256Hex(CanonicalJson.without(record, Set.of("hash", "keyId", "signature"))
+                .getBytes(StandardCharsets.UTF_8));
     }
 
     @Test
