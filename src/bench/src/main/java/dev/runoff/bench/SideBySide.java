@@ -23,7 +23,9 @@ import java.util.List;
  * <p>Usage: {@code java -cp src/bench/target/classes dev.runoff.bench.SideBySide CLASS METHOD CALLS ROUNDS
  * CLASSPATH_A CLASSPATH_B [FIELD=VALUE ...]}; {@code CALLS} calls of {@code METHOD} make one pass; each
  * class path must hold the bench class and everything it needs; {@code FIELD=VALUE} sets a public
- * {@code int} or {@code String} field (the JMH parameters) before {@code setUp()} runs.
+ * {@code int} or {@code String} field (the JMH parameters) before {@code setUp()} runs, on both sides, and
+ * {@code A:FIELD=VALUE} or {@code B:FIELD=VALUE} on one side only (say, two engine versions of the same
+ * classes: {@code A:engineVersion=1.2 B:engineVersion=1.3}).
  */
 public final class SideBySide {
     private static final int WARM_UP_ROUNDS = 2;
@@ -46,7 +48,8 @@ public final class SideBySide {
         int calls = Integer.parseInt(args[2]);
         int rounds = Integer.parseInt(args[3]);
         List<String> settings = Arrays.asList(args).subList(6, args.length);
-        Pass[] passes = {Pass.of(args[0], args[1], args[4], settings), Pass.of(args[0], args[1], args[5], settings)};
+        Pass[] passes = {Pass.of(args[0], args[1], args[4], settings, "A"),
+            Pass.of(args[0], args[1], args[5], settings, "B")};
         double[][] cpu = new double[2][rounds];
         ThreadMXBean threads = ManagementFactory.getThreadMXBean();
         for (int round = -WARM_UP_ROUNDS; round < rounds; round++) {
@@ -81,7 +84,8 @@ public final class SideBySide {
     /** A bench instance loaded from one class path, set up and ready to call. */
     record Pass(Object bench, Method method) {
 
-        static Pass of(String className, String methodName, String classPath, List<String> settings)
+        /** The bench under {@code classPath} with the settings for both sides and for {@code side} ("A" or "B"). */
+        static Pass of(String className, String methodName, String classPath, List<String> settings, String side)
                 throws ReflectiveOperationException, MalformedURLException {
             List<URL> urls = new ArrayList<>();
             for (String entry : classPath.split(File.pathSeparator)) {
@@ -91,7 +95,11 @@ public final class SideBySide {
             Class<?> type = Class.forName(className, true, loader);
             Object bench = type.getConstructor().newInstance();
             for (String setting : settings) {
-                String[] pair = setting.split("=", 2);
+                boolean sided = setting.startsWith("A:") || setting.startsWith("B:");
+                if (sided && !setting.startsWith(side + ":")) {
+                    continue;
+                }
+                String[] pair = (sided ? setting.substring(2) : setting).split("=", 2);
                 Field field = type.getField(pair[0]);
                 field.set(bench, field.getType() == int.class ? Integer.valueOf(pair[1]) : pair[1]);
             }

@@ -56,7 +56,7 @@ final class EvaluateCommand implements Callable<Integer> {
     private Integer draws;
 
     @Option(names = "--engine-version", paramLabel = "V", description = "The engine's arithmetic: one of the versions"
-            + " audit verify reproduces (default: " + AllocationEngine.VERSION + ", the one new decisions use).")
+            + " audit verify reproduces (default: the one new decisions use; --version names both).")
     private String engineVersion;
 
     @Option(names = "--seed", paramLabel = "S", defaultValue = "0",
