@@ -67,15 +67,15 @@ public class RecomputeBench {
 
     /** The engine version that recomputes: {@code current} ({@link EngineVersion#CURRENT}) or a label, e.g. 1.2. */
     @Param("current")
-    public String engineVersion;
+    public String engineVersion = "current";
 
     /** The definitions' stopping rule (GLR; POSTERIOR reads the leader's alpha). */
     @Param("GLR")
-    public String stoppingRule;
+    public String stoppingRule = "GLR";
 
     /** The definitions' minimum trials per arm (the default keeps every experiment running). */
     @Param("1000000")
-    public int minTrialsPerArm;
+    public int minTrialsPerArm = 1_000_000;
 
     private ExperimentState[] states;
     private Evaluator evaluator;

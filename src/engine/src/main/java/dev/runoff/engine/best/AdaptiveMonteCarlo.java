@@ -1,6 +1,7 @@
 package dev.runoff.engine.best;
 
 import dev.runoff.engine.posterior.Posterior;
+import java.util.Arrays;
 import java.util.List;
 import java.util.Objects;
 import org.apache.commons.rng.UniformRandomProvider;
@@ -120,6 +121,7 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
     @Override
     public ProbabilityBest estimate(List<? extends Posterior> posteriors, long seed) {
         UniformRandomProvider rng = RandomSource.XO_SHI_RO_256_PP.create(seed);
+        Integrated integrated = new Integrated(posteriors);
         Posterior.Sampler[] samplers = MonteCarloProbabilityBest.samplers(posteriors, rng, source);
         long[] wins = new long[samplers.length];
         int done = 0;
@@ -127,24 +129,29 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
         while (true) {
             MonteCarloProbabilityBest.addWins(samplers, target - done, wins);
             done = target;
-            if (done == maxDraws || policy.settled(wins, done)) {
+            if (done == maxDraws || policy.settled(wins, done, () -> integrated.of(conditional(wins)))) {
                 break;
             }
             target = (int) Math.min(2L * done, maxDraws);
         }
-        return estimates(posteriors, wins, done);
+        return estimates(wins, done, integrated);
     }
 
-    private ProbabilityBest estimates(List<? extends Posterior> posteriors, long[] wins, int draws) {
+    /** The arms that won no draw, the leader aside: their alphas are integrated. */
+    private static boolean[] conditional(long[] wins) {
+        int leader = Ranking.leader(wins);
+        boolean[] conditional = new boolean[wins.length];
+        for (int i = 0; i < wins.length; i++) {
+            conditional[i] = wins[i] == 0 && i != leader;
+        }
+        return conditional;
+    }
+
+    private ProbabilityBest estimates(long[] wins, int draws, Integrated integratedAlphas) {
         int k = wins.length;
         int leader = Ranking.leader(wins);
-        boolean[] conditional = new boolean[k];
-        boolean any = false;
-        for (int i = 0; i < k; i++) {
-            conditional[i] = wins[i] == 0 && i != leader;
-            any |= conditional[i];
-        }
-        double[] integrated = any ? exact.selected(posteriors, conditional) : new double[k];
+        boolean[] conditional = conditional(wins);
+        double[] integrated = integratedAlphas.of(conditional);
         double[] alpha = new double[k];
         double[] se = new double[k];
         double others = 0;
@@ -159,6 +166,33 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
         alpha[leader] = Math.max(0, 1 - others);
         se[leader] = StrictMath.sqrt(countShare * (1 - countShare) / draws);
         return new ProbabilityBest(alpha, se, ProbabilityBest.Method.MONTE_CARLO, draws, conditional);
+    }
+
+    /**
+     * The integrated alphas of the arms a mask selects, 0 for the others (all 0 when it selects none),
+     * computed once per mask: a policy that asks for them after the last stage leaves the final estimate
+     * nothing to integrate again.
+     */
+    private final class Integrated {
+        private final List<? extends Posterior> posteriors;
+        private boolean[] mask;
+        private double[] alphas;
+
+        Integrated(List<? extends Posterior> posteriors) {
+            this.posteriors = posteriors;
+        }
+
+        double[] of(boolean[] which) {
+            if (mask == null || !Arrays.equals(mask, which)) {
+                boolean any = false;
+                for (boolean w : which) {
+                    any |= w;
+                }
+                alphas = any ? exact.selected(posteriors, which) : new double[which.length];
+                mask = which.clone();
+            }
+            return alphas.clone();
+        }
     }
 
     @Override

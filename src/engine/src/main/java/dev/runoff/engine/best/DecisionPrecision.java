@@ -1,6 +1,7 @@
 package dev.runoff.engine.best;
 
 import java.util.Objects;
+import java.util.function.Supplier;
 
 /**
  * The draw policy of engine version 1.3: draws are spent until the quantities the evaluation reads from the
@@ -29,14 +30,14 @@ import java.util.Objects;
  *       shares are multinomial with covariance {@code (diag(p) - p p^T) / M}, so for weight i with gradient
  *       {@code g} over the shares, {@code Var w_i = (sum_j g_j^2 p_j - (sum_j g_j p_j)^2) / M}. The gradient is
  *       a forward difference with step {@value #STEP}, over the arms that won draws (an arm that won none
- *       contributes no variance: its alpha is integrated, not counted). Such an arm enters the weights at a
- *       share of {@value #ZERO_WIN_COUNT} wins in {@code M} rather than 0: its integrated alpha is unknown
- *       while drawing (below {@code 3 / M} with 95% confidence), and a challenger that won one or two draws
- *       shares the challengers' weight with it, so that share must be known against a plausible value, not
- *       against 0. Measured on the pool of {@code RecomputeBench} (2,000 experiments; src/docs/performance.md):
- *       with 0 the largest error of a weight against the weights of the exact alphas was 0.22, with 0.5 it
- *       was 0.094 (1.2: 0.30), for 1,911 and 3,738 draws on average. The weights are the rule's, before the
- *       guards, which only mix them with fixed shares or cap their changes.</li>
+ *       contributes no variance: its alpha is integrated, not counted). The weights are evaluated where the
+ *       estimator would put them if it stopped now, the arms that won no draw at their integrated alphas: a
+ *       challenger that won one or two draws shares the challengers' weight with them, and against 0 that
+ *       share would look certain. (Measured on the pool of {@code RecomputeBench}, 2,000 experiments: with
+ *       those arms at 0 the largest error of a rule weight against the weights of the exact alphas was 0.22,
+ *       against 0.30 for 1.2; see src/docs/performance.md for this policy's figures.) The integration is the
+ *       one the estimate needs anyway and is not repeated when no arm wins a first draw later. The weights
+ *       are the rule's, before the guards, which only mix them with fixed shares or cap their changes.</li>
  *   <li>When a stopping threshold reads the leader's alpha ({@link AlphaReaders#threshold()}), the leader's
  *       share is clearly on one side of it ({@link LeaderThreshold#decided}).</li>
  * </ol>
@@ -58,8 +59,6 @@ public final class DecisionPrecision implements DrawPolicy {
     public static final double TIE = 0.01;
     /** Largest standard error of a rule weight. */
     public static final double WEIGHT_ERROR = 0.01;
-    /** Wins an arm that won none counts for in the weights whose standard error is taken. */
-    public static final double ZERO_WIN_COUNT = 0.5;
     /** Step of the forward difference of the weights over one arm's share. */
     static final double STEP = 1e-7;
 
@@ -76,25 +75,36 @@ public final class DecisionPrecision implements DrawPolicy {
     }
 
     @Override
-    public boolean settled(long[] wins, int draws) {
+    public boolean settled(long[] wins, int draws, Supplier<double[]> integrated) {
         for (int rank = 0; rank < Math.min(readers.orderedRanks(), wins.length - 1); rank++) {
             if (!DrawPolicy.ordered(wins, draws, rank, Z, TIE)) {
                 return false;
             }
         }
-        if (readers.weights() != null && largestWeightError(wins, draws) > WEIGHT_ERROR) {
+        if (readers.weights() != null && largestWeightError(wins, draws, integrated) > WEIGHT_ERROR) {
             return false;
         }
         LeaderThreshold threshold = readers.threshold();
         return threshold == null || threshold.decided((double) wins[Ranking.leader(wins)] / draws, draws);
     }
 
-    /** The largest delta-method standard error of a rule weight at the shares of the draws. */
-    double largestWeightError(long[] wins, int draws) {
+    /**
+     * The largest delta-method standard error of a rule weight at the alphas the estimator would give now: the
+     * shares of the arms that won draws, the integrated alphas of the others. When one arm won every draw the
+     * error is 0 whatever the others' alphas, and they are not integrated here.
+     */
+    double largestWeightError(long[] wins, int draws, Supplier<double[]> integrated) {
         int k = wins.length;
-        double[] p = new double[k];
+        int winners = 0;
+        for (long w : wins) {
+            winners += w > 0 ? 1 : 0;
+        }
+        if (winners < 2) {
+            return 0;
+        }
+        double[] p = winners < k ? integrated.get() : new double[k];
         for (int j = 0; j < k; j++) {
-            p[j] = (wins[j] == 0 ? ZERO_WIN_COUNT : wins[j]) / draws;
+            p[j] = wins[j] > 0 ? (double) wins[j] / draws : p[j];
         }
         double[] w = readers.weights().apply(p.clone());
         double[] first = new double[k];

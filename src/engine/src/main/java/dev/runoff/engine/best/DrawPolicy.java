@@ -1,5 +1,7 @@
 package dev.runoff.engine.best;
 
+import java.util.function.Supplier;
+
 /**
  * When {@link AdaptiveMonteCarlo} stops drawing: the size of its first stage and the check made after each
  * stage on the joint draws' win counts. Each engine version names its policy, and a policy's decisions must
@@ -14,10 +16,13 @@ public interface DrawPolicy {
      * Whether the draws made so far answer every question the evaluation asks of the alphas. A pure function of
      * its arguments.
      *
-     * @param wins  per arm, the joint draws it won
-     * @param draws the joint draws made, the sum of {@code wins}
+     * @param wins       per arm, the joint draws it won
+     * @param draws      the joint draws made, the sum of {@code wins}
+     * @param integrated the alphas the estimator would give the arms that won no draw (the leader aside) if it
+     *                   stopped now, 0 for the others: integrated when first asked for, and not again for the
+     *                   final estimate when no arm has won a draw since
      */
-    boolean settled(long[] wins, int draws);
+    boolean settled(long[] wins, int draws, Supplier<double[]> integrated);
 
     /**
      * Whether the arms ranked {@code rank} and {@code rank + 1} by wins (ties to the lower index) are ordered:

@@ -1,5 +1,7 @@
 package dev.runoff.engine.best;
 
+import java.util.function.Supplier;
+
 /**
  * The draw policy of engine version 1.2, frozen: drawing stops when the leader and the runner-up (the two arms
  * with the most wins, ties to the lower index) are ordered at {@value #Z} standard errors of their difference,
@@ -33,7 +35,7 @@ public final class LeaderOrder implements DrawPolicy {
     }
 
     @Override
-    public boolean settled(long[] wins, int draws) {
+    public boolean settled(long[] wins, int draws, Supplier<double[]> integrated) {
         return DrawPolicy.ordered(wins, draws, 0, Z, RESOLUTION);
     }
 
