@@ -22,7 +22,8 @@ import java.util.TreeMap;
  * How far one engine version's decision records move from another's on the pool of {@link RecomputeBench}
  * (Monte Carlo estimator, the job's cap on draws): the draws each used, and over every arm of every experiment
  * the absolute differences of the alphas, of the rule's weights and of the published weights (median, 99th
- * percentile, largest), and how many decisions or winners differ. Each version's rule weights are also
+ * percentile, largest), how many arms won no draw (their alphas integrated), and how many decisions or
+ * winners differ. Each version's rule weights are also
  * set against the weights top-two Thompson sampling gives from the exact alphas ({@link ExactProbabilityBest}
  * of the record's posteriors; the pool's rule, with no guard active), the error both estimators make.
  *
@@ -71,6 +72,8 @@ public final class EngineVersionDrift {
         private final List<Double> errorB = new ArrayList<>();
         private int decisions;
         private int winners;
+        private int integratedA;
+        private int integratedB;
 
         void add(DecisionRecord x, DecisionRecord y) {
             drawsA.merge(x.getDraws(), 1, Integer::sum);
@@ -87,6 +90,8 @@ public final class EngineVersionDrift {
                 errorA.add(Math.abs(x.getArms().get(i).getWeightBeforeGuards() - exact[i]));
                 errorB.add(Math.abs(y.getArms().get(i).getWeightBeforeGuards() - exact[i]));
             }
+            integratedA += integrated(x);
+            integratedB += integrated(y);
             decisions += x.getDecision() == y.getDecision() ? 0 : 1;
             winners += String.valueOf(x.getWinner()).equals(String.valueOf(y.getWinner())) ? 0 : 1;
         }
@@ -99,7 +104,16 @@ public final class EngineVersionDrift {
             System.out.println("|weight difference|       " + summary(weight));
             System.out.println("|rule weight - exact| " + a + " " + summary(errorA));
             System.out.println("|rule weight - exact| " + b + " " + summary(errorB));
+            System.out.println("arms that won no draw (integrated): " + a + " " + integratedA + ", " + b + " "
+                    + integratedB);
             System.out.println("decisions differing: " + decisions + ", winners differing: " + winners);
+        }
+
+        /** Arms with standard error 0 below the leader's alpha: those that won no draw. */
+        private static int integrated(DecisionRecord record) {
+            double top = record.getArms().stream().mapToDouble(ArmState::getAlpha).max().orElse(1);
+            return (int) record.getArms().stream().filter(a -> a.getAlphaStandardError() == 0 && a.getAlpha() < top)
+                    .count();
         }
 
         /** Top-two Thompson weights from the exact alphas of the record's posteriors. */
