@@ -72,8 +72,13 @@ final class SimulatedJob {
     /** As above, the job computing with engine {@code version}. */
     static List<DecisionRecord> run(ExperimentDefinition definition, IntFunction<double[]> ratesOfRound, int rounds,
                                     int exposures, long seed, EngineVersion version) {
+        return run(definition, ratesOfRound, rounds, exposures, seed, new Evaluator(2_000, version));
+    }
+
+    /** As above, the job evaluating with {@code evaluator}. */
+    static List<DecisionRecord> run(ExperimentDefinition definition, IntFunction<double[]> ratesOfRound, int rounds,
+                                    int exposures, long seed, Evaluator evaluator) {
         UniformRandomProvider rng = RandomSource.SPLIT_MIX_64.create(seed);
-        Evaluator evaluator = new Evaluator(2_000, version);
         long now = Chains.T0;
         Evaluator.Result result = evaluator.evaluate(ExperimentState.start(definition), now);
         List<DecisionRecord> records = new ArrayList<>(List.of(result.decision()));
