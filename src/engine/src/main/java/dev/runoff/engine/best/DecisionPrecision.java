@@ -22,8 +22,9 @@ import java.util.function.Supplier;
  * <ol>
  *   <li>The leader is ordered against the runner-up at {@value #Z} standard errors of the difference of their
  *       shares, or that standard error is at most {@value #TIE}: the two are then within a few percent of each
- *       other and either may lead (each reader above treats such a pair as a near tie: the rule's weights
- *       hardly differ, and the stopping rules fire on neither). With {@link AlphaReaders#orderedRanks()} 2 the
+ *       other and either may lead (the rule's weights hardly differ; the posterior rule cannot fire on two such
+ *       arms; the indifference rule, which can, accepts any arm within its epsilon; a guardrail reference or a
+ *       budget winner between near-equals is a coin flip under 1.2 too). With {@link AlphaReaders#orderedRanks()} 2 the
  *       runner-up is ordered against the third arm likewise.</li>
  *   <li>When the rule's weights read the alphas smoothly ({@link AlphaReaders#weights()}), the standard error of
  *       every weight is at most {@value #WEIGHT_ERROR}. It is taken by the delta method (common practice): the
