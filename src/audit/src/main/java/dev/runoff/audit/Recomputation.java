@@ -1,7 +1,7 @@
 package dev.runoff.audit;
 
-import dev.runoff.engine.AllocationEngine;
 import dev.runoff.engine.EngineConfig;
+import dev.runoff.engine.EngineVersion;
 import dev.runoff.engine.stats.ArmStats;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.engine.stats.ValueStats;
@@ -19,8 +19,10 @@ import java.util.Set;
 /**
  * Recomputes each decision record with the job's own evaluation ({@link Evaluator}: the same mapping from the
  * embedded definition to the engine and stopping configurations, the same seed derivation, the same record
- * layout) from the record's statistics, definition and sequence, and the weights of the record before it;
- * the result must equal the record in every field, bit for bit.
+ * layout) from the record's statistics, definition and sequence, and the weights of the record before it,
+ * with the engine version the record names ({@link EngineVersion}); the result must equal the record in every
+ * field, bit for bit. A record naming a version this verifier does not support is a finding that names the
+ * supported ones.
  *
  * <p>The minimum-duration guard measures from the time the experiment's first statistics were folded. A
  * record holds it as {@code startedAt}, and is recomputed from it: the guard is checked exactly. Records
@@ -94,41 +96,43 @@ public final class Recomputation {
 
     private Optional<Finding> recompute(int index, Entry entry, double[] previous, Long firstTrialsAt) {
         DecisionRecord record = entry.record();
-        if (!AllocationEngine.VERSION.equals(record.getEngineVersion())) {
+        Optional<EngineVersion> found = EngineVersion.find(record.getEngineVersion());
+        if (found.isEmpty()) {
             return Optional.of(Finding.of(index, entry, Check.RECOMPUTATION, "engineVersion", "the record was"
-                    + " computed by engine version " + record.getEngineVersion() + "; this verifier runs engine"
-                    + " version " + AllocationEngine.VERSION + " and cannot reproduce it bit for bit"));
+                    + " computed by engine version " + record.getEngineVersion() + "; this verifier reproduces"
+                    + " engine versions " + EngineVersion.supported() + " and cannot reproduce it bit for bit"));
         }
+        EngineVersion version = found.get();
         try {
             if (record.getStartedAt() != null) {
-                return recomputeFromStart(index, entry, previous, firstTrialsAt);
+                return recomputeFromStart(index, entry, previous, firstTrialsAt, version);
             }
-            Optional<RecordDiff.Difference> met = RecordDiff.first(record, evaluate(record, previous, 0),
+            Optional<RecordDiff.Difference> met = RecordDiff.first(record, evaluate(record, previous, 0, version),
                     WITHOUT_START);
             if (met.isEmpty()) {
                 return Optional.empty();
             }
             long minDuration = record.getDefinition().getStopping().getMinDurationMs();
-            if (minDuration > 0 && RecordDiff.first(record, evaluate(record, previous, record.getStreamTime()),
-                    WITHOUT_START).isEmpty()) {
+            if (minDuration > 0 && RecordDiff.first(record, evaluate(record, previous, record.getStreamTime(),
+                    version), WITHOUT_START).isEmpty()) {
                 return minDurationContradiction(index, entry, minDuration, firstTrialsAt);
             }
             return Optional.of(finding(index, entry, met.get()));
         } catch (RuntimeException e) {
             return Optional.of(Finding.of(index, entry, Check.RECOMPUTATION, "record", "engine version "
-                    + AllocationEngine.VERSION + " rejected the record's input: " + e.getMessage()));
+                    + version.label() + " rejected the record's input: " + e.getMessage()));
         }
     }
 
     /** The exact check of a record holding {@code startedAt}: recomputed with the Timing it states. */
     private static Optional<Finding> recomputeFromStart(int index, Entry entry, double[] previous,
-                                                        Long firstTrialsAt) {
+                                                        Long firstTrialsAt, EngineVersion version) {
         Optional<Finding> late = startAfterTrials(index, entry, firstTrialsAt);
         if (late.isPresent()) {
             return late;
         }
         DecisionRecord record = entry.record();
-        return RecordDiff.first(record, evaluate(record, previous, record.getStartedAt()), CHAIN_FIELDS)
+        return RecordDiff.first(record, evaluate(record, previous, record.getStartedAt(), version), CHAIN_FIELDS)
                 .map(d -> finding(index, entry, d));
     }
 
@@ -162,20 +166,21 @@ public final class Recomputation {
         Long startedAt = entry.record().getStartedAt();
         String timing = startedAt == null ? "" : " (timing from the record's startedAt " + startedAt + ")";
         return Finding.of(index, entry, check, d.field(), "recorded " + d.recorded() + ", engine version "
-                + AllocationEngine.VERSION + " (the record's) recomputes " + d.recomputed() + timing);
+                + entry.record().getEngineVersion() + " (the record's) recomputes " + d.recomputed() + timing);
     }
 
     /**
-     * The job's evaluation of the record's input, with the experiment's statistics dating from
-     * {@code startedAt}; the result holds {@code startedAt} as the job would have written it.
+     * The job's evaluation of the record's input by engine {@code version}, with the experiment's statistics
+     * dating from {@code startedAt}; the result holds {@code startedAt} as the job would have written it.
      */
-    private static DecisionRecord evaluate(DecisionRecord record, double[] previous, long startedAt) {
+    private static DecisionRecord evaluate(DecisionRecord record, double[] previous, long startedAt,
+                                           EngineVersion version) {
         List<ArmStats> stats = record.getArms().stream().map(a -> stats(a, kind(record))).toList();
         ExperimentState state = new ExperimentState(record.getDefinition(), stats, null, record.getSequence() - 1, 0,
                 record.getPreviousHash(), previous, startedAt, -1, -1, false, false, pending(record), null,
                 GuardrailCounts.of(record));
         int draws = record.getDraws() > 0 ? record.getDraws() : EngineConfig.DEFAULT_DRAWS;
-        return new Evaluator(draws).evaluate(state, record.getStreamTime()).decision();
+        return new Evaluator(draws, version).evaluate(state, record.getStreamTime()).decision();
     }
 
     /**

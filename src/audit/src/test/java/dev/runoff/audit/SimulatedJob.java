@@ -13,6 +13,7 @@ import dev.runoff.records.avro.MetricSpec;
 import dev.runoff.records.avro.StoppingRule;
 import dev.runoff.records.avro.StoppingSpec;
 import dev.runoff.decision.Evaluator;
+import dev.runoff.engine.EngineVersion;
 import dev.runoff.decision.ExperimentState;
 import java.util.ArrayList;
 import java.util.List;
@@ -65,8 +66,19 @@ final class SimulatedJob {
     /** As above with the click rates of each round (0 for the first period) given by {@code ratesOfRound}. */
     static List<DecisionRecord> run(ExperimentDefinition definition, IntFunction<double[]> ratesOfRound, int rounds,
                                     int exposures, long seed) {
+        return run(definition, ratesOfRound, rounds, exposures, seed, EngineVersion.CURRENT);
+    }
+
+    /** As above, the job computing with engine {@code version}. */
+    static List<DecisionRecord> run(ExperimentDefinition definition, IntFunction<double[]> ratesOfRound, int rounds,
+                                    int exposures, long seed, EngineVersion version) {
+        return run(definition, ratesOfRound, rounds, exposures, seed, new Evaluator(2_000, version));
+    }
+
+    /** As above, the job evaluating with {@code evaluator}. */
+    static List<DecisionRecord> run(ExperimentDefinition definition, IntFunction<double[]> ratesOfRound, int rounds,
+                                    int exposures, long seed, Evaluator evaluator) {
         UniformRandomProvider rng = RandomSource.SPLIT_MIX_64.create(seed);
-        Evaluator evaluator = new Evaluator(2_000);
         long now = Chains.T0;
         Evaluator.Result result = evaluator.evaluate(ExperimentState.start(definition), now);
         List<DecisionRecord> records = new ArrayList<>(List.of(result.decision()));

@@ -12,9 +12,11 @@ import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.records.avro.MetricKind;
 import dev.runoff.records.avro.MetricSpec;
+import dev.runoff.records.avro.StoppingRule;
 import dev.runoff.records.avro.StoppingSpec;
 import dev.runoff.decision.Evaluator;
 import dev.runoff.decision.ExperimentState;
+import dev.runoff.engine.EngineVersion;
 import dev.runoff.topology.TopologySettings;
 import java.security.MessageDigest;
 import java.security.NoSuchAlgorithmException;
@@ -55,7 +57,7 @@ import org.openjdk.jmh.annotations.Warmup;
 @Fork(1)
 public class RecomputeBench {
 
-    private static final long NOW = 1_700_000_000_000L;
+    static final long NOW = 1_700_000_000_000L;
 
     /**
      * Number of distinct active experiments. The initial value is JMH's default, also for {@link SideBySide} and
@@ -68,8 +70,20 @@ public class RecomputeBench {
     @Param({"SAMPLED", "INTEGRATED"})
     public String estimator = "SAMPLED";
 
+    /** The engine version that recomputes: {@code current} ({@link EngineVersion#CURRENT}) or a label, e.g. 1.2. */
+    @Param("current")
+    public String engineVersion = "current";
+
+    /** The definitions' stopping rule (GLR; POSTERIOR reads the leader's alpha). */
+    @Param("GLR")
+    public String stoppingRule = "GLR";
+
+    /** The definitions' minimum trials per arm (the default keeps every experiment running). */
+    @Param("1000000")
+    public int minTrialsPerArm = 1_000_000;
+
     private ExperimentState[] states;
-    private final Evaluator evaluator = new Evaluator(TopologySettings.MONTE_CARLO_DRAWS);
+    private Evaluator evaluator;
     private final RecordCodec<DecisionRecord> decisions = RecordCodec.decisionRecords();
     private final RecordCodec<AllocationUpdate> updates = RecordCodec.allocationUpdates();
     private int next;
@@ -80,8 +94,21 @@ public class RecomputeBench {
     public void setUp() {
         SplittableRandom random = new SplittableRandom(10_000);
         BestArmEstimator choice = BestArmEstimator.valueOf(estimator);
-        states = IntStream.range(0, experiments).mapToObj(i -> state("exp-" + i, random, choice))
+        StoppingSpec stopping = StoppingSpec.newBuilder().setRule(StoppingRule.valueOf(stoppingRule))
+                .setMinTrialsPerArm(minTrialsPerArm).build();
+        states = IntStream.range(0, experiments).mapToObj(i -> state("exp-" + i, random, choice, stopping))
                 .toArray(ExperimentState[]::new);
+        evaluator = new Evaluator(TopologySettings.MONTE_CARLO_DRAWS, version(engineVersion));
+    }
+
+    /** The engine version a setting names: {@code current} or a label. */
+    static EngineVersion version(String setting) {
+        return "current".equals(setting) ? EngineVersion.CURRENT : EngineVersion.of(setting);
+    }
+
+    /** The pool's experiments, in order (after {@link #setUp()}). */
+    ExperimentState[] states() {
+        return states.clone();
     }
 
     /** One experiment's recomputation. */
@@ -162,13 +189,14 @@ public class RecomputeBench {
                 + updates.encode(result.update(), Format.AVRO).length;
     }
 
-    private static ExperimentState state(String id, SplittableRandom random, BestArmEstimator estimator) {
+    private static ExperimentState state(String id, SplittableRandom random, BestArmEstimator estimator,
+                                         StoppingSpec stopping) {
         List<String> arms = List.of("a", "b", "c", "d", "e");
         ExperimentDefinition def = ExperimentDefinition.newBuilder().setExperimentId(id).setVersion(1).setArms(arms)
                 .setMetric(MetricSpec.newBuilder().setKind(MetricKind.BERNOULLI).setSuccessEvent(EventType.CLICK)
                         .build())
                 .setAllocation(AllocationSpec.newBuilder().setBestArmEstimator(estimator).build())
-                .setStopping(StoppingSpec.newBuilder().setMinTrialsPerArm(1_000_000).build())
+                .setStopping(StoppingSpec.newBuilder(stopping).build())
                 .build();
         ExperimentState state = ExperimentState.start(def);
         for (int arm = 0; arm < arms.size(); arm++) {

@@ -31,8 +31,8 @@ public final class SameOutput {
                     + " [FIELD=VALUE ...]");
         }
         List<String> settings = Arrays.asList(args).subList(4, args.length);
-        String a = String.valueOf(run(args[0], args[1], args[2], settings));
-        String b = String.valueOf(run(args[0], args[1], args[3], settings));
+        String a = String.valueOf(run(args[0], args[1], args[2], settings, "A"));
+        String b = String.valueOf(run(args[0], args[1], args[3], settings, "B"));
         System.out.println("A: " + a);
         System.out.println("B: " + b);
         System.out.println(a.equals(b) ? "same output" : "OUTPUT DIFFERS");
@@ -41,9 +41,9 @@ public final class SameOutput {
         }
     }
 
-    private static Object run(String className, String methodName, String classPath, List<String> settings)
-            throws ReflectiveOperationException, MalformedURLException {
-        SideBySide.Pass pass = SideBySide.Pass.of(className, methodName, classPath, settings);
+    private static Object run(String className, String methodName, String classPath, List<String> settings,
+                              String side) throws ReflectiveOperationException, MalformedURLException {
+        SideBySide.Pass pass = SideBySide.Pass.of(className, methodName, classPath, settings, side);
         return pass.method().invoke(pass.bench());
     }
 }

@@ -25,7 +25,8 @@ import java.util.List;
  * ({@code METHOD_A,METHOD_B} runs a different method on each side, say an earlier and a new estimator, with
  * the same class path twice); each class path must hold the bench class and everything it needs;
  * {@code FIELD=VALUE} sets a public {@code int} or {@code String} field (the JMH parameters) before
- * {@code setUp()} runs.
+ * {@code setUp()} runs, on both sides, and {@code A:FIELD=VALUE} or {@code B:FIELD=VALUE} on one side only
+ * (say, two engine versions of the same classes: {@code A:engineVersion=1.2 B:engineVersion=1.3}).
  */
 public final class SideBySide {
     private static final int WARM_UP_ROUNDS = 2;
@@ -49,8 +50,8 @@ public final class SideBySide {
         int rounds = Integer.parseInt(args[3]);
         List<String> settings = Arrays.asList(args).subList(6, args.length);
         String[] methods = args[1].split(",", 2);
-        Pass[] passes = {Pass.of(args[0], methods[0], args[4], settings),
-            Pass.of(args[0], methods[methods.length - 1], args[5], settings)};
+        Pass[] passes = {Pass.of(args[0], methods[0], args[4], settings, "A"),
+            Pass.of(args[0], methods[methods.length - 1], args[5], settings, "B")};
         double[][] cpu = new double[2][rounds];
         ThreadMXBean threads = ManagementFactory.getThreadMXBean();
         for (int round = -WARM_UP_ROUNDS; round < rounds; round++) {
@@ -85,7 +86,8 @@ public final class SideBySide {
     /** A bench instance loaded from one class path, set up and ready to call. */
     record Pass(Object bench, Method method) {
 
-        static Pass of(String className, String methodName, String classPath, List<String> settings)
+        /** The bench under {@code classPath} with the settings for both sides and for {@code side} ("A" or "B"). */
+        static Pass of(String className, String methodName, String classPath, List<String> settings, String side)
                 throws ReflectiveOperationException, MalformedURLException {
             List<URL> urls = new ArrayList<>();
             for (String entry : classPath.split(File.pathSeparator)) {
@@ -95,7 +97,11 @@ public final class SideBySide {
             Class<?> type = Class.forName(className, true, loader);
             Object bench = type.getConstructor().newInstance();
             for (String setting : settings) {
-                String[] pair = setting.split("=", 2);
+                boolean sided = setting.startsWith("A:") || setting.startsWith("B:");
+                if (sided && !setting.startsWith(side + ":")) {
+                    continue;
+                }
+                String[] pair = (sided ? setting.substring(2) : setting).split("=", 2);
                 Field field = type.getField(pair[0]);
                 field.set(bench, field.getType() == int.class ? Integer.valueOf(pair[1]) : pair[1]);
             }

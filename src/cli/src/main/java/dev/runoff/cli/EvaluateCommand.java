@@ -3,6 +3,7 @@ package dev.runoff.cli;
 import dev.runoff.engine.AllocationEngine;
 import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.EngineConfig;
+import dev.runoff.engine.EngineVersion;
 import dev.runoff.engine.Evaluation;
 import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.allocation.AllocationMethod;
@@ -49,9 +50,14 @@ final class EvaluateCommand implements Callable<Integer> {
                     + AllocationEngine.EXACT_ARM_LIMIT + " arms, Monte Carlo beyond).")
     private EngineConfig.MethodChoice method;
 
-    @Option(names = "--draws", paramLabel = "N", description = "The most Monte Carlo joint draws: 10,000 first, doubled"
-            + " while the leader and the runner-up cannot be ordered (default: " + EngineConfig.DEFAULT_DRAWS + ").")
+    @Option(names = "--draws", paramLabel = "N", description = "The most Monte Carlo joint draws: a first stage, doubled"
+            + " until what the weights read is precise enough (engine 1.3: 1,000 first; 1.2: 10,000 first, doubled while"
+            + " the leader and the runner-up cannot be ordered) (default: " + EngineConfig.DEFAULT_DRAWS + ").")
     private Integer draws;
+
+    @Option(names = "--engine-version", paramLabel = "V", description = "The engine's arithmetic: one of the versions"
+            + " audit verify reproduces (default: the one new decisions use; --version names both).")
+    private String engineVersion;
 
     @Option(names = "--seed", paramLabel = "S", defaultValue = "0",
             description = "Seed of the Monte Carlo stream (default: ${DEFAULT-VALUE}).")
@@ -87,9 +93,10 @@ final class EvaluateCommand implements Callable<Integer> {
     @Override
     public Integer call() {
         EngineConfig config = config();
+        AllocationEngine engine = engine();
         Evaluation evaluation;
         try {
-            evaluation = new AllocationEngine().evaluate(arms, config, seed);
+            evaluation = engine.evaluate(arms, config, seed);
         } catch (IllegalArgumentException e) {
             throw new ParameterException(spec.commandLine(), e.getMessage(), e);
         }
@@ -101,6 +108,18 @@ final class EvaluateCommand implements Callable<Integer> {
         }
         out.flush();
         return 0;
+    }
+
+    private AllocationEngine engine() {
+        if (engineVersion == null) {
+            return new AllocationEngine();
+        }
+        try {
+            return new AllocationEngine(EngineVersion.of(engineVersion));
+        } catch (IllegalArgumentException e) {
+            throw new ParameterException(spec.commandLine(), "--engine-version " + engineVersion + ": "
+                    + e.getMessage(), e);
+        }
     }
 
     private EngineConfig config() {

@@ -8,6 +8,7 @@ import com.fasterxml.jackson.databind.ObjectMapper;
 import dev.runoff.engine.planning.ArmModel;
 import dev.runoff.engine.planning.OptimalAllocation;
 import dev.runoff.records.Decoded;
+import dev.runoff.engine.AllocationEngine;
 import dev.runoff.records.HashChain;
 import dev.runoff.records.RecordCodec;
 import dev.runoff.records.avro.DecisionRecord;
@@ -51,7 +52,7 @@ class DemoCommandIT {
         assertEquals("STOP", lastPeriod.get("decision").asText());
         for (JsonNode period : lines.subList(0, lines.size() - 1)) {
             assertEquals("MONTE_CARLO", period.get("method").asText(), "the default estimator: " + period);
-            assertTrue(period.get("draws").asInt() >= 10_000, period.toString());
+            assertTrue(period.get("draws").asInt() >= 1_000, period.toString());
             assertTrue(period.get("arms").get(0).has("pBestStandardError"), period.toString());
         }
         long trials = 0;
@@ -100,6 +101,8 @@ class DemoCommandIT {
         }
         assertEquals(periods, exported.size());
         assertTrue(HashChain.firstBreak(exported).isEmpty(), "hash chain of the exported records");
+        assertTrue(exported.stream().allMatch(d -> AllocationEngine.VERSION.equals(d.getEngineVersion())
+                && "1.3".equals(d.getEngineVersion())), "the job writes engine 1.3 decisions");
         assertEquals("flexible-bundle", exported.get(exported.size() - 1).getWinner());
         assertTrue(exported.stream().allMatch(d -> "demo".equals(d.getKeyId()) && d.getSignature() != null),
                 "every exported record is signed with the run's key");

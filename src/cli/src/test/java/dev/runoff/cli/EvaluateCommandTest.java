@@ -9,6 +9,7 @@ import com.fasterxml.jackson.databind.ObjectMapper;
 import dev.runoff.engine.AllocationEngine;
 import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.EngineConfig;
+import dev.runoff.engine.EngineVersion;
 import dev.runoff.engine.Evaluation;
 import dev.runoff.engine.core.Metric;
 import dev.runoff.engine.stats.BernoulliStats;
@@ -44,9 +45,25 @@ class EvaluateCommandTest {
     }
 
     private static Evaluation engineResult() {
+        return engineResult(new AllocationEngine());
+    }
+
+    private static Evaluation engineResult(AllocationEngine engine) {
         List<Arm> arms = List.of(new Arm("a", new BernoulliStats(1000, 120)), new Arm("b", new BernoulliStats(1000, 135)),
                 new Arm("c", new BernoulliStats(1000, 110)));
-        return new AllocationEngine().evaluate(arms, EngineConfig.defaults(Metric.BERNOULLI), 0L);
+        return engine.evaluate(arms, EngineConfig.defaults(Metric.BERNOULLI), 0L);
+    }
+
+    @Test
+    void engineVersionOptionChoosesTheArithmeticAndTheReportNamesIt() throws Exception {
+        for (EngineVersion version : EngineVersion.values()) {
+            JsonNode root = new ObjectMapper().readTree(run(with("--json", "--engine-version", version.label())).out());
+            Evaluation e = engineResult(new AllocationEngine(version));
+            assertEquals(version.label(), root.get("engineVersion").asText());
+            assertEquals(e.probabilityBest().draws(), root.get("draws").asInt());
+            assertEquals(e.probabilityBest().alpha(1), root.get("arms").get(1).get("pBest").asDouble(), 0.0);
+        }
+        assertEquals(run(with("--json")).out(), run(with("--json", "--engine-version", AllocationEngine.VERSION)).out());
     }
 
     @Test
@@ -56,8 +73,8 @@ class EvaluateCommandTest {
         assertEquals("", r.err());
         Evaluation e = engineResult();
         List<String> lines = r.out().lines().toList();
-        assertTrue(lines.get(1).startsWith("P(best) by Monte Carlo, 10000 draws; rule top-two-thompson, beta 0.5; seed 0"),
-                lines.get(1));
+        assertTrue(lines.get(1).startsWith("P(best) by Monte Carlo, " + e.probabilityBest().draws()
+                + " draws; rule top-two-thompson, beta 0.5; seed 0; engine " + AllocationEngine.VERSION), lines.get(1));
         String header = lines.get(3);
         for (String column : List.of("arm", "trials", "rate", "posterior mean", "95% interval", "P(best)", "std. error",
                 "weight")) {
@@ -114,19 +131,21 @@ class EvaluateCommandTest {
         assertEquals(0, r.exitCode(), r.err());
         JsonNode root = new ObjectMapper().readTree(r.out());
         assertEquals("monte-carlo", root.get("method").asText());
-        assertEquals(5000, root.get("draws").asInt());
+        int draws = root.get("draws").asInt();
+        assertTrue(draws >= 1000 && draws <= 5000, "draws " + draws);
         assertEquals(9, root.get("seed").asLong());
         for (JsonNode arm : root.get("arms")) {
             double p = arm.get("pBest").asDouble();
-            // Binomial standard error of a proportion over 5000 draws.
-            assertEquals(Math.sqrt(p * (1 - p) / 5000), arm.get("standardError").asDouble(), 1e-15);
+            // Binomial standard error of a proportion over the draws made.
+            assertEquals(Math.sqrt(p * (1 - p) / draws), arm.get("standardError").asDouble(), 1e-15);
         }
         assertEquals(r.out(), run(with("--json", "--method", "monte-carlo", "--draws", "5000", "--seed", "9")).out());
     }
 
     @Test
     void armsThatWinNoDrawShowTheClopperPearsonBoundAndTheirConditionalEstimate() throws Exception {
-        String[] args = {"evaluate", "--arm", "a=10/1000", "--arm", "b=500/1000", "--arm", "c=20/1000"};
+        String[] args = {"evaluate", "--arm", "a=10/1000", "--arm", "b=500/1000", "--arm", "c=20/1000",
+            "--engine-version", "1.2"};
         Run table = run(args);
         assertEquals(0, table.exitCode(), table.err());
         // One-sided 95% Clopper-Pearson bound at 0 of 10,000: 1 - 0.05^(1/10000) = 3.0e-4 (Clopper and Pearson
@@ -174,6 +193,8 @@ class EvaluateCommandTest {
         "--arm a=1/2 --arm b=3/4 --beta 1.5|--beta 1.5: beta must be in [0.0, 1.0], got 1.5",
         "--arm a=1/2 --arm b=3/4 --rule best|Invalid value for option '--rule': 'best' is not one of",
         "--arm a=1/2 --arm b=3/4 --draws 0|--draws 0: draws must be >= 1, got 0",
+        "--arm a=1/2 --arm b=3/4 --engine-version 1.1|--engine-version 1.1: engine version '1.1' is not supported;"
+            + " supported: 1.2, 1.3",
         "--arm a=1/2 --arm b=3/4 --prior 1,0|--prior 1.0,0.0: prior b must be a finite number > 0, got 0.0",
         // the floor and the message of definitions (DefinitionRules, metric.prior.a / .b)
         "--arm a=0/10 --arm b=0/20 --prior 0.02,1|--prior 0.02,1.0: prior a must be >= 0.03 (smaller Beta shapes"

@@ -26,7 +26,8 @@ public final class DefinitionConfigs {
     /**
      * Engine configuration: the definition's prior (or the documented default), rule and beta, the method
      * ({@link #method}), at most {@code draws} Monte Carlo draws, and guards built from warmUpTrials, floor,
-     * controlArm with controlShare (no control guard without a controlShare) and maxStep (none: 1).
+     * controlArm with controlShare (no control guard without a controlShare) and maxStep (none: 1), and the
+     * stopping rule's threshold on the leader's alpha ({@link StoppingConfig#leaderThreshold}).
      */
     public static EngineConfig engine(ExperimentDefinition definition, int draws) {
         AllocationSpec allocation = definition.getAllocation();
@@ -36,7 +37,7 @@ public final class DefinitionConfigs {
             guards = guards.withControl(definition.getControlArm(), allocation.getControlShare());
         }
         return new EngineConfig(Definitions.prior(definition), AllocationMethod.valueOf(allocation.getRule().name()),
-                allocation.getBeta(), method(allocation), draws, guards);
+                allocation.getBeta(), method(allocation), draws, guards, stopping(definition).leaderThreshold());
     }
 
     /**

@@ -4,6 +4,7 @@ import dev.runoff.engine.stopping.LeaderWithin;
 
 import dev.runoff.engine.AllocationEngine;
 import dev.runoff.engine.EngineConfig;
+import dev.runoff.engine.EngineVersion;
 import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.Evaluation;
 import dev.runoff.engine.allocation.GuardFlag;
@@ -51,18 +52,30 @@ public final class Evaluator {
     /** Largest rounding error of a probability of being best that {@link #bounded} absorbs. */
     public static final double ROUNDING = 1e-9;
 
-    private final AllocationEngine engine = new AllocationEngine();
+    private final AllocationEngine engine;
     private final int draws;
 
     /**
-     * An evaluator using {@code draws} Monte Carlo draws where the engine chooses Monte Carlo.
+     * An evaluator of the current engine version using at most {@code draws} Monte Carlo draws where the engine
+     * chooses Monte Carlo.
      *
      * @throws IllegalArgumentException when {@code draws < 1}
      */
     public Evaluator(int draws) {
+        this(draws, EngineVersion.CURRENT);
+    }
+
+    /**
+     * An evaluator computing with engine {@code version} (the audit recomputes a record with the version it
+     * names), using at most {@code draws} Monte Carlo draws.
+     *
+     * @throws IllegalArgumentException when {@code draws < 1}
+     */
+    public Evaluator(int draws, EngineVersion version) {
         if (draws < 1) {
             throw new IllegalArgumentException("draws must be >= 1, got " + draws);
         }
+        this.engine = new AllocationEngine(version);
         this.draws = draws;
     }
 

@@ -8,9 +8,11 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import dev.runoff.engine.AllocationEngine;
 import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.EngineConfig;
+import dev.runoff.engine.EngineVersion;
 import dev.runoff.engine.Evaluation;
 import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.allocation.Guards;
+import dev.runoff.engine.best.LeaderThreshold;
 import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.posterior.BetaPrior;
 import dev.runoff.engine.posterior.NormalGammaPrior;
@@ -74,7 +76,8 @@ public final class Replay {
         List<Arm> arms = arms(record);
         ExperimentDefinition def = record.getDefinition();
         EngineConfig config = config(def, record.getDraws() == 0 ? EngineConfig.DEFAULT_DRAWS : record.getDraws());
-        Evaluation full = new AllocationEngine().evaluate(arms, config, record.getSeed(), previousWeights);
+        AllocationEngine engine = new AllocationEngine(EngineVersion.of(record.getEngineVersion()));
+        Evaluation full = engine.evaluate(arms, config, record.getSeed(), previousWeights);
         double[] fullAlpha = Evaluator.bounded(full.probabilityBest()).alpha();
         String[] suspendedBy = guardrails(record, fullAlpha, where);
         // suspended arms are left out of the engine's second evaluation and of the stopping rule (at least two kept)
@@ -86,7 +89,7 @@ public final class Replay {
         }
         boolean narrow = kept.size() >= 2 && kept.size() < arms.size();
         List<Arm> keptArms = narrow ? kept.stream().map(arms::get).toList() : arms;
-        Evaluation evaluation = narrow ? new AllocationEngine().evaluate(keptArms, config, record.getSeed(),
+        Evaluation evaluation = narrow ? engine.evaluate(keptArms, config, record.getSeed(),
                 Narrowing.previous(previousWeights, kept)) : full;
         List<Integer> index = narrow ? kept : java.util.stream.IntStream.range(0, arms.size()).boxed().toList();
         assertEquals(record.getMethod().name(), evaluation.method().name(), where + " method");
@@ -255,7 +258,13 @@ public final class Replay {
         Guards guards = new Guards(a.getWarmUpTrials(), a.getFloor(), control,
                 a.getMaxStep() == null ? 1.0 : a.getMaxStep());
         return new EngineConfig(prior(def), AllocationMethod.valueOf(a.getRule().name()), a.getBeta(),
-                method(a), draws, guards);
+                method(a), draws, guards, leaderThreshold(def));
+    }
+
+    /** The posterior rule's threshold on the leader's alpha, 1 - delta at z = 3 (the job's z); none for the others. */
+    private static LeaderThreshold leaderThreshold(ExperimentDefinition def) {
+        return def.getStopping().getRule() == dev.runoff.records.avro.StoppingRule.POSTERIOR
+                ? new LeaderThreshold(1 - def.getStopping().getDelta(), 3.0) : null;
     }
 
     /** The schema's documented default: a null bestArmEstimator means SAMPLED (Monte Carlo). */

@@ -6,8 +6,8 @@ import dev.runoff.engine.core.Metric;
 
 import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.allocation.GuardedWeights;
-import dev.runoff.engine.best.ExactProbabilityBest;
 import dev.runoff.engine.best.AdaptiveMonteCarlo;
+import dev.runoff.engine.best.AlphaReaders;
 import dev.runoff.engine.best.ProbabilityBest;
 import dev.runoff.engine.best.ProbabilityBestEstimator;
 import dev.runoff.engine.posterior.Posterior;
@@ -18,16 +18,18 @@ import java.util.HashSet;
 import java.util.List;
 import java.util.Objects;
 import java.util.Set;
+import java.util.function.UnaryOperator;
 
 /**
  * The engine facade: from arms, a configuration and a seed to posteriors, the probability that each arm is
- * best, the rule's weights and the guarded serving weights. Stateless and thread-safe; every evaluation is
- * a pure function of (statistics, configuration, seed, previous weights): the same input gives the same
- * bits.
+ * best, the rule's weights and the guarded serving weights, with the arithmetic of one {@link EngineVersion}
+ * (the current one unless another is given). Immutable and thread-safe; every evaluation is a pure function
+ * of (version, statistics, configuration, seed, previous weights): the same input gives the same bits.
  *
  * <p>With {@link EngineConfig.MethodChoice#MONTE_CARLO}, the default, the probability that each arm is best
  * is estimated by {@link AdaptiveMonteCarlo} with at most {@link EngineConfig#draws()} joint draws: the draw
- * count adapts to whether the leader and the runner-up can be ordered, and arms that win no draw get a
+ * count follows the version's draw policy (1.3: until what this evaluation reads from the alphas, given by
+ * the rule and {@link EngineConfig#leaderThreshold()}, is precise enough), and arms that win no draw get a
  * positive conditional Monte Carlo estimate, so top-two Thompson sampling never falls into its degenerate
  * split merely because the draws ran out. {@link EngineConfig.MethodChoice#EXACT} integrates exactly;
  * {@link EngineConfig.MethodChoice#AUTO} integrates exactly for up to {@link #EXACT_ARM_LIMIT} arms and
@@ -36,17 +38,30 @@ import java.util.Set;
 public final class AllocationEngine {
 
     /**
-     * Version of the engine's arithmetic, recorded in every evaluation. It changes whenever a change to the
-     * engine can alter any output bit for the same input.
+     * Version of the arithmetic new evaluations use ({@link EngineVersion#CURRENT}), recorded in every
+     * evaluation. A change to the engine that can alter any output bit for the same input is a new
+     * {@link EngineVersion}.
      */
-    public static final String VERSION = "1.2";
+    public static final String VERSION = EngineVersion.CURRENT.label();
 
     /** Largest number of arms for which {@link EngineConfig.MethodChoice#AUTO} integrates exactly. */
     public static final int EXACT_ARM_LIMIT = 12;
 
-    /** A stateless engine. */
+    private final EngineVersion version;
+
+    /** An engine of the current version, {@link EngineVersion#CURRENT}. */
     public AllocationEngine() {
-        // no state
+        this(EngineVersion.CURRENT);
+    }
+
+    /** An engine computing with the arithmetic of {@code version}. */
+    public AllocationEngine(EngineVersion version) {
+        this.version = Objects.requireNonNull(version, "version");
+    }
+
+    /** The version this engine computes with. */
+    public EngineVersion version() {
+        return version;
     }
 
     /**
@@ -71,7 +86,7 @@ public final class AllocationEngine {
         Objects.requireNonNull(config, "config");
         List<String> names = checkArms(arms, config.metric());
         List<Posterior> posteriors = posteriors(arms, names, config);
-        ProbabilityBest pb = estimator(config, arms.size()).estimate(posteriors, seed);
+        ProbabilityBest pb = estimator(config, posteriors).estimate(posteriors, seed);
         double[] ruleWeights = config.rule().weights(posteriors, pb.alpha(), config.beta());
         GuardedWeights guarded = config.guards().apply(ruleWeights, names, trials(arms), previousWeights);
         List<Evaluation.PosteriorSummary> summaries = new ArrayList<>(posteriors.size());
@@ -79,7 +94,7 @@ public final class AllocationEngine {
             summaries.add(Evaluation.PosteriorSummary.of(p));
         }
         return new Evaluation(names, summaries, pb, ruleWeights, guarded.weights(), guarded.flags(),
-                config.rule(), config.beta(), seed, VERSION);
+                config.rule(), config.beta(), seed, version.label());
     }
 
     /**
@@ -121,10 +136,23 @@ public final class AllocationEngine {
         };
     }
 
-    private static ProbabilityBestEstimator estimator(EngineConfig config, int arms) {
-        return resolve(config.method(), arms) == ProbabilityBest.Method.EXACT
-                ? new ExactProbabilityBest()
-                : new AdaptiveMonteCarlo(config.draws());
+    private ProbabilityBestEstimator estimator(EngineConfig config, List<Posterior> posteriors) {
+        return resolve(config.method(), posteriors.size()) == ProbabilityBest.Method.EXACT
+                ? version.exact()
+                : version.monteCarlo(config.draws(), readers(config, posteriors));
+    }
+
+    /**
+     * What the evaluation reads from the alphas: the rule's weights when they vary smoothly with the alphas,
+     * the leader's and (top-two probability sampling) the runner-up's identity, and the configured stopping
+     * threshold on the leader's alpha.
+     */
+    static AlphaReaders readers(EngineConfig config, List<Posterior> posteriors) {
+        AllocationMethod rule = config.rule();
+        boolean smooth = rule == AllocationMethod.TOP_TWO_THOMPSON || rule == AllocationMethod.TOP_TWO_ADAPTIVE;
+        UnaryOperator<double[]> weights = smooth ? alpha -> rule.weights(posteriors, alpha, config.beta()) : null;
+        return new AlphaReaders(weights, rule == AllocationMethod.TOP_TWO_PROBABILITY ? 2 : 1,
+                config.leaderThreshold());
     }
 
     private static List<String> checkArms(List<Arm> arms, Metric metric) {

@@ -6,6 +6,7 @@ import dev.runoff.engine.core.Checks;
 
 import dev.runoff.engine.allocation.AllocationMethod;
 import dev.runoff.engine.allocation.Guards;
+import dev.runoff.engine.best.LeaderThreshold;
 import dev.runoff.engine.posterior.BetaPrior;
 import dev.runoff.engine.posterior.NormalGammaPrior;
 import dev.runoff.engine.posterior.Prior;
@@ -22,9 +23,12 @@ import java.util.Objects;
  * @param draws  the most Monte Carlo joint draws, {@code >= 1} (the cap of {@link dev.runoff.engine.best.AdaptiveMonteCarlo};
  *               used only when Monte Carlo is chosen)
  * @param guards the guards applied to the rule's weights
+ * @param leaderThreshold a stopping threshold on the leader's Monte Carlo alpha (the posterior rule's), or
+ *               {@code null}: engine 1.3 draws until the leader's alpha is clearly on one side of it
+ *               ({@link dev.runoff.engine.best.DecisionPrecision}); 1.2 ignores it
  */
 public record EngineConfig(Prior prior, AllocationMethod rule, double beta, MethodChoice method, int draws,
-                           Guards guards) {
+                           Guards guards, LeaderThreshold leaderThreshold) {
 
     /** Default leader share: the beta = 1/2 of Russo (2020), within a factor 2 of the optimal rate. */
     public static final double DEFAULT_BETA = 0.5;
@@ -41,6 +45,12 @@ public record EngineConfig(Prior prior, AllocationMethod rule, double beta, Meth
             throw new IllegalArgumentException("draws must be >= 1, got " + draws);
         }
         Objects.requireNonNull(guards, "guards");
+    }
+
+    /** A configuration without a stopping threshold on the leader's alpha. */
+    public EngineConfig(Prior prior, AllocationMethod rule, double beta, MethodChoice method, int draws,
+                        Guards guards) {
+        this(prior, rule, beta, method, draws, guards, null);
     }
 
     /**
@@ -61,32 +71,37 @@ public record EngineConfig(Prior prior, AllocationMethod rule, double beta, Meth
 
     /** This configuration with another prior. */
     public EngineConfig withPrior(Prior newPrior) {
-        return new EngineConfig(newPrior, rule, beta, method, draws, guards);
+        return new EngineConfig(newPrior, rule, beta, method, draws, guards, leaderThreshold);
     }
 
     /** This configuration with another rule. */
     public EngineConfig withRule(AllocationMethod newRule) {
-        return new EngineConfig(prior, newRule, beta, method, draws, guards);
+        return new EngineConfig(prior, newRule, beta, method, draws, guards, leaderThreshold);
     }
 
     /** This configuration with another beta. */
     public EngineConfig withBeta(double newBeta) {
-        return new EngineConfig(prior, rule, newBeta, method, draws, guards);
+        return new EngineConfig(prior, rule, newBeta, method, draws, guards, leaderThreshold);
     }
 
     /** This configuration with another method choice. */
     public EngineConfig withMethod(MethodChoice newMethod) {
-        return new EngineConfig(prior, rule, beta, newMethod, draws, guards);
+        return new EngineConfig(prior, rule, beta, newMethod, draws, guards, leaderThreshold);
     }
 
     /** This configuration with another number of Monte Carlo draws. */
     public EngineConfig withDraws(int newDraws) {
-        return new EngineConfig(prior, rule, beta, method, newDraws, guards);
+        return new EngineConfig(prior, rule, beta, method, newDraws, guards, leaderThreshold);
     }
 
     /** This configuration with other guards. */
     public EngineConfig withGuards(Guards newGuards) {
-        return new EngineConfig(prior, rule, beta, method, draws, newGuards);
+        return new EngineConfig(prior, rule, beta, method, draws, newGuards, leaderThreshold);
+    }
+
+    /** This configuration with another stopping threshold on the leader's alpha ({@code null}: none). */
+    public EngineConfig withLeaderThreshold(LeaderThreshold newThreshold) {
+        return new EngineConfig(prior, rule, beta, method, draws, guards, newThreshold);
     }
 
     /** How to compute the probability that each arm is best. */

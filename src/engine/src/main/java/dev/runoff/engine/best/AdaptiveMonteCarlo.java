@@ -1,6 +1,7 @@
 package dev.runoff.engine.best;
 
 import dev.runoff.engine.posterior.Posterior;
+import java.util.Arrays;
 import java.util.List;
 import java.util.Objects;
 import org.apache.commons.rng.UniformRandomProvider;
@@ -11,14 +12,13 @@ import org.apache.commons.rng.simple.RandomSource;
  * number adapts to the question the weights ask (which arm leads, which challenges), with conditional Monte
  * Carlo for the arms that win no draw.
  *
- * <p><b>Draw count.</b> Stage 0 makes {@code min(firstStage, maxDraws)} joint draws ({@value #FIRST_STAGE}
- * unless constructed otherwise); each further stage
- * doubles the total, capped at {@code maxDraws}. After each stage, with leader L and runner-up R the two arms
- * with the most wins (ties to the lower index) and {@code d = (w_L - w_R) / M}, the standard error of d is
- * {@code s = sqrt((p_L + p_R - d^2) / M)} (the variance of a difference of two multinomial cell proportions;
- * common practice). Drawing stops when {@code d >= Z * s} (the two are ordered) or {@code s <= RESOLUTION}
- * (they are too close for their order to move the weights by more than about a quarter of a percent), or
- * when the cap is reached. Every stage continues the same random stream and starts a new block layout, so
+ * <p><b>Draw count.</b> A {@link DrawPolicy} sets it. Stage 0 makes {@code min(policy.firstStage(), maxDraws)}
+ * joint draws; each further stage doubles the total, capped at {@code maxDraws}; drawing stops after the
+ * first stage the policy finds {@link DrawPolicy#settled settled}, or at the cap. Engine 1.2's policy,
+ * {@link LeaderOrder}, starts with {@value #FIRST_STAGE} draws and stops once the leader and the runner-up are
+ * ordered or too close for their order to matter; engine 1.3's, {@link DecisionPrecision}, draws until what
+ * the evaluation reads from the alphas is precise enough. Every stage continues the same random stream and
+ * starts a new block layout, so
  * the result after a stage does not depend on the cap: re-running with the recorded draws as the cap
  * reproduces a decision bit for bit, and a larger recorded count than the rule asks for shows up as a
  * difference.
@@ -46,23 +46,20 @@ import org.apache.commons.rng.simple.RandomSource;
  */
 public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
 
-    /** Joint draws of the first stage (when the cap allows). */
+    /** Joint draws of the first stage of engine 1.2's policy (when the cap allows). */
     public static final int FIRST_STAGE = 10_000;
-    /** Standard errors of the leader-runner-up difference that count as ordered. */
-    public static final double Z = 3.0;
-    /** Standard error of the leader-runner-up difference below which their order no longer matters. */
-    public static final double RESOLUTION = 0.0025;
     /** One-sided confidence level of {@link #zeroWinUpperBound}. */
     public static final double UPPER_BOUND_LEVEL = 0.95;
 
     private final int maxDraws;
-    private final int firstStage;
+    private final DrawPolicy policy;
     private final DrawSource source;
     private final ExactAlphas exact;
 
     /**
-     * An estimator drawing at most {@code maxDraws} joint draws, with a first stage of {@value #FIRST_STAGE},
-     * each posterior's own sampler and the quadrature of {@link ExactProbabilityBest}.
+     * Engine 1.2's estimator: at most {@code maxDraws} joint draws, the policy {@link LeaderOrder} with a first
+     * stage of {@value #FIRST_STAGE}, each posterior's own sampler and the quadrature of
+     * {@link ExactProbabilityBest}.
      *
      * @throws IllegalArgumentException if {@code maxDraws < 1}
      */
@@ -77,14 +74,24 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
      * @throws IllegalArgumentException if {@code maxDraws < 1} or {@code firstStage < 1}
      */
     public AdaptiveMonteCarlo(int maxDraws, int firstStage, DrawSource source, ExactAlphas exact) {
+        this(maxDraws, new LeaderOrder(firstStage), source, exact);
+    }
+
+    /**
+     * An estimator drawing at most {@code maxDraws} joint draws as {@code policy} decides, from {@code source},
+     * and integrating the arms that win no draw with {@code exact}.
+     *
+     * @throws IllegalArgumentException if {@code maxDraws < 1} or the policy's first stage is below 1
+     */
+    public AdaptiveMonteCarlo(int maxDraws, DrawPolicy policy, DrawSource source, ExactAlphas exact) {
         if (maxDraws < 1) {
             throw new IllegalArgumentException("maxDraws must be >= 1, got " + maxDraws);
         }
-        if (firstStage < 1) {
-            throw new IllegalArgumentException("firstStage must be >= 1, got " + firstStage);
+        this.policy = Objects.requireNonNull(policy, "policy");
+        if (policy.firstStage() < 1) {
+            throw new IllegalArgumentException("firstStage must be >= 1, got " + policy.firstStage());
         }
         this.maxDraws = maxDraws;
-        this.firstStage = firstStage;
         this.source = Objects.requireNonNull(source, "source");
         this.exact = Objects.requireNonNull(exact, "exact");
     }
@@ -114,53 +121,37 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
     @Override
     public ProbabilityBest estimate(List<? extends Posterior> posteriors, long seed) {
         UniformRandomProvider rng = RandomSource.XO_SHI_RO_256_PP.create(seed);
+        Integrated integrated = new Integrated(posteriors);
         Posterior.Sampler[] samplers = MonteCarloProbabilityBest.samplers(posteriors, rng, source);
         long[] wins = new long[samplers.length];
         int done = 0;
-        int target = Math.min(firstStage, maxDraws);
+        int target = Math.min(policy.firstStage(), maxDraws);
         while (true) {
             MonteCarloProbabilityBest.addWins(samplers, target - done, wins);
             done = target;
-            if (done == maxDraws || settled(wins, done)) {
+            if (done == maxDraws || policy.settled(wins, done, () -> integrated.of(conditional(wins)))) {
                 break;
             }
             target = (int) Math.min(2L * done, maxDraws);
         }
-        return estimates(posteriors, wins, done);
+        return estimates(wins, done, integrated);
     }
 
-    /** Whether leader and runner-up are ordered, or too close for the order to matter. */
-    static boolean settled(long[] wins, int draws) {
-        int leader = rank(wins, -1);
-        int runnerUp = rank(wins, leader);
-        double pl = (double) wins[leader] / draws;
-        double pr = (double) wins[runnerUp] / draws;
-        double d = pl - pr;
-        double s = Math.sqrt(Math.max(0, pl + pr - d * d) / draws);
-        return d >= Z * s || s <= RESOLUTION;
-    }
-
-    /** The arm with the most wins other than {@code skip}, ties to the lowest index. */
-    private static int rank(long[] wins, int skip) {
-        int best = -1;
+    /** The arms that won no draw, the leader aside: their alphas are integrated. */
+    private static boolean[] conditional(long[] wins) {
+        int leader = Ranking.leader(wins);
+        boolean[] conditional = new boolean[wins.length];
         for (int i = 0; i < wins.length; i++) {
-            if (i != skip && (best < 0 || wins[i] > wins[best])) {
-                best = i;
-            }
+            conditional[i] = wins[i] == 0 && i != leader;
         }
-        return best;
+        return conditional;
     }
 
-    private ProbabilityBest estimates(List<? extends Posterior> posteriors, long[] wins, int draws) {
+    private ProbabilityBest estimates(long[] wins, int draws, Integrated integratedAlphas) {
         int k = wins.length;
-        int leader = rank(wins, -1);
-        boolean[] conditional = new boolean[k];
-        boolean any = false;
-        for (int i = 0; i < k; i++) {
-            conditional[i] = wins[i] == 0 && i != leader;
-            any |= conditional[i];
-        }
-        double[] integrated = any ? exact.selected(posteriors, conditional) : new double[k];
+        int leader = Ranking.leader(wins);
+        boolean[] conditional = conditional(wins);
+        double[] integrated = integratedAlphas.of(conditional);
         double[] alpha = new double[k];
         double[] se = new double[k];
         double others = 0;
@@ -177,8 +168,35 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
         return new ProbabilityBest(alpha, se, ProbabilityBest.Method.MONTE_CARLO, draws, conditional);
     }
 
+    /**
+     * The integrated alphas of the arms a mask selects, 0 for the others (all 0 when it selects none),
+     * computed once per mask: a policy that asks for them after the last stage leaves the final estimate
+     * nothing to integrate again.
+     */
+    private final class Integrated {
+        private final List<? extends Posterior> posteriors;
+        private boolean[] mask;
+        private double[] alphas;
+
+        Integrated(List<? extends Posterior> posteriors) {
+            this.posteriors = posteriors;
+        }
+
+        double[] of(boolean[] which) {
+            if (mask == null || !Arrays.equals(mask, which)) {
+                boolean any = false;
+                for (boolean w : which) {
+                    any |= w;
+                }
+                alphas = any ? exact.selected(posteriors, which) : new double[which.length];
+                mask = which.clone();
+            }
+            return alphas.clone();
+        }
+    }
+
     @Override
     public String toString() {
-        return "AdaptiveMonteCarlo[maxDraws=" + maxDraws + "]";
+        return "AdaptiveMonteCarlo[maxDraws=" + maxDraws + ", " + policy + "]";
     }
 }

@@ -8,6 +8,7 @@ package dev.runoff.engine.stopping;
 
 import dev.runoff.engine.core.Arm;
 import dev.runoff.engine.core.Checks;
+import dev.runoff.engine.core.WilsonBound;
 import dev.runoff.engine.best.ProbabilityBest;
 import java.util.List;
 import java.util.Objects;

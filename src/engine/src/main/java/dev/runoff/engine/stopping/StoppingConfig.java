@@ -1,5 +1,6 @@
 package dev.runoff.engine.stopping;
 
+import dev.runoff.engine.best.LeaderThreshold;
 import dev.runoff.engine.core.Checks;
 import java.time.Duration;
 import java.time.Instant;
@@ -109,5 +110,15 @@ public record StoppingConfig(Rule rule, double delta, GlrThreshold glrThreshold,
     public StoppingConfig withDeadline(Instant instant) {
         return new StoppingConfig(rule, delta, glrThreshold, z, epsilon, minTrialsPerArm, minDuration,
                 budgetTrials, instant);
+    }
+
+    /**
+     * The threshold this rule compares the leader's Monte Carlo alpha with: {@code 1 - delta} at {@code z} for
+     * the posterior rule (see {@link StoppingCheck}), {@code null} for the rules that read no alpha level. An
+     * engine configuration carries it ({@link dev.runoff.engine.EngineConfig#withLeaderThreshold}) so that the
+     * draws can settle the rule's verdict.
+     */
+    public LeaderThreshold leaderThreshold() {
+        return rule == Rule.POSTERIOR ? new LeaderThreshold(1 - delta, z) : null;
     }
 }

@@ -2,6 +2,7 @@ package dev.runoff.engine.best;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
 
+import dev.runoff.engine.EngineVersion;
 import dev.runoff.engine.posterior.BetaPosterior;
 import dev.runoff.engine.posterior.Posterior;
 import dev.runoff.engine.posterior.StudentTPosterior;
@@ -36,6 +37,21 @@ class EstimatorBitsPinTest {
         for (int i = 0; i < expected.size(); i++) {
             assertEquals(expected.get(i), actual.get(i), "pinned value " + i);
         }
+    }
+
+    @Test
+    void engineVersion12GivesThePinnedBitsWhateverTheEvaluationReads() throws IOException {
+        // the adaptive Monte Carlo lines of the pins, through the estimator the version type hands out
+        List<String> expected = pinned().stream().filter(l -> l.contains(" adaptive-")).toList();
+        List<String> actual = new ArrayList<>();
+        List<List<Posterior>> cases = cases();
+        AlphaReaders everything = new AlphaReaders(a -> a, 2, new LeaderThreshold(0.999, 3));
+        for (int c = 0; c < cases.size(); c++) {
+            ProbabilityBest pb = EngineVersion.V1_2.monteCarlo(40_000, everything).estimate(cases.get(c), 1_000L + c);
+            add(actual, c, "adaptive-alpha", pb.alpha());
+            add(actual, c, "adaptive-se", pb.standardError());
+        }
+        assertEquals(expected.stream().sorted().toList(), actual.stream().sorted().toList());
     }
 
     private static List<String> pinned() throws IOException {

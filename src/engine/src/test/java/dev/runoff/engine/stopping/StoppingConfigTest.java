@@ -1,8 +1,10 @@
 package dev.runoff.engine.stopping;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertNull;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 
+import dev.runoff.engine.best.LeaderThreshold;
 import java.time.Duration;
 import java.time.Instant;
 import org.junit.jupiter.api.Test;
@@ -64,5 +66,13 @@ class StoppingConfigTest {
                 0.5, guards)));
         assertEquals(Verdict.Action.CONTINUE, new Verdict(VerdictReason.MIN_DURATION, Rule.GLR, 0, "A", 1, 2, 0.5, guards)
                 .action());
+    }
+
+    @Test
+    void onlyThePosteriorRuleReadsALevelOfTheLeadersAlpha() {
+        assertEquals(new LeaderThreshold(0.95, StoppingConfig.DEFAULT_Z), StoppingConfig.posterior(0.05).leaderThreshold());
+        assertEquals(new LeaderThreshold(0.99, 2.0), StoppingConfig.posterior(0.01).withZ(2.0).leaderThreshold());
+        assertNull(StoppingConfig.glr(0.05).leaderThreshold());
+        assertNull(StoppingConfig.indifference(0.05, 0.01).leaderThreshold());
     }
 }

@@ -1,0 +1,110 @@
+package dev.runoff.engine;
+
+import dev.runoff.engine.best.AdaptiveMonteCarlo;
+import dev.runoff.engine.best.AlphaReaders;
+import dev.runoff.engine.best.DecisionPrecision;
+import dev.runoff.engine.best.DrawPolicy;
+import dev.runoff.engine.best.DrawSource;
+import dev.runoff.engine.best.ExactAlphas;
+import dev.runoff.engine.best.ExactProbabilityBest;
+import dev.runoff.engine.best.LeaderOrder;
+import dev.runoff.engine.best.ProbabilityBestEstimator;
+import java.util.Arrays;
+import java.util.Objects;
+import java.util.Optional;
+import java.util.function.Function;
+import java.util.stream.Collectors;
+
+/**
+ * The arithmetics the engine supports, each named by the version string that decision records carry. A version
+ * bundles everything whose bits it fixes: the Monte Carlo estimator's draw policy (first stage and when to stop,
+ * {@link DrawPolicy}), its draw source ({@link DrawSource}) and its integration of arms that win no draw
+ * ({@link ExactAlphas}), and the exact estimator. The audit recomputes each record with the version it names.
+ *
+ * <p>Adding a version: add a constant with its own classes and make it {@link #CURRENT}; never change what an
+ * existing constant computes (every record ever written with it must replay bit for bit;
+ * {@code EstimatorBitsPinTest} pins 1.2).
+ *
+ * <p>Shared by every version, on 1.2's arithmetic: the posteriors and their summaries, the allocation rules
+ * and guards, {@link dev.runoff.engine.best.ExpectedGain} (value and expected-improvement rules) and
+ * {@link dev.runoff.engine.stopping.LeaderWithin} (indifference rule). Neither was the cost the versions were
+ * made for (issue 15 measured the Monte Carlo draws and the zero-win quadrature), so they stay where 1.2 put
+ * them; a version that changes them must route them through this type too.
+ */
+public enum EngineVersion {
+
+    /** Frozen: 10,000 first-stage draws ordered leader and runner-up ({@link LeaderOrder}), exact samplers, quadrature. */
+    V1_2("1.2", readers -> new LeaderOrder(AdaptiveMonteCarlo.FIRST_STAGE), DrawSource.POSTERIOR,
+            ExactAlphas.QUADRATURE, new ExactProbabilityBest()),
+
+    /**
+     * Draws until what the evaluation reads is precise enough ({@link DecisionPrecision}).
+     *
+     * <p>THE ONE PLACE FOR 1.3'S SAMPLER AND INTEGRATION: the three arguments after the policy are 1.2's for
+     * now; the table-based Beta sampler (a {@link DrawSource}) and the faster integration (an
+     * {@link ExactAlphas} and the exact estimator) replace them here, before any 1.3 record is kept.
+     */
+    V1_3("1.3", DecisionPrecision::new,
+            DrawSource.POSTERIOR,
+            ExactAlphas.QUADRATURE,
+            new ExactProbabilityBest());
+
+    /** The version new evaluations use. */
+    public static final EngineVersion CURRENT = V1_3;
+
+    private final String label;
+    private final Function<AlphaReaders, DrawPolicy> policy;
+    private final DrawSource source;
+    private final ExactAlphas zeroWinAlphas;
+    private final ProbabilityBestEstimator exact;
+
+    EngineVersion(String label, Function<AlphaReaders, DrawPolicy> policy, DrawSource source,
+                  ExactAlphas zeroWinAlphas, ProbabilityBestEstimator exact) {
+        this.label = label;
+        this.policy = policy;
+        this.source = source;
+        this.zeroWinAlphas = zeroWinAlphas;
+        this.exact = exact;
+    }
+
+    /** The version string records carry, e.g. {@code 1.3}. */
+    public String label() {
+        return label;
+    }
+
+    /** The exact estimator of this version (stateless, shared). */
+    public ProbabilityBestEstimator exact() {
+        return exact;
+    }
+
+    /**
+     * This version's Monte Carlo estimator for an evaluation that reads the alphas as {@code readers} says, with
+     * at most {@code maxDraws} joint draws.
+     *
+     * @throws IllegalArgumentException if {@code maxDraws < 1}
+     */
+    public AdaptiveMonteCarlo monteCarlo(int maxDraws, AlphaReaders readers) {
+        return new AdaptiveMonteCarlo(maxDraws, policy.apply(Objects.requireNonNull(readers, "readers")), source,
+                zeroWinAlphas);
+    }
+
+    /** The version whose {@link #label()} is {@code label}, if this engine supports it. */
+    public static Optional<EngineVersion> find(String label) {
+        return Arrays.stream(values()).filter(v -> v.label.equals(label)).findFirst();
+    }
+
+    /**
+     * The version whose {@link #label()} is {@code label}.
+     *
+     * @throws IllegalArgumentException naming the value and the supported versions when there is none
+     */
+    public static EngineVersion of(String label) {
+        return find(label).orElseThrow(() -> new IllegalArgumentException("engine version '" + label
+                + "' is not supported; supported: " + supported()));
+    }
+
+    /** The supported version strings, oldest first, e.g. {@code 1.2, 1.3}. */
+    public static String supported() {
+        return Arrays.stream(values()).map(EngineVersion::label).collect(Collectors.joining(", "));
+    }
+}
