@@ -7,8 +7,10 @@ import dev.runoff.engine.best.DrawPolicy;
 import dev.runoff.engine.best.DrawSource;
 import dev.runoff.engine.best.ExactAlphas;
 import dev.runoff.engine.best.ExactProbabilityBest;
+import dev.runoff.engine.best.FastExactProbabilityBest;
 import dev.runoff.engine.best.LeaderOrder;
 import dev.runoff.engine.best.ProbabilityBestEstimator;
+import dev.runoff.engine.best.TableDrawSource;
 import java.util.Arrays;
 import java.util.Objects;
 import java.util.Optional;
@@ -28,7 +30,7 @@ import java.util.stream.Collectors;
  * <p>Shared by every version, on 1.2's arithmetic: the posteriors and their summaries, the allocation rules
  * and guards, {@link dev.runoff.engine.best.ExpectedGain} (value and expected-improvement rules) and
  * {@link dev.runoff.engine.stopping.LeaderWithin} (indifference rule). Neither was the cost the versions were
- * made for (issue 15 measured the Monte Carlo draws and the zero-win quadrature), so they stay where 1.2 put
+ * made for (the measured cost was the Monte Carlo draws and the zero-win quadrature), so they stay where 1.2 put
  * them; a version that changes them must route them through this type too.
  */
 public enum EngineVersion {
@@ -38,16 +40,13 @@ public enum EngineVersion {
             ExactAlphas.QUADRATURE, new ExactProbabilityBest()),
 
     /**
-     * Draws until what the evaluation reads is precise enough ({@link DecisionPrecision}).
-     *
-     * <p>THE ONE PLACE FOR 1.3'S SAMPLER AND INTEGRATION: the three arguments after the policy are 1.2's for
-     * now; the table-based Beta sampler (a {@link DrawSource}) and the faster integration (an
-     * {@link ExactAlphas} and the exact estimator) replace them here, before any 1.3 record is kept.
+     * Draws until what the evaluation reads is precise enough ({@link DecisionPrecision}), from the table-based
+     * exact Beta sampler ({@link TableDrawSource}: Beta posteriors with both shapes at least 1; every other
+     * posterior uses its own sampler), and integrates with {@link FastExactProbabilityBest} (wider panels,
+     * pruned nodes, Beta distribution functions by Taylor steps between nodes).
      */
-    V1_3("1.3", DecisionPrecision::new,
-            DrawSource.POSTERIOR,
-            ExactAlphas.QUADRATURE,
-            new ExactProbabilityBest());
+    V1_3("1.3", DecisionPrecision::new, TableDrawSource.always(), ExactAlphas.FAST_QUADRATURE,
+            new FastExactProbabilityBest());
 
     /** The version new evaluations use. */
     public static final EngineVersion CURRENT = V1_3;

@@ -1,6 +1,8 @@
 package dev.runoff.engine.best;
 
+import dev.runoff.engine.posterior.BlockSampler;
 import dev.runoff.engine.posterior.Posterior;
+import java.util.Arrays;
 import java.util.List;
 import java.util.Objects;
 import org.apache.commons.rng.UniformRandomProvider;
@@ -105,12 +107,15 @@ public final class MonteCarloProbabilityBest implements ProbabilityBestEstimator
      */
     static void addWins(Posterior.Sampler[] samplers, int count, long[] wins) {
         double[] best = new double[BLOCK];
+        double[] drawn = new double[BLOCK];
         int[] winner = new int[BLOCK];
         for (int start = 0; start < count; start += BLOCK) {
             int n = Math.min(BLOCK, count - start);
-            fillFirst(samplers[0], best, winner, n);
+            draw(samplers[0], best, n);
+            Arrays.fill(winner, 0, n, 0);
             for (int arm = 1; arm < samplers.length; arm++) {
-                challenge(samplers[arm], arm, best, winner, n);
+                draw(samplers[arm], drawn, n);
+                challenge(drawn, arm, best, winner, n);
             }
             for (int j = 0; j < n; j++) {
                 wins[winner[j]]++;
@@ -118,17 +123,24 @@ public final class MonteCarloProbabilityBest implements ProbabilityBestEstimator
         }
     }
 
-    private static void fillFirst(Posterior.Sampler sampler, double[] best, int[] winner, int n) {
+    /**
+     * Writes {@code n} draws of {@code sampler} to {@code out}: one {@link BlockSampler#fill} call where the
+     * sampler offers it (the same values in the same order as {@code n} draws, so no bit depends on which).
+     */
+    private static void draw(Posterior.Sampler sampler, double[] out, int n) {
+        if (sampler instanceof BlockSampler block) {
+            block.fill(out, n);
+            return;
+        }
         for (int j = 0; j < n; j++) {
-            best[j] = sampler.draw();
-            winner[j] = 0;
+            out[j] = sampler.draw();
         }
     }
 
     /** Strictly greater wins, so a tie keeps the earlier (lower-index) arm. */
-    private static void challenge(Posterior.Sampler sampler, int arm, double[] best, int[] winner, int n) {
+    private static void challenge(double[] drawn, int arm, double[] best, int[] winner, int n) {
         for (int j = 0; j < n; j++) {
-            double v = sampler.draw();
+            double v = drawn[j];
             if (v > best[j]) {
                 best[j] = v;
                 winner[j] = arm;
