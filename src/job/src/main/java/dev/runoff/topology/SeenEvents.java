@@ -4,10 +4,12 @@ import org.apache.kafka.streams.state.WindowStore;
 import org.apache.kafka.streams.state.WindowStoreIterator;
 
 /**
- * Deduplication (stage 1, step 3): an event whose id was already seen for the same experiment within the window
- * is dropped and counted as a duplicate, not rejected (redelivery is normal). The window is measured on the
- * injected wall clock (when the job saw the event, not the event's own timestamp, so a redelivery with any
- * timestamp is caught).
+ * Deduplication (stage 1, step 3): an event whose id was already seen for the same experiment and unit within
+ * the window is dropped and counted as a duplicate, not rejected (redelivery is normal: a redelivered event
+ * names the same unit). Ids are kept per unit: two events of different units that share an id are both
+ * counted (a job before format 6 of the unit entries kept them per experiment and dropped the second). The
+ * window is measured on the injected wall clock (when the job saw the event, not the event's own timestamp,
+ * so a redelivery with any timestamp is caught).
  *
  * <p>Where the ids live. Each unit's entry ({@link UnitEntry}) keeps the ids of its newest events, so the read
  * and write of the entry that attribution does anyway also deduplicate: no separate store lookup and no second
@@ -43,7 +45,8 @@ final class SeenEvents {
         if (entry != null && entry.saw(event.eventId(), since)) {
             return true;
         }
-        if (entry != null && now <= entry.spilledUntil() && holds(overflow, event.eventKey(), since, now)) {
+        if (entry != null && now <= entry.spilledUntil()
+                && holds(overflow, overflowKey(event, event.eventId()), since, now)) {
             return true;
         }
         return now <= earlierUntil(now) && holds(earlier, event.eventKey(), since, now);
@@ -54,7 +57,7 @@ final class SeenEvents {
         UnitEntry.Remembered remembered = (entry == null ? UnitEntry.EMPTY : entry).remember(event.eventId(), now,
                 windowMs);
         for (UnitEntry.Seen s : remembered.spilled()) {
-            overflow.put(UnitEvent.eventKey(event.experimentId(), s.eventId()), SEEN, s.at());
+            overflow.put(overflowKey(event, s.eventId()), SEEN, s.at());
         }
         return remembered.entry();
     }
@@ -71,6 +74,11 @@ final class SeenEvents {
             }
         }
         return earlierUntil;
+    }
+
+    /** Key of an id in the overflow store: the unit's key, NUL, the event id. */
+    private static String overflowKey(UnitEvent event, String eventId) {
+        return UnitEvent.unitKey(event.experimentId(), event.unitId()) + '\u0000' + eventId;
     }
 
     private static boolean holds(WindowStore<String, byte[]> store, String key, long since, long now) {

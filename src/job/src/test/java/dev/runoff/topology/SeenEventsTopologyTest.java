@@ -55,6 +55,17 @@ class SeenEventsTopologyTest {
     }
 
     @Test
+    void idsAreKeptPerUnitSoTwoUnitsSharingAnIdAreBothCounted() {
+        job.define(TestDefinitions.perExposure(TestDefinitions.bernoulli("shared", "a", "b")));
+        job.event("u1", Events.exposure("shared", "u1", "e-1", "a", T0));
+        job.event("u2", Events.exposure("shared", "u2", "e-1", "a", T0));
+        job.event("u2", Events.exposure("shared", "u2", "e-1", "a", T0));
+        assertEquals(1, job.counters().count(JobCounters.DUPLICATE), "only u2's redelivery");
+        job.advance(TestDefinitions.RECOMPUTE_MS + 100);
+        assertEquals(new BernoulliStats(2, 0), job.state("shared").stats().get(0));
+    }
+
+    @Test
     void idsPushedOutOfTheEntryByItsBoundAreStillDeduplicated() {
         job.define(TestDefinitions.perExposure(TestDefinitions.bernoulli("many", "a", "b")));
         int events = UnitEntry.MAX_SEEN + 24;
