@@ -193,6 +193,14 @@ public final class RunoffTopology {
         return paths.get("unit-in-place").merge(rerouted, Named.as("events-at-unit"));
     }
 
+    /**
+     * The stores. A record cache is kept only where writes to one key repeat within a commit interval: the
+     * pre-aggregated sums, the experiments and the ended ids. Unit entries, deadlines, early outcomes and event
+     * ids are written once or twice per unit, so a cache coalesces little there; its entries filled the cache
+     * that all stores of a thread share, and each put into a cached store then evicted that store's own dirty
+     * entries, flushing the pre-aggregated sums far more often than once per commit (see "Fold throughput" in
+     * src/docs/performance.md).
+     */
     private static void addStores(StreamsBuilder builder, TopologySettings settings) {
         builder.addGlobalStore(Stores.keyValueStoreBuilder(Stores.inMemoryKeyValueStore(DEFINITIONS_STORE),
                         Serdes.String(), Serdes.ByteArray()).withLoggingDisabled(),
@@ -202,14 +210,14 @@ public final class RunoffTopology {
         for (String seen : List.of(DEDUPE_STORE, OVERFLOW_STORE)) {
             builder.addStateStore(Stores.windowStoreBuilder(Stores.persistentWindowStore(seen,
                             Duration.ofMillis(settings.dedupeWindowMs()), Duration.ofMillis(1), false),
-                    Serdes.String(), Serdes.ByteArray()).withCachingEnabled());
+                    Serdes.String(), Serdes.ByteArray()).withCachingDisabled());
         }
         builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(UNITS_STORE),
-                Serdes.String(), UnitEntry.SERDE).withCachingEnabled());
+                Serdes.String(), UnitEntry.SERDE).withCachingDisabled());
         builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(DEADLINES_STORE),
-                Serdes.String(), Serdes.ByteArray()).withCachingEnabled());
+                Serdes.String(), Serdes.ByteArray()).withCachingDisabled());
         builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(EARLY_STORE),
-                Serdes.String(), Waiting.SERDE).withCachingEnabled());
+                Serdes.String(), Waiting.SERDE).withCachingDisabled());
         builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(ENDED_STORE),
                 Serdes.String(), Serdes.Long()).withCachingEnabled());
         builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(DELTAS_STORE),
