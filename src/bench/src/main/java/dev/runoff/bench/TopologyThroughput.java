@@ -41,6 +41,7 @@ import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.common.TopicPartition;
 import org.apache.kafka.common.serialization.ByteArraySerializer;
 import org.apache.kafka.common.serialization.Serdes;
+import org.apache.kafka.streams.CloseOptions;
 import org.apache.kafka.streams.KafkaStreams;
 import org.apache.kafka.streams.StoreQueryParameters;
 import org.apache.kafka.streams.StreamsBuilder;
@@ -74,8 +75,11 @@ import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
  * src/bench/target/classes:target/runoff.jar dev.runoff.bench.TopologyThroughput 200000 3 inputs=murmur2,crc32}: events,
  * rounds, then options {@code partitions=4} (of the input topic), {@code threads=1} (stream threads of every
  * application; a list such as {@code 1,2,3} runs each count in every round, for a scale-out figure),
- * {@code apps=bare,job,unit}, {@code inputs=murmur2} and {@code commit.interval.ms=default} (Kafka Streams',
- * 100 ms with exactly_once_v2; a list such as {@code default,1000} runs each). Every combination of thread
+ * {@code apps=bare,job,unit} ({@code producer} times the bench's producer alone, writing the same events to a
+ * fresh topic), {@code inputs=murmur2}, {@code commit.interval.ms=default} (Kafka Streams', 100 ms with
+ * exactly_once_v2; a list such as {@code default,1000} runs each) and {@code preload=false} ({@code true}: the
+ * events are written while the application is stopped and the run is timed from its restart's RUNNING state,
+ * so that the producer's rate cannot bound it). Every combination of thread
  * count and commit interval runs once per round, in an order rotated by one each round so that none always
  * runs first.
  */
@@ -84,19 +88,22 @@ public final class TopologyThroughput {
     private static final int EXPERIMENTS = 20;
     /** One directory per process, so that two runs side by side never share a broker's files. */
     private static final Path DIR = Path.of("target", "bench-throughput-" + ProcessHandle.current().pid());
-    private static final List<String> APPS = List.of("bare", "job", "unit");
+    private static final List<String> APPS = List.of("bare", "job", "unit", "producer");
     private static final List<String> INPUTS = List.of("murmur2", "crc32");
 
     private final int events;
     private final int partitions;
     private final List<Integer> threads;
     private final List<String> commitIntervals;
+    private final boolean preload;
 
-    private TopologyThroughput(int events, int partitions, List<Integer> threads, List<String> commitIntervals) {
+    private TopologyThroughput(int events, int partitions, List<Integer> threads, List<String> commitIntervals,
+                               boolean preload) {
         this.events = events;
         this.partitions = partitions;
         this.threads = threads;
         this.commitIntervals = commitIntervals;
+        this.preload = preload;
     }
 
     /** Stream threads and commit interval of one group of runs; {@code label} tells groups apart in the output. */
@@ -127,19 +134,20 @@ public final class TopologyThroughput {
         Map<String, String> options = new HashMap<>();
         for (int i = 2; i < args.length; i++) {
             String[] pair = args[i].split("=", 2);
-            if (pair.length != 2 || !List.of("partitions", "threads", "apps", "inputs", "commit.interval.ms")
-                    .contains(pair[0])) {
+            if (pair.length != 2 || !List.of("partitions", "threads", "apps", "inputs", "commit.interval.ms",
+                    "preload").contains(pair[0])) {
                 throw new IllegalArgumentException("unknown option '" + args[i] + "' (partitions=, threads=, apps=, "
-                        + "inputs=, commit.interval.ms=)");
+                        + "inputs=, commit.interval.ms=, preload=)");
             }
             options.put(pair[0], pair[1]);
         }
-        List<String> apps = listOption(options.getOrDefault("apps", String.join(",", APPS)), APPS);
+        List<String> apps = listOption(options.getOrDefault("apps", "bare,job,unit"), APPS);
         List<String> inputs = listOption(options.getOrDefault("inputs", "murmur2"), INPUTS);
         TopologyThroughput bench = new TopologyThroughput(events,
                 Integer.parseInt(options.getOrDefault("partitions", "4")),
                 Stream.of(options.getOrDefault("threads", "1").split(",")).map(Integer::valueOf).toList(),
-                List.of(options.getOrDefault("commit.interval.ms", "default").split(",")));
+                List.of(options.getOrDefault("commit.interval.ms", "default").split(",")),
+                Boolean.parseBoolean(options.getOrDefault("preload", "false")));
         List<Setup> setups = bench.setups();
         delete(DIR);
         Map<String, List<Double>> rates = new LinkedHashMap<>();
@@ -159,8 +167,9 @@ public final class TopologyThroughput {
         }
         delete(DIR);
         System.out.printf(Locale.ROOT, "events=%d partitions=%d threads=%s experiments=%d cores=%d "
-                        + "commit.interval.ms=%s (default: 100 with exactly_once_v2)%n", events, bench.partitions,
-                bench.threads, EXPERIMENTS, Runtime.getRuntime().availableProcessors(), bench.commitIntervals);
+                        + "commit.interval.ms=%s (default: 100 with exactly_once_v2) preload=%s%n", events,
+                bench.partitions, bench.threads, EXPERIMENTS, Runtime.getRuntime().availableProcessors(),
+                bench.commitIntervals, bench.preload);
         for (Map.Entry<String, List<Double>> e : rates.entrySet()) {
             String variant = e.getKey().substring(e.getKey().indexOf('/') + 1);
             List<Double> bare = rates.get("bare/" + variant);
@@ -308,17 +317,25 @@ public final class TopologyThroughput {
     /**
      * One run of {@code app} on fresh topics: starts the application, lets the job accept the definitions,
      * then writes the events and times from the first write until the input and, for the job, its repartition
-     * topic of events are fully consumed. Returns events per second.
+     * topic of events are fully consumed. With {@code preload=true} the application is stopped after the
+     * definitions are accepted, the events are written, and the run is timed from the moment the restarted
+     * application is RUNNING, so the producer's rate does not bound it. {@code producer} times the writing
+     * alone. Returns events per second.
      */
     private double run(EmbeddedKafkaBroker broker, String name, String app, String input, Setup setup)
             throws Exception {
-        boolean job = !app.equals("bare");
+        boolean job = app.equals("job") || app.equals("unit");
         Map<String, String> config = settingsMap(name);
         if (app.equals("unit")) {
             config.put(TopologySettings.OUTCOMES_KEYED_BY_UNIT_KEY, "true");
         }
         TopologySettings settings = TopologySettings.fromMap(config);
         createTopics(broker, settings);
+        if (app.equals("producer")) {
+            long began = System.nanoTime();
+            produce(broker, settings, input);
+            return report(name, began, new JobCounters());
+        }
         JobCounters counters = new JobCounters();
         String application = "bench-" + name;
         Map<String, Object> overrides = new HashMap<>(Map.of(
@@ -331,38 +348,67 @@ public final class TopologyThroughput {
             overrides.put(StreamsConfig.COMMIT_INTERVAL_MS_CONFIG, setup.commitIntervalMs());
         }
         Properties props = RunoffTopology.streamsConfig(settings, counters, overrides);
-        Topology topology = job ? RunoffTopology.build(settings, props, counters) : countByKey(settings, props);
         List<String> perEvent = !job ? List.of(settings.outcomesTopic())
                 : List.of(settings.outcomesTopic(), application + (app.equals("unit")
                         ? "-events-to-unit-repartition" : "-events-by-unit-repartition"));
-        try (KafkaStreams streams = new KafkaStreams(topology, props);
-             Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG,
-                     broker.bootstrapServers()))) {
-            CountDownLatch running = new CountDownLatch(1);
-            streams.setStateListener((now, before) -> {
-                if (now == KafkaStreams.State.RUNNING) {
-                    running.countDown();
+        try (Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG,
+                broker.bootstrapServers()))) {
+            long[] runningAt = new long[1];
+            KafkaStreams streams = start(topology(job, settings, props, counters), props, name, runningAt);
+            try {
+                if (job) {
+                    produceDefinitions(broker, settings);
+                    awaitAccepted(streams);
                 }
-            });
-            streams.start();
-            if (!running.await(120, TimeUnit.SECONDS)) {
-                throw new IllegalStateException(name + " did not reach RUNNING");
+                if (preload) {
+                    streams.close(CloseOptions.groupMembershipOperation(
+                            CloseOptions.GroupMembershipOperation.LEAVE_GROUP));
+                    produce(broker, settings, input);
+                    streams = start(topology(job, settings, props, counters), props, name, runningAt);
+                    awaitNoLag(admin, application, perEvent);
+                    return report(name, runningAt[0], counters);
+                }
+                long began = System.nanoTime();
+                produce(broker, settings, input);
+                awaitNoLag(admin, application, perEvent);
+                return report(name, began, counters);
+            } finally {
+                streams.close();
             }
-            if (job) {
-                produceDefinitions(broker, settings);
-                awaitAccepted(streams);
-            }
-            long began = System.nanoTime();
-            produce(broker, settings, input);
-            awaitNoLag(admin, application, perEvent);
-            double seconds = (System.nanoTime() - began) / 1e9;
-            double rate = events / seconds;
-            System.out.printf(Locale.ROOT, "%s: %d events in %.2f s = %.0f events/s, in place %d, rerouted %d, "
-                            + "counted %s, load average %.1f%n", name, events, seconds, rate, counters.inPlaceEvents(),
-                    counters.reroutedEvents(), counters.snapshot(),
-                    ManagementFactory.getOperatingSystemMXBean().getSystemLoadAverage());
-            return rate;
         }
+    }
+
+    private static Topology topology(boolean job, TopologySettings settings, Properties props, JobCounters counters) {
+        return job ? RunoffTopology.build(settings, props, counters) : countByKey(settings, props);
+    }
+
+    /** Starts {@code topology} and waits until it is RUNNING, whose time (nanoTime) goes in {@code runningAt}. */
+    private static KafkaStreams start(Topology topology, Properties props, String name, long[] runningAt)
+            throws InterruptedException {
+        KafkaStreams streams = new KafkaStreams(topology, props);
+        CountDownLatch running = new CountDownLatch(1);
+        streams.setStateListener((now, before) -> {
+            if (now == KafkaStreams.State.RUNNING && running.getCount() > 0) {
+                runningAt[0] = System.nanoTime();
+                running.countDown();
+            }
+        });
+        streams.start();
+        if (!running.await(120, TimeUnit.SECONDS)) {
+            streams.close();
+            throw new IllegalStateException(name + " did not reach RUNNING");
+        }
+        return streams;
+    }
+
+    private double report(String name, long began, JobCounters counters) {
+        double seconds = (System.nanoTime() - began) / 1e9;
+        double rate = events / seconds;
+        System.out.printf(Locale.ROOT, "%s: %d events in %.2f s = %.0f events/s, in place %d, rerouted %d, "
+                        + "counted %s, load average %.1f%n", name, events, seconds, rate, counters.inPlaceEvents(),
+                counters.reroutedEvents(), counters.snapshot(),
+                ManagementFactory.getOperatingSystemMXBean().getSystemLoadAverage());
+        return rate;
     }
 
     /** Waits until the job's global store holds every definition. */

@@ -7,8 +7,10 @@ import dev.runoff.engine.stats.ValueStats;
 import java.nio.charset.StandardCharsets;
 import java.time.Duration;
 import java.util.ArrayList;
+import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Locale;
+import java.util.Map;
 import org.apache.kafka.common.header.internals.RecordHeaders;
 import org.apache.kafka.streams.KeyValue;
 import org.apache.kafka.streams.processor.PunctuationType;
@@ -22,6 +24,9 @@ import org.apache.kafka.streams.state.KeyValueStore;
  * Stage 1, step 4: turns events into per-arm statistics, one unit at a time (events arrive keyed by
  * experiment and unit, so every event of a unit reaches this task). {@link UnitCounting} is the rule.
  * <ul>
+ *   <li>First, deduplication ({@link SeenEvents}): an event whose id the unit's entry (or, past the entry's
+ *       bound, the overflow store) holds from within the window is dropped and counted; any other has its id
+ *       added to the entry, which the step that follows writes once.</li>
  *   <li>A trial event fixes the unit's arm (the first one is kept; a trial on another arm is rejected with
  *       {@code arm-conflict}). Unit counting (Bernoulli, the default): the unit becomes pending on its arm;
  *       per-exposure counting: one trial.</li>
@@ -62,11 +67,16 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
     private final TopologySettings settings;
     private final Rejections rejections;
     private final JobCounters counters;
-    private KeyValueStore<String, UnitState> units;
+    private KeyValueStore<String, UnitEntry> units;
     private KeyValueStore<String, byte[]> deadlines;
     private KeyValueStore<String, Waiting> early;
+    private SeenEvents seen;
     private String resumeFrom;
     private long lastReadAt;
+    /** The entry of the unit whose event is being processed, with the event's id. */
+    private UnitEntry current;
+    /** Whether {@link #current} has changed since it was last written. */
+    private boolean unsaved;
 
     Attribution(TopologySettings settings, Rejections rejections, JobCounters counters) {
         this.settings = settings;
@@ -80,6 +90,8 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         units = context.getStateStore(RunoffTopology.UNITS_STORE);
         deadlines = context.getStateStore(RunoffTopology.DEADLINES_STORE);
         early = context.getStateStore(RunoffTopology.EARLY_STORE);
+        seen = new SeenEvents(context.getStateStore(RunoffTopology.OVERFLOW_STORE),
+                context.getStateStore(RunoffTopology.DEDUPE_STORE), settings.dedupeWindowMs());
         lastReadAt = context.currentSystemTimeMs();
         context.schedule(Duration.ofMillis(settings.unitsCleanupIntervalMs()), PunctuationType.WALL_CLOCK_TIME,
                 this::cleanUp);
@@ -91,9 +103,16 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
     public void process(Record<byte[], UnitEvent> record) {
         UnitEvent event = record.value();
         String key = UnitEvent.unitKey(event.experimentId(), event.unitId());
-        UnitState unit = units.get(key);
+        UnitEntry entry = units.get(key);
         long now = context().currentSystemTimeMs();
+        if (seen.seen(entry, event, now)) {
+            counters.duplicate();
+            return;
+        }
         lastReadAt = now;
+        current = seen.remember(entry, event, now);
+        unsaved = true;
+        UnitState unit = current.unit();
         if (event.role() == UnitEvent.Role.TRIAL) {
             trial(event, record.timestamp(), key, unit, now);
         } else if (unit == null) {
@@ -101,6 +120,16 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         } else {
             outcome(event, record.timestamp(), key, unit, now);
         }
+        if (unsaved) {
+            units.put(key, current);
+        }
+    }
+
+    /** Stores {@code unit} in the entry being processed, with the ids it keeps. */
+    private void putUnit(String key, UnitState unit) {
+        current = current.withUnit(unit);
+        units.put(key, current);
+        unsaved = false;
     }
 
     private void trial(UnitEvent event, long timestamp, String key, UnitState unit, long now) {
@@ -112,7 +141,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
                     + "; the first arm is kept");
             return;
         }
-        units.put(key, step.unit());
+        putUnit(key, step.unit());
         if (unit == null && step.unit().unitLevel()) {
             deadlines.put(deadline(step.unit().closesAt(), CLOSE, key), new byte[0]);
         }
@@ -146,7 +175,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         UnitCounting.Step step = UnitCounting.convert(unit, event.timestamp(), event.arm() != null, now);
         switch (step.verdict()) {
             case TAKEN -> {
-                units.put(key, step.unit());
+                putUnit(key, step.unit());
                 pass(step.unit(), event.experimentId(), step.count(), timestamp);
             }
             case OUTSIDE_WINDOW -> reject(event, timestamp, RejectReason.UNATTRIBUTED, "timestamp: "
@@ -182,7 +211,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
     private void marked(UnitEvent event, long timestamp, String key, UnitState unit, UnitCounting.Step step,
                         String lateWhy) {
         switch (step.verdict()) {
-            case TAKEN -> units.put(key, step.unit());
+            case TAKEN -> putUnit(key, step.unit());
             case OUTSIDE_WINDOW -> reject(event, timestamp, RejectReason.UNATTRIBUTED, "timestamp: "
                     + (event.timestamp() - unit.firstTrialAt()) + " ms from the unit's first trial event, outside"
                     + " the conversion window of " + unit.windowMs() + " ms");
@@ -230,7 +259,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         early.delete(key);
         for (Waiting.Entry entry : waiting.events()) {
             counters.earlyMatched();
-            outcome(entry.event(), now, key, units.get(key), now);
+            outcome(entry.event(), now, key, current.unit(), now);
         }
     }
 
@@ -310,13 +339,13 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
     }
 
     private void close(String key, long closeTime, long now) {
-        UnitState unit = units.get(key);
-        if (unit == null) {
+        UnitEntry entry = units.get(key);
+        if (entry == null || entry.unit() == null) {
             return;
         }
-        UnitCounting.Step step = UnitCounting.close(unit, closeTime, now);
+        UnitCounting.Step step = UnitCounting.close(entry.unit(), closeTime, now);
         if (!step.count().isEmpty()) {
-            units.put(key, step.unit());
+            units.put(key, entry.withUnit(step.unit()));
             pass(step.unit(), key.substring(0, key.indexOf('\u0000')), step.count(), now);
         }
     }
@@ -350,7 +379,12 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
      * kinds are apart so that windows and graces, due by different clocks, are each read in time order.
      */
     static String deadline(long at, char kind, String unitKey) {
-        return kind + String.format(Locale.ROOT, "%019d", Math.max(0L, at)) + unitKey;
+        String time = Long.toString(Math.max(0L, at));
+        StringBuilder key = new StringBuilder(1 + DIGITS + unitKey.length()).append(kind);
+        for (int i = time.length(); i < DIGITS; i++) {
+            key.append('0');
+        }
+        return key.append(time).append(unitKey).toString();
     }
 
     private static long saturatedSum(long a, long b) {
@@ -358,20 +392,36 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         return ((a ^ sum) & (b ^ sum)) < 0 ? Long.MAX_VALUE : sum;
     }
 
-    /** Drops expired unit entries, looking at most at the configured number per call. */
+    /**
+     * Drops expired units, looking at most at the configured number of entries per call. An entry whose ids
+     * are still inside the deduplication window keeps them without its unit (a unit that returns is counted
+     * as a new one, as before); it is deleted once they are not.
+     */
     private void cleanUp(long now) {
-        List<String> expired = new ArrayList<>();
+        Map<String, UnitEntry> changed = new LinkedHashMap<>();
         int visited = 0;
-        try (KeyValueIterator<String, UnitState> it = units.range(resumeFrom, null)) {
+        try (KeyValueIterator<String, UnitEntry> it = units.range(resumeFrom, null)) {
             while (it.hasNext() && visited < settings.unitsCleanupMaxEntries()) {
-                KeyValue<String, UnitState> entry = it.next();
+                KeyValue<String, UnitEntry> entry = it.next();
                 visited++;
-                if (entry.value.expired(now, settings.unitsRetentionMarginMs())) {
-                    expired.add(entry.key);
+                UnitState unit = entry.value.unit();
+                if (unit != null && !unit.expired(now, settings.unitsRetentionMarginMs())) {
+                    continue;
+                }
+                if (!entry.value.remembersAt(now, settings.dedupeWindowMs())) {
+                    changed.put(entry.key, null);
+                } else if (unit != null) {
+                    changed.put(entry.key, entry.value.withUnit(null));
                 }
             }
             resumeFrom = it.hasNext() ? it.peekNextKey() : null;
         }
-        expired.forEach(units::delete);
+        changed.forEach((key, entry) -> {
+            if (entry == null) {
+                units.delete(key);
+            } else {
+                units.put(key, entry);
+            }
+        });
     }
 }

@@ -2,6 +2,7 @@ package dev.runoff.topology;
 
 import dev.runoff.records.RecordSigner;
 import java.time.Duration;
+import java.util.List;
 import java.util.Map;
 import java.util.Objects;
 import java.util.Properties;
@@ -30,7 +31,7 @@ import org.apache.kafka.streams.state.Stores;
  *  outcomes ──► validate-events ──► [events-by-unit repartition: key experiment|unit]
  *                 │  (global store of accepted definitions)        │
  *                 ▼                                                ▼
- *              rejected                     dedupe ─► attribute ─► pre-aggregate (flush every few s)
+ *              rejected               dedupe + attribute ─► pre-aggregate (flush every few s)
  *                                                        │                 │
  *                                                        ▼                 │ DELTA
  *                                                     rejected             ▼
@@ -45,12 +46,12 @@ import org.apache.kafka.streams.state.Stores;
  * </pre>
  *
  * <p>With {@code runoff.outcomes.keyed.by.unit=true} the events-by-unit repartition is replaced: an event
- * already on its unit's partition of the outcomes topic goes straight to dedupe, any other is written to the
+ * already on its unit's partition of the outcomes topic goes straight to attribution, any other is written to the
  * events-to-unit repartition topic, whose partitioner puts it on its unit's partition and which the same
  * tasks read ({@link UnitPlacement}):
  *
  * <pre>
- *  outcomes ──► validate-events ──┬── on its unit's partition ───────────────────┬──► dedupe ─► ...
+ *  outcomes ──► validate-events ──┬── on its unit's partition ───────────────────┬──► dedupe + attribute ─► ...
  *                                 └── elsewhere ─► [events-to-unit repartition] ─┘
  * </pre>
  *
@@ -62,8 +63,13 @@ public final class RunoffTopology {
 
     /** Name of the global store of accepted definitions. */
     public static final String DEFINITIONS_STORE = "accepted-definitions";
-    /** Name of the window store of seen event ids. */
+    /**
+     * Name of the window store of seen event ids that a job of an earlier version wrote; read, never written
+     * ({@link SeenEvents}).
+     */
     public static final String DEDUPE_STORE = "seen-event-ids";
+    /** Name of the window store of event ids pushed out of their unit's entry ({@link UnitEntry}). */
+    public static final String OVERFLOW_STORE = "seen-event-ids-overflow";
     /** Name of the store of unit attribution entries. */
     public static final String UNITS_STORE = "units";
     /** Name of the store of unit deadlines: conversion windows to close, early-outcome graces to end. */
@@ -148,10 +154,8 @@ public final class RunoffTopology {
                 () -> new EventValidator(DEFINITIONS_STORE, rejections), Named.as("validate-events")),
                 "validate-events");
         KStream<byte[], ArmDelta> attributed = divert(byUnit(events, settings, counters)
-                .process(() -> new Dedupe(DEDUPE_STORE, settings.dedupeWindowMs(), counters), Named.as("dedupe"),
-                        DEDUPE_STORE)
                 .process(() -> new Attribution(settings, rejections, counters), Named.as("attribute"), UNITS_STORE,
-                        DEADLINES_STORE, EARLY_STORE),
+                        DEADLINES_STORE, EARLY_STORE, DEDUPE_STORE, OVERFLOW_STORE),
                 "attribute");
         KStream<byte[], StageTwo> deltas = attributed.process(() -> new PreAggregate(DELTAS_STORE, settings),
                 Named.as("pre-aggregate"), DELTAS_STORE);
@@ -189,21 +193,31 @@ public final class RunoffTopology {
         return paths.get("unit-in-place").merge(rerouted, Named.as("events-at-unit"));
     }
 
+    /**
+     * The stores. A record cache is kept only where writes to one key repeat within a commit interval: the
+     * pre-aggregated sums, the experiments and the ended ids. Unit entries, deadlines, early outcomes and event
+     * ids are written once or twice per unit, so a cache coalesces little there; its entries filled the cache
+     * that all stores of a thread share, and each put into a cached store then evicted that store's own dirty
+     * entries, flushing the pre-aggregated sums far more often than once per commit (see "Fold throughput" in
+     * src/docs/performance.md).
+     */
     private static void addStores(StreamsBuilder builder, TopologySettings settings) {
         builder.addGlobalStore(Stores.keyValueStoreBuilder(Stores.inMemoryKeyValueStore(DEFINITIONS_STORE),
                         Serdes.String(), Serdes.ByteArray()).withLoggingDisabled(),
                 settings.acceptedDefinitionsTopic(),
                 Consumed.with(Serdes.String(), Serdes.ByteArray()).withName("accepted-definitions"),
                 () -> new AcceptedDefinitions(DEFINITIONS_STORE));
-        builder.addStateStore(Stores.windowStoreBuilder(Stores.persistentWindowStore(DEDUPE_STORE,
-                        Duration.ofMillis(settings.dedupeWindowMs()), Duration.ofMillis(1), false),
-                Serdes.String(), Serdes.ByteArray()).withCachingEnabled());
+        for (String seen : List.of(DEDUPE_STORE, OVERFLOW_STORE)) {
+            builder.addStateStore(Stores.windowStoreBuilder(Stores.persistentWindowStore(seen,
+                            Duration.ofMillis(settings.dedupeWindowMs()), Duration.ofMillis(1), false),
+                    Serdes.String(), Serdes.ByteArray()).withCachingDisabled());
+        }
         builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(UNITS_STORE),
-                Serdes.String(), UnitState.SERDE).withCachingEnabled());
+                Serdes.String(), UnitEntry.SERDE).withCachingDisabled());
         builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(DEADLINES_STORE),
-                Serdes.String(), Serdes.ByteArray()).withCachingEnabled());
+                Serdes.String(), Serdes.ByteArray()).withCachingDisabled());
         builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(EARLY_STORE),
-                Serdes.String(), Waiting.SERDE).withCachingEnabled());
+                Serdes.String(), Waiting.SERDE).withCachingDisabled());
         builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(ENDED_STORE),
                 Serdes.String(), Serdes.Long()).withCachingEnabled());
         builder.addStateStore(Stores.keyValueStoreBuilder(Stores.persistentKeyValueStore(DELTAS_STORE),

@@ -99,6 +99,11 @@ record UnitEvent(String experimentId, String unitId, String eventId, Role role, 
 
     /** {@code experimentId NUL eventId}, the deduplication key. */
     String eventKey() {
+        return eventKey(experimentId, eventId);
+    }
+
+    /** The deduplication key of event {@code eventId} of {@code experimentId}. */
+    static String eventKey(String experimentId, String eventId) {
         return experimentId + '\u0000' + eventId;
     }
 

@@ -31,14 +31,14 @@ record UnitState(String arm, long version, boolean unitLevel, long firstTrialAt,
                  long successes, long windowMs, boolean counted, long touchedAt, List<String> signals,
                  double valueCap, double valueSum, List<SignalValue> signalValues) {
 
-    /** Serde of the units store. */
-    static final InternalSerde<UnitState> SERDE = new InternalSerde<>(UnitState::encode, UnitState::decode);
-
-    private static final int FORMAT = 5;
+    /**
+     * The newest entry format without seen event ids; {@link UnitEntry} writes a later one. An earlier job's
+     * entries are read here: 2 (before guardrail signals), 3 (before values per unit: no cap, no sum), 4 (before
+     * value guardrails) and 5.
+     */
+    static final int LAST_FORMAT = 5;
     /** The format before value guardrails; entries an earlier job wrote are still read (no signal values). */
     private static final int FORMAT_WITHOUT_SIGNAL_VALUES = 4;
-    /** The format before values per unit; entries an earlier job wrote are still read (no cap, no sum). */
-    private static final int FORMAT_WITHOUT_VALUES = 3;
     /** The format before guardrail signals; entries an earlier job wrote are still read (no signals). */
     private static final int FORMAT_WITHOUT_SIGNALS = 2;
 
@@ -154,32 +154,35 @@ record UnitState(String arm, long version, boolean unitLevel, long firstTrialAt,
         return (counted || !unitLevel) && idle > windowMs && idle - windowMs > marginMs;
     }
 
-    private static byte[] encode(UnitState u) {
-        BinaryOut out = new BinaryOut().writeByte(FORMAT).writeString(u.arm).writeLong(u.version)
-                .writeBoolean(u.unitLevel).writeLong(u.firstTrialAt).writeLong(u.lastTrialAt).writeLong(u.trials)
-                .writeLong(u.successes).writeLong(u.windowMs).writeBoolean(u.counted).writeLong(u.touchedAt)
-                .writeInt(u.signals.size());
-        u.signals.forEach(out::writeString);
-        out.writeDouble(u.valueCap).writeDouble(u.valueSum).writeInt(u.signalValues.size());
-        u.signalValues.forEach(v -> out.writeString(v.signal()).writeDouble(v.cap()).writeDouble(v.sum()));
-        return out.toByteArray();
+    /** Writes this unit's fields as format {@link #LAST_FORMAT} lays them out, after the format byte. */
+    void write(BinaryOut out) {
+        out.writeString(arm).writeLong(version).writeBoolean(unitLevel).writeLong(firstTrialAt)
+                .writeLong(lastTrialAt).writeLong(trials).writeLong(successes).writeLong(windowMs)
+                .writeBoolean(counted).writeLong(touchedAt).writeInt(signals.size());
+        signals.forEach(out::writeString);
+        out.writeDouble(valueCap).writeDouble(valueSum).writeInt(signalValues.size());
+        signalValues.forEach(v -> out.writeString(v.signal()).writeDouble(v.cap()).writeDouble(v.sum()));
     }
 
-    private static UnitState decode(byte[] bytes) {
-        BinaryIn in = new BinaryIn(bytes);
-        int format = in.readByte();
-        if (format != FORMAT && format != FORMAT_WITHOUT_SIGNAL_VALUES && format != FORMAT_WITHOUT_VALUES
-                && format != FORMAT_WITHOUT_SIGNALS) {
-            throw new IllegalArgumentException("unit entry format " + format + " is not " + FORMAT);
+    /** Whether {@code format} is one whose unit fields {@link #read} knows (2 to {@link #LAST_FORMAT}). */
+    static boolean known(int format) {
+        return format >= FORMAT_WITHOUT_SIGNALS && format <= LAST_FORMAT;
+    }
+
+    /**
+     * Reads a unit's fields laid out as {@code format} (2 to {@link #LAST_FORMAT}) lays them out, after the
+     * format byte; fields the format has not got take their empty values.
+     */
+    static UnitState read(BinaryIn in, int format) {
+        if (!known(format)) {
+            throw new IllegalArgumentException("unit entry format " + format + " is not one of 2 to " + LAST_FORMAT);
         }
         boolean values = format >= FORMAT_WITHOUT_SIGNAL_VALUES;
-        UnitState state = new UnitState(in.readString(), in.readLong(), in.readBoolean(), in.readLong(),
+        return new UnitState(in.readString(), in.readLong(), in.readBoolean(), in.readLong(),
                 in.readLong(), in.readLong(), in.readLong(), in.readLong(), in.readBoolean(), in.readLong(),
                 format == FORMAT_WITHOUT_SIGNALS ? List.of() : readSignals(in),
                 values ? in.readDouble() : Double.NaN, values ? in.readDouble() : 0,
-                format == FORMAT ? readSignalValues(in) : List.of());
-        in.end();
-        return state;
+                format == LAST_FORMAT ? readSignalValues(in) : List.of());
     }
 
     private static List<SignalValue> readSignalValues(BinaryIn in) {

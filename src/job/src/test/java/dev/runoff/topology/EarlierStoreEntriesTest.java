@@ -36,12 +36,11 @@ class EarlierStoreEntriesTest {
         byte[] bytes = new BinaryOut().writeByte(2).writeString("a").writeLong(1).writeBoolean(true).writeLong(10)
                 .writeLong(12).writeLong(2).writeLong(1).writeLong(60_000).writeBoolean(false).writeLong(99)
                 .toByteArray();
-        UnitState unit = UnitState.SERDE.deserializer().deserialize("t", bytes);
+        UnitState unit = UnitEntryCodec.read(bytes);
         assertEquals(new UnitState("a", 1, true, 10, 12, 2, 1, 60_000, false, 99), unit);
         assertEquals(List.of(), unit.signals());
         UnitState signalled = unit.withSignal("payment-failed", 100);
-        assertEquals(signalled, UnitState.SERDE.deserializer().deserialize("t",
-                UnitState.SERDE.serializer().serialize("t", signalled)));
+        assertEquals(signalled, UnitEntryCodec.roundTrip(signalled));
     }
 
     @Test
@@ -49,14 +48,13 @@ class EarlierStoreEntriesTest {
         byte[] bytes = new BinaryOut().writeByte(3).writeString("a").writeLong(1).writeBoolean(true).writeLong(10)
                 .writeLong(12).writeLong(2).writeLong(1).writeLong(60_000).writeBoolean(false).writeLong(99)
                 .writeInt(1).writeString("payment-failed").toByteArray();
-        UnitState unit = UnitState.SERDE.deserializer().deserialize("t", bytes);
+        UnitState unit = UnitEntryCodec.read(bytes);
         assertEquals(new UnitState("a", 1, true, 10, 12, 2, 1, 60_000, false, 99, List.of("payment-failed")), unit);
         assertEquals(false, unit.valuePerUnit());
         assertEquals(0.0, unit.valueSum());
         UnitState valued = new UnitState("a", 1, true, 10, 12, 1, 0, 60_000, false, 99, List.of(), 250.0, 0)
                 .withValue(-12.5, 100).withValue(40, 101);
-        UnitState back = UnitState.SERDE.deserializer().deserialize("t", UnitState.SERDE.serializer().serialize("t",
-                valued));
+        UnitState back = UnitEntryCodec.roundTrip(valued);
         assertEquals(valued, back);
         assertEquals(27.5, back.valueSum());
         assertEquals(250.0, back.valueCap());

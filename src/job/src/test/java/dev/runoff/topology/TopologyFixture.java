@@ -23,6 +23,7 @@ import org.apache.kafka.common.serialization.StringDeserializer;
 import org.apache.kafka.streams.StreamsConfig;
 import org.apache.kafka.streams.TopologyTestDriver;
 import org.apache.kafka.streams.state.KeyValueStore;
+import org.apache.kafka.streams.state.WindowStore;
 import org.apache.kafka.streams.test.TestRecord;
 import org.apache.kafka.streams.TestInputTopic;
 import org.apache.kafka.streams.TestOutputTopic;
@@ -182,6 +183,11 @@ final class TopologyFixture implements AutoCloseable {
     /** The job's key-value store {@code name}, to read or to seed with entries an earlier version wrote. */
     <K, V> KeyValueStore<K, V> store(String name) {
         return driver.getKeyValueStore(name);
+    }
+
+    /** The job's window store {@code name}, to read or to seed with entries an earlier version wrote. */
+    WindowStore<String, byte[]> windowStore(String name) {
+        return driver.getWindowStore(name);
     }
 
     private <T extends org.apache.avro.specific.SpecificRecord> List<T> decode(TestOutputTopic<String, byte[]> topic,

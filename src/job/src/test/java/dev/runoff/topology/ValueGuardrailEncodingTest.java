@@ -24,15 +24,14 @@ class ValueGuardrailEncodingTest {
         UnitState unit = new UnitState("a", 1, true, 10, 12, 1, 0, 60_000, false, 99, List.of(), Double.NaN, 0)
                 .withSignal("refund-issued", 100).withSignalValue("refund-issued", 150, 40, 100)
                 .withSignalValue("refund-issued", 150, 130, 101);
-        UnitState back = UnitState.SERDE.deserializer().deserialize("t", UnitState.SERDE.serializer().serialize("t",
-                unit));
+        UnitState back = UnitEntryCodec.roundTrip(unit);
         assertEquals(unit, back);
         assertEquals(List.of(new UnitState.SignalValue("refund-issued", 150, 170)), back.signalValues());
         assertEquals(Map.of("refund-issued", 1.0), back.signalObservations(), "170 is capped at 150: 150 / 150");
         byte[] format4 = new BinaryOut().writeByte(4).writeString("a").writeLong(1).writeBoolean(true).writeLong(10)
                 .writeLong(12).writeLong(2).writeLong(1).writeLong(60_000).writeBoolean(false).writeLong(99)
                 .writeInt(1).writeString("payment-failed").writeDouble(250.0).writeDouble(27.5).toByteArray();
-        UnitState earlier = UnitState.SERDE.deserializer().deserialize("t", format4);
+        UnitState earlier = UnitEntryCodec.read(format4);
         assertEquals(new UnitState("a", 1, true, 10, 12, 2, 1, 60_000, false, 99, List.of("payment-failed"), 250.0,
                 27.5), earlier);
         assertEquals(List.of(), earlier.signalValues());
