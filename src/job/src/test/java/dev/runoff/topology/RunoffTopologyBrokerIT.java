@@ -1,6 +1,5 @@
 package dev.runoff.topology;
 
-import dev.runoff.records.Definitions;
 
 import dev.runoff.testkit.TestDefinitions;
 
@@ -19,7 +18,6 @@ import dev.runoff.records.avro.AllocationUpdate;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.ExperimentDefinition;
-import dev.runoff.records.avro.StoppingSpec;
 import java.nio.charset.StandardCharsets;
 import java.time.Duration;
 import java.util.ArrayList;
@@ -35,10 +33,7 @@ import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.streams.KafkaStreams;
-import org.apache.kafka.streams.StoreQueryParameters;
 import org.apache.kafka.streams.StreamsConfig;
-import org.apache.kafka.streams.state.QueryableStoreTypes;
-import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
 import org.junit.jupiter.api.AfterAll;
 import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
@@ -80,9 +75,9 @@ class RunoffTopologyBrokerIT {
         // Unit counting with a 15 s conversion window: each unit has one exposure and at most one click 100 ms
         // later (all stamped when production starts), so the counts equal the produced truth once the windows
         // have closed; the window covers the time the test takes to produce and the job to read the events.
-        List<ExperimentDefinition> definitions = List.of(endless(short3s(TestDefinitions.bernoulli("hero", "a", "b"))),
-                endless(short3s(TestDefinitions.bernoulli("cta", "red", "green", "blue"))),
-                endless(short3s(TestDefinitions.bernoulli("menu", "w", "x", "y", "z"))), endless(TestDefinitions.value("price", "low", "high")));
+        List<ExperimentDefinition> definitions = List.of(BrokerRuns.endless(short3s(TestDefinitions.bernoulli("hero", "a", "b"))),
+                BrokerRuns.endless(short3s(TestDefinitions.bernoulli("cta", "red", "green", "blue"))),
+                BrokerRuns.endless(short3s(TestDefinitions.bernoulli("menu", "w", "x", "y", "z"))), BrokerRuns.endless(TestDefinitions.value("price", "low", "high")));
         JobCounters counters = new JobCounters();
         Properties props = RunoffTopology.streamsConfig(SETTINGS, counters, Map.of(
                 StreamsConfig.APPLICATION_ID_CONFIG, "runoff-e2e",
@@ -98,7 +93,7 @@ class RunoffTopologyBrokerIT {
                         RecordCodec.definitions().encode(def)));
             }
             producer.flush();
-            awaitAccepted(streams, definitions.size());
+            BrokerRuns.awaitAccepted(streams, definitions.size(), TIMEOUT);
             Truth truth = produceEvents(producer, definitions);
             producer.flush();
 
@@ -159,26 +154,6 @@ class RunoffTopologyBrokerIT {
         }
     }
 
-    /** A definition that never stops: the test reads the final counts from CONTINUE decisions. */
-    private static ExperimentDefinition endless(ExperimentDefinition def) {
-        def.setStopping(StoppingSpec.newBuilder(def.getStopping()).setMinTrialsPerArm(1_000_000_000L).build());
-        def.setRecomputePeriodMs(1_000);
-        def.setHeartbeatMs(Definitions.MIN_HEARTBEAT_MS);
-        return def;
-    }
-
-    private static void awaitAccepted(KafkaStreams streams, int count) throws InterruptedException {
-        long deadline = System.nanoTime() + TIMEOUT.toNanos();
-        while (System.nanoTime() < deadline) {
-            ReadOnlyKeyValueStore<String, byte[]> store = streams.store(StoreQueryParameters.fromNameAndType(
-                    RunoffTopology.DEFINITIONS_STORE, QueryableStoreTypes.keyValueStore()));
-            if (store.approximateNumEntries() >= count) {
-                return;
-            }
-            Thread.sleep(100);
-        }
-        throw new AssertionError("definitions were not accepted within " + TIMEOUT);
-    }
 
     /** Exposures (each unit on one arm), clicks or values, 5% sent twice, and some bad records. */
     private static Truth produceEvents(KafkaProducer<String, byte[]> producer, List<ExperimentDefinition> defs) {

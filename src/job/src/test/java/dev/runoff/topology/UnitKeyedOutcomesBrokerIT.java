@@ -5,12 +5,10 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.broker.EmbeddedKafkaBroker;
 import dev.runoff.records.Decoded;
-import dev.runoff.records.Definitions;
 import dev.runoff.records.RecordCodec;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.ExperimentDefinition;
-import dev.runoff.records.avro.StoppingSpec;
 import dev.runoff.testkit.Directories;
 import dev.runoff.testkit.TestDefinitions;
 import java.nio.charset.StandardCharsets;
@@ -27,10 +25,7 @@ import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.streams.KafkaStreams;
-import org.apache.kafka.streams.StoreQueryParameters;
 import org.apache.kafka.streams.StreamsConfig;
-import org.apache.kafka.streams.state.QueryableStoreTypes;
-import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
 import org.junit.jupiter.api.AfterAll;
 import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
@@ -88,7 +83,7 @@ class UnitKeyedOutcomesBrokerIT {
                         RecordCodec.definitions().encode(def)));
             }
             producer.flush();
-            awaitAccepted(streams, definitions.size());
+            BrokerRuns.awaitAccepted(streams, definitions.size(), TIMEOUT);
             Map<String, long[][]> truth = produce(producer, definitions);
             producer.flush();
 
@@ -186,23 +181,6 @@ class UnitKeyedOutcomesBrokerIT {
 
     /** Never stops, recomputes every second, 15 s conversion window: the counts are read from CONTINUE decisions. */
     private static ExperimentDefinition endless(ExperimentDefinition def) {
-        ExperimentDefinition windowed = TestDefinitions.withWindow(def, 15_000);
-        windowed.setStopping(StoppingSpec.newBuilder(windowed.getStopping()).setMinTrialsPerArm(1_000_000_000L).build());
-        windowed.setRecomputePeriodMs(1_000);
-        windowed.setHeartbeatMs(Definitions.MIN_HEARTBEAT_MS);
-        return windowed;
-    }
-
-    private static void awaitAccepted(KafkaStreams streams, int count) throws InterruptedException {
-        long deadline = System.nanoTime() + TIMEOUT.toNanos();
-        while (System.nanoTime() < deadline) {
-            ReadOnlyKeyValueStore<String, byte[]> store = streams.store(StoreQueryParameters.fromNameAndType(
-                    RunoffTopology.DEFINITIONS_STORE, QueryableStoreTypes.keyValueStore()));
-            if (store.approximateNumEntries() >= count) {
-                return;
-            }
-            Thread.sleep(100);
-        }
-        throw new AssertionError("definitions were not accepted within " + TIMEOUT);
+        return BrokerRuns.endless(TestDefinitions.withWindow(def, 15_000));
     }
 }
