@@ -4,18 +4,11 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import dev.runoff.decision.Evaluator;
 import dev.runoff.decision.Evidence;
-import dev.runoff.decision.ExperimentState;
 import dev.runoff.engine.stats.BernoulliStats;
-import dev.runoff.records.HashChain;
-import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
-import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.records.avro.GuardrailDirection;
 import dev.runoff.records.avro.GuardrailSpec;
-import dev.runoff.records.avro.GuardrailState;
-import java.util.ArrayList;
 import java.util.List;
 import java.util.Map;
 import org.junit.jupiter.api.Test;
@@ -27,26 +20,10 @@ class GuardrailVerificationTest {
 
     /** Ten periods of 400 units per arm; wide has 8% failed payments, the others 2%. */
     static List<DecisionRecord> chain() {
-        ExperimentDefinition def = SimulatedJob.definition("ferry-layout", ARMS, 0);
-        def.setControlArm("classic");
-        def.setGuardrails(List.of(new GuardrailSpec("failed-payments", "payment-failed",
-                GuardrailDirection.HIGHER_IS_WORSE, 0.2, 0.05, null)));
-        Evaluator evaluator = new Evaluator(2_000);
-        long now = Chains.T0;
-        Evaluator.Result result = evaluator.evaluate(ExperimentState.start(def), now);
-        List<DecisionRecord> records = new ArrayList<>(List.of(result.decision()));
-        for (int round = 0; round < 10 && !result.next().stopped(); round++) {
-            ExperimentState state = result.next();
-            for (int i = 0; i < ARMS.size(); i++) {
-                long failed = i == 1 ? 32 : 8;
-                state = state.withDelta(i, new BernoulliStats(400, 40 + i), now)
-                        .withGuardrailUnits(i, 400, Map.of("payment-failed", failed));
-            }
-            now += SimulatedJob.PERIOD_MS;
-            result = evaluator.evaluate(state, now);
-            records.add(result.decision());
-        }
-        return records;
+        return GuardrailChains.tenPeriods("ferry-layout", ARMS, new GuardrailSpec("failed-payments",
+                "payment-failed", GuardrailDirection.HIGHER_IS_WORSE, 0.2, 0.05, null), (state, i, now) -> state
+                .withDelta(i, new BernoulliStats(400, 40 + i), now)
+                .withGuardrailUnits(i, 400, Map.of("payment-failed", i == 1 ? 32L : 8L)));
     }
 
     @Test
@@ -78,19 +55,11 @@ class GuardrailVerificationTest {
 
     @Test
     void aChangedGuardrailCountWithARebuiltChainFailsRecomputation() {
-        List<DecisionRecord> records = new ArrayList<>(chain());
-        int k = records.size() - 1;
-        DecisionRecord last = records.get(k);
-        List<ArmState> arms = new ArrayList<>(last.getArms());
-        ArmState wide = arms.get(1);
-        GuardrailState count = wide.getGuardrails().get(0);
-        arms.set(1, ArmState.newBuilder(wide).setGuardrails(List.of(GuardrailState.newBuilder(count)
-                .setHits(count.getHits() / 4).build())).build());
-        records.set(k, DecisionRecord.newBuilder(last).setArms(arms).build());
-        List<DecisionRecord> forged = HashChain.chain(records);
-        Finding first = new Verifier(0.001).verifyExperiment("ferry-layout", Chains.entries(forged)).firstFailure()
-                .orElseThrow();
-        assertEquals(last.getSequence(), first.sequence());
+        List<DecisionRecord> records = chain();
+        List<DecisionRecord> forged = GuardrailChains.withLastGuardrail(records, 1,
+                count -> count.setHits(count.getHits() / 4));
+        Finding first = GuardrailChains.firstFailure("ferry-layout", forged);
+        assertEquals(records.get(records.size() - 1).getSequence(), first.sequence());
         assertEquals(Check.RECOMPUTATION, first.check());
         // the first field that differs: the suspension lifted, the weights move
         assertTrue(first.field().startsWith("arms["), first.toString());

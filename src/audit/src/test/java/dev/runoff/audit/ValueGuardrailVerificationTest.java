@@ -5,19 +5,13 @@ import static org.junit.jupiter.api.Assertions.assertNotNull;
 import static org.junit.jupiter.api.Assertions.assertNull;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import dev.runoff.decision.Evaluator;
-import dev.runoff.decision.ExperimentState;
 import dev.runoff.engine.guardrail.MarginCheck;
 import dev.runoff.engine.guardrail.Direction;
 import dev.runoff.engine.stats.BernoulliStats;
-import dev.runoff.records.HashChain;
-import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
-import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.records.avro.GuardrailDirection;
 import dev.runoff.records.avro.GuardrailSpec;
 import dev.runoff.records.avro.GuardrailState;
-import java.util.ArrayList;
 import java.util.List;
 import java.util.Map;
 import org.junit.jupiter.api.Test;
@@ -33,26 +27,10 @@ class ValueGuardrailVerificationTest {
      * refund 30% of the cap on average, the others 10%.
      */
     static List<DecisionRecord> chain() {
-        ExperimentDefinition def = SimulatedJob.definition("ferry-refunds", ARMS, 0);
-        def.setControlArm("classic");
-        def.setGuardrails(List.of(new GuardrailSpec("refunds", SIGNAL, GuardrailDirection.HIGHER_IS_WORSE, 0.2,
-                0.05, 200.0)));
-        Evaluator evaluator = new Evaluator(2_000);
-        long now = Chains.T0;
-        Evaluator.Result result = evaluator.evaluate(ExperimentState.start(def), now);
-        List<DecisionRecord> records = new ArrayList<>(List.of(result.decision()));
-        for (int round = 0; round < 10 && !result.next().stopped(); round++) {
-            ExperimentState state = result.next();
-            for (int i = 0; i < ARMS.size(); i++) {
-                double total = i == 1 ? 120.25 : 40.5;
-                state = state.withDelta(i, new BernoulliStats(400, 40 + i), now)
-                        .withGuardrailUnits(i, 400, Map.of(SIGNAL, 150L), Map.of(SIGNAL, total));
-            }
-            now += SimulatedJob.PERIOD_MS;
-            result = evaluator.evaluate(state, now);
-            records.add(result.decision());
-        }
-        return records;
+        return GuardrailChains.tenPeriods("ferry-refunds", ARMS, new GuardrailSpec("refunds", SIGNAL,
+                GuardrailDirection.HIGHER_IS_WORSE, 0.2, 0.05, 200.0), (state, i, now) -> state
+                .withDelta(i, new BernoulliStats(400, 40 + i), now)
+                .withGuardrailUnits(i, 400, Map.of(SIGNAL, 150L), Map.of(SIGNAL, i == 1 ? 120.25 : 40.5)));
     }
 
     @Test
@@ -79,19 +57,11 @@ class ValueGuardrailVerificationTest {
 
     @Test
     void aChangedValueTotalWithARebuiltChainFailsRecomputation() {
-        List<DecisionRecord> records = new ArrayList<>(chain());
-        int k = records.size() - 1;
-        DecisionRecord last = records.get(k);
-        List<ArmState> arms = new ArrayList<>(last.getArms());
-        ArmState wide = arms.get(1);
-        GuardrailState count = wide.getGuardrails().get(0);
-        arms.set(1, ArmState.newBuilder(wide).setGuardrails(List.of(GuardrailState.newBuilder(count)
-                .setTotal(count.getTotal() / 3).build())).build());
-        records.set(k, DecisionRecord.newBuilder(last).setArms(arms).build());
-        List<DecisionRecord> forged = HashChain.chain(records);
-        Finding first = new Verifier(0.001).verifyExperiment("ferry-refunds", Chains.entries(forged)).firstFailure()
-                .orElseThrow();
-        assertEquals(last.getSequence(), first.sequence());
+        List<DecisionRecord> records = chain();
+        List<DecisionRecord> forged = GuardrailChains.withLastGuardrail(records, 1,
+                count -> count.setTotal(count.getTotal() / 3));
+        Finding first = GuardrailChains.firstFailure("ferry-refunds", forged);
+        assertEquals(records.get(records.size() - 1).getSequence(), first.sequence());
         assertEquals(Check.RECOMPUTATION, first.check());
         assertTrue(first.field().startsWith("arms["), first.toString());
     }
