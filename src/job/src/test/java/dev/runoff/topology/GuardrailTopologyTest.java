@@ -4,9 +4,6 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.decision.GuardrailCounts;
-import dev.runoff.decision.Replay;
-import dev.runoff.records.avro.AllocationUpdate;
-import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.records.avro.GuardrailDirection;
 import dev.runoff.records.avro.GuardrailSpec;
@@ -23,8 +20,10 @@ import org.junit.jupiter.api.Test;
  */
 class GuardrailTopologyTest {
 
-    private static final long WINDOW = 1_000;
+    private static final long WINDOW = GuardrailRuns.WINDOW;
     private static final String SIGNAL = "payment-failed";
+    private static final GuardrailSpec GUARDRAIL = new GuardrailSpec("failed-payments", SIGNAL,
+            GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.05, null);
 
     private final TopologyFixture job = new TopologyFixture();
 
@@ -34,12 +33,7 @@ class GuardrailTopologyTest {
     }
 
     private static ExperimentDefinition definition() {
-        ExperimentDefinition def = TestDefinitions.withWindow(TestDefinitions.bernoulli("ferry", "classic", "wide"),
-                WINDOW);
-        def.setControlArm("classic");
-        def.setGuardrails(List.of(new GuardrailSpec("failed-payments", SIGNAL, GuardrailDirection.HIGHER_IS_WORSE,
-                0.1, 0.05, null)));
-        return def;
+        return GuardrailRuns.ferry(GUARDRAIL);
     }
 
     @Test
@@ -79,28 +73,12 @@ class GuardrailTopologyTest {
 
     @Test
     void anArmFailingItsGuardrailGetsWeightZeroOnTheControlTopic() {
-        job.define(definition());
-        job.advance(150);
-        long t = job.clock();
-        for (int i = 0; i < 400; i++) {
-            String arm = i % 2 == 0 ? "classic" : "wide";
-            String unit = "u" + i;
-            job.event(unit, Events.exposure("ferry", unit, "x" + i, arm, t));
-            // wide: every second unit fails its payment; classic: one in fifty
-            boolean failed = arm.equals("wide") ? i % 4 == 1 : i % 100 == 0;
-            if (failed) {
-                job.event(unit, Events.signal("ferry", unit, "s" + i, SIGNAL, t + 5));
+        // wide: every second unit fails its payment; classic: one in fifty
+        GuardrailRuns.fourHundredUnits(job, GUARDRAIL, (run, unit, i, wide, t) -> {
+            if (wide ? i % 4 == 1 : i % 100 == 0) {
+                run.event(unit, Events.signal("ferry", unit, "s" + i, SIGNAL, t + 5));
             }
-        }
-        job.advance(WINDOW + 2 * TestDefinitions.RECOMPUTE_MS);
-        List<DecisionRecord> decisions = job.decisions();
-        DecisionRecord last = decisions.get(decisions.size() - 1);
-        assertEquals("failed-payments", last.getArms().get(1).getSuspendedBy());
-        assertEquals(0.0, last.getArms().get(1).getWeight());
-        Replay.assertChainReplays(decisions);
-        List<AllocationUpdate> updates = job.allocations();
-        AllocationUpdate control = updates.get(updates.size() - 1);
-        assertEquals(0.0, control.getWeights().get(1).getWeight(), "serving tiers stop sending units to wide");
-        assertEquals(1.0, control.getWeights().get(0).getWeight());
+        });
+        GuardrailRuns.assertWideSuspended(job, "failed-payments");
     }
 }

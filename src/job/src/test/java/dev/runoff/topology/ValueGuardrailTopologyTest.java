@@ -6,10 +6,8 @@ import static org.junit.jupiter.api.Assertions.assertNull;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.decision.GuardrailCounts;
-import dev.runoff.decision.Replay;
 import dev.runoff.engine.guardrail.Direction;
 import dev.runoff.engine.guardrail.MarginCheck;
-import dev.runoff.records.avro.AllocationUpdate;
 import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.records.avro.GuardrailDirection;
@@ -30,9 +28,11 @@ import org.junit.jupiter.api.Test;
  */
 class ValueGuardrailTopologyTest {
 
-    private static final long WINDOW = 1_000;
+    private static final long WINDOW = GuardrailRuns.WINDOW;
     private static final String SIGNAL = "refund-issued";
     private static final double CAP = 100;
+    private static final GuardrailSpec GUARDRAIL = new GuardrailSpec("refunds", SIGNAL,
+            GuardrailDirection.HIGHER_IS_WORSE, 0.1, 0.05, CAP);
 
     private final TopologyFixture job = new TopologyFixture();
 
@@ -42,12 +42,7 @@ class ValueGuardrailTopologyTest {
     }
 
     private static ExperimentDefinition definition() {
-        ExperimentDefinition def = TestDefinitions.withWindow(TestDefinitions.bernoulli("ferry", "classic", "wide"),
-                WINDOW);
-        def.setControlArm("classic");
-        def.setGuardrails(List.of(new GuardrailSpec("refunds", SIGNAL, GuardrailDirection.HIGHER_IS_WORSE, 0.1,
-                0.05, CAP)));
-        return def;
+        return GuardrailRuns.ferry(GUARDRAIL);
     }
 
     /** A signal event with a value, arm-less. */
@@ -97,25 +92,13 @@ class ValueGuardrailTopologyTest {
 
     @Test
     void anArmWhoseCappedMeanExceedsTheMarginIsSuspendedWithStatisticAndThreshold() {
-        job.define(definition());
-        job.advance(150);
-        long t = job.clock();
-        for (int i = 0; i < 400; i++) {
-            String arm = i % 2 == 0 ? "classic" : "wide";
-            String unit = "u" + i;
-            job.event(unit, Events.exposure("ferry", unit, "x" + i, arm, t));
-            // wide: every second unit refunds 150 (capped at 100); classic: one in ten refunds 40 of the cap 100
-            if (arm.equals("wide") && i % 4 == 1) {
-                job.event(unit, refund(unit, "r" + i, t + 5, 150));
-            } else if (arm.equals("classic") && i % 20 == 0) {
-                job.event(unit, refund(unit, "r" + i, t + 5, 40));
+        // wide: every second unit refunds 150 (capped at 100); classic: one in ten refunds 40 of the cap 100
+        GuardrailRuns.fourHundredUnits(job, GUARDRAIL, (run, unit, i, wide, t) -> {
+            if (wide ? i % 4 == 1 : i % 20 == 0) {
+                run.event(unit, refund(unit, "r" + i, t + 5, wide ? 150 : 40));
             }
-        }
-        job.advance(WINDOW + 2 * TestDefinitions.RECOMPUTE_MS);
-        List<DecisionRecord> decisions = job.decisions();
-        DecisionRecord last = decisions.get(decisions.size() - 1);
-        assertEquals("refunds", last.getArms().get(1).getSuspendedBy());
-        assertEquals(0.0, last.getArms().get(1).getWeight());
+        });
+        DecisionRecord last = GuardrailRuns.assertWideSuspended(job, "refunds");
         GuardrailState wide = last.getArms().get(1).getGuardrails().get(0);
         GuardrailState classic = last.getArms().get(0).getGuardrails().get(0);
         assertEquals(100.0, wide.getTotal(), "100 of wide's 200 units refund past the cap: 1 each");
@@ -127,10 +110,6 @@ class ValueGuardrailTopologyTest {
         assertEquals(direct.threshold(), wide.getThreshold());
         assertNull(classic.getStatistic(), "the reference is not tested");
         assertNotNull(wide.getThreshold());
-        Replay.assertChainReplays(decisions);
-        List<AllocationUpdate> updates = job.allocations();
-        AllocationUpdate control = updates.get(updates.size() - 1);
-        assertEquals(0.0, control.getWeights().get(1).getWeight(), "serving tiers stop sending units to wide");
     }
 
     @Test

@@ -142,7 +142,12 @@ class DefinitionValidationTest {
     @MethodSource("brokenDefinitions")
     void brokenDefinitionIsRejectedNamingTheField(String name, Consumer<ExperimentDefinition> change,
                                                   String field, Reason reason, String message) {
-        ExperimentDefinition def = Samples.bernoulli();
+        assertOnlyProblem(Samples.bernoulli(), change, field, reason, message);
+    }
+
+    /** {@code def} changed by {@code change} is rejected with exactly one problem, the one named. */
+    private static void assertOnlyProblem(ExperimentDefinition def, Consumer<ExperimentDefinition> change,
+                                          String field, Reason reason, String message) {
         change.accept(def);
         Decoded<ExperimentDefinition> decoded = Definitions.validate(def, Samples.NOW);
         Rejections.assertFirstProblem(decoded, field, reason, message);
@@ -199,21 +204,14 @@ class DefinitionValidationTest {
     @MethodSource("brokenValuePerUnitDefinitions")
     void brokenValuePerUnitDefinitionIsRejectedNamingTheField(String name, Consumer<ExperimentDefinition> change,
                                                              String field, Reason reason, String message) {
-        ExperimentDefinition def = Samples.valuePerUnit();
-        change.accept(def);
-        Decoded<ExperimentDefinition> decoded = Definitions.validate(def, Samples.NOW);
-        Rejections.assertFirstProblem(decoded, field, reason, message);
-        assertEquals(1, decoded.problems().size(), decoded.problems().toString());
+        assertOnlyProblem(Samples.valuePerUnit(), change, field, reason, message);
     }
 
     @Test
     void aValueCapIsRefusedForEveryOtherKind() {
         for (ExperimentDefinition def : List.of(Samples.bernoulli(), Samples.valueMetric())) {
-            def.getMetric().setValueCap(100.0);
-            Decoded<ExperimentDefinition> decoded = Definitions.validate(def, Samples.NOW);
-            Rejections.assertFirstProblem(decoded, "metric.valueCap", Reason.INCONSISTENT,
+            assertOnlyProblem(def, d -> d.getMetric().setValueCap(100.0), "metric.valueCap", Reason.INCONSISTENT,
                     "only used by kind VALUE_PER_UNIT, got 100.0");
-            assertEquals(1, decoded.problems().size(), decoded.problems().toString());
         }
     }
 
@@ -226,23 +224,16 @@ class DefinitionValidationTest {
 
     @Test
     void theMixtureRuleNeedsABernoulliMetric() {
-        ExperimentDefinition value = Samples.valueMetric();
-        value.getStopping().setRule(StoppingRule.MIXTURE);
-        Decoded<ExperimentDefinition> decoded = Definitions.validate(value, Samples.NOW);
-        Rejections.assertFirstProblem(decoded, "stopping.rule", Reason.INCONSISTENT,
-                "MIXTURE needs metric.kind BERNOULLI");
-        assertEquals(1, decoded.problems().size(), decoded.problems().toString());
+        assertOnlyProblem(Samples.valueMetric(), d -> d.getStopping().setRule(StoppingRule.MIXTURE), "stopping.rule",
+                Reason.INCONSISTENT, "MIXTURE needs metric.kind BERNOULLI");
     }
 
     @Test
     void theSequentialTRuleNeedsAValueMetricAndIsAcceptedForOne() {
-        ExperimentDefinition rates = Samples.bernoulli();
-        rates.getStopping().setRule(StoppingRule.SEQUENTIAL_T);
-        rates.getStopping().setEpsilon(null);
-        Decoded<ExperimentDefinition> decoded = Definitions.validate(rates, Samples.NOW);
-        Rejections.assertFirstProblem(decoded, "stopping.rule", Reason.INCONSISTENT,
-                "SEQUENTIAL_T needs metric.kind VALUE");
-        assertEquals(1, decoded.problems().size(), decoded.problems().toString());
+        assertOnlyProblem(Samples.bernoulli(), rates -> {
+            rates.getStopping().setRule(StoppingRule.SEQUENTIAL_T);
+            rates.getStopping().setEpsilon(null);
+        }, "stopping.rule", Reason.INCONSISTENT, "SEQUENTIAL_T needs metric.kind VALUE");
         ExperimentDefinition values = Samples.valueMetric();
         values.getStopping().setRule(StoppingRule.SEQUENTIAL_T);
         assertSame(values, Definitions.validate(values, Samples.NOW).orThrow());
