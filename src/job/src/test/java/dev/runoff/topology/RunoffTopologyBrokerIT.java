@@ -56,13 +56,7 @@ class RunoffTopologyBrokerIT {
     @BeforeAll
     static void startBroker() {
         broker = EmbeddedKafkaBroker.builder(Directories.fresh("topology")).build().start();
-        Map<String, String> compact = Map.of("cleanup.policy", "compact");
-        broker.createTopic(SETTINGS.outcomesTopic(), 4, Map.of());
-        broker.createTopic(SETTINGS.definitionsTopic(), 2, compact);
-        broker.createTopic(SETTINGS.acceptedDefinitionsTopic(), 2, compact);
-        broker.createTopic(SETTINGS.allocationsTopic(), 2, compact);
-        broker.createTopic(SETTINGS.decisionsTopic(), 2, Map.of());
-        broker.createTopic(SETTINGS.rejectedTopic(), 1, Map.of());
+        BrokerRuns.createTopics(broker, SETTINGS, 4);
     }
 
     @AfterAll
@@ -79,21 +73,12 @@ class RunoffTopologyBrokerIT {
                 BrokerRuns.endless(short3s(TestDefinitions.bernoulli("cta", "red", "green", "blue"))),
                 BrokerRuns.endless(short3s(TestDefinitions.bernoulli("menu", "w", "x", "y", "z"))), BrokerRuns.endless(TestDefinitions.value("price", "low", "high")));
         JobCounters counters = new JobCounters();
-        Properties props = RunoffTopology.streamsConfig(SETTINGS, counters, Map.of(
-                StreamsConfig.APPLICATION_ID_CONFIG, "runoff-e2e",
-                StreamsConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers(),
-                StreamsConfig.NUM_STREAM_THREADS_CONFIG, 2,
-                StreamsConfig.STATE_DIR_CONFIG, Directories.fresh("topology-state").toString(),
-                StreamsConfig.consumerPrefix("auto.offset.reset"), "earliest"));
+        Properties props = BrokerRuns.twoThreads(SETTINGS, counters, "runoff-e2e", broker,
+                Directories.fresh("topology-state"));
         try (KafkaStreams streams = new KafkaStreams(RunoffTopology.build(SETTINGS, props, counters), props);
              KafkaProducer<String, byte[]> producer = BrokerFixture.producer(broker)) {
             BrokerFixture.startAndAwaitRunning(streams, TIMEOUT);
-            for (ExperimentDefinition def : definitions) {
-                producer.send(new ProducerRecord<>(SETTINGS.definitionsTopic(), def.getExperimentId(),
-                        RecordCodec.definitions().encode(def)));
-            }
-            producer.flush();
-            BrokerRuns.awaitAccepted(streams, definitions.size(), TIMEOUT);
+            BrokerRuns.define(streams, producer, SETTINGS, definitions, TIMEOUT);
             Truth truth = produceEvents(producer, definitions);
             producer.flush();
 

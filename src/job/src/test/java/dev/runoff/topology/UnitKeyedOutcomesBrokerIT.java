@@ -25,7 +25,6 @@ import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.streams.KafkaStreams;
-import org.apache.kafka.streams.StreamsConfig;
 import org.junit.jupiter.api.AfterAll;
 import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
@@ -50,13 +49,7 @@ class UnitKeyedOutcomesBrokerIT {
     @BeforeAll
     static void startBroker() {
         broker = EmbeddedKafkaBroker.builder(Directories.fresh("unit-keyed")).build().start();
-        Map<String, String> compact = Map.of("cleanup.policy", "compact");
-        broker.createTopic(SETTINGS.outcomesTopic(), PARTITIONS, Map.of());
-        broker.createTopic(SETTINGS.definitionsTopic(), 2, compact);
-        broker.createTopic(SETTINGS.acceptedDefinitionsTopic(), 2, compact);
-        broker.createTopic(SETTINGS.allocationsTopic(), 2, compact);
-        broker.createTopic(SETTINGS.decisionsTopic(), 2, Map.of());
-        broker.createTopic(SETTINGS.rejectedTopic(), 1, Map.of());
+        BrokerRuns.createTopics(broker, SETTINGS, PARTITIONS);
     }
 
     @AfterAll
@@ -69,21 +62,12 @@ class UnitKeyedOutcomesBrokerIT {
         List<ExperimentDefinition> definitions = List.of(endless(TestDefinitions.bernoulli("hero", "a", "b")),
                 endless(TestDefinitions.bernoulli("cta", "red", "green", "blue")));
         JobCounters counters = new JobCounters();
-        Properties props = RunoffTopology.streamsConfig(SETTINGS, counters, Map.of(
-                StreamsConfig.APPLICATION_ID_CONFIG, "runoff-unit-keyed",
-                StreamsConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers(),
-                StreamsConfig.NUM_STREAM_THREADS_CONFIG, 2,
-                StreamsConfig.STATE_DIR_CONFIG, Directories.fresh("unit-keyed-state").toString(),
-                StreamsConfig.consumerPrefix("auto.offset.reset"), "earliest"));
+        Properties props = BrokerRuns.twoThreads(SETTINGS, counters, "runoff-unit-keyed", broker,
+                Directories.fresh("unit-keyed-state"));
         try (KafkaStreams streams = new KafkaStreams(RunoffTopology.build(SETTINGS, props, counters), props);
              KafkaProducer<String, byte[]> producer = BrokerFixture.producer(broker)) {
             BrokerFixture.startAndAwaitRunning(streams, TIMEOUT);
-            for (ExperimentDefinition def : definitions) {
-                producer.send(new ProducerRecord<>(SETTINGS.definitionsTopic(), def.getExperimentId(),
-                        RecordCodec.definitions().encode(def)));
-            }
-            producer.flush();
-            BrokerRuns.awaitAccepted(streams, definitions.size(), TIMEOUT);
+            BrokerRuns.define(streams, producer, SETTINGS, definitions, TIMEOUT);
             Map<String, long[][]> truth = produce(producer, definitions);
             producer.flush();
 
