@@ -1,10 +1,5 @@
 package dev.runoff.topology;
 
-
-import dev.runoff.testkit.TestDefinitions;
-
-import dev.runoff.testkit.Directories;
-
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertNotNull;
 import static org.junit.jupiter.api.Assertions.assertNull;
@@ -18,6 +13,8 @@ import dev.runoff.records.avro.AllocationUpdate;
 import dev.runoff.records.avro.ArmState;
 import dev.runoff.records.avro.DecisionRecord;
 import dev.runoff.records.avro.ExperimentDefinition;
+import dev.runoff.testkit.Directories;
+import dev.runoff.testkit.TestDefinitions;
 import java.nio.charset.StandardCharsets;
 import java.time.Duration;
 import java.util.ArrayList;
@@ -69,9 +66,11 @@ class RunoffTopologyBrokerIT {
         // Unit counting with a 15 s conversion window: each unit has one exposure and at most one click 100 ms
         // later (all stamped when production starts), so the counts equal the produced truth once the windows
         // have closed; the window covers the time the test takes to produce and the job to read the events.
-        List<ExperimentDefinition> definitions = List.of(BrokerRuns.endless(short3s(TestDefinitions.bernoulli("hero", "a", "b"))),
+        List<ExperimentDefinition> definitions = List.of(
+                BrokerRuns.endless(short3s(TestDefinitions.bernoulli("hero", "a", "b"))),
                 BrokerRuns.endless(short3s(TestDefinitions.bernoulli("cta", "red", "green", "blue"))),
-                BrokerRuns.endless(short3s(TestDefinitions.bernoulli("menu", "w", "x", "y", "z"))), BrokerRuns.endless(TestDefinitions.value("price", "low", "high")));
+                BrokerRuns.endless(short3s(TestDefinitions.bernoulli("menu", "w", "x", "y", "z"))),
+                BrokerRuns.endless(TestDefinitions.value("price", "low", "high")));
         JobCounters counters = new JobCounters();
         Properties props = BrokerRuns.twoThreads(SETTINGS, counters, "runoff-e2e", broker,
                 Directories.fresh("topology-state"));
@@ -138,7 +137,6 @@ class RunoffTopologyBrokerIT {
             assertEquals(KafkaStreams.State.RUNNING, streams.state());
         }
     }
-
 
     /** Exposures (each unit on one arm), clicks or values, 5% sent twice, and some bad records. */
     private static Truth produceEvents(KafkaProducer<String, byte[]> producer, List<ExperimentDefinition> defs) {
