@@ -16,11 +16,11 @@ class BinaryDecimalSignTest {
     @Test
     void signMatchesExactDecimalArithmeticOnRandomOperands() {
         SplittableRandom random = new SplittableRandom(20261202L);
-        for (int i = 0; i < 200_000; i++) {
+        for (int i = 0; i < 50_000; i++) {
             long a = random.nextLong(Long.MAX_VALUE) >>> random.nextInt(63);
             long n = random.nextLong(Long.MAX_VALUE) >>> random.nextInt(63);
-            int b = random.nextInt(-200, 200);
-            int p = random.nextInt(-60, 60);
+            int b = i % 2 == 0 ? random.nextInt(-200, 200) : random.nextInt(-700, 700);
+            int p = i % 2 == 0 ? random.nextInt(-60, 60) : random.nextInt(-400, 401);
             assertSign(a, b, n, p);
         }
     }
@@ -28,8 +28,9 @@ class BinaryDecimalSignTest {
     @Test
     void signMatchesExactDecimalArithmeticWhereBothSidesAreClose() {
         SplittableRandom random = new SplittableRandom(53L);
-        for (int i = 0; i < 100_000; i++) {
-            double x = random.nextDouble(1e-9, 1e9);
+        for (int i = 0; i < 30_000; i++) {
+            double x = i % 2 == 0 ? random.nextDouble(1e-9, 1e9)
+                    : Math.scalb(random.nextDouble(1, 2), random.nextInt(-1000, 1000));
             long bits = Double.doubleToRawLongBits(x);
             long m = (bits & ((1L << 52) - 1)) | (1L << 52);
             int e = (int) (bits >>> 52) - 1075;
