@@ -157,7 +157,7 @@ final class BinaryDecimalSign {
             return new Wide(Math.multiplyHigh(x, y) + (y >> 63 & x), x * y);
         }
 
-        /** This value plus {@code x} in [0, 2^63), staying below 2^127 as long as this value is below 2^127 - 2^63. */
+        /** This value plus {@code x} in [0, 2^63); below 2^127 while this value is below 2^127 - 2^63. */
         Wide plus(long x) {
             long sum = low + x;
             return new Wide(Long.compareUnsigned(sum, low) < 0 ? high + 1 : high, sum);
