@@ -184,7 +184,7 @@ public final class Evaluator {
     /**
      * The outputs of one evaluation.
      *
-     * @param decision the sealed decision record
+     * @param decision the sealed decision record; its definition is the state's own object, not a copy
      * @param update   the control record
      * @param next     the experiment's state afterwards
      */
@@ -205,7 +205,8 @@ public final class Evaluator {
         private Records() {
         }
 
-        static DecisionRecord decision(ExperimentState state, long sequence, long start, long now,
+        /** The decision record's fields but the seal's, on a builder that nothing else holds. */
+        static DecisionRecord.Builder decision(ExperimentState state, long sequence, long start, long now,
                                        Evaluation evaluation, ProbabilityBest best, Ruling decision,
                                        double[] weights, List<Guard> guards, GuardrailFindings findings) {
             ExperimentDefinition def = state.definition();
@@ -232,10 +233,7 @@ public final class Evaluator {
                     .setSeed(evaluation.seed())
                     .setDraws(best.draws())
                     .setMethod(dev.runoff.records.avro.EstimationMethod.valueOf(evaluation.method().name()))
-                    .setEngineVersion(evaluation.engineVersion())
-                    .setPreviousHash(state.lastHash())
-                    .setHash("")
-                    .build();
+                    .setEngineVersion(evaluation.engineVersion());
         }
 
         static AllocationUpdate update(ExperimentState next, long version, List<String> arms, double[] weights,

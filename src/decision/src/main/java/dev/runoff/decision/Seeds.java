@@ -1,9 +1,8 @@
 package dev.runoff.decision;
 
+import dev.runoff.records.Sha256;
 import java.nio.ByteBuffer;
 import java.nio.charset.StandardCharsets;
-import java.security.MessageDigest;
-import java.security.NoSuchAlgorithmException;
 import java.util.Objects;
 
 /**
@@ -27,14 +26,6 @@ public final class Seeds {
             throw new IllegalArgumentException("sequence must be >= 1, got " + sequence);
         }
         byte[] text = (experimentId + ":" + sequence).getBytes(StandardCharsets.UTF_8);
-        return ByteBuffer.wrap(sha256(text)).getLong();
-    }
-
-    private static byte[] sha256(byte[] data) {
-        try {
-            return MessageDigest.getInstance("SHA-256").digest(data);
-        } catch (NoSuchAlgorithmException e) {
-            throw new IllegalStateException("every Java platform must provide SHA-256", e);
-        }
+        return ByteBuffer.wrap(Sha256.digest(text)).getLong();
     }
 }

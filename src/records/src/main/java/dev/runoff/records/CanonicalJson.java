@@ -1,7 +1,6 @@
 package dev.runoff.records;
 
 import java.math.BigDecimal;
-import java.math.BigInteger;
 import java.math.MathContext;
 import java.math.RoundingMode;
 import java.util.Comparator;
@@ -308,8 +307,7 @@ public final class CanonicalJson {
      */
     private static final class JavaDigits {
         private static final long MAX_DIGITS = 100_000_000_000_000_000L;
-        private static final int MAX_FIVE_POWER = 400;
-        private static final BigInteger[] FIVE_POWERS = fivePowers();
+        private static final int MAX_EXPONENT = BinaryDecimalSign.maxDecimalExponent() - 2;
 
         private final long m;
         private final int e;
@@ -351,7 +349,7 @@ public final class CanonicalJson {
                 digits /= 10;
                 exponent++;
             }
-            if (exponent < -MAX_FIVE_POWER + 2 || exponent > MAX_FIVE_POWER - 2) {
+            if (exponent < -MAX_EXPONENT || exponent > MAX_EXPONENT) {
                 return null;
             }
             return new JavaDigits(value).isCanonical(digits, exponent)
@@ -359,43 +357,16 @@ public final class CanonicalJson {
         }
 
         private boolean isCanonical(long digits, int exponent) {
-            boolean nearest = compare(m, e, 10 * digits - 5, exponent - 1) > 0
-                    && compare(m, e, 10 * digits + 5, exponent - 1) < 0;
+            boolean nearest = BinaryDecimalSign.of(m, e, 10 * digits - 5, exponent - 1) > 0
+                    && BinaryDecimalSign.of(m, e, 10 * digits + 5, exponent - 1) < 0;
             return nearest && readsBack(digits, exponent) && (digits < 10
                     || !readsBack(digits / 10, exponent + 1) && !readsBack(digits / 10 + 1, exponent + 1));
         }
 
         private boolean readsBack(long digits, int exponent) {
-            int vsLow = -compare(lowM, lowE, digits, exponent);
-            int vsHigh = -compare(2 * m + 1, e - 1, digits, exponent);
+            int vsLow = -BinaryDecimalSign.of(lowM, lowE, digits, exponent);
+            int vsHigh = -BinaryDecimalSign.of(2 * m + 1, e - 1, digits, exponent);
             return vsLow > 0 && vsHigh < 0 || (m & 1) == 0 && (vsLow == 0 || vsHigh == 0);
-        }
-
-        /** The sign of {@code a 2^b - n 10^p}, exactly. */
-        private static int compare(long a, int b, long n, int p) {
-            BigInteger left = BigInteger.valueOf(a);
-            BigInteger right = BigInteger.valueOf(n);
-            if (p >= 0) {
-                right = right.multiply(FIVE_POWERS[p]);
-            } else {
-                left = left.multiply(FIVE_POWERS[-p]);
-            }
-            int shift = b - p;
-            if (shift >= 0) {
-                left = left.shiftLeft(shift);
-            } else {
-                right = right.shiftLeft(-shift);
-            }
-            return left.compareTo(right);
-        }
-
-        private static BigInteger[] fivePowers() {
-            BigInteger[] powers = new BigInteger[MAX_FIVE_POWER + 1];
-            powers[0] = BigInteger.ONE;
-            for (int i = 1; i < powers.length; i++) {
-                powers[i] = powers[i - 1].multiply(BigInteger.valueOf(5));
-            }
-            return powers;
         }
 
         private static int length(long digits) {

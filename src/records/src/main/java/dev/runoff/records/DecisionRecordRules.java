@@ -10,8 +10,10 @@ import dev.runoff.records.avro.Guard;
 import dev.runoff.records.avro.MetricKind;
 import dev.runoff.records.avro.StoppingSpec;
 import dev.runoff.records.avro.StudentTParams;
+import java.util.EnumSet;
 import java.util.List;
 import java.util.Objects;
+import java.util.Set;
 
 /**
  * Rules of {@link DecisionRecord}: a valid embedded definition that agrees with the record, per-arm numbers
@@ -34,7 +36,9 @@ final class DecisionRecordRules implements RecordRules<DecisionRecord> {
         checkArms(record.getArms(), def, problems);
         problems.closed("allocationBeta", record.getAllocationBeta(), 0, 1);
         List<Guard> guards = record.getGuards();
-        if (guards.stream().distinct().count() != guards.size()) {
+        Set<Guard> distinct = EnumSet.noneOf(Guard.class);
+        distinct.addAll(guards);
+        if (distinct.size() != guards.size()) {
             problems.add("guards", Reason.DUPLICATE, "each guard may appear once, got " + guards);
         }
         List<String> arms = record.getArms().stream().map(ArmState::getArm).toList();

@@ -2,13 +2,10 @@ package dev.runoff.records;
 
 import dev.runoff.records.avro.DecisionRecord;
 import java.nio.charset.StandardCharsets;
-import java.security.MessageDigest;
-import java.security.NoSuchAlgorithmException;
 import java.util.ArrayList;
 import java.util.HexFormat;
 import java.util.List;
 import java.util.OptionalInt;
-import java.util.regex.Pattern;
 
 /**
  * The per-experiment hash chain of decision records. The hash of a record is the SHA-256 (FIPS 180-4) of
@@ -31,7 +28,8 @@ public final class HashChain {
     private static final java.util.Set<String> UNHASHED = java.util.Set.of(HASH_FIELD, RecordSignatures.KEY_ID_FIELD,
             RecordSignatures.SIGNATURE_FIELD);
 
-    private static final Pattern HEX_64 = Pattern.compile("[0-9a-f]{64}");
+    /** Hex digits of a SHA-256 hash. */
+    private static final int HASH_DIGITS = 64;
 
     /**
      * The content and hash of the record this thread sealed last. A sealed record is usually checked again
@@ -45,11 +43,7 @@ public final class HashChain {
 
     /** SHA-256 of {@code data} as 64 lowercase hex digits. */
     public static String sha256Hex(byte[] data) {
-        try {
-            return HexFormat.of().formatHex(MessageDigest.getInstance("SHA-256").digest(data));
-        } catch (NoSuchAlgorithmException e) {
-            throw new IllegalStateException("every Java platform must provide SHA-256", e);
-        }
+        return HexFormat.of().formatHex(Sha256.digest(data));
     }
 
     /**
@@ -77,11 +71,23 @@ public final class HashChain {
      * @throws IllegalArgumentException when {@code previousHash} is not 64 lowercase hex digits
      */
     public static DecisionRecord seal(DecisionRecord record, String previousHash) {
+        return seal(DecisionRecord.newBuilder(record), previousHash);
+    }
+
+    /**
+     * The record {@code builder} builds, linked to {@code previousHash} and carrying its own hash, unsigned: as
+     * {@link #seal(DecisionRecord, String)} without first copying a record. The sealed record holds the very
+     * values given to the builder (a nested record or list set on it is shared, not copied), so a caller that
+     * keeps them must not change them afterwards.
+     *
+     * @throws IllegalArgumentException when {@code previousHash} is not 64 lowercase hex digits
+     */
+    public static DecisionRecord seal(DecisionRecord.Builder builder, String previousHash) {
         if (previousHash == null || !isHash(previousHash)) {
             throw new IllegalArgumentException("previousHash must be 64 lowercase hex digits, got " + previousHash);
         }
-        DecisionRecord sealed = DecisionRecord.newBuilder(record).setPreviousHash(previousHash).setHash("")
-                .setKeyId(null).setSignature(null).build();
+        DecisionRecord sealed = builder.setPreviousHash(previousHash).setHash("").setKeyId(null).setSignature(null)
+                .build();
         String hash = computeHash(sealed);
         sealed.setHash(hash);
         LAST_SEALED.set(SealedContent.of(sealed, hash));
@@ -123,6 +129,15 @@ public final class HashChain {
 
     /** True for 64 lowercase hex digits. */
     static boolean isHash(String text) {
-        return HEX_64.matcher(text).matches();
+        if (text.length() != HASH_DIGITS) {
+            return false;
+        }
+        for (int i = 0; i < HASH_DIGITS; i++) {
+            char c = text.charAt(i);
+            if (!(c >= '0' && c <= '9' || c >= 'a' && c <= 'f')) {
+                return false;
+            }
+        }
+        return true;
     }
 }
