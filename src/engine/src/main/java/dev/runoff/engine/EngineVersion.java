@@ -46,10 +46,18 @@ public enum EngineVersion {
      * pruned nodes, Beta distribution functions by Taylor steps between nodes).
      */
     V1_3("1.3", DecisionPrecision::new, TableDrawSource.always(), ExactAlphas.FAST_QUADRATURE,
+            new FastExactProbabilityBest()),
+
+    /**
+     * 1.3's draw policy, draw source and exact estimator; arms that win no draw are integrated each on its own
+     * panels from the peak of its integrand ({@link ExactAlphas#PEAK_QUADRATURE}: no tail ranges to solve, no
+     * deeper passes for tiny alphas).
+     */
+    V1_4("1.4", DecisionPrecision::new, TableDrawSource.always(), ExactAlphas.PEAK_QUADRATURE,
             new FastExactProbabilityBest());
 
     /** The version new evaluations use. */
-    public static final EngineVersion CURRENT = V1_3;
+    public static final EngineVersion CURRENT = V1_4;
 
     private final String label;
     private final Function<AlphaReaders, DrawPolicy> policy;

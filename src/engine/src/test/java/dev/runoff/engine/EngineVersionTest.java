@@ -36,11 +36,12 @@ class EngineVersionTest {
 
     @Test
     void versionsAreFoundByTheirLabelsAndTheCurrentOneIsWhatNewEvaluationsRecord() {
-        assertEquals("1.2, 1.3", EngineVersion.supported());
+        assertEquals("1.2, 1.3, 1.4", EngineVersion.supported());
         assertSame(EngineVersion.V1_2, EngineVersion.of("1.2"));
         assertSame(EngineVersion.V1_3, EngineVersion.of("1.3"));
+        assertSame(EngineVersion.V1_4, EngineVersion.of("1.4"));
         assertEquals(Optional.empty(), EngineVersion.find("1.1"));
-        assertSame(EngineVersion.V1_3, EngineVersion.CURRENT);
+        assertSame(EngineVersion.V1_4, EngineVersion.CURRENT);
         assertEquals(EngineVersion.CURRENT.label(), AllocationEngine.VERSION);
         assertSame(EngineVersion.CURRENT, new AllocationEngine().version());
         assertEquals(AllocationEngine.VERSION, new AllocationEngine().evaluate(CLEAR, BERNOULLI, 3L).engineVersion());
@@ -49,7 +50,7 @@ class EngineVersionTest {
     @Test
     void anUnknownVersionIsRejectedNamingTheSupportedOnes() {
         IllegalArgumentException e = assertThrows(IllegalArgumentException.class, () -> EngineVersion.of("1.1"));
-        assertEquals("engine version '1.1' is not supported; supported: 1.2, 1.3", e.getMessage());
+        assertEquals("engine version '1.1' is not supported; supported: 1.2, 1.3, 1.4", e.getMessage());
         assertThrows(NullPointerException.class, () -> new AllocationEngine(null));
     }
 
@@ -83,6 +84,19 @@ class EngineVersionTest {
         assertEquals(10_000, old.probabilityBest().draws());
         assertEquals(1_000, current.probabilityBest().draws());
         assertNotEquals(old.probabilityBest(), current.probabilityBest());
+    }
+
+    @Test
+    void version14KeepsTheDrawsOf13AndIntegratesTheArmsThatWinNone() {
+        Evaluation earlier = new AllocationEngine(EngineVersion.V1_3).evaluate(CLEAR, BERNOULLI, 5L);
+        Evaluation current = new AllocationEngine(EngineVersion.V1_4).evaluate(CLEAR, BERNOULLI, 5L);
+        ProbabilityBest a = earlier.probabilityBest();
+        ProbabilityBest b = current.probabilityBest();
+        assertEquals(a.draws(), b.draws());
+        for (int i = 0; i < a.alpha().length; i++) {
+            // Same draws: counted alphas equal; integrated ones within PeakQuadratureTest's relative tolerance.
+            assertEquals(a.alpha()[i], b.alpha()[i], 1e-9 * a.alpha()[i] + 1e-15, "arm " + i);
+        }
     }
 
     @Test

@@ -17,6 +17,12 @@ public interface ExactAlphas {
     ExactAlphas FAST_QUADRATURE = FastExactProbabilityBest::selected;
 
     /**
+     * Each selected arm's integral on its own panels from the peak of its integrand ({@link PeakQuadrature}):
+     * the integration of engine version 1.4.
+     */
+    ExactAlphas PEAK_QUADRATURE = PeakQuadrature::selected;
+
+    /**
      * The alphas of the arms selected by {@code which}, 0 for the others.
      *
      * @throws IllegalArgumentException if fewer than two posteriors are given or one is null

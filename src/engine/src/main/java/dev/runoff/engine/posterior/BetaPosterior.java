@@ -29,6 +29,11 @@ public final class BetaPosterior implements Posterior {
         this.beta = new IncompleteBeta(a, b);
     }
 
+    /** The log-space incomplete beta function of this posterior's shapes (immutable, shared). */
+    public IncompleteBeta incompleteBeta() {
+        return beta;
+    }
+
     /** The first shape parameter. */
     public double a() {
         return a;
