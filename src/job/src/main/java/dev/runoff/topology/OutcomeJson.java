@@ -209,13 +209,8 @@ final class OutcomeJson {
      * frac? exp?} of RFC 8259, section 6), or -1 when there is none.
      */
     private int decimalEnd() {
-        int i = pos;
-        if (i < in.length && in[i] == '-') {
-            i++;
-        }
-        int intStart = i;
-        i = digitsEnd(i);
-        if (i == intStart || (i - intStart > 1 && in[intStart] == '0')) {
+        int i = intPartEnd();
+        if (i < 0) {
             return -1;
         }
         int plain = i;
@@ -248,22 +243,32 @@ final class OutcomeJson {
     }
 
     /**
-     * The end of a JSON integer starting at {@code pos}: an optional minus, then {@code 0} or a digit 1-9
-     * followed by digits, at most {@link #MAX_DIGITS}, not followed by a fraction, an exponent or another
-     * digit; -1 when there is none.
+     * The end of a JSON integer starting at {@code pos}: its {@link #intPartEnd() integer part} with at most
+     * {@link #MAX_DIGITS} digits, not followed by a fraction or an exponent; -1 when there is none.
      */
     private int integerEnd() {
+        int end = intPartEnd();
+        if (end < 0 || end - pos - (in[pos] == '-' ? 1 : 0) > MAX_DIGITS) {
+            return -1;
+        }
+        if (end < in.length && (in[end] == '.' || in[end] == 'e' || in[end] == 'E')) {
+            return -1;
+        }
+        return end;
+    }
+
+    /**
+     * The end of the integer part of a JSON number starting at {@code pos} (RFC 8259, section 6): an optional
+     * minus, then {@code 0} or a digit 1-9 followed by digits; -1 when there is none.
+     */
+    private int intPartEnd() {
         int i = pos;
         if (i < in.length && in[i] == '-') {
             i++;
         }
         int digits = i;
         i = digitsEnd(i);
-        int count = i - digits;
-        if (count == 0 || count > MAX_DIGITS || (count > 1 && in[digits] == '0')) {
-            return -1;
-        }
-        if (i < in.length && (in[i] == '.' || in[i] == 'e' || in[i] == 'E')) {
+        if (i == digits || (i - digits > 1 && in[digits] == '0')) {
             return -1;
         }
         return i;
