@@ -6,7 +6,9 @@ import static org.junit.jupiter.api.Assertions.assertNull;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.records.Decoded;
+import dev.runoff.records.Format;
 import dev.runoff.records.RecordCodec;
+import dev.runoff.records.avro.EventType;
 import dev.runoff.records.avro.OutcomeEvent;
 import java.nio.charset.StandardCharsets;
 import java.util.List;
@@ -83,6 +85,25 @@ class OutcomeJsonTest {
     void leavesEverythingElseToTheFullDecoder(String json) {
         byte[] bytes = json.getBytes(StandardCharsets.UTF_8);
         assertNull(OutcomeJson.read(bytes));
+    }
+
+    /** What the records package writes as JSON (its canonical form, sorted keys) is read to the same event. */
+    @Test
+    void readsTheJsonTheRecordsPackageWrites() {
+        List<OutcomeEvent> events = List.of(
+                new OutcomeEvent("x", "u", "e", EventType.EXPOSURE, NOW, "a", null, null),
+                new OutcomeEvent("x", "u", "e", EventType.VALUE, NOW, null, 12.25, null),
+                new OutcomeEvent("x", "u", "e", EventType.VALUE, NOW, "b", 3.0, null),
+                new OutcomeEvent("x", "u", "e", EventType.VALUE, NOW, "b", -1e-7, null),
+                new OutcomeEvent("x", "u", "e", EventType.CONVERSION, NOW, null, 9.5e14, "payment-failed"));
+        for (OutcomeEvent event : events) {
+            byte[] bytes = CODEC.encode(event, Format.JSON);
+            OutcomeEvent read = OutcomeJson.read(bytes);
+            assertNotNull(read, new String(bytes, StandardCharsets.UTF_8));
+            assertEquals(event.toString(), read.toString());
+            assertEquals(bits(event.getValue()), bits(read.getValue()));
+            assertSameAsFullDecoder(bytes);
+        }
     }
 
     @Test
