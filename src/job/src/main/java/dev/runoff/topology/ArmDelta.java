@@ -37,6 +37,9 @@ record ArmDelta(String experimentId, String arm, long version, ArmStats stats, l
 
     /** {@code a} and {@code b} summed per signal. */
     static java.util.Map<String, Long> sum(java.util.Map<String, Long> a, java.util.Map<String, Long> b) {
+        if (b.isEmpty()) {
+            return a;
+        }
         java.util.Map<String, Long> out = new java.util.TreeMap<>(a);
         b.forEach((signal, units) -> out.merge(signal, units, Long::sum));
         return out;
@@ -44,6 +47,9 @@ record ArmDelta(String experimentId, String arm, long version, ArmStats stats, l
 
     /** {@code a} and {@code b} summed per signal. */
     static java.util.Map<String, Double> sumTotals(java.util.Map<String, Double> a, java.util.Map<String, Double> b) {
+        if (b.isEmpty()) {
+            return a;
+        }
         java.util.Map<String, Double> out = new java.util.TreeMap<>(a);
         b.forEach((signal, total) -> out.merge(signal, total, Double::sum));
         return out;
@@ -52,6 +58,9 @@ record ArmDelta(String experimentId, String arm, long version, ArmStats stats, l
     /** Writes signal totals: their number, then each signal and total, in signal order. */
     static void writeTotals(BinaryOut out, java.util.Map<String, Double> signalTotals) {
         out.writeInt(signalTotals.size());
+        if (signalTotals.isEmpty()) {
+            return;
+        }
         new java.util.TreeMap<>(signalTotals).forEach((signal, total) -> out.writeString(signal).writeDouble(total));
     }
 
@@ -60,6 +69,9 @@ record ArmDelta(String experimentId, String arm, long version, ArmStats stats, l
         int count = in.readInt();
         if (count < 0 || count > 1024) {
             throw new IllegalArgumentException("corrupt internal value: " + count + " signal totals");
+        }
+        if (count == 0) {
+            return java.util.Map.of();
         }
         java.util.Map<String, Double> out = new java.util.TreeMap<>();
         for (int i = 0; i < count; i++) {
@@ -71,6 +83,9 @@ record ArmDelta(String experimentId, String arm, long version, ArmStats stats, l
     /** Writes signal counts: their number, then each signal and count, in signal order. */
     static void writeSignals(BinaryOut out, java.util.Map<String, Long> signalUnits) {
         out.writeInt(signalUnits.size());
+        if (signalUnits.isEmpty()) {
+            return;
+        }
         new java.util.TreeMap<>(signalUnits).forEach((signal, units) -> out.writeString(signal).writeLong(units));
     }
 
@@ -79,6 +94,9 @@ record ArmDelta(String experimentId, String arm, long version, ArmStats stats, l
         int count = in.readInt();
         if (count < 0 || count > 1024) {
             throw new IllegalArgumentException("corrupt internal value: " + count + " signal counts");
+        }
+        if (count == 0) {
+            return java.util.Map.of();
         }
         java.util.Map<String, Long> out = new java.util.TreeMap<>();
         for (int i = 0; i < count; i++) {
@@ -89,6 +107,9 @@ record ArmDelta(String experimentId, String arm, long version, ArmStats stats, l
 
     /** One unit's signals as counts of 1. */
     static java.util.Map<String, Long> ofUnit(java.util.List<String> signals) {
+        if (signals.isEmpty()) {
+            return java.util.Map.of();
+        }
         java.util.Map<String, Long> out = new java.util.TreeMap<>();
         signals.forEach(signal -> out.put(signal, 1L));
         return out;

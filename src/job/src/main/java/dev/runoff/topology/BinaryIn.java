@@ -1,7 +1,5 @@
 package dev.runoff.topology;
 
-import java.nio.BufferUnderflowException;
-import java.nio.ByteBuffer;
 import java.nio.charset.StandardCharsets;
 
 /**
@@ -11,14 +9,16 @@ import java.nio.charset.StandardCharsets;
  */
 final class BinaryIn {
 
-    private final ByteBuffer buffer;
+    private final byte[] bytes;
+    private int pos;
 
     BinaryIn(byte[] bytes) {
-        this.buffer = ByteBuffer.wrap(bytes);
+        this.bytes = bytes;
     }
 
     int readByte() {
-        return check(() -> buffer.get() & 0xFF);
+        need(1);
+        return bytes[pos++] & 0xFF;
     }
 
     boolean readBoolean() {
@@ -26,25 +26,32 @@ final class BinaryIn {
     }
 
     int readInt() {
-        return check(buffer::getInt);
+        need(Integer.BYTES);
+        int value = 0;
+        for (int i = 0; i < Integer.BYTES; i++) {
+            value = (value << 8) | (bytes[pos++] & 0xFF);
+        }
+        return value;
     }
 
     long readLong() {
-        return check(buffer::getLong);
+        need(Long.BYTES);
+        long value = 0;
+        for (int i = 0; i < Long.BYTES; i++) {
+            value = (value << 8) | (bytes[pos++] & 0xFF);
+        }
+        return value;
     }
 
     double readDouble() {
-        return check(buffer::getDouble);
+        return Double.longBitsToDouble(readLong());
     }
 
     byte[] readBytes() {
-        int length = readInt();
-        if (length < 0 || length > buffer.remaining()) {
-            throw new IllegalArgumentException("corrupt internal value: length " + length + " with "
-                    + buffer.remaining() + " bytes left");
-        }
+        int length = length();
         byte[] value = new byte[length];
-        buffer.get(value);
+        System.arraycopy(bytes, pos, value, 0, length);
+        pos += length;
         return value;
     }
 
@@ -53,30 +60,42 @@ final class BinaryIn {
     }
 
     String readString() {
-        return new String(readBytes(), StandardCharsets.UTF_8);
+        int length = length();
+        String value = new String(bytes, pos, length, StandardCharsets.UTF_8);
+        pos += length;
+        return value;
     }
 
     String readNullableString() {
         return readBoolean() ? readString() : null;
     }
 
-    /** Throws unless every byte was read. */
     /** Whether bytes remain to be read. */
     boolean hasMore() {
-        return buffer.hasRemaining();
+        return pos < bytes.length;
     }
 
+    /** Throws unless every byte was read. */
     void end() {
-        if (buffer.hasRemaining()) {
-            throw new IllegalArgumentException("corrupt internal value: " + buffer.remaining() + " bytes left over");
+        if (pos < bytes.length) {
+            throw new IllegalArgumentException("corrupt internal value: " + (bytes.length - pos) + " bytes left over");
         }
     }
 
-    private static <T> T check(java.util.function.Supplier<T> read) {
-        try {
-            return read.get();
-        } catch (BufferUnderflowException e) {
-            throw new IllegalArgumentException("corrupt internal value: truncated", e);
+    /** A length of bytes that follow, checked against what is left. */
+    private int length() {
+        int length = readInt();
+        int remaining = bytes.length - pos;
+        if (length < 0 || length > remaining) {
+            throw new IllegalArgumentException("corrupt internal value: length " + length + " with "
+                    + remaining + " bytes left");
+        }
+        return length;
+    }
+
+    private void need(int count) {
+        if (bytes.length - pos < count) {
+            throw new IllegalArgumentException("corrupt internal value: truncated");
         }
     }
 }

@@ -1,45 +1,55 @@
 package dev.runoff.topology;
 
-import java.io.ByteArrayOutputStream;
-import java.io.DataOutputStream;
-import java.io.IOException;
-import java.io.UncheckedIOException;
 import java.nio.charset.StandardCharsets;
+import java.util.Arrays;
 
 /**
  * Writer of the job's internal binary values (repartition envelopes and state store values): big-endian
- * numbers, strings as a length and UTF-8 bytes, optional values behind a presence byte.
+ * numbers, strings as a length and UTF-8 bytes, optional values behind a presence byte. The bytes are those
+ * of {@link java.io.DataOutputStream} (a double as its {@link Double#doubleToLongBits} bits), written
+ * straight into a growing array.
  */
 final class BinaryOut {
 
-    private final ByteArrayOutputStream bytes = new ByteArrayOutputStream(128);
-    private final DataOutputStream out = new DataOutputStream(bytes);
+    private byte[] bytes = new byte[128];
+    private int size;
 
     BinaryOut writeByte(int value) {
-        return run(() -> out.writeByte(value));
+        ensure(1);
+        bytes[size++] = (byte) value;
+        return this;
     }
 
     BinaryOut writeBoolean(boolean value) {
-        return run(() -> out.writeBoolean(value));
+        return writeByte(value ? 1 : 0);
     }
 
     BinaryOut writeInt(int value) {
-        return run(() -> out.writeInt(value));
+        ensure(Integer.BYTES);
+        for (int shift = 24; shift >= 0; shift -= 8) {
+            bytes[size++] = (byte) (value >>> shift);
+        }
+        return this;
     }
 
     BinaryOut writeLong(long value) {
-        return run(() -> out.writeLong(value));
+        ensure(Long.BYTES);
+        for (int shift = 56; shift >= 0; shift -= 8) {
+            bytes[size++] = (byte) (value >>> shift);
+        }
+        return this;
     }
 
     BinaryOut writeDouble(double value) {
-        return run(() -> out.writeDouble(value));
+        return writeLong(Double.doubleToLongBits(value));
     }
 
     BinaryOut writeBytes(byte[] value) {
-        return run(() -> {
-            out.writeInt(value.length);
-            out.write(value);
-        });
+        writeInt(value.length);
+        ensure(value.length);
+        System.arraycopy(value, 0, bytes, size, value.length);
+        size += value.length;
+        return this;
     }
 
     BinaryOut writeNullableBytes(byte[] value) {
@@ -57,20 +67,12 @@ final class BinaryOut {
     }
 
     byte[] toByteArray() {
-        return bytes.toByteArray();
+        return Arrays.copyOf(bytes, size);
     }
 
-    private BinaryOut run(Write write) {
-        try {
-            write.run();
-        } catch (IOException e) {
-            throw new UncheckedIOException("writing to memory failed", e);
+    private void ensure(int more) {
+        if (size + more > bytes.length) {
+            bytes = Arrays.copyOf(bytes, Math.max(bytes.length * 2, size + more));
         }
-        return this;
-    }
-
-    @FunctionalInterface
-    private interface Write {
-        void run() throws IOException;
     }
 }

@@ -39,7 +39,7 @@ final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], R
     @Override
     public void process(Record<byte[], byte[]> record) {
         Source source = Source.of(context().recordMetadata());
-        Decoded<OutcomeEvent> decoded = codec.decode(record.value(), Math.max(0L, context().currentSystemTimeMs()));
+        Decoded<OutcomeEvent> decoded = decode(record.value(), Math.max(0L, context().currentSystemTimeMs()));
         if (!decoded.isValid()) {
             reject(record, RejectReason.codeOf(decoded.reason()), Rejections.describe(decoded.problems()), source);
             return;
@@ -55,6 +55,15 @@ final class EventValidator extends ContextualProcessor<byte[], byte[], byte[], R
             return;
         }
         check(record, event, lookup.view(), source);
+    }
+
+    /**
+     * Decodes and checks {@code bytes} as the records package does; an event in the plain JSON layout is read
+     * by {@link OutcomeJson} and then checked by the same rules, anything else by the full decoder.
+     */
+    private Decoded<OutcomeEvent> decode(byte[] bytes, long now) {
+        OutcomeEvent plain = OutcomeJson.read(bytes);
+        return plain != null ? codec.validate(plain, now) : codec.decode(bytes, now);
     }
 
     private void check(Record<byte[], byte[]> record, OutcomeEvent event, DefinitionView view, Source source) {

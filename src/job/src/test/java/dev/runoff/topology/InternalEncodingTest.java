@@ -54,6 +54,45 @@ class InternalEncodingTest {
         }
     }
 
+    /**
+     * The writer's bytes are those of java.io.DataOutputStream (JDK reference: big-endian numbers, a double as
+     * its doubleToLongBits, a boolean as one byte 0 or 1), which earlier versions of the job wrote with, so
+     * values stored before are read unchanged; the reader gives every value back.
+     */
+    @Test
+    void writesTheBytesOfDataOutputStreamAndReadsThemBack() throws java.io.IOException {
+        double nan = Double.longBitsToDouble(0x7ff8_0000_0000_0001L);
+        String text = "\u00e9t\u00e9 \ud83d\ude00";
+        byte[] written = new BinaryOut().writeByte(0xC3).writeBoolean(true).writeInt(-2).writeLong(Long.MIN_VALUE + 7)
+                .writeDouble(-0.0).writeDouble(nan).writeString(text).writeNullableString(null)
+                .writeNullableBytes(new byte[300]).toByteArray();
+        java.io.ByteArrayOutputStream expected = new java.io.ByteArrayOutputStream();
+        java.io.DataOutputStream data = new java.io.DataOutputStream(expected);
+        data.writeByte(0xC3);
+        data.writeBoolean(true);
+        data.writeInt(-2);
+        data.writeLong(Long.MIN_VALUE + 7);
+        data.writeDouble(-0.0);
+        data.writeDouble(nan);
+        byte[] utf8 = text.getBytes(java.nio.charset.StandardCharsets.UTF_8);
+        data.writeInt(utf8.length);
+        data.write(utf8);
+        data.writeBoolean(false);
+        data.writeBoolean(true);
+        data.writeInt(300);
+        data.write(new byte[300]);
+        assertArrayEquals(expected.toByteArray(), written);
+        BinaryIn in = new BinaryIn(written);
+        assertEquals(List.of(0xC3, true, -2, Long.MIN_VALUE + 7, Double.doubleToRawLongBits(-0.0),
+                        Double.doubleToRawLongBits(Double.NaN), text),
+                List.of(in.readByte(), in.readBoolean(), in.readInt(), in.readLong(),
+                        Double.doubleToRawLongBits(in.readDouble()), Double.doubleToRawLongBits(in.readDouble()),
+                        in.readString()));
+        assertEquals(null, in.readNullableString());
+        assertEquals(300, in.readNullableBytes().length);
+        in.end();
+    }
+
     @Test
     void corruptBytesFailNamingTheProblem() {
         byte[] bytes = ExperimentStateSerde.encode(ExperimentState.start(TestDefinitions.bernoulli("e", "a", "b")));
