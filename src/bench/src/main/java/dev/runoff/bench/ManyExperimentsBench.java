@@ -209,7 +209,7 @@ public final class ManyExperimentsBench {
                 median(passMillis), passMillis.isEmpty() ? 0 : passMillis.get(passMillis.size() - 1), decided,
                 perPass.isEmpty() ? 0 : perPass.get(perPass.size() / 2),
                 perPass.isEmpty() ? 0 : perPass.get(perPass.size() - 1), load());
-        census(period, start);
+        census("period " + period, start);
     }
 
     /** One step of the wall clock (one allocation interval), traced when asked. */
@@ -241,7 +241,7 @@ public final class ManyExperimentsBench {
             step();
         }
         System.out.printf(Locale.ROOT, "settled %d s without new events%n", seconds);
-        census(-1, start);
+        census("settled", start);
     }
 
     /** Five new units for every {@code every}-th experiment, one exposure per arm, a click on one in five. */
@@ -266,7 +266,7 @@ public final class ManyExperimentsBench {
     }
 
     /** Reads the experiments store whole: evaluated in the period, never evaluated, lagging. */
-    private void census(int period, long start) {
+    private void census(String when, long start) {
         KeyValueStore<String, ExperimentState> store = driver.getKeyValueStore(RunoffTopology.EXPERIMENTS_STORE);
         long held = 0;
         long evaluated = 0;
@@ -284,10 +284,10 @@ public final class ManyExperimentsBench {
                 lagging += Lagging.lagging(state, clock) ? 1 : 0;
             }
         }
-        System.out.printf(Locale.ROOT, "period %d end: held %d, stopped %d, evaluated this period %d, never"
-                + " evaluated %d, lagging (gauge rule) %d%n", period, held, stopped, evaluated, never, lagging);
+        System.out.printf(Locale.ROOT, "%s end: held %d, stopped %d, evaluated this period %d, never"
+                + " evaluated %d, lagging (stateless rule) %d%n", when, held, stopped, evaluated, never, lagging);
         if (trace != null) {
-            System.out.printf(Locale.ROOT, "period %d end: lagging: %s%n", period, trace.lagging(store, clock));
+            System.out.printf(Locale.ROOT, "%s end: lagging: %s%n", when, trace.lagging(store, clock));
         }
     }
 

@@ -10,11 +10,11 @@ import java.util.Map;
  * experiment dirty. The decision on that data is then due no earlier than that scan, so an experiment quiet
  * for a long time is not counted as lagging the moment its new data is folded. The bound errs early by at
  * most the time between two scans, so the count may be high by the experiments whose data waited less than
- * one period and one scan interval, never low by one that waited longer.
+ * one period plus that time; it is not low, except just after a task moved here (below).
  *
  * <p>On the first scan, and for an experiment already dirty then, the time is not known and the stateless
  * rule applies (an upper bound). An experiment whose task moved here since the previous scan is taken as
- * getting its data after that scan: it may be counted late by up to one recompute period. Memory: one entry
+ * getting its data after that scan, so it may go uncounted for up to one recompute period. Memory: one entry
  * per experiment that is dirty, for the scan. Not thread-safe: one caller at a time.
  */
 public final class LagWatch {

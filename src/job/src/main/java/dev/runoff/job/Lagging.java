@@ -6,7 +6,7 @@ import dev.runoff.decision.ExperimentState;
  * Whether a running experiment is lagging: its next decision is overdue by more than one recompute period.
  * A running experiment is due for a decision when new data came in and its recompute period has passed since
  * the last evaluation, and in any case when its heartbeat has passed since the last publication (the rule of
- * the allocation pass); a job that keeps up decides within one allocation interval of that.
+ * the allocation pass); a job that keeps up with its input decides within one allocation interval of that.
  * A new experiment is due at once; one never evaluated lags when its first statistics were folded more than
  * one recompute period ago (it was due no later than that). One never evaluated and without statistics is not
  * counted: the time it was accepted is not kept. Stopped experiments are never lagging. An evaluation that
