@@ -67,9 +67,13 @@ import org.apache.kafka.streams.state.KeyValueStore;
  *
  * <p>The job's own logging is set to WARN (it logs one line per accepted definition).
  *
- * <p>Run: {@code java -Xmx4g -cp CLASSPATH dev.runoff.bench.ManyExperimentsBench 100000 3 [runoff.key=value ...]}
- * (experiments, recompute periods, then any job settings, e.g. {@code runoff.allocate.max.evaluations=2000}),
- * CLASSPATH being this module's {@code target/classes} and its compile class path (DEVELOPERS.md).
+ * <p>Run: {@code java -Xmx4g -cp CLASSPATH dev.runoff.bench.ManyExperimentsBench 100000 3 [runoff.key=value ...]
+ * [trace=S] [settle=S]} (experiments, recompute periods, then any job settings, e.g.
+ * {@code runoff.allocate.max.evaluations=2000}), CLASSPATH being this module's {@code target/classes} and its
+ * compile class path (DEVELOPERS.md). {@code trace=S} reads the whole store after every step and prints,
+ * every S seconds of wall clock and at each period's end, the lagging experiments by cause ({@link LagTrace});
+ * it slows the run (one full read per step) but not the passes it measures. {@code settle=S} adds S seconds of
+ * wall clock without new events after the last period, then a census.
  */
 public final class ManyExperimentsBench {
 
@@ -84,8 +88,15 @@ public final class ManyExperimentsBench {
             "estimate-table-readers-mem", "block-cache-usage", "block-cache-pinned-usage", "total-sst-files-size",
             "estimate-num-keys");
 
+    /** Bench argument: every this many seconds of wall clock, a line of why experiments lag (0: never). */
+    private static final String TRACE = "trace";
+    /** Bench argument: seconds of wall clock without new events after the last period, traced. */
+    private static final String SETTLE = "settle";
+
     private final int experiments;
     private final TopologySettings settings;
+    private final long traceEveryMs;
+    private final LagTrace trace;
     private final JobCounters counters = new JobCounters();
     private final TopologyTestDriver driver;
     private final TestInputTopic<byte[], byte[]> outcomes;
@@ -94,9 +105,11 @@ public final class ManyExperimentsBench {
     private long clock = T0;
     private long outputRecords;
 
-    private ManyExperimentsBench(int experiments, TopologySettings settings) {
+    private ManyExperimentsBench(int experiments, TopologySettings settings, long traceEverySeconds) {
         this.experiments = experiments;
         this.settings = settings;
+        this.traceEveryMs = traceEverySeconds * 1000;
+        this.trace = traceEverySeconds > 0 ? new LagTrace(experiments) : null;
         Properties props = RunoffTopology.streamsConfig(settings, counters, Map.of(
                 StreamsConfig.APPLICATION_ID_CONFIG, "bench-many",
                 StreamsConfig.BOOTSTRAP_SERVERS_CONFIG, "ttd:9092",
@@ -121,10 +134,15 @@ public final class ManyExperimentsBench {
         for (int i = 2; i < args.length; i++) {
             String[] pair = args[i].split("=", 2);
             if (pair.length != 2) {
-                throw new IllegalArgumentException("setting " + args[i] + ": expected runoff.key=value");
+                throw new IllegalArgumentException("setting " + args[i] + ": expected runoff.key=value, "
+                        + TRACE + "=SECONDS or " + SETTLE + "=SECONDS");
             }
             overrides.put(pair[0], pair[1]);
         }
+        long traceEvery = Long.parseLong(overrides.getOrDefault(TRACE, "0"));
+        long settle = Long.parseLong(overrides.getOrDefault(SETTLE, "0"));
+        overrides.remove(TRACE);
+        overrides.remove(SETTLE);
         TopologySettings settings = TopologySettings.fromMap(overrides);
         Configurator.setLevel("dev.runoff", Level.WARN);
         delete(DIR);
@@ -132,12 +150,13 @@ public final class ManyExperimentsBench {
         System.out.printf(Locale.ROOT, "experiments=%d arms=%d periods=%d settings=%s cores=%d maxHeap=%d MiB%n",
                 experiments, ARMS, periods, overrides, Runtime.getRuntime().availableProcessors(),
                 Runtime.getRuntime().maxMemory() >> 20);
-        ManyExperimentsBench bench = new ManyExperimentsBench(experiments, settings);
+        ManyExperimentsBench bench = new ManyExperimentsBench(experiments, settings, traceEvery);
         try {
             bench.define();
             for (int period = 0; period < periods; period++) {
                 bench.period(period);
             }
+            bench.settle(settle);
             bench.memory(heapBefore);
         } finally {
             bench.driver.close();
@@ -176,9 +195,7 @@ public final class ManyExperimentsBench {
             long passes = counters.allocationPasses();
             long nanos = counters.allocationPassNanos();
             long decisions = counters.decisions();
-            clock += settings.allocateIntervalMs();
-            driver.advanceWallClockTime(Duration.ofMillis(settings.allocateIntervalMs()));
-            drain();
+            step();
             if (counters.allocationPasses() > passes) {
                 passMillis.add((counters.allocationPassNanos() - nanos) / 1e6);
                 perPass.add(counters.decisions() - decisions);
@@ -192,7 +209,39 @@ public final class ManyExperimentsBench {
                 median(passMillis), passMillis.isEmpty() ? 0 : passMillis.get(passMillis.size() - 1), decided,
                 perPass.isEmpty() ? 0 : perPass.get(perPass.size() / 2),
                 perPass.isEmpty() ? 0 : perPass.get(perPass.size() - 1), load());
-        census(period, start);
+        census("period " + period, start);
+    }
+
+    /** One step of the wall clock (one allocation interval), traced when asked. */
+    private void step() {
+        long folded = counters.foldedTrials();
+        long decisions = counters.decisions();
+        clock += settings.allocateIntervalMs();
+        driver.advanceWallClockTime(Duration.ofMillis(settings.allocateIntervalMs()));
+        drain();
+        if (trace == null) {
+            return;
+        }
+        KeyValueStore<String, ExperimentState> store = driver.getKeyValueStore(RunoffTopology.EXPERIMENTS_STORE);
+        trace.step(store, clock);
+        if ((clock - T0) % traceEveryMs == 0) {
+            System.out.printf(Locale.ROOT, "  t=%ds folded trials %d, decisions %d in the last step; lagging: %s%n",
+                    (clock - T0) / 1000, counters.foldedTrials() - folded, counters.decisions() - decisions,
+                    trace.lagging(store, clock));
+        }
+    }
+
+    /** {@code seconds} more of wall clock without new events (traced when asked), then a census. */
+    private void settle(long seconds) {
+        if (seconds <= 0) {
+            return;
+        }
+        long start = clock;
+        for (long done = 0; done < seconds * 1000; done += settings.allocateIntervalMs()) {
+            step();
+        }
+        System.out.printf(Locale.ROOT, "settled %d s without new events%n", seconds);
+        census("settled", start);
     }
 
     /** Five new units for every {@code every}-th experiment, one exposure per arm, a click on one in five. */
@@ -217,7 +266,7 @@ public final class ManyExperimentsBench {
     }
 
     /** Reads the experiments store whole: evaluated in the period, never evaluated, lagging. */
-    private void census(int period, long start) {
+    private void census(String when, long start) {
         KeyValueStore<String, ExperimentState> store = driver.getKeyValueStore(RunoffTopology.EXPERIMENTS_STORE);
         long held = 0;
         long evaluated = 0;
@@ -235,8 +284,11 @@ public final class ManyExperimentsBench {
                 lagging += Lagging.lagging(state, clock) ? 1 : 0;
             }
         }
-        System.out.printf(Locale.ROOT, "period %d end: held %d, stopped %d, evaluated this period %d, never"
-                + " evaluated %d, lagging (gauge rule) %d%n", period, held, stopped, evaluated, never, lagging);
+        System.out.printf(Locale.ROOT, "%s end: held %d, stopped %d, evaluated this period %d, never"
+                + " evaluated %d, lagging (stateless rule) %d%n", when, held, stopped, evaluated, never, lagging);
+        if (trace != null) {
+            System.out.printf(Locale.ROOT, "%s end: lagging: %s%n", when, trace.lagging(store, clock));
+        }
     }
 
     private void memory(long heapBefore) throws IOException {

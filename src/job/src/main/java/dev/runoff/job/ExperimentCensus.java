@@ -14,9 +14,9 @@ import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
 /**
  * Counts the experiments this instance holds (its active partitions of the experiments store), running and
  * stopped, for the {@code runoff_experiments} gauge, and the running ones that are {@link Lagging} for the
- * {@code runoff_experiments_lagging} gauge. A count is at most {@link #MAX_AGE_NANOS} old: the
- * store is scanned at most once per interval, whatever the scrape rate. While the store cannot be read
- * (rebalance, restore) the last counts stay.
+ * {@code runoff_experiments_lagging} gauge, by a {@link LagWatch} over the census's own scans. A count is at
+ * most {@link #MAX_AGE_NANOS} old: the store is scanned at most once per interval, whatever the scrape rate.
+ * While the store cannot be read (rebalance, restore) the last counts stay.
  */
 final class ExperimentCensus {
 
@@ -26,6 +26,7 @@ final class ExperimentCensus {
     private final KafkaStreams streams;
     private final LongSupplier nanoTime;
     private final LongSupplier wallMillis;
+    private final LagWatch watch = new LagWatch();
     private long takenAt;
     private boolean taken;
     private long running;
@@ -67,7 +68,7 @@ final class ExperimentCensus {
             long run = 0;
             long stop = 0;
             long late = 0;
-            long wall = wallMillis.getAsLong();
+            watch.begin(wallMillis.getAsLong());
             try (KeyValueIterator<String, ExperimentState> all = store.all()) {
                 while (all.hasNext()) {
                     KeyValue<String, ExperimentState> next = all.next();
@@ -75,10 +76,11 @@ final class ExperimentCensus {
                         stop++;
                     } else {
                         run++;
-                        late += Lagging.lagging(next.value, wall) ? 1 : 0;
+                        late += watch.lagging(next.key, next.value) ? 1 : 0;
                     }
                 }
             }
+            watch.end();
             running = run;
             stopped = stop;
             lagging = late;

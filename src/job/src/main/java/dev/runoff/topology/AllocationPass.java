@@ -20,10 +20,11 @@ import org.slf4j.LoggerFactory;
  * version; new data and the recompute period elapsed; or the heartbeat elapsed. A stopped experiment only
  * re-publishes its control record at each heartbeat.
  *
- * <p>One pass looks at most at {@link TopologySettings#allocateMaxVisits()} experiments, does at most
- * {@link TopologySettings#allocateMaxEvaluations()} evaluations or heartbeats, and starts none after
- * {@link TopologySettings#allocateMaxTimeMs()}. The next pass resumes where this one stopped, and after the
- * last experiment starts again from the first, so every experiment gets its turn.
+ * <p>One pass looks at most at {@link TopologySettings#allocateMaxVisits()} experiments, read {@link #PAGE} at a
+ * time, does at most {@link TopologySettings#allocateMaxEvaluations()} evaluations or heartbeats, and after
+ * {@link TopologySettings#allocateMaxTimeMs()} starts no new one (beyond its first) and reads no further. The
+ * next pass resumes where this one stopped, and after the last experiment starts again from the first, so every
+ * experiment gets its turn.
  *
  * <p>Every decision and control record is signed by the {@link RecordSigner} (the decision record after
  * sealing: its hash leaves the signature fields out, so the chain's hashes do not depend on the key).
@@ -37,6 +38,8 @@ final class AllocationPass {
     private static final Logger LOG = LoggerFactory.getLogger(AllocationPass.class);
     private static final ObjectMapper JSON = new ObjectMapper();
     private static final long NANOS_PER_MILLI = 1_000_000L;
+    /** Most experiments read from the store at a time. */
+    static final int PAGE = 1_000;
 
     private final TopologySettings settings;
     private final Evaluator evaluator;
@@ -48,6 +51,8 @@ final class AllocationPass {
     private final RecordCodec<DecisionRecord> decisions = RecordCodec.decisionRecords();
     private final RecordCodec<AllocationUpdate> updates = RecordCodec.allocationUpdates();
     private String resumeFrom;
+    /** Evaluations and heartbeats of the pass under way. */
+    private int work;
 
     /**
      * A pass reading and writing {@code experiments} and sending its records to {@code output}.
@@ -78,26 +83,50 @@ final class AllocationPass {
     /** Runs one pass at wall-clock time {@code now} (ms since the epoch). */
     void run(long now) {
         long began = nanoTime.getAsLong();
-        Page page = experiments.page(resumeFrom, settings.allocateMaxVisits());
-        resumeFrom = visit(page, now, began);
+        work = 0;
+        resumeFrom = visitFrom(resumeFrom, now, began);
         counters.allocationPass(nanoTime.getAsLong() - began);
     }
 
-    /** Acts on the due experiments of {@code page} within the budget; returns where the next pass starts. */
+    /**
+     * Reads the experiments from {@code from} a page of at most {@link #PAGE} at a time and acts on the due
+     * ones within the budget; returns where the next pass starts. Reading page by page keeps a pass that spends
+     * its budget early from reading further than it acts, and lets the time bound stop the reading too.
+     */
+    private String visitFrom(String from, long now, long began) {
+        int visits = 0;
+        String next = from;
+        do {
+            Page page = experiments.page(next, Math.min(PAGE, settings.allocateMaxVisits() - visits));
+            visits += page.entries().size();
+            String stoppedAt = visit(page, now, began);
+            if (stoppedAt != null) {
+                return stoppedAt;
+            }
+            next = page.next();
+        } while (next != null && visits < settings.allocateMaxVisits() && !outOfTime(began));
+        return next;
+    }
+
+    /**
+     * Acts on the due experiments of {@code page} while the budget lasts; returns the
+     * experiment the budget stopped at, or {@code null} when the page is done. The first action of a pass is
+     * never refused for time, so a pass whose reading alone outlasts {@link TopologySettings#allocateMaxTimeMs()}
+     * (a starved machine) still moves on.
+     */
     private String visit(Page page, long now, long began) {
-        int work = 0;
         for (Map.Entry<String, ExperimentState> entry : page.entries()) {
             Action action = Action.of(entry.getValue(), now);
             if (action == Action.NONE) {
                 continue;
             }
-            if (work >= settings.allocateMaxEvaluations() || outOfTime(began)) {
+            if (work >= settings.allocateMaxEvaluations() || work > 0 && outOfTime(began)) {
                 return entry.getKey();
             }
             work++;
             act(entry.getKey(), entry.getValue(), action, now);
         }
-        return page.next();
+        return null;
     }
 
     private boolean outOfTime(long began) {

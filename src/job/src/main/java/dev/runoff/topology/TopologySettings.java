@@ -124,8 +124,12 @@ public record TopologySettings(String outcomesTopic, String definitionsTopic, St
     public static final long ALLOCATE_INTERVAL_MS = 1_000L;
     /** Default of {@link #allocateMaxEvaluations()}. */
     public static final int ALLOCATE_MAX_EVALUATIONS = 200;
-    /** Default of {@link #allocateMaxTimeMs()}. */
-    public static final long ALLOCATE_MAX_TIME_MS = 1_000L;
+    /**
+     * Default of {@link #allocateMaxTimeMs()}: half the default allocation interval, so that a backlog of
+     * evaluations leaves the stream thread at least about half of its time for events (the earlier 1,000 ms, the
+     * whole interval, let passes take it all: src/docs/performance.md, "Many experiments").
+     */
+    public static final long ALLOCATE_MAX_TIME_MS = 500L;
     /** Default of {@link #allocateMaxVisits()}. */
     public static final int ALLOCATE_MAX_VISITS = 10_000;
     /** Default of {@link #unitsCleanupIntervalMs()}: 1 minute. */

@@ -60,4 +60,26 @@ class LaggingTest {
         // its acceptance time is not kept, so how long it has waited is not known
         assertFalse(Lagging.lagging(started(-1, -1, false, null), 1_000_000));
     }
+
+    @Test
+    void newDataAfterAQuietSpellIsDueWhenItCameNotOnePeriodAfterTheLastEvaluation() {
+        // evaluated at 0, quiet, new data after 4 s: due at 4 s, not at 1 s (TestDefinitions: 1 s period)
+        ExperimentState dirty = state(0, true, null);
+        assertTrue(Lagging.lagging(dirty, 5_000), "without the data's time: due at 1 s, counted at once");
+        assertFalse(Lagging.lagging(dirty, 5_000, 4_000), "within one period of the data");
+        assertTrue(Lagging.lagging(dirty, 5_001, 4_000), "more than one period past the data");
+    }
+
+    @Test
+    void newDataWithinThePeriodIsStillDueOnePeriodAfterTheLastEvaluation() {
+        ExperimentState dirty = state(0, true, null);
+        assertFalse(Lagging.lagging(dirty, 1_999, 500));
+        assertTrue(Lagging.lagging(dirty, 2_001, 500), "the data's time does not postpone the period");
+    }
+
+    @Test
+    void theHeartbeatIsDueWhateverTheDataTime() {
+        ExperimentState dirty = state(0, true, null);
+        assertTrue(Lagging.lagging(dirty, 11_001, 10_500), "heartbeat due at 10 s, more than a period ago");
+    }
 }

@@ -8,6 +8,8 @@ import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.decision.ExperimentState;
+import dev.runoff.engine.stats.BernoulliStats;
+import dev.runoff.records.HashChain;
 import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.records.avro.StoppingSpec;
 import java.nio.charset.StandardCharsets;
@@ -73,6 +75,46 @@ class AllocationPassTest {
         assertEquals(T0, failed.lastComputedAt());
     }
 
+    @Test
+    void aPassWhoseReadingAloneOutlastsItsTimeStillEvaluatesOneExperiment() {
+        defineAll(3);
+        long[] nanos = {0};
+        store.onPage = () -> nanos[0] += 2_000_000L; // each read takes 2 ms, twice the pass's 1 ms
+        TopologySettings settings = TopologySettings.fromMap(Map.of(TopologySettings.ALLOCATE_MAX_TIME_KEY, 1,
+                TopologySettings.MONTE_CARLO_DRAWS_KEY, 100));
+        AllocationPass pass = new AllocationPass(settings, store, output, counters, () -> nanos[0]);
+        for (int i = 0; i < 3; i++) {
+            pass.run(T0);
+        }
+        assertEquals(List.of("e0", "e1", "e2"), output.decisions, "one per pass: a starved pass still moves on");
+    }
+
+    @Test
+    void aPassThatSpendsItsBudgetEarlyReadsNoFurtherThanOnePage() {
+        defineAll(AllocationPass.PAGE + 500);
+        pass(3).run(T0);
+        assertEquals(3, output.decisions.size());
+        assertEquals(AllocationPass.PAGE, store.read, "not the whole visit bound (10,000) for 3 evaluations");
+    }
+
+    @Test
+    void aPassReadsPageByPageUpToTheEndOfTheStoreAndTheNextStartsAgainFromTheFirst() {
+        int experiments = AllocationPass.PAGE + 500;
+        for (int i = 0; i < experiments; i++) {
+            ExperimentDefinition definition = TestDefinitions.bernoulli(String.format("e%05d", i), "x", "y");
+            definition.setVersion(1L);
+            store.put(definition.getExperimentId(), new ExperimentState(definition, List.of(new BernoulliStats(0, 0),
+                    new BernoulliStats(0, 0)), null, 1, 1, HashChain.GENESIS, new double[] {0.5, 0.5}, -1, T0, T0,
+                    false, false));
+        }
+        AllocationPass pass = pass(3);
+        pass.run(T0 + 1);
+        assertEquals(experiments, store.read, "nothing due: the whole store, in two pages");
+        store.experiments.put("e00000", ExperimentState.start(store.experiments.get("e00000").definition()));
+        pass.run(T0 + 1);
+        assertEquals(List.of("e00000"), output.decisions, "the next pass started again from the first");
+    }
+
     private AllocationPass pass(int budget) {
         TopologySettings settings = TopologySettings.fromMap(Map.of(
                 TopologySettings.ALLOCATE_MAX_EVALUATIONS_KEY, budget, TopologySettings.MONTE_CARLO_DRAWS_KEY, 100));
@@ -103,9 +145,14 @@ class AllocationPassTest {
     /** The experiments in a sorted map, paged as the store is. */
     private static final class Store implements AllocationPass.Experiments {
         private final NavigableMap<String, ExperimentState> experiments = new TreeMap<>();
+        /** Entries returned by pages so far. */
+        private int read;
+        /** Run at every page read. */
+        private Runnable onPage = () -> { };
 
         @Override
         public AllocationPass.Page page(String from, int limit) {
+            onPage.run();
             List<Map.Entry<String, ExperimentState>> entries = new ArrayList<>();
             String next = null;
             for (Map.Entry<String, ExperimentState> entry
@@ -116,6 +163,7 @@ class AllocationPassTest {
                 }
                 entries.add(Map.entry(entry.getKey(), entry.getValue()));
             }
+            read += entries.size();
             return new AllocationPass.Page(entries, next);
         }
 
