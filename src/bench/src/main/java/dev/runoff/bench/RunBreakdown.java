@@ -11,20 +11,25 @@ import java.util.List;
 import java.util.Locale;
 import java.util.Map;
 import java.util.TreeMap;
+import java.util.stream.Collectors;
 import java.util.stream.Stream;
 import org.apache.kafka.common.Metric;
 import org.apache.kafka.common.MetricName;
 import org.apache.kafka.streams.KafkaStreams;
+import org.apache.kafka.streams.ThreadMetadata;
 
 /**
  * Where the stream threads of one timed run spent their wall time, from two snapshots (at the start and the
  * end of the run): their CPU time (from the JVM), the time Kafka Streams counts as blocked on its clients
- * (its thread metric {@code blocked-time-ns-total}: polls, producer flushes and transaction calls), split
- * into the producer's flushes and transaction calls (the producer's {@code flush-time-ns-total} and
- * {@code txn-*-time-ns-total}), commits and produce retries; and, on Linux, the time every thread of the
- * process waited in the scheduler's run queue for a core ({@code /proc/self/task/* /schedstat}, second
- * field), grouped by thread name. The rest of a stream thread's wall time is neither on a core nor blocked
- * on Kafka as counted here: waiting for a core, or waits Kafka Streams does not count.
+ * (its thread metric {@code blocked-time-ns-total}, added by KIP-761: polls, producer flushes and transaction
+ * calls), split into the producer's flushes and transaction calls (the producer's {@code flush-time-ns-total}
+ * and {@code txn-*-time-ns-total}), commits and produce retries; the CPU of each stream thread and the tasks it
+ * ran, which shows whether the work spread over the threads; the cores used by the whole process and by each
+ * group of its threads (broker, producer I/O, coordinators); and, on Linux, the time the process's threads
+ * waited in the scheduler's run queue for a core ({@code /proc/self/task/<tid>/schedstat}, second field, per the
+ * kernel's scheduler statistics documentation), grouped by the kernel's 15-character thread names. The rest of
+ * a stream thread's wall time is neither on a core nor blocked on Kafka as counted here: mostly waiting for a
+ * core on a loaded machine.
  */
 final class RunBreakdown {
 
@@ -38,59 +43,83 @@ final class RunBreakdown {
     private final Map<String, Long> threadCpuNanos;
     private final Map<String, Double> metrics;
     private final Map<String, Long> runQueueNanos;
+    private final Map<String, String> activeTasks;
 
     private RunBreakdown(long wallNanos, long processCpuNanos, Map<String, Long> threadCpuNanos,
-                         Map<String, Double> metrics, Map<String, Long> runQueueNanos) {
+                         Map<String, Double> metrics, Map<String, Long> runQueueNanos,
+                         Map<String, String> activeTasks) {
         this.wallNanos = wallNanos;
         this.processCpuNanos = processCpuNanos;
         this.threadCpuNanos = threadCpuNanos;
         this.metrics = metrics;
         this.runQueueNanos = runQueueNanos;
+        this.activeTasks = activeTasks;
     }
 
     /** A snapshot of {@code streams}' stream threads, the process and its threads now. */
     static RunBreakdown take(KafkaStreams streams) {
-        return new RunBreakdown(System.nanoTime(), processCpuNanos(), threadCpu(), metrics(streams), runQueue());
+        return new RunBreakdown(System.nanoTime(), processCpuNanos(), threadCpu(), metrics(streams), runQueue(),
+                activeTasks(streams));
     }
 
-    /** One line describing what happened between {@code start} and {@code this}. */
+    /** The active tasks of each stream thread (by the name {@link #threadCpu} gives it), sorted. */
+    private static Map<String, String> activeTasks(KafkaStreams streams) {
+        Map<String, String> tasks = new TreeMap<>();
+        for (ThreadMetadata thread : streams.metadataForLocalThreads()) {
+            String name = thread.threadName();
+            tasks.put(name.substring(name.lastIndexOf("StreamThread-")), thread.activeTasks().stream()
+                    .map(t -> t.taskId().toString()).sorted().collect(Collectors.joining(",")));
+        }
+        return tasks;
+    }
+
+    /** What happened between {@code start} and {@code this}, on four lines. */
     String since(RunBreakdown start) {
         double wall = (wallNanos - start.wallNanos) / 1e9;
-        Map<String, Double> m = new TreeMap<>();
-        for (String name : SUMMED) {
-            m.put(name, metrics.getOrDefault(name, 0.0) - start.metrics.getOrDefault(name, 0.0));
-        }
         Map<String, Long> cpu = difference(threadCpuNanos, start.threadCpuNanos);
-        long streamCpu = cpu.entrySet().stream().filter(e -> e.getKey().equals("stream"))
-                .mapToLong(Map.Entry::getValue).sum();
-        int streamThreads = (int) Math.max(1, metrics.getOrDefault("threads", 1.0));
-        double perThread = wall * streamThreads;
-        StringBuilder line = new StringBuilder(String.format(Locale.ROOT,
-                "  breakdown: process %.2f cores; %d stream threads: cpu %.0f%%, blocked on Kafka %.0f%% (producer "
-                        + "flush %.0f%%, send offsets %.0f%%, commit txn %.0f%%), rest %.0f%% of their wall time; "
-                        + "commits %.0f (%.1f per thread-second), %.0f events per commit, produce retries %.0f of %.0f sends",
-                (processCpuNanos - start.processCpuNanos) / 1e9 / wall, streamThreads,
-                100 * streamCpu / 1e9 / perThread, 100 * m.get("blocked-time-ns-total") / 1e9 / perThread,
-                100 * m.get("flush-time-ns-total") / 1e9 / perThread,
-                100 * m.get("txn-send-offsets-time-ns-total") / 1e9 / perThread,
-                100 * m.get("txn-commit-time-ns-total") / 1e9 / perThread,
-                100 * (perThread - streamCpu / 1e9 - m.get("blocked-time-ns-total") / 1e9) / perThread,
-                m.get("commit-total"), m.get("commit-total") / perThread,
-                m.get("process-total") / Math.max(1, m.get("commit-total")), m.get("record-retry-total"),
-                m.get("record-send-total")));
-        line.append(String.format(Locale.ROOT, "%n  cores by thread group:"));
+        StringBuilder text = new StringBuilder(streamThreads(start, wall, cpu.getOrDefault("stream", 0L) / 1e9));
+        text.append(String.format(Locale.ROOT, "%n  cores by thread group:"));
         cpu.entrySet().stream().filter(e -> !e.getKey().startsWith("StreamThread-"))
-                .sorted(Map.Entry.<String, Long>comparingByValue().reversed()).forEach(e -> line.append(String.format(Locale.ROOT, " %s %.2f", e.getKey(), e.getValue() / 1e9 / wall)));
-        line.append(String.format(Locale.ROOT, "%n  cores by stream thread:"));
-        cpu.entrySet().stream().filter(e -> e.getKey().startsWith("StreamThread-")).forEach(e ->
-                line.append(String.format(Locale.ROOT, " %s %.2f", e.getKey(), e.getValue() / 1e9 / wall)));
+                .sorted(Map.Entry.<String, Long>comparingByValue().reversed())
+                .forEach(e -> text.append(String.format(Locale.ROOT, " %s %.2f", e.getKey(),
+                        e.getValue() / 1e9 / wall)));
+        text.append(String.format(Locale.ROOT, "%n  cores by stream thread (active tasks at the end):"));
+        cpu.entrySet().stream().filter(e -> e.getKey().startsWith("StreamThread-"))
+                .forEach(e -> text.append(String.format(Locale.ROOT, " %s %.2f [%s]", e.getKey(),
+                        e.getValue() / 1e9 / wall, activeTasks.getOrDefault(e.getKey(), "?"))));
         Map<String, Long> queued = difference(runQueueNanos, start.runQueueNanos);
         if (!queued.isEmpty()) {
-            line.append(String.format(Locale.ROOT, "%n  run-queue wait (thread-seconds per second):"));
+            text.append(String.format(Locale.ROOT, "%n  run-queue wait (thread-seconds per second):"));
             queued.entrySet().stream().sorted(Map.Entry.<String, Long>comparingByValue().reversed()).limit(6)
-                    .forEach(e -> line.append(String.format(Locale.ROOT, " %s %.2f", e.getKey(), e.getValue() / 1e9 / wall)));
+                    .forEach(e -> text.append(String.format(Locale.ROOT, " %s %.2f", e.getKey(),
+                            e.getValue() / 1e9 / wall)));
         }
-        return line.toString();
+        return text.toString();
+    }
+
+    /** The process's cores and how the stream threads' wall time divides, from their summed metrics. */
+    private String streamThreads(RunBreakdown start, double wall, double streamCpuSeconds) {
+        Map<String, Double> m = new TreeMap<>();
+        for (String name : SUMMED) {
+            double value = metrics.getOrDefault(name, 0.0) - start.metrics.getOrDefault(name, 0.0);
+            m.put(name, name.endsWith("-ns-total") ? value / 1e9 : value);
+        }
+        int threads = (int) Math.max(1, metrics.getOrDefault("threads", 1.0));
+        double threadSeconds = wall * threads;
+        double blocked = m.get("blocked-time-ns-total");
+        double commits = m.get("commit-total");
+        return String.format(Locale.ROOT, "  breakdown: process %.2f cores; %d stream threads: cpu %.0f%%, "
+                        + "blocked on Kafka %.0f%% (producer flush %.0f%%, send offsets %.0f%%, commit txn %.0f%%), "
+                        + "rest %.0f%% of their wall time; commits %.0f (%.1f per thread-second), %.0f events per "
+                        + "commit, produce retries %.0f of %.0f sends",
+                (processCpuNanos - start.processCpuNanos) / 1e9 / wall, threads,
+                100 * streamCpuSeconds / threadSeconds, 100 * blocked / threadSeconds,
+                100 * m.get("flush-time-ns-total") / threadSeconds,
+                100 * m.get("txn-send-offsets-time-ns-total") / threadSeconds,
+                100 * m.get("txn-commit-time-ns-total") / threadSeconds,
+                100 * (threadSeconds - streamCpuSeconds - blocked) / threadSeconds, commits, commits / threadSeconds,
+                m.get("process-total") / Math.max(1, commits), m.get("record-retry-total"),
+                m.get("record-send-total"));
     }
 
     private static Map<String, Long> difference(Map<String, Long> now, Map<String, Long> before) {

@@ -59,9 +59,9 @@ import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
  * topology on the same input (all exactly_once_v2, one instance).
  *
  * <p>The input is N outcome events in JSON (exposures keyed by unit id, about 12% followed by an arm-less
- * click) over 20 three-arm experiments (option {@code experiments=}). Two inputs: {@code murmur2}, partitioned by the Java client's
- * default partitioner (the common case), and {@code crc32}, the same records keyed by unit id but placed by
- * CRC32 of the key modulo the partition count, as producers in other languages often do. Three
+ * click) over 20 three-arm experiments (option {@code experiments=}). Two inputs: {@code murmur2}, partitioned
+ * by the Java client's default partitioner (the common case), and {@code crc32}, the same records keyed by unit
+ * id but placed by CRC32 of the key modulo the partition count, as producers in other languages often do. Three
  * applications: {@code bare} (count by key), {@code job} (the job as configured by default: every event
  * through the events-by-unit repartition) and {@code unit} (the job with {@code runoff.outcomes.keyed.by.unit=
  * true}). Each run uses fresh topics and a fresh application: it starts the application, lets the job accept
@@ -79,7 +79,10 @@ import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
  * fresh topic), {@code inputs=murmur2}, {@code commit.interval.ms=default} (Kafka Streams', 100 ms with
  * exactly_once_v2; a list such as {@code default,1000} runs each) and {@code preload=false} ({@code true}: the
  * events are written while the application is stopped and the run is timed from its restart's RUNNING state,
- * so that the producer's rate cannot bound it), {@code experiments=20} (experiments the events are spread over),
+ * so that the producer's rate cannot bound it; {@code pause}: the events are written while the running
+ * application is paused ({@link KafkaStreams#pause()}) and the run is timed from its resumption, so that the
+ * tasks keep the threads the first assignment gave them: a restart gives the tasks whose state is on disk back
+ * to one thread, see {@link RunBreakdown}), {@code experiments=20} (experiments the events are spread over),
  * {@code variants=default} (Kafka Streams settings of every application: {@code key=value} pairs separated by
  * {@code ;}, several variants separated by {@code |}, {@code default} for none; for example
  * {@code variants=default|producer.linger.ms=20}) and {@code broker.<property>=value} (a property of the embedded
@@ -100,12 +103,12 @@ public final class TopologyThroughput {
     private final int partitions;
     private final List<Integer> threads;
     private final List<String> commitIntervals;
-    private final boolean preload;
+    private final String preload;
     private final int experiments;
     private final List<Map<String, String>> variants;
 
     private TopologyThroughput(int events, int partitions, List<Integer> threads, List<String> commitIntervals,
-                               boolean preload, int experiments, List<Map<String, String>> variants) {
+                               String preload, int experiments, List<Map<String, String>> variants) {
         this.events = events;
         this.partitions = partitions;
         this.threads = threads;
@@ -182,7 +185,7 @@ public final class TopologyThroughput {
                 Integer.parseInt(options.getOrDefault("partitions", "4")),
                 Stream.of(options.getOrDefault("threads", "1").split(",")).map(Integer::valueOf).toList(),
                 List.of(options.getOrDefault("commit.interval.ms", "default").split(",")),
-                Boolean.parseBoolean(options.getOrDefault("preload", "false")),
+                listOption(options.getOrDefault("preload", "false"), List.of("false", "true", "pause")).get(0),
                 Integer.parseInt(options.getOrDefault("experiments", "20")),
                 variants(options.getOrDefault("variants", "default")));
         List<Setup> setups = bench.setups();
@@ -363,8 +366,9 @@ public final class TopologyThroughput {
      * then writes the events and times from the first write until the input and, for the job, its repartition
      * topic of events are fully consumed. With {@code preload=true} the application is stopped after the
      * definitions are accepted, the events are written, and the run is timed from the moment the restarted
-     * application is RUNNING, so the producer's rate does not bound it. {@code producer} times the writing
-     * alone. Returns events per second.
+     * application is RUNNING, so the producer's rate does not bound it; with {@code preload=pause} the
+     * application is paused instead of stopped and timed from its resumption. {@code producer} times the
+     * writing alone. Returns events per second.
      */
     private double run(EmbeddedKafkaBroker broker, String name, String app, String input, Setup setup)
             throws Exception {
@@ -407,19 +411,26 @@ public final class TopologyThroughput {
                     produceDefinitions(broker, settings);
                     awaitAccepted(streams);
                 }
-                if (preload) {
+                long began;
+                RunBreakdown atStart;
+                if (preload.equals("true")) {
                     streams.close(CloseOptions.groupMembershipOperation(
                             CloseOptions.GroupMembershipOperation.LEAVE_GROUP));
                     produce(broker, settings, input);
                     streams = start(topology(job, settings, props, counters), props, name, runningAt);
-                    RunBreakdown atStart = RunBreakdown.take(streams);
-                    awaitNoLag(admin, application, perEvent);
-                    RunBreakdown atEnd = RunBreakdown.take(streams);
-                    return report(name, runningAt[0], counters, atEnd.since(atStart));
+                    atStart = RunBreakdown.take(streams);
+                    began = runningAt[0];
+                } else if (preload.equals("pause")) {
+                    streams.pause();
+                    produce(broker, settings, input);
+                    atStart = RunBreakdown.take(streams);
+                    began = System.nanoTime();
+                    streams.resume();
+                } else {
+                    atStart = RunBreakdown.take(streams);
+                    began = System.nanoTime();
+                    produce(broker, settings, input);
                 }
-                long began = System.nanoTime();
-                RunBreakdown atStart = RunBreakdown.take(streams);
-                produce(broker, settings, input);
                 awaitNoLag(admin, application, perEvent);
                 return report(name, began, counters, RunBreakdown.take(streams).since(atStart));
             } finally {
