@@ -81,8 +81,9 @@ import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
  * events are written while the application is stopped and the run is timed from its restart's RUNNING state,
  * so that the producer's rate cannot bound it; {@code pause}: the events are written while the running
  * application is paused ({@link KafkaStreams#pause()}) and the run is timed from its resumption, so that the
- * tasks keep the threads the first assignment gave them: a restart gives the tasks whose state is on disk back
- * to one thread, see {@link RunBreakdown}), {@code experiments=20} (experiments the events are spread over),
+ * tasks keep the threads of the first assignment, which spreads each sub-topology over the threads; the
+ * assignment after a restart follows the tasks' state on disk and put most tasks of the job's unit
+ * sub-topology on one or two threads, as the breakdown shows), {@code experiments=20} (experiments the events are spread over),
  * {@code variants=default} (Kafka Streams settings of every application: {@code key=value} pairs separated by
  * {@code ;}, several variants separated by {@code |}, {@code default} for none; for example
  * {@code variants=default|producer.linger.ms=20}) and {@code broker.<property>=value} (a property of the embedded
