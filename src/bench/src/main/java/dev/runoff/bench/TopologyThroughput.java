@@ -83,11 +83,11 @@ import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
  * application is paused ({@link KafkaStreams#pause()}) and the run is timed from its resumption, so that the
  * tasks keep the threads of the first assignment, which spreads each sub-topology over the threads; the
  * assignment after a restart follows the tasks' state on disk and put most tasks of the job's unit
- * sub-topology on one or two threads, as the breakdown shows), {@code experiments=20} (experiments the events are spread over),
- * {@code variants=default} (Kafka Streams settings of every application: {@code key=value} pairs separated by
- * {@code ;}, several variants separated by {@code |}, {@code default} for none; for example
- * {@code variants=default|producer.linger.ms=20}) and {@code broker.<property>=value} (a property of the embedded
- * broker). Every combination of thread count, commit interval and variant runs once per round, in an order
+ * sub-topology on one or two threads, as the breakdown shows), {@code experiments=20} (experiments the events
+ * are spread over), {@code variants=default} (Kafka Streams settings of every application: {@code key=value}
+ * pairs separated by {@code ;}, several variants separated by {@code |}, {@code default} for none; for example
+ * {@code variants=default|producer.linger.ms=20}) and {@code broker.<property>=value} (a property of the
+ * embedded broker). Every combination of thread count, commit interval and variant runs once per round, in an order
  * rotated by one each round so that none always runs first. After each timed run a breakdown says where the
  * stream threads' wall time went and how many cores each group of threads used ({@link RunBreakdown}).
  */
@@ -186,7 +186,7 @@ public final class TopologyThroughput {
                 Integer.parseInt(options.getOrDefault("partitions", "4")),
                 Stream.of(options.getOrDefault("threads", "1").split(",")).map(Integer::valueOf).toList(),
                 List.of(options.getOrDefault("commit.interval.ms", "default").split(",")),
-                listOption(options.getOrDefault("preload", "false"), List.of("false", "true", "pause")).get(0),
+                preload(options.getOrDefault("preload", "false")),
                 Integer.parseInt(options.getOrDefault("experiments", "20")),
                 variants(options.getOrDefault("variants", "default")));
         List<Setup> setups = bench.setups();
@@ -233,6 +233,13 @@ public final class TopologyThroughput {
             }
             System.out.println(line);
         }
+    }
+
+    private static String preload(String text) {
+        if (!List.of("false", "true", "pause").contains(text)) {
+            throw new IllegalArgumentException("preload='" + text + "': must be false, true or pause");
+        }
+        return text;
     }
 
     private static List<String> listOption(String text, List<String> known) {
