@@ -35,8 +35,8 @@ final class RunBreakdown {
 
     /** Producer and Streams metrics summed over the stream threads of one application. */
     private static final List<String> SUMMED = List.of("blocked-time-ns-total", "flush-time-ns-total",
-            "txn-send-offsets-time-ns-total", "txn-commit-time-ns-total", "txn-begin-time-ns-total",
-            "commit-total", "process-total", "record-retry-total", "record-send-total");
+            "txn-send-offsets-time-ns-total", "txn-commit-time-ns-total", "commit-total", "process-total",
+            "record-retry-total", "record-send-total");
 
     private final long wallNanos;
     private final long processCpuNanos;
@@ -158,7 +158,8 @@ final class RunBreakdown {
 
     /**
      * The group of a thread, by its name: stream threads, the broker's request handlers and network threads,
-     * producer and consumer network threads, the transaction coordinator's marker sender, and the rest.
+     * producer network threads, the transaction coordinator's marker sender, the broker's coordinators, garbage
+     * collection, the JIT compilers, the global and state-updater threads of Kafka Streams, and the rest.
      */
     static String group(String name) {
         if (name.matches(".*-StreamThread-\\d+$")) {
