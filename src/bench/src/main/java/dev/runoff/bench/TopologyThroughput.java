@@ -59,9 +59,9 @@ import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
  * topology on the same input (all exactly_once_v2, one instance).
  *
  * <p>The input is N outcome events in JSON (exposures keyed by unit id, about 12% followed by an arm-less
- * click) over 20 three-arm experiments. Two inputs: {@code murmur2}, partitioned by the Java client's
- * default partitioner (the common case), and {@code crc32}, the same records keyed by unit id but placed by
- * CRC32 of the key modulo the partition count, as producers in other languages often do. Three
+ * click) over 20 three-arm experiments (option {@code experiments=}). Two inputs: {@code murmur2}, partitioned
+ * by the Java client's default partitioner (the common case), and {@code crc32}, the same records keyed by unit
+ * id but placed by CRC32 of the key modulo the partition count, as producers in other languages often do. Three
  * applications: {@code bare} (count by key), {@code job} (the job as configured by default: every event
  * through the events-by-unit repartition) and {@code unit} (the job with {@code runoff.outcomes.keyed.by.unit=
  * true}). Each run uses fresh topics and a fresh application: it starts the application, lets the job accept
@@ -79,13 +79,22 @@ import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
  * fresh topic), {@code inputs=murmur2}, {@code commit.interval.ms=default} (Kafka Streams', 100 ms with
  * exactly_once_v2; a list such as {@code default,1000} runs each) and {@code preload=false} ({@code true}: the
  * events are written while the application is stopped and the run is timed from its restart's RUNNING state,
- * so that the producer's rate cannot bound it). Every combination of thread
- * count and commit interval runs once per round, in an order rotated by one each round so that none always
- * runs first.
+ * so that the producer's rate cannot bound it; {@code pause}: the events are written while the running
+ * application is paused ({@link KafkaStreams#pause()}) and the run is timed from its resumption, so that the
+ * tasks keep the threads of the first assignment, which spreads each sub-topology over the threads; the
+ * assignment after a restart follows the tasks' state on disk and put most tasks of the job's unit
+ * sub-topology on one or two threads, as the breakdown shows), {@code experiments=20} (experiments the events
+ * are spread over), {@code variants=default} (Kafka Streams settings of every application: {@code key=value}
+ * pairs separated by {@code ;}, several variants separated by {@code |}, {@code default} for none; for example
+ * {@code variants=default|producer.linger.ms=20}) and {@code broker.<property>=value} (a property of the
+ * embedded broker). Every combination of thread count, commit interval and variant runs once per round, in an order
+ * rotated by one each round so that none always runs first. After each timed run a breakdown says where the
+ * stream threads' wall time went and how many cores each group of threads used ({@link RunBreakdown}).
  */
 public final class TopologyThroughput {
 
-    private static final int EXPERIMENTS = 20;
+    private static final List<String> OPTIONS = List.of("partitions", "threads", "apps", "inputs",
+            "commit.interval.ms", "preload", "experiments", "variants");
     /** One directory per process, so that two runs side by side never share a broker's files. */
     private static final Path DIR = Path.of("target", "bench-throughput-" + ProcessHandle.current().pid());
     private static final List<String> APPS = List.of("bare", "job", "unit", "producer");
@@ -95,32 +104,62 @@ public final class TopologyThroughput {
     private final int partitions;
     private final List<Integer> threads;
     private final List<String> commitIntervals;
-    private final boolean preload;
+    private final String preload;
+    private final int experiments;
+    private final List<Map<String, String>> variants;
 
     private TopologyThroughput(int events, int partitions, List<Integer> threads, List<String> commitIntervals,
-                               boolean preload) {
+                               String preload, int experiments, List<Map<String, String>> variants) {
         this.events = events;
         this.partitions = partitions;
         this.threads = threads;
         this.commitIntervals = commitIntervals;
         this.preload = preload;
+        this.experiments = experiments;
+        this.variants = variants;
     }
 
-    /** Stream threads and commit interval of one group of runs; {@code label} tells groups apart in the output. */
-    private record Setup(int threads, String commitIntervalMs, String label) {
+    /**
+     * Stream threads, commit interval and Kafka Streams settings of one group of runs; {@code label} tells
+     * groups apart in the output.
+     */
+    private record Setup(int threads, String commitIntervalMs, Map<String, String> streamsConfig, String label) {
     }
 
-    /** Every combination of the thread counts and commit intervals asked for. */
+    /** Every combination of the thread counts, commit intervals and variants asked for. */
     private List<Setup> setups() {
         List<Setup> setups = new ArrayList<>();
         for (int t : threads) {
             for (String commit : commitIntervals) {
-                String label = (threads.size() > 1 ? "/" + t + "t" : "")
-                        + (commitIntervals.size() > 1 ? "/c" + commit : "");
-                setups.add(new Setup(t, commit.equals("default") ? null : commit, label));
+                for (int v = 0; v < variants.size(); v++) {
+                    String label = (threads.size() > 1 ? "/" + t + "t" : "")
+                            + (commitIntervals.size() > 1 ? "/c" + commit : "")
+                            + (variants.size() > 1 ? "/v" + v : "");
+                    setups.add(new Setup(t, commit.equals("default") ? null : commit, variants.get(v), label));
+                }
             }
         }
         return setups;
+    }
+
+    /**
+     * The variants of {@code text}: separated by {@code |}, each {@code default} or Kafka Streams settings
+     * {@code key=value} separated by {@code ;}.
+     */
+    private static List<Map<String, String>> variants(String text) {
+        List<Map<String, String>> variants = new ArrayList<>();
+        for (String variant : text.split("\\|")) {
+            Map<String, String> config = new LinkedHashMap<>();
+            for (String setting : variant.equals("default") ? new String[0] : variant.split(";")) {
+                String[] pair = setting.split("=", 2);
+                if (pair.length != 2 || pair[0].isBlank()) {
+                    throw new IllegalArgumentException("variant setting '" + setting + "' is not key=value");
+                }
+                config.put(pair[0], pair[1]);
+            }
+            variants.add(config);
+        }
+        return variants;
     }
 
     /**
@@ -134,10 +173,10 @@ public final class TopologyThroughput {
         Map<String, String> options = new HashMap<>();
         for (int i = 2; i < args.length; i++) {
             String[] pair = args[i].split("=", 2);
-            if (pair.length != 2 || !List.of("partitions", "threads", "apps", "inputs", "commit.interval.ms",
-                    "preload").contains(pair[0])) {
-                throw new IllegalArgumentException("unknown option '" + args[i] + "' (partitions=, threads=, apps=, "
-                        + "inputs=, commit.interval.ms=, preload=)");
+            boolean broker = pair[0].startsWith("broker.") && pair[0].length() > "broker.".length();
+            if (pair.length != 2 || !OPTIONS.contains(pair[0]) && !broker) {
+                throw new IllegalArgumentException("unknown option '" + args[i] + "' (" + String.join("=, ", OPTIONS)
+                        + "=, broker.<property>=)");
             }
             options.put(pair[0], pair[1]);
         }
@@ -147,11 +186,19 @@ public final class TopologyThroughput {
                 Integer.parseInt(options.getOrDefault("partitions", "4")),
                 Stream.of(options.getOrDefault("threads", "1").split(",")).map(Integer::valueOf).toList(),
                 List.of(options.getOrDefault("commit.interval.ms", "default").split(",")),
-                Boolean.parseBoolean(options.getOrDefault("preload", "false")));
+                preload(options.getOrDefault("preload", "false")),
+                Integer.parseInt(options.getOrDefault("experiments", "20")),
+                variants(options.getOrDefault("variants", "default")));
         List<Setup> setups = bench.setups();
         delete(DIR);
         Map<String, List<Double>> rates = new LinkedHashMap<>();
-        try (EmbeddedKafkaBroker broker = EmbeddedKafkaBroker.builder(DIR.resolve("broker")).build().start()) {
+        EmbeddedKafkaBroker.Builder brokerBuilder = EmbeddedKafkaBroker.builder(DIR.resolve("broker"));
+        options.forEach((key, value) -> {
+            if (key.startsWith("broker.")) {
+                brokerBuilder.property(key.substring("broker.".length()), value);
+            }
+        });
+        try (EmbeddedKafkaBroker broker = brokerBuilder.build().start()) {
             for (int round = 0; round < rounds; round++) {
                 for (int i = 0; i < setups.size(); i++) {
                     Setup setup = setups.get((i + round) % setups.size());
@@ -167,9 +214,10 @@ public final class TopologyThroughput {
         }
         delete(DIR);
         System.out.printf(Locale.ROOT, "events=%d partitions=%d threads=%s experiments=%d cores=%d "
-                        + "commit.interval.ms=%s (default: 100 with exactly_once_v2) preload=%s%n", events,
-                bench.partitions, bench.threads, EXPERIMENTS, Runtime.getRuntime().availableProcessors(),
-                bench.commitIntervals, bench.preload);
+                        + "commit.interval.ms=%s (default: 100 with exactly_once_v2) preload=%s variants=%s "
+                        + "broker=%s%n", events, bench.partitions, bench.threads, bench.experiments,
+                Runtime.getRuntime().availableProcessors(), bench.commitIntervals, bench.preload, bench.variants,
+                options.entrySet().stream().filter(e -> e.getKey().startsWith("broker.")).toList());
         for (Map.Entry<String, List<Double>> e : rates.entrySet()) {
             String variant = e.getKey().substring(e.getKey().indexOf('/') + 1);
             List<Double> bare = rates.get("bare/" + variant);
@@ -185,6 +233,13 @@ public final class TopologyThroughput {
             }
             System.out.println(line);
         }
+    }
+
+    private static String preload(String text) {
+        if (!List.of("false", "true", "pause").contains(text)) {
+            throw new IllegalArgumentException("preload='" + text + "': must be false, true or pause");
+        }
+        return text;
     }
 
     private static List<String> listOption(String text, List<String> known) {
@@ -249,7 +304,7 @@ public final class TopologyThroughput {
         try (KafkaProducer<String, byte[]> producer = producer(broker)) {
             int sent = 0;
             for (int unit = 0; sent < events; unit++) {
-                String experiment = "exp-" + random.nextInt(EXPERIMENTS);
+                String experiment = "exp-" + random.nextInt(experiments);
                 String arm = "arm" + random.nextInt(3);
                 String unitId = "u" + unit;
                 Integer partition = input.equals("crc32") ? crc32Partition(unitId) : null;
@@ -278,9 +333,9 @@ public final class TopologyThroughput {
                 Serdes.String().serializer(), new ByteArraySerializer());
     }
 
-    private static void produceDefinitions(EmbeddedKafkaBroker broker, TopologySettings s) {
+    private void produceDefinitions(EmbeddedKafkaBroker broker, TopologySettings s) {
         try (KafkaProducer<String, byte[]> producer = producer(broker)) {
-            for (int e = 0; e < EXPERIMENTS; e++) {
+            for (int e = 0; e < experiments; e++) {
                 ExperimentDefinition def = definition("exp-" + e);
                 producer.send(new ProducerRecord<>(s.definitionsTopic(), def.getExperimentId(),
                         RecordCodec.definitions().encode(def)));
@@ -319,8 +374,9 @@ public final class TopologyThroughput {
      * then writes the events and times from the first write until the input and, for the job, its repartition
      * topic of events are fully consumed. With {@code preload=true} the application is stopped after the
      * definitions are accepted, the events are written, and the run is timed from the moment the restarted
-     * application is RUNNING, so the producer's rate does not bound it. {@code producer} times the writing
-     * alone. Returns events per second.
+     * application is RUNNING, so the producer's rate does not bound it; with {@code preload=pause} the
+     * application is paused instead of stopped and timed from its resumption. {@code producer} times the
+     * writing alone. Returns events per second.
      */
     private double run(EmbeddedKafkaBroker broker, String name, String app, String input, Setup setup)
             throws Exception {
@@ -334,7 +390,7 @@ public final class TopologyThroughput {
         if (app.equals("producer")) {
             long began = System.nanoTime();
             produce(broker, settings, input);
-            return report(name, began, new JobCounters());
+            return report(name, began, new JobCounters(), "");
         }
         JobCounters counters = new JobCounters();
         String application = "bench-" + name;
@@ -347,6 +403,9 @@ public final class TopologyThroughput {
         if (setup.commitIntervalMs() != null) {
             overrides.put(StreamsConfig.COMMIT_INTERVAL_MS_CONFIG, setup.commitIntervalMs());
         }
+        // short thread names, so that the kernel's 15-character names of the stream threads stay apart from others
+        overrides.put(StreamsConfig.CLIENT_ID_CONFIG, "s");
+        overrides.putAll(setup.streamsConfig());
         Properties props = RunoffTopology.streamsConfig(settings, counters, overrides);
         List<String> perEvent = !job ? List.of(settings.outcomesTopic())
                 : List.of(settings.outcomesTopic(), application + (app.equals("unit")
@@ -360,18 +419,28 @@ public final class TopologyThroughput {
                     produceDefinitions(broker, settings);
                     awaitAccepted(streams);
                 }
-                if (preload) {
+                long began;
+                RunBreakdown atStart;
+                if (preload.equals("true")) {
                     streams.close(CloseOptions.groupMembershipOperation(
                             CloseOptions.GroupMembershipOperation.LEAVE_GROUP));
                     produce(broker, settings, input);
                     streams = start(topology(job, settings, props, counters), props, name, runningAt);
-                    awaitNoLag(admin, application, perEvent);
-                    return report(name, runningAt[0], counters);
+                    atStart = RunBreakdown.take(streams);
+                    began = runningAt[0];
+                } else if (preload.equals("pause")) {
+                    streams.pause();
+                    produce(broker, settings, input);
+                    atStart = RunBreakdown.take(streams);
+                    began = System.nanoTime();
+                    streams.resume();
+                } else {
+                    atStart = RunBreakdown.take(streams);
+                    began = System.nanoTime();
+                    produce(broker, settings, input);
                 }
-                long began = System.nanoTime();
-                produce(broker, settings, input);
                 awaitNoLag(admin, application, perEvent);
-                return report(name, began, counters);
+                return report(name, began, counters, RunBreakdown.take(streams).since(atStart));
             } finally {
                 streams.close();
             }
@@ -401,22 +470,25 @@ public final class TopologyThroughput {
         return streams;
     }
 
-    private double report(String name, long began, JobCounters counters) {
+    private double report(String name, long began, JobCounters counters, String breakdown) {
         double seconds = (System.nanoTime() - began) / 1e9;
         double rate = events / seconds;
         System.out.printf(Locale.ROOT, "%s: %d events in %.2f s = %.0f events/s, in place %d, rerouted %d, "
                         + "counted %s, load average %.1f%n", name, events, seconds, rate, counters.inPlaceEvents(),
                 counters.reroutedEvents(), counters.snapshot(),
                 ManagementFactory.getOperatingSystemMXBean().getSystemLoadAverage());
+        if (!breakdown.isEmpty()) {
+            System.out.println(breakdown);
+        }
         return rate;
     }
 
     /** Waits until the job's global store holds every definition. */
-    private static void awaitAccepted(KafkaStreams streams) throws InterruptedException {
+    private void awaitAccepted(KafkaStreams streams) throws InterruptedException {
         while (true) {
             ReadOnlyKeyValueStore<String, byte[]> store = streams.store(StoreQueryParameters.fromNameAndType(
                     RunoffTopology.DEFINITIONS_STORE, QueryableStoreTypes.keyValueStore()));
-            if (store.approximateNumEntries() >= EXPERIMENTS) {
+            if (store.approximateNumEntries() >= experiments) {
                 return;
             }
             Thread.sleep(100);
