@@ -90,6 +90,8 @@ class CleanRestartBrokerIT {
                 awaitTrials(truth);
                 assertEquals(UNITS / 4, second.count(JobCounters.DUPLICATE), "exactly the events sent again");
                 assertEquals(Map.of(), restored.taskStores(), "records restored into the tasks' stores");
+                assertEquals(1L, restored.of(RunoffTopology.DEFINITIONS_STORE),
+                        "the in-memory global store reloads its one definition, as at every start");
             } finally {
                 streams.close(TIMEOUT);
             }
@@ -141,7 +143,7 @@ class CleanRestartBrokerIT {
 
     /**
      * Records restored per store, from every restore Kafka Streams reports. The global store of accepted
-     * definitions is in memory and reloaded from its topic at every start, so it is left out.
+     * definitions is in memory and reloaded from its topic at every start, so {@link #taskStores} leaves it out.
      */
     private static final class RestoredRecords implements StateRestoreListener {
         private final Map<String, LongAdder> byStore = new ConcurrentHashMap<>();
@@ -157,6 +159,11 @@ class CleanRestartBrokerIT {
 
         @Override
         public void onRestoreEnd(TopicPartition partition, String store, long totalRestored) {
+        }
+
+        long of(String store) {
+            LongAdder n = byStore.get(store);
+            return n == null ? 0 : n.sum();
         }
 
         Map<String, Long> taskStores() {
