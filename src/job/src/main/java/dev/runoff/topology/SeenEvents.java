@@ -19,9 +19,9 @@ import org.apache.kafka.streams.state.WindowStoreIterator;
  * drops while they are inside the window.
  *
  * <p>Upgrade: a job of an earlier version kept every id in the window store {@link RunoffTopology#DEDUPE_STORE}
- * (the earlier store), which this job only reads. If that store holds an id seen within the window when the
- * task reads its first event, every event is also looked up there until one window after that moment; after it
- * the store holds nothing that could still match.
+ * (the earlier store), which this job only reads (and anchors, below). If that store holds an id seen within
+ * the window when the task reads its first event, every event is also looked up there until one window after
+ * that moment; after it the store holds nothing that could still match.
  *
  * <p>Anchors: when its task starts, each of the two window stores gets one record under {@link #ANCHOR}
  * ({@link #anchor}), so that a clean restart keeps the task's local state. Design: under exactly-once, Kafka

@@ -153,10 +153,6 @@ class SeenEventsTopologyTest {
         assertEquals(new BernoulliStats(1, 0), job.state("up").stats().get(1), "e-3 alone");
     }
 
-    private <K, V> KeyValueStore<K, V> units() {
-        return job.store(RunoffTopology.UNITS_STORE);
-    }
-
     @Test
     void bothWindowStoresHoldAnAnchorOnceTheTaskHasStarted() {
         for (String store : List.of(RunoffTopology.DEDUPE_STORE, RunoffTopology.OVERFLOW_STORE)) {
@@ -166,6 +162,10 @@ class SeenEventsTopologyTest {
             }
             assertEquals(List.of(SeenEvents.ANCHOR), keys, store + ": only the anchor, before any event");
         }
+    }
+
+    private <K, V> KeyValueStore<K, V> units() {
+        return job.store(RunoffTopology.UNITS_STORE);
     }
 
     /** Records of {@code store} other than its anchor. */
