@@ -93,6 +93,7 @@ final class Attribution extends ContextualProcessor<byte[], UnitEvent, byte[], R
         seen = new SeenEvents(context.getStateStore(RunoffTopology.OVERFLOW_STORE),
                 context.getStateStore(RunoffTopology.DEDUPE_STORE), settings.dedupeWindowMs());
         lastReadAt = context.currentSystemTimeMs();
+        seen.anchor(lastReadAt);
         context.schedule(Duration.ofMillis(settings.unitsCleanupIntervalMs()), PunctuationType.WALL_CLOCK_TIME,
                 this::cleanUp);
         context.schedule(Duration.ofMillis(settings.flushIntervalMs()), PunctuationType.WALL_CLOCK_TIME,

@@ -64,8 +64,8 @@ public final class RunoffTopology {
     /** Name of the global store of accepted definitions. */
     public static final String DEFINITIONS_STORE = "accepted-definitions";
     /**
-     * Name of the window store of seen event ids that a job of an earlier version wrote; read, never written
-     * ({@link SeenEvents}).
+     * Name of the window store of seen event ids that a job of an earlier version wrote; read, never written but
+     * for the anchor record each task writes when it starts ({@link SeenEvents}).
      */
     public static final String DEDUPE_STORE = "seen-event-ids";
     /** Name of the window store of event ids pushed out of their unit's entry ({@link UnitEntry}). */

@@ -19,11 +19,32 @@ import org.apache.kafka.streams.state.WindowStoreIterator;
  * drops while they are inside the window.
  *
  * <p>Upgrade: a job of an earlier version kept every id in the window store {@link RunoffTopology#DEDUPE_STORE}
- * (the earlier store), which this job only reads. If that store holds an id seen within the window when the
- * task reads its first event, every event is also looked up there until one window after that moment; after it
- * the store holds nothing that could still match.
+ * (the earlier store), which this job only reads (and anchors, below). If that store holds an id seen within
+ * the window when the task reads its first event, every event is also looked up there until one window after
+ * that moment; after it the store holds nothing that could still match.
+ *
+ * <p>Anchors: when its task starts, each of the two window stores gets one record under {@link #ANCHOR}
+ * ({@link #anchor}), so that a clean restart keeps the task's local state. Design: under exactly-once, Kafka
+ * Streams 4.4 asks every persistent logged store of a task for its committed changelog offset when the task
+ * starts ({@code ProcessorStateManager.initializeStoreOffsets}, through {@code StateStore.committedOffset}); a
+ * store without one, in a task directory that is not empty, may hold uncommitted writes, so the whole task is
+ * wiped and restored from its changelogs ({@code TaskCorruptedException}). {@code ProcessorStateManager.commit}
+ * hands each store its offset when the task closes cleanly, but a RocksDB window store keeps it in its segments
+ * ({@code AbstractSegments.commit} and {@code committedOffset}): a window store without a segment, one that was
+ * never written (the earlier store, on a job that never ran the earlier version) or has nothing yet (the
+ * overflow store until some unit overflows), has nowhere to keep it and reports none. The anchor is a write
+ * like any other (logged to the changelog inside the task's transaction), so it creates a segment; a segment
+ * is dropped only when a later write moves the store's observed time a retention past it
+ * ({@code AbstractSegments.cleanupExpiredSegments}), so the newest segment always stays. Exactly-once is
+ * untouched: each segment is a {@code RocksDBStore} (as {@code KeyValueSegment}), which keeps its offset the way
+ * the task's key-value stores keep theirs, so after a crash Kafka Streams treats it as it treats them. The
+ * anchor key holds no NUL, so no event key (experiment, NUL, event id) or overflow key can equal it, and the
+ * check of the earlier store skips it.
  */
 final class SeenEvents {
+
+    /** Key of the anchor record of both window stores (see the class comment). */
+    static final String ANCHOR = "restart-anchor";
 
     private static final byte[] SEEN = {1};
 
@@ -52,6 +73,12 @@ final class SeenEvents {
         return now <= earlierUntil(now) && holds(earlier, event.eventKey(), since, now);
     }
 
+    /** Writes the anchor record into both window stores at {@code now}; called when the task starts. */
+    void anchor(long now) {
+        overflow.put(ANCHOR, SEEN, now);
+        earlier.put(ANCHOR, SEEN, now);
+    }
+
     /** {@code entry} (or a new one) with {@code event} seen at {@code now}; ids it pushes out are kept apart. */
     UnitEntry remember(UnitEntry entry, UnitEvent event, long now) {
         UnitEntry.Remembered remembered = (entry == null ? UnitEntry.EMPTY : entry).remember(event.eventId(), now,
@@ -64,16 +91,25 @@ final class SeenEvents {
 
     /**
      * Until when the earlier store may hold a matching id: decided at the first event this task reads (after its
-     * stores are restored), from whether the store holds any id seen within the window.
+     * stores are restored), from whether the store holds any id seen within the window (anchors are not ids).
      */
     private long earlierUntil(long now) {
         if (!earlierChecked) {
             earlierChecked = true;
-            try (var any = earlier.fetchAll(Math.max(0L, now - windowMs), now)) {
-                earlierUntil = any.hasNext() ? now + windowMs : Long.MIN_VALUE;
-            }
+            earlierUntil = holdsAnId(Math.max(0L, now - windowMs), now) ? now + windowMs : Long.MIN_VALUE;
         }
         return earlierUntil;
+    }
+
+    private boolean holdsAnId(long since, long now) {
+        try (var all = earlier.fetchAll(since, now)) {
+            while (all.hasNext()) {
+                if (!ANCHOR.equals(all.next().key.key())) {
+                    return true;
+                }
+            }
+        }
+        return false;
     }
 
     /** Key of an id in the overflow store: the unit's key, NUL, the event id. */

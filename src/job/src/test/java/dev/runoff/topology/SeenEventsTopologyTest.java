@@ -7,6 +7,7 @@ import static org.junit.jupiter.api.Assertions.assertNull;
 import dev.runoff.engine.stats.BernoulliStats;
 import dev.runoff.records.avro.ExperimentDefinition;
 import dev.runoff.testkit.TestDefinitions;
+import java.util.ArrayList;
 import java.util.List;
 import java.util.Map;
 import org.apache.kafka.streams.state.KeyValueStore;
@@ -74,7 +75,7 @@ class SeenEventsTopologyTest {
         }
         UnitEntry entry = this.<String, UnitEntry>units().get(UnitEvent.unitKey("many", "u1"));
         assertEquals(UnitEntry.MAX_SEEN, entry.seen().size(), "the entry keeps its bound");
-        assertEquals(24, count(job.windowStore(RunoffTopology.OVERFLOW_STORE)), "the rest went to the overflow store");
+        assertEquals(24, ids(job.windowStore(RunoffTopology.OVERFLOW_STORE)), "the rest went to the overflow store");
         for (int i = 0; i < events; i++) {
             job.event("u1", Events.exposure("many", "u1", "e-" + i, "a", T0));
         }
@@ -152,16 +153,29 @@ class SeenEventsTopologyTest {
         assertEquals(new BernoulliStats(1, 0), job.state("up").stats().get(1), "e-3 alone");
     }
 
+    @Test
+    void bothWindowStoresHoldAnAnchorOnceTheTaskHasStarted() {
+        for (String store : List.of(RunoffTopology.DEDUPE_STORE, RunoffTopology.OVERFLOW_STORE)) {
+            List<String> keys = new ArrayList<>();
+            try (var all = job.windowStore(store).all()) {
+                all.forEachRemaining(kv -> keys.add(kv.key.key()));
+            }
+            assertEquals(List.of(SeenEvents.ANCHOR), keys, store + ": only the anchor, before any event");
+        }
+    }
+
     private <K, V> KeyValueStore<K, V> units() {
         return job.store(RunoffTopology.UNITS_STORE);
     }
 
-    private static int count(WindowStore<String, byte[]> store) {
+    /** Records of {@code store} other than its anchor. */
+    private static int ids(WindowStore<String, byte[]> store) {
         int n = 0;
         try (var all = store.all()) {
             while (all.hasNext()) {
-                all.next();
-                n++;
+                if (!SeenEvents.ANCHOR.equals(all.next().key.key())) {
+                    n++;
+                }
             }
         }
         return n;
