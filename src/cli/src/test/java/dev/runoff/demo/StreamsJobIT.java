@@ -187,10 +187,10 @@ class StreamsJobIT {
             String metrics = Http.get(holder.httpPort(), "/metrics").body();
             List<String> capacities = metrics.lines()
                     .filter(l -> l.startsWith("kafka_stream_state_block_cache_capacity{")).toList();
-            // A window store with no segment open yet (the read-only store of event ids an earlier version
-            // wrote, the overflow store that only units with more than 16 recent ids reach) reports 0: its
-            // recorder sums over open segments and has none (observed here; RocksDBMetricsRecorder, from
-            // memory). 0 is not the failure this checks for: a store with a cache of its own reports its size.
+            // A window store with no segment open yet (the two stores of event ids before their task has
+            // written its start anchor, SeenEvents) reports 0: its recorder sums over open segments and has
+            // none (observed here before the anchors existed; RocksDBMetricsRecorder, from memory). 0 is not the
+            // failure this checks for: a store with a cache of its own reports its size.
             boolean sharedSeen = false;
             for (String line : capacities) {
                 double capacity = Double.parseDouble(line.substring(line.lastIndexOf(' ') + 1));
