@@ -36,12 +36,13 @@ class EngineVersionTest {
 
     @Test
     void versionsAreFoundByTheirLabelsAndTheCurrentOneIsWhatNewEvaluationsRecord() {
-        assertEquals("1.2, 1.3, 1.4", EngineVersion.supported());
+        assertEquals("1.2, 1.3, 1.4, 1.5", EngineVersion.supported());
         assertSame(EngineVersion.V1_2, EngineVersion.of("1.2"));
         assertSame(EngineVersion.V1_3, EngineVersion.of("1.3"));
         assertSame(EngineVersion.V1_4, EngineVersion.of("1.4"));
+        assertSame(EngineVersion.V1_5, EngineVersion.of("1.5"));
         assertEquals(Optional.empty(), EngineVersion.find("1.1"));
-        assertSame(EngineVersion.V1_4, EngineVersion.CURRENT);
+        assertSame(EngineVersion.V1_5, EngineVersion.CURRENT);
         assertEquals(EngineVersion.CURRENT.label(), AllocationEngine.VERSION);
         assertSame(EngineVersion.CURRENT, new AllocationEngine().version());
         assertEquals(AllocationEngine.VERSION, new AllocationEngine().evaluate(CLEAR, BERNOULLI, 3L).engineVersion());
@@ -50,7 +51,7 @@ class EngineVersionTest {
     @Test
     void anUnknownVersionIsRejectedNamingTheSupportedOnes() {
         IllegalArgumentException e = assertThrows(IllegalArgumentException.class, () -> EngineVersion.of("1.1"));
-        assertEquals("engine version '1.1' is not supported; supported: 1.2, 1.3, 1.4", e.getMessage());
+        assertEquals("engine version '1.1' is not supported; supported: 1.2, 1.3, 1.4, 1.5", e.getMessage());
         assertThrows(NullPointerException.class, () -> new AllocationEngine(null));
     }
 
@@ -96,6 +97,21 @@ class EngineVersionTest {
         for (int i = 0; i < a.alpha().length; i++) {
             // Same draws: counted alphas equal; integrated ones within PeakQuadratureTest's relative tolerance.
             assertEquals(a.alpha()[i], b.alpha()[i], 1e-9 * a.alpha()[i] + 1e-15, "arm " + i);
+        }
+    }
+
+    @Test
+    void version15KeepsTheDrawsOf14AndIntegratesTheArmsThatWinNoneToItsTolerance() {
+        Evaluation earlier = new AllocationEngine(EngineVersion.V1_4).evaluate(CLEAR, BERNOULLI, 5L);
+        Evaluation current = new AllocationEngine(EngineVersion.V1_5).evaluate(CLEAR, BERNOULLI, 5L);
+        ProbabilityBest a = earlier.probabilityBest();
+        ProbabilityBest b = current.probabilityBest();
+        assertEquals(a.draws(), b.draws());
+        assertTrue(a.conditional()[0], "arm a wins no draw here, so its alpha is integrated");
+        assertNotEquals(a.alpha()[0], b.alpha()[0]);
+        for (int i = 0; i < a.alpha().length; i++) {
+            // Same draws: counted alphas equal; integrated ones within TolerancePeakQuadratureTest's tolerance.
+            assertEquals(a.alpha()[i], b.alpha()[i], 2e-8 * a.alpha()[i] + 1e-15, "arm " + i);
         }
     }
 
