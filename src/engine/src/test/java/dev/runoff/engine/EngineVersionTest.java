@@ -101,17 +101,16 @@ class EngineVersionTest {
     }
 
     @Test
-    void version15KeepsTheDrawsOf14AndIntegratesTheArmsThatWinNoneToItsTolerance() {
-        Evaluation earlier = new AllocationEngine(EngineVersion.V1_4).evaluate(CLEAR, BERNOULLI, 5L);
-        Evaluation current = new AllocationEngine(EngineVersion.V1_5).evaluate(CLEAR, BERNOULLI, 5L);
-        ProbabilityBest a = earlier.probabilityBest();
-        ProbabilityBest b = current.probabilityBest();
-        assertEquals(a.draws(), b.draws());
-        assertTrue(a.conditional()[0], "arm a wins no draw here, so its alpha is integrated");
-        assertNotEquals(a.alpha()[0], b.alpha()[0]);
+    void version15AgreesWith14WithinTheDrawsErrorAndIntegratesTheArmsThatWinNoneToItsTolerance() {
+        ProbabilityBest a = new AllocationEngine(EngineVersion.V1_4).evaluate(CLEAR, BERNOULLI, 5L).probabilityBest();
+        ProbabilityBest b = new AllocationEngine(EngineVersion.V1_5).evaluate(CLEAR, BERNOULLI, 5L).probabilityBest();
+        assertTrue(a.conditional()[0] && b.conditional()[0], "arm a wins no draw in either");
         for (int i = 0; i < a.alpha().length; i++) {
-            // Same draws: counted alphas equal; integrated ones within TolerancePeakQuadratureTest's tolerance.
-            assertEquals(a.alpha()[i], b.alpha()[i], 2e-8 * a.alpha()[i] + 1e-15, "arm " + i);
+            // Integrated in both: within TolerancePeakQuadratureTest's tolerance. Counted: other draws (1.5 draws
+            // each arm from its own stream), so within 5 standard errors of the difference (normal approximation).
+            double allowed = a.conditional()[i] && b.conditional()[i] ? 2e-8 * a.alpha()[i] + 1e-15
+                    : 5 * Math.hypot(a.standardError()[i], b.standardError()[i]);
+            assertEquals(a.alpha()[i], b.alpha()[i], allowed, "arm " + i);
         }
     }
 
