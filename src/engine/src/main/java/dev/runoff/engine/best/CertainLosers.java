@@ -2,6 +2,7 @@ package dev.runoff.engine.best;
 
 import dev.runoff.engine.posterior.BetaPosterior;
 import dev.runoff.engine.posterior.Posterior;
+import java.util.Arrays;
 import java.util.List;
 
 /**
@@ -46,7 +47,7 @@ final class CertainLosers {
         }
         int k = posteriors.size();
         boolean[] drawn = new boolean[k];
-        java.util.Arrays.fill(drawn, true);
+        Arrays.fill(drawn, true);
         if (!allBeta(posteriors)) {
             return drawn;
         }

@@ -97,7 +97,7 @@ final class PeakQuadrature {
     }
 
     /** The posteriors as Beta posteriors with both shapes at least 1, or null when one is not. */
-    static List<BetaPosterior> logConcaveBetas(List<? extends Posterior> posteriors) {
+    private static List<BetaPosterior> logConcaveBetas(List<? extends Posterior> posteriors) {
         List<BetaPosterior> betas = new ArrayList<>(posteriors.size());
         for (Posterior p : posteriors) {
             if (!(p instanceof BetaPosterior beta) || beta.a() < 1 || beta.b() < 1) {

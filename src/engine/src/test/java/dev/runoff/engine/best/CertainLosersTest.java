@@ -8,7 +8,6 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import dev.runoff.engine.posterior.BetaPosterior;
 import dev.runoff.engine.posterior.Posterior;
 import dev.runoff.engine.posterior.StudentTPosterior;
-import java.util.ArrayList;
 import java.util.List;
 import java.util.SplittableRandom;
 import org.junit.jupiter.api.Test;
@@ -26,36 +25,21 @@ class CertainLosersTest {
 
     @Test
     void theBoundIsNeverBelowTheExactAlphaOnThePoolsShapes() {
-        // The pool's shapes (RecomputeBench): five arms, 2,000 to 20,000 trials, rates of 2% to 12%.
         SplittableRandom random = new SplittableRandom(10_000);
         int compared = 0;
         for (int e = 0; e < 300; e++) {
-            List<Posterior> arms = new ArrayList<>();
-            for (int arm = 0; arm < 5; arm++) {
-                long trials = 2_000 + random.nextInt(18_000);
-                long wins = Math.round(trials * (0.02 + 0.1 * random.nextDouble()));
-                arms.add(new BetaPosterior(1 + wins, 1 + trials - wins));
-            }
-            compared += boundsHold(arms);
+            compared += boundsHold(TestArms.poolShaped(random));
         }
-        assertTrue(compared == 1_200, "compared " + compared + " arms");
+        assertEquals(1_200, compared);
     }
 
     @Test
     void theBoundIsNeverBelowTheExactAlphaOnRandomConfigurations() {
-        // Two to eight arms, 1 to 30,000 trials, rates from 0.1% to 60%, some shapes below 1 (Jeffreys prior).
+        // Some configurations with shapes below 1 (Jeffreys prior).
         SplittableRandom random = new SplittableRandom(21);
         int compared = 0;
         for (int e = 0; e < 300; e++) {
-            int k = 2 + random.nextInt(7);
-            double prior = random.nextBoolean() ? 1 : 0.5;
-            List<Posterior> arms = new ArrayList<>();
-            for (int arm = 0; arm < k; arm++) {
-                long trials = 1 + random.nextInt(30_000);
-                long wins = Math.round(trials * (0.001 + 0.6 * random.nextDouble() * random.nextDouble()));
-                arms.add(new BetaPosterior(prior + wins, prior + trials - wins));
-            }
-            compared += boundsHold(arms);
+            compared += boundsHold(TestArms.anyShape(random, random.nextBoolean() ? 1 : 0.5));
         }
         assertTrue(compared > 1_000, "compared " + compared + " arms");
     }
@@ -101,12 +85,7 @@ class CertainLosersTest {
         AlphaReaders readers = new AlphaReaders(a -> a, 1, null);
         int leftOut = 0;
         for (int e = 0; e < 300; e++) {
-            List<Posterior> arms = new ArrayList<>();
-            for (int arm = 0; arm < 5; arm++) {
-                long trials = 2_000 + random.nextInt(18_000);
-                long wins = Math.round(trials * (0.02 + 0.1 * random.nextDouble()));
-                arms.add(new BetaPosterior(1 + wins, 1 + trials - wins));
-            }
+            List<Posterior> arms = TestArms.poolShaped(random);
             for (boolean drawn : CertainLosers.drawn(arms, CAP)) {
                 leftOut += drawn ? 0 : 1;
             }

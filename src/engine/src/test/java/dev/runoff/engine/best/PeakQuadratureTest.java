@@ -6,7 +6,6 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.runoff.engine.posterior.BetaPosterior;
 import dev.runoff.engine.posterior.Posterior;
-import java.util.ArrayList;
 import java.util.List;
 import java.util.SplittableRandom;
 import org.junit.jupiter.api.Test;
@@ -35,13 +34,7 @@ class PeakQuadratureTest {
         SplittableRandom random = new SplittableRandom(10_000);
         int compared = 0;
         for (int e = 0; e < 300; e++) {
-            List<Posterior> arms = new ArrayList<>();
-            for (int arm = 0; arm < 5; arm++) {
-                long trials = 2_000 + random.nextInt(18_000);
-                long wins = Math.round(trials * (0.02 + 0.1 * random.nextDouble()));
-                arms.add(new BetaPosterior(1 + wins, 1 + trials - wins));
-            }
-            compared += agreeOnTrailingArms(arms);
+            compared += agreeOnTrailingArms(TestArms.poolShaped(random));
         }
         assertTrue(compared > 600, "compared " + compared + " arms");
     }
@@ -52,15 +45,7 @@ class PeakQuadratureTest {
         SplittableRandom random = new SplittableRandom(14);
         int compared = 0;
         for (int e = 0; e < 200; e++) {
-            int k = 2 + random.nextInt(7);
-            List<Posterior> arms = new ArrayList<>();
-            for (int arm = 0; arm < k; arm++) {
-                long trials = 1 + random.nextInt(30_000);
-                double rate = 0.001 + 0.6 * random.nextDouble() * random.nextDouble();
-                long wins = Math.round(trials * rate);
-                arms.add(new BetaPosterior(1 + wins, 1 + trials - wins));
-            }
-            compared += agreeOnTrailingArms(arms);
+            compared += agreeOnTrailingArms(TestArms.anyShape(random, 1));
         }
         assertTrue(compared > 150, "compared " + compared + " arms");
     }

@@ -3,9 +3,7 @@ package dev.runoff.engine.best;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import dev.runoff.engine.posterior.BetaPosterior;
 import dev.runoff.engine.posterior.Posterior;
-import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;
 import java.util.SplittableRandom;
@@ -41,13 +39,8 @@ class TolerancePeakQuadratureTest extends PeakQuadratureTest {
         double worst = 0;
         int compared = 0;
         for (int e = 0; e < 200; e++) {
-            int k = 2 + random.nextInt(7);
-            List<Posterior> arms = new ArrayList<>();
-            for (int arm = 0; arm < k; arm++) {
-                long trials = 1 + random.nextInt(30_000);
-                long wins = Math.round(trials * (0.001 + 0.6 * random.nextDouble() * random.nextDouble()));
-                arms.add(new BetaPosterior(1 + wins, 1 + trials - wins));
-            }
+            List<Posterior> arms = TestArms.anyShape(random, 1);
+            int k = arms.size();
             boolean[] which = new boolean[k];
             Arrays.fill(which, true);
             double[] reference = ExactProbabilityBest.selected(arms, which);
