@@ -21,8 +21,9 @@ import java.util.stream.Collectors;
 /**
  * The arithmetics the engine supports, each named by the version string that decision records carry. A version
  * bundles everything whose bits it fixes: the Monte Carlo estimator's draw policy (first stage and when to stop,
- * {@link DrawPolicy}), its draw source ({@link DrawSource}) and its integration of arms that win no draw
- * ({@link ExactAlphas}), and the exact estimator. The audit recomputes each record with the version it names.
+ * {@link DrawPolicy}), its draw source ({@link DrawSource}), which arms it draws from which streams
+ * ({@link DrawnArms}) and its integration of arms that win no draw ({@link ExactAlphas}), and the exact
+ * estimator. The audit recomputes each record with the version it names.
  *
  * <p>Adding a version: add a constant with its own classes and make it {@link #CURRENT}; never change what an
  * existing constant computes (every record ever written with it must replay bit for bit;
