@@ -5,6 +5,7 @@ import dev.runoff.engine.best.AlphaReaders;
 import dev.runoff.engine.best.DecisionPrecision;
 import dev.runoff.engine.best.DrawPolicy;
 import dev.runoff.engine.best.DrawSource;
+import dev.runoff.engine.best.DrawnArms;
 import dev.runoff.engine.best.ExactAlphas;
 import dev.runoff.engine.best.ExactProbabilityBest;
 import dev.runoff.engine.best.FastExactProbabilityBest;
@@ -20,8 +21,9 @@ import java.util.stream.Collectors;
 /**
  * The arithmetics the engine supports, each named by the version string that decision records carry. A version
  * bundles everything whose bits it fixes: the Monte Carlo estimator's draw policy (first stage and when to stop,
- * {@link DrawPolicy}), its draw source ({@link DrawSource}) and its integration of arms that win no draw
- * ({@link ExactAlphas}), and the exact estimator. The audit recomputes each record with the version it names.
+ * {@link DrawPolicy}), its draw source ({@link DrawSource}), which arms it draws from which streams
+ * ({@link DrawnArms}) and its integration of arms that win no draw ({@link ExactAlphas}), and the exact
+ * estimator. The audit recomputes each record with the version it names.
  *
  * <p>Adding a version: add a constant with its own classes and make it {@link #CURRENT}; never change what an
  * existing constant computes (every record ever written with it must replay bit for bit;
@@ -37,7 +39,7 @@ public enum EngineVersion {
 
     /** Frozen: 10,000 first-stage draws ordered leader and runner-up ({@link LeaderOrder}), exact samplers, quadrature. */
     V1_2("1.2", readers -> new LeaderOrder(AdaptiveMonteCarlo.FIRST_STAGE), DrawSource.POSTERIOR,
-            ExactAlphas.QUADRATURE, new ExactProbabilityBest()),
+            ExactAlphas.QUADRATURE, new ExactProbabilityBest(), DrawnArms.ALL_ONE_STREAM),
 
     /**
      * Draws until what the evaluation reads is precise enough ({@link DecisionPrecision}), from the table-based
@@ -46,7 +48,7 @@ public enum EngineVersion {
      * pruned nodes, Beta distribution functions by Taylor steps between nodes).
      */
     V1_3("1.3", DecisionPrecision::new, TableDrawSource.always(), ExactAlphas.FAST_QUADRATURE,
-            new FastExactProbabilityBest()),
+            new FastExactProbabilityBest(), DrawnArms.ALL_ONE_STREAM),
 
     /**
      * 1.3's draw policy, draw source and exact estimator; arms that win no draw are integrated each on its own
@@ -54,24 +56,35 @@ public enum EngineVersion {
      * deeper passes for tiny alphas).
      */
     V1_4("1.4", DecisionPrecision::new, TableDrawSource.always(), ExactAlphas.PEAK_QUADRATURE,
-            new FastExactProbabilityBest());
+            new FastExactProbabilityBest(), DrawnArms.ALL_ONE_STREAM),
+
+    /**
+     * 1.4 with the arms that win no draw integrated to the relative tolerance their consumers need
+     * ({@link ExactAlphas#TOLERANCE_QUADRATURE}: 2e-8 rather than about 1e-12), on fewer, wider panels, and
+     * each arm drawn from its own stream, with no table and no draws for Beta arms that cannot win a draw but
+     * with negligible probability ({@link DrawnArms#LEAVE_OUT_CERTAIN_LOSERS}).
+     */
+    V1_5("1.5", DecisionPrecision::new, TableDrawSource.always(), ExactAlphas.TOLERANCE_QUADRATURE,
+            new FastExactProbabilityBest(), DrawnArms.LEAVE_OUT_CERTAIN_LOSERS);
 
     /** The version new evaluations use. */
-    public static final EngineVersion CURRENT = V1_4;
+    public static final EngineVersion CURRENT = V1_5;
 
     private final String label;
     private final Function<AlphaReaders, DrawPolicy> policy;
     private final DrawSource source;
     private final ExactAlphas zeroWinAlphas;
     private final ProbabilityBestEstimator exact;
+    private final DrawnArms arms;
 
     EngineVersion(String label, Function<AlphaReaders, DrawPolicy> policy, DrawSource source,
-                  ExactAlphas zeroWinAlphas, ProbabilityBestEstimator exact) {
+                  ExactAlphas zeroWinAlphas, ProbabilityBestEstimator exact, DrawnArms arms) {
         this.label = label;
         this.policy = policy;
         this.source = source;
         this.zeroWinAlphas = zeroWinAlphas;
         this.exact = exact;
+        this.arms = arms;
     }
 
     /** The version string records carry, e.g. {@code 1.3}. */
@@ -92,7 +105,7 @@ public enum EngineVersion {
      */
     public AdaptiveMonteCarlo monteCarlo(int maxDraws, AlphaReaders readers) {
         return new AdaptiveMonteCarlo(maxDraws, policy.apply(Objects.requireNonNull(readers, "readers")), source,
-                zeroWinAlphas);
+                zeroWinAlphas, arms);
     }
 
     /** The version whose {@link #label()} is {@code label}, if this engine supports it. */

@@ -36,12 +36,13 @@ class EngineVersionTest {
 
     @Test
     void versionsAreFoundByTheirLabelsAndTheCurrentOneIsWhatNewEvaluationsRecord() {
-        assertEquals("1.2, 1.3, 1.4", EngineVersion.supported());
+        assertEquals("1.2, 1.3, 1.4, 1.5", EngineVersion.supported());
         assertSame(EngineVersion.V1_2, EngineVersion.of("1.2"));
         assertSame(EngineVersion.V1_3, EngineVersion.of("1.3"));
         assertSame(EngineVersion.V1_4, EngineVersion.of("1.4"));
+        assertSame(EngineVersion.V1_5, EngineVersion.of("1.5"));
         assertEquals(Optional.empty(), EngineVersion.find("1.1"));
-        assertSame(EngineVersion.V1_4, EngineVersion.CURRENT);
+        assertSame(EngineVersion.V1_5, EngineVersion.CURRENT);
         assertEquals(EngineVersion.CURRENT.label(), AllocationEngine.VERSION);
         assertSame(EngineVersion.CURRENT, new AllocationEngine().version());
         assertEquals(AllocationEngine.VERSION, new AllocationEngine().evaluate(CLEAR, BERNOULLI, 3L).engineVersion());
@@ -50,7 +51,7 @@ class EngineVersionTest {
     @Test
     void anUnknownVersionIsRejectedNamingTheSupportedOnes() {
         IllegalArgumentException e = assertThrows(IllegalArgumentException.class, () -> EngineVersion.of("1.1"));
-        assertEquals("engine version '1.1' is not supported; supported: 1.2, 1.3, 1.4", e.getMessage());
+        assertEquals("engine version '1.1' is not supported; supported: 1.2, 1.3, 1.4, 1.5", e.getMessage());
         assertThrows(NullPointerException.class, () -> new AllocationEngine(null));
     }
 
@@ -96,6 +97,20 @@ class EngineVersionTest {
         for (int i = 0; i < a.alpha().length; i++) {
             // Same draws: counted alphas equal; integrated ones within PeakQuadratureTest's relative tolerance.
             assertEquals(a.alpha()[i], b.alpha()[i], 1e-9 * a.alpha()[i] + 1e-15, "arm " + i);
+        }
+    }
+
+    @Test
+    void version15AgreesWith14WithinTheDrawsErrorAndIntegratesTheArmsThatWinNoneToItsTolerance() {
+        ProbabilityBest a = new AllocationEngine(EngineVersion.V1_4).evaluate(CLEAR, BERNOULLI, 5L).probabilityBest();
+        ProbabilityBest b = new AllocationEngine(EngineVersion.V1_5).evaluate(CLEAR, BERNOULLI, 5L).probabilityBest();
+        assertTrue(a.conditional()[0] && b.conditional()[0], "arm a wins no draw in either");
+        for (int i = 0; i < a.alpha().length; i++) {
+            // Integrated in both: within TolerancePeakQuadratureTest's tolerance. Counted: other draws (1.5 draws
+            // each arm from its own stream), so within 5 standard errors of the difference (normal approximation).
+            double allowed = a.conditional()[i] && b.conditional()[i] ? 2e-8 * a.alpha()[i] + 1e-15
+                    : 5 * Math.hypot(a.standardError()[i], b.standardError()[i]);
+            assertEquals(a.alpha()[i], b.alpha()[i], allowed, "arm " + i);
         }
     }
 

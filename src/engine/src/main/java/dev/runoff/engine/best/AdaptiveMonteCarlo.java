@@ -40,6 +40,10 @@ import org.apache.commons.rng.simple.RandomSource;
  * The quadrature is deterministic, so the standard error recorded for these arms is 0. The leader's alpha is one minus the other arms' alphas, so the alphas
  * sum to 1; its standard error stays the binomial one of its count.
  *
+ * <p>Engine 1.5 ({@link DrawnArms#LEAVE_OUT_CERTAIN_LOSERS}) draws each arm from its own stream, seeded from
+ * the seed's stream in arm order, and draws no arm that {@link CertainLosers} finds unable to win a draw: such an
+ * arm wins nothing and is integrated like any arm that wins no draw.
+ *
  * <p>Reproducibility: one {@code RandomSource.XO_SHI_RO_256_PP} stream seeded with {@code seed} feeds the
  * joint draws, in the layout of {@link MonteCarloProbabilityBest} within each stage; the quadrature uses
  * {@code StrictMath}.
@@ -55,6 +59,7 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
     private final DrawPolicy policy;
     private final DrawSource source;
     private final ExactAlphas exact;
+    private final DrawnArms arms;
 
     /**
      * Engine 1.2's estimator: at most {@code maxDraws} joint draws, the policy {@link LeaderOrder} with a first
@@ -84,6 +89,17 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
      * @throws IllegalArgumentException if {@code maxDraws < 1} or the policy's first stage is below 1
      */
     public AdaptiveMonteCarlo(int maxDraws, DrawPolicy policy, DrawSource source, ExactAlphas exact) {
+        this(maxDraws, policy, source, exact, DrawnArms.ALL_ONE_STREAM);
+    }
+
+    /**
+     * As {@link #AdaptiveMonteCarlo(int, DrawPolicy, DrawSource, ExactAlphas)}, drawing the arms and from the
+     * streams {@code arms} says ({@link DrawnArms#LEAVE_OUT_CERTAIN_LOSERS}: engine version 1.5).
+     *
+     * @throws IllegalArgumentException if {@code maxDraws < 1} or the policy's first stage is below 1
+     */
+    public AdaptiveMonteCarlo(int maxDraws, DrawPolicy policy, DrawSource source, ExactAlphas exact,
+                              DrawnArms arms) {
         if (maxDraws < 1) {
             throw new IllegalArgumentException("maxDraws must be >= 1, got " + maxDraws);
         }
@@ -94,6 +110,7 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
         this.maxDraws = maxDraws;
         this.source = Objects.requireNonNull(source, "source");
         this.exact = Objects.requireNonNull(exact, "exact");
+        this.arms = Objects.requireNonNull(arms, "arms");
     }
 
     /** The cap on joint draws. */
@@ -122,12 +139,16 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
     public ProbabilityBest estimate(List<? extends Posterior> posteriors, long seed) {
         UniformRandomProvider rng = RandomSource.XO_SHI_RO_256_PP.create(seed);
         Integrated integrated = new Integrated(posteriors);
-        Posterior.Sampler[] samplers = MonteCarloProbabilityBest.samplers(posteriors, rng, source);
-        long[] wins = new long[samplers.length];
+        int[] drawn = drawnArms(posteriors);
+        Posterior.Sampler[] samplers = drawn == null ? MonteCarloProbabilityBest.samplers(posteriors, rng, source)
+                : ownStreams(posteriors, drawn, rng);
+        long[] drawnWins = new long[samplers.length];
+        long[] wins = drawn == null ? drawnWins : new long[posteriors.size()];
         int done = 0;
         int target = Math.min(policy.firstStage(), maxDraws);
         while (true) {
-            MonteCarloProbabilityBest.addWins(samplers, target - done, wins);
+            MonteCarloProbabilityBest.addWins(samplers, target - done, drawnWins);
+            spread(drawnWins, drawn, wins);
             done = target;
             if (done == maxDraws || policy.settled(wins, done, () -> integrated.of(conditional(wins)))) {
                 break;
@@ -135,6 +156,51 @@ public final class AdaptiveMonteCarlo implements ProbabilityBestEstimator {
             target = (int) Math.min(2L * done, maxDraws);
         }
         return estimates(wins, done, integrated);
+    }
+
+    /** The indices of the arms to draw, each from its own stream, or null to draw every arm from one stream. */
+    private int[] drawnArms(List<? extends Posterior> posteriors) {
+        if (arms == DrawnArms.ALL_ONE_STREAM) {
+            return null;
+        }
+        MonteCarloProbabilityBest.check(posteriors);
+        boolean[] which = arms == DrawnArms.LEAVE_OUT_CERTAIN_LOSERS ? CertainLosers.drawn(posteriors, maxDraws)
+                : null;
+        int[] drawn = new int[posteriors.size()];
+        int n = 0;
+        for (int i = 0; i < drawn.length; i++) {
+            if (which == null || which[i]) {
+                drawn[n++] = i;
+            }
+        }
+        return Arrays.copyOf(drawn, n);
+    }
+
+    /**
+     * Samplers of the drawn arms, each on its own stream: {@code seeds} gives one seed per arm, every arm in
+     * order, so an arm's stream does not depend on which arms are drawn.
+     */
+    private Posterior.Sampler[] ownStreams(List<? extends Posterior> posteriors, int[] drawn,
+                                           UniformRandomProvider seeds) {
+        long[] armSeeds = new long[posteriors.size()];
+        for (int i = 0; i < armSeeds.length; i++) {
+            armSeeds[i] = seeds.nextLong();
+        }
+        Posterior.Sampler[] samplers = new Posterior.Sampler[drawn.length];
+        for (int k = 0; k < drawn.length; k++) {
+            samplers[k] = source.sampler(posteriors.get(drawn[k]),
+                    RandomSource.XO_SHI_RO_256_PP.create(armSeeds[drawn[k]]));
+        }
+        return samplers;
+    }
+
+    /** Copies the drawn arms' wins to their places among all arms (nothing to do when every arm is drawn). */
+    private static void spread(long[] drawnWins, int[] drawn, long[] wins) {
+        if (drawn != null) {
+            for (int k = 0; k < drawn.length; k++) {
+                wins[drawn[k]] = drawnWins[k];
+            }
+        }
     }
 
     /** The arms that won no draw, the leader aside: their alphas are integrated. */

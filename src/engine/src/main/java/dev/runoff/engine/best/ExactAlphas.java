@@ -20,7 +20,13 @@ public interface ExactAlphas {
      * Each selected arm's integral on its own panels from the peak of its integrand ({@link PeakQuadrature}):
      * the integration of engine version 1.4.
      */
-    ExactAlphas PEAK_QUADRATURE = PeakQuadrature::selected;
+    ExactAlphas PEAK_QUADRATURE = PeakQuadrature.V1_4::selected;
+
+    /**
+     * Engine 1.4's integration to the relative tolerance its consumers need ({@link TolerancePeakQuadrature}):
+     * the integration of engine version 1.5.
+     */
+    ExactAlphas TOLERANCE_QUADRATURE = TolerancePeakQuadrature::selected;
 
     /**
      * The alphas of the arms selected by {@code which}, 0 for the others.

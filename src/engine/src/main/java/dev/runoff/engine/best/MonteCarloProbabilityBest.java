@@ -78,19 +78,29 @@ public final class MonteCarloProbabilityBest implements ProbabilityBestEstimator
 
     static Posterior.Sampler[] samplers(List<? extends Posterior> posteriors, UniformRandomProvider rng,
                                         DrawSource source) {
+        check(posteriors);
+        Posterior.Sampler[] samplers = new Posterior.Sampler[posteriors.size()];
+        for (int i = 0; i < samplers.length; i++) {
+            samplers[i] = source.sampler(posteriors.get(i), rng);
+        }
+        return samplers;
+    }
+
+    /**
+     * Checks that there are at least two posteriors and none is null.
+     *
+     * @throws IllegalArgumentException naming what is wrong
+     */
+    static void check(List<? extends Posterior> posteriors) {
         if (posteriors == null || posteriors.size() < 2) {
             throw new IllegalArgumentException("need at least 2 posteriors, got "
                     + (posteriors == null ? "null" : posteriors.size()));
         }
-        Posterior.Sampler[] samplers = new Posterior.Sampler[posteriors.size()];
-        for (int i = 0; i < samplers.length; i++) {
-            Posterior posterior = posteriors.get(i);
-            if (posterior == null) {
+        for (int i = 0; i < posteriors.size(); i++) {
+            if (posteriors.get(i) == null) {
                 throw new IllegalArgumentException("posterior of arm " + i + " is null");
             }
-            samplers[i] = source.sampler(posterior, rng);
         }
-        return samplers;
     }
 
     /** Wins per arm over all draws; the only allocations are the buffers made before the loop. */

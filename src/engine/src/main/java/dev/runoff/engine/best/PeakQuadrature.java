@@ -45,27 +45,40 @@ import java.util.List;
  * Deterministic (StrictMath).
  */
 final class PeakQuadrature {
-    /** Log of the largest share of an integral its two cut tails may hold. */
+    /** Engine 1.4's integration: tails cut at {@code e^-30}, panels of factor 10, 20 points. */
+    static final PeakQuadrature V1_4 = new PeakQuadrature(PeakQuadrature.STOP, PeakQuadrature.FACTOR, 20);
+    /** Log of the largest share of an integral its two cut tails may hold (engine 1.4). */
     static final double STOP = 30;
-    private static final GaussLegendre RULE = GaussLegendre.of(20);
-    /** Panel width in local standard deviations (engine 1.3: 8). */
+    /** Panel width in local standard deviations (engine 1.4; engine 1.3: 8). */
     static final double FACTOR = 10;
     private static final int NEWTON_STEPS = 6;
     private static final double NEWTON_TOLERANCE = 0.25;
     private static final int MAX_PANELS = 64;
     private static final int MAX_HALVINGS = 60;
-    private static final double[] LOG_WEIGHTS = logWeights();
 
-    private PeakQuadrature() {
+    private final double stop;
+    private final double factor;
+    private final GaussLegendre rule;
+    private final double[] logWeights;
+
+    /**
+     * An integration whose cut tails hold at most {@code e^-stop} of each integral, with {@code points}-point
+     * Gauss-Legendre panels {@code factor} local standard deviations wide.
+     */
+    PeakQuadrature(double stop, double factor, int points) {
+        this.stop = stop;
+        this.factor = factor;
+        this.rule = GaussLegendre.of(points);
+        this.logWeights = logWeights(rule);
     }
 
     /**
-     * The alphas of the arms selected by {@code which} (the others are 0): the {@link ExactAlphas} of engine
-     * version 1.4.
+     * The alphas of the arms selected by {@code which} (the others are 0), by this integration: with
+     * {@link #V1_4}, the {@link ExactAlphas} of engine version 1.4.
      *
      * @throws IllegalArgumentException if fewer than two posteriors are given or one is null
      */
-    static double[] selected(List<? extends Posterior> posteriors, boolean[] which) {
+    double[] selected(List<? extends Posterior> posteriors, boolean[] which) {
         ExactProbabilityBest.checkPosteriors(posteriors);
         List<BetaPosterior> betas = logConcaveBetas(posteriors);
         if (betas == null) {
@@ -96,14 +109,14 @@ final class PeakQuadrature {
     }
 
     /** Arm {@code i}'s alpha, or NaN when this integration does not apply (the caller falls back). */
-    static double integral(List<BetaPosterior> betas, int i) {
+    double integral(List<BetaPosterior> betas, int i) {
         PeakIntegrand search = new PeakIntegrand(betas, i);
         double[] peak = peak(search, i);
         if (peak == null) {
             return Double.NaN;
         }
         double sd = 1 / Math.sqrt(-peak[2]);
-        double start = peak[0] - Math.sqrt(2 * STOP) * sd;
+        double start = peak[0] - Math.sqrt(2 * stop) * sd;
         if (!(start > 0) || !(peak[0] + sd < 1)) {
             return Double.NaN;
         }
@@ -171,10 +184,10 @@ final class PeakQuadrature {
     }
 
     /** Right edge of the panel from {@code left}: {@code FACTOR / sqrt(K)} at both ends, as engine 1.3's. */
-    private static double nextEdge(PeakIntegrand phi, double left) {
-        double h = FACTOR / Math.sqrt(phi.curvature(left));
+    private double nextEdge(PeakIntegrand phi, double left) {
+        double h = factor / Math.sqrt(phi.curvature(left));
         for (int halving = 0; halving < MAX_HALVINGS && left + h < 1; halving++) {
-            if (h <= FACTOR / Math.sqrt(phi.curvature(left + h))) {
+            if (h <= factor / Math.sqrt(phi.curvature(left + h))) {
                 break;
             }
             h *= 0.5;
@@ -183,10 +196,10 @@ final class PeakQuadrature {
     }
 
     /** Left edge of the panel that ends at {@code right}, by the rule of {@link #nextEdge}. */
-    private static double previousEdge(PeakIntegrand phi, double right) {
-        double h = FACTOR / Math.sqrt(phi.curvature(right));
+    private double previousEdge(PeakIntegrand phi, double right) {
+        double h = factor / Math.sqrt(phi.curvature(right));
         for (int halving = 0; halving < MAX_HALVINGS && right - h > 0; halving++) {
-            if (h <= FACTOR / Math.sqrt(phi.curvature(right - h))) {
+            if (h <= factor / Math.sqrt(phi.curvature(right - h))) {
                 break;
             }
             h *= 0.5;
@@ -194,10 +207,10 @@ final class PeakQuadrature {
         return Math.max(right - h, 0);
     }
 
-    private static double[] logWeights() {
-        double[] w = new double[RULE.size()];
+    private static double[] logWeights(GaussLegendre rule) {
+        double[] w = new double[rule.size()];
         for (int k = 0; k < w.length; k++) {
-            w[k] = StrictMath.log(RULE.weight(k));
+            w[k] = StrictMath.log(rule.weight(k));
         }
         return w;
     }
@@ -206,7 +219,7 @@ final class PeakQuadrature {
      * The panels of one integral, left to right, in log space: the sum so far, and the last two nodes for the
      * right tail's bound.
      */
-    private static final class Sweep {
+    private final class Sweep {
         private final PeakIntegrand phi;
         private final ExactIntegrator.Accumulator sum = new ExactIntegrator.Accumulator(1);
         private int nodes;
@@ -228,10 +241,10 @@ final class PeakQuadrature {
             double half = 0.5 * (right - left);
             double mid = left + half;
             double logHalf = StrictMath.log(half);
-            for (int k = 0; k < RULE.size(); k++) {
-                double x = mid + half * RULE.node(k);
+            for (int k = 0; k < rule.size(); k++) {
+                double x = mid + half * rule.node(k);
                 if (x > 0 && x < 1) {
-                    node(x, phi.sweep(x), logHalf + LOG_WEIGHTS[k]);
+                    node(x, phi.sweep(x), logHalf + logWeights[k]);
                 }
             }
             return right;
@@ -259,7 +272,7 @@ final class PeakQuadrature {
                 return false;
             }
             double s = (previousPhi - lastPhi) / (lastX - previousX);
-            return lastPhi - StrictMath.log(s) < sum.logValue(0) - STOP;
+            return lastPhi - StrictMath.log(s) < sum.logValue(0) - stop;
         }
 
         /**
@@ -294,7 +307,7 @@ final class PeakQuadrature {
                 return false;
             }
             double s = (phi2 - phi1) / (x2 - x1);
-            return phi1 - StrictMath.log(s) < sum.logValue(0) - STOP;
+            return phi1 - StrictMath.log(s) < sum.logValue(0) - stop;
         }
     }
 }
