@@ -14,9 +14,9 @@ import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
 /**
  * Counts the experiments this instance holds (its active partitions of the experiments store), running and
  * stopped, for the {@code runoff_experiments} gauge, and the running ones that are {@link Lagging} for the
- * {@code runoff_experiments_lagging} gauge, by a {@link LagWatch} over the census's own scans. A count is at
- * most {@link #MAX_AGE_NANOS} old: the store is scanned at most once per interval, whatever the scrape rate.
- * While the store cannot be read (rebalance, restore) the last counts stay.
+ * {@code runoff_experiments_lagging} gauge and {@code /lagging}, by a {@link LagWatch} over the census's own
+ * scans. A count is at most {@link #MAX_AGE_NANOS} old: the store is scanned at most once per interval,
+ * whatever the scrape rate. While the store cannot be read (rebalance, restore) the last counts stay.
  */
 final class ExperimentCensus {
 
@@ -31,7 +31,7 @@ final class ExperimentCensus {
     private boolean taken;
     private long running;
     private long stopped;
-    private long lagging;
+    private LaggingExperiments lagging = new LaggingExperiments(0);
 
     ExperimentCensus(KafkaStreams streams, LongSupplier nanoTime, LongSupplier wallMillis) {
         this.streams = streams;
@@ -54,6 +54,12 @@ final class ExperimentCensus {
     /** Running experiments held here whose next decision is overdue ({@link Lagging}). */
     synchronized long lagging() {
         refresh();
+        return lagging.count();
+    }
+
+    /** The lagging experiments of the latest scan, with their ids ({@code /lagging}). */
+    synchronized LaggingExperiments laggingExperiments() {
+        refresh();
         return lagging;
     }
 
@@ -67,8 +73,9 @@ final class ExperimentCensus {
                     RunoffTopology.EXPERIMENTS_STORE, QueryableStoreTypes.<String, ExperimentState>keyValueStore()));
             long run = 0;
             long stop = 0;
-            long late = 0;
-            watch.begin(wallMillis.getAsLong());
+            long scanAt = wallMillis.getAsLong();
+            LaggingExperiments late = new LaggingExperiments(scanAt);
+            watch.begin(scanAt);
             try (KeyValueIterator<String, ExperimentState> all = store.all()) {
                 while (all.hasNext()) {
                     KeyValue<String, ExperimentState> next = all.next();
@@ -76,7 +83,9 @@ final class ExperimentCensus {
                         stop++;
                     } else {
                         run++;
-                        late += watch.lagging(next.key, next.value) ? 1 : 0;
+                        if (watch.lagging(next.key, next.value)) {
+                            late.add(next.key);
+                        }
                     }
                 }
             }

@@ -103,6 +103,11 @@ final class JobMetrics implements AutoCloseable {
                 .description("1 while the Kafka Streams client is RUNNING, else 0").register(registry);
     }
 
+    /** The lagging experiments of the census's latest scan ({@code /lagging}). */
+    LaggingExperiments laggingExperiments() {
+        return census.laggingExperiments();
+    }
+
     /** Counts one stream thread replaced. */
     void threadReplaced() {
         replacements.increment();

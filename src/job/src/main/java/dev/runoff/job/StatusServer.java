@@ -1,6 +1,7 @@
 package dev.runoff.job;
 
 import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import com.sun.net.httpserver.HttpExchange;
 import com.sun.net.httpserver.HttpServer;
@@ -34,6 +35,9 @@ import org.slf4j.LoggerFactory;
  *   <li>{@code /ready}: 200 only while the client is RUNNING (not while it starts, rebalances or restores
  *       state), else 503; for a readiness probe.</li>
  *   <li>{@code /metrics}: Prometheus text format.</li>
+ *   <li>{@code /lagging}: the running experiments this instance holds that the latest census found lagging
+ *       (the {@code runoff_experiments_lagging} gauge) as JSON: their count, the ids of the first
+ *       {@value LaggingExperiments#MAX_LISTED} and whether more lagged, and the scan's time.</li>
  *   <li>{@code /experiments/{id}}: the experiment's current state as JSON (200), 404 when no instance holds
  *       it, 307 to the instance that holds it (body naming it), 503 while that cannot be told; a request whose
  *       {@code Accept} header names {@code text/html} and not {@code application/json} (a browser) gets the
@@ -44,8 +48,9 @@ import org.slf4j.LoggerFactory;
  * <p>It listens on one address (loopback unless configured otherwise). With a bearer token, every path but
  * the two probes requires {@code Authorization: Bearer <token>} (401 otherwise). A path that cannot be
  * decoded (a bad {@code %} escape) gets 400. Probes never wait behind queries: the server's own threads answer
- * the probes and the refusals, and hand {@code /metrics} and {@code /experiments} to a separate, bounded
- * query pool; when that pool and its queue are full a query gets 503 with {@code Retry-After}.
+ * the probes and the refusals, and hand {@code /metrics}, {@code /lagging} and {@code /experiments} to a
+ * separate, bounded query pool; when that pool and its queue are full a query gets 503 with
+ * {@code Retry-After}.
  */
 public final class StatusServer implements AutoCloseable {
 
@@ -67,6 +72,11 @@ public final class StatusServer implements AutoCloseable {
 
         /** The HTML pages, or {@code null} when this backend has none ({@code /} then answers 404). */
         default Pages pages() {
+            return null;
+        }
+
+        /** The lagging experiments of the latest census, or {@code null} when this backend keeps none. */
+        default LaggingExperiments lagging() {
             return null;
         }
     }
@@ -237,6 +247,8 @@ public final class StatusServer implements AutoCloseable {
         String query = exchange.getRequestURI().getRawQuery();
         if ("/metrics".equals(path)) {
             send(exchange, 200, PROMETHEUS_TEXT, backend.metrics());
+        } else if ("/lagging".equals(path)) {
+            lagging(exchange, backend.lagging());
         } else if ("/".equals(path) && pages != null) {
             page(exchange, pages.overview(query));
         } else if (path.startsWith(EXPERIMENTS) && path.length() > EXPERIMENTS.length()) {
@@ -249,7 +261,7 @@ public final class StatusServer implements AutoCloseable {
                 experiment(exchange, id.get());
             }
         } else {
-            send(exchange, 404, TEXT, "not found: try /, /health, /ready, /metrics or /experiments/{id}\n");
+            send(exchange, 404, TEXT, "not found: try /, /health, /ready, /metrics, /lagging or /experiments/{id}\n");
         }
     }
 
@@ -314,6 +326,18 @@ public final class StatusServer implements AutoCloseable {
         } else {
             sendJson(exchange, 404, body.put("error", "no experiment with this id"));
         }
+    }
+
+    private static void lagging(HttpExchange exchange, LaggingExperiments lagging) throws IOException {
+        if (lagging == null) {
+            send(exchange, 404, TEXT, "not found: this instance keeps no census of lagging experiments\n");
+            return;
+        }
+        ObjectNode body = JSON.createObjectNode().put("lagging", lagging.count())
+                .put("truncated", lagging.truncated()).put("scannedAt", lagging.scannedAtMillis());
+        ArrayNode ids = body.putArray("experimentIds");
+        lagging.ids().forEach(ids::add);
+        sendJson(exchange, 200, body);
     }
 
     private static void sendJson(HttpExchange exchange, int status, ObjectNode body) throws IOException {

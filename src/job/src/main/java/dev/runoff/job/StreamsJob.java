@@ -143,6 +143,11 @@ public final class StreamsJob implements AutoCloseable {
             public Pages pages() {
                 return pages;
             }
+
+            @Override
+            public LaggingExperiments lagging() {
+                return metrics.laggingExperiments();
+            }
         };
     }
 

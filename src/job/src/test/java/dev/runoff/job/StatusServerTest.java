@@ -1,6 +1,7 @@
 package dev.runoff.job;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.io.BufferedReader;
@@ -31,6 +32,7 @@ class StatusServerTest {
     private final AtomicReference<KafkaStreams.State> state = new AtomicReference<>(KafkaStreams.State.CREATED);
     private final AtomicReference<Lookup> lookup = new AtomicReference<>(new Lookup.NotFound());
     private final AtomicReference<String> askedFor = new AtomicReference<>();
+    private final AtomicReference<LaggingExperiments> lagging = new AtomicReference<>(new LaggingExperiments(0));
     private final HttpClient client = HttpClient.newBuilder().followRedirects(HttpClient.Redirect.NEVER).build();
     private StatusServer server;
 
@@ -51,6 +53,11 @@ class StatusServerTest {
             public Lookup experiment(String id) {
                 askedFor.set(id);
                 return lookup.get();
+            }
+
+            @Override
+            public LaggingExperiments lagging() {
+                return lagging.get();
             }
         });
     }
@@ -119,6 +126,29 @@ class StatusServerTest {
         HttpResponse<String> busy = get("/experiments/x");
         assertEquals(503, busy.statusCode());
         assertEquals("1", busy.headers().firstValue("Retry-After").orElseThrow());
+    }
+
+    @Test
+    void laggingNamesTheLaggingExperimentsOfTheLatestCensusUpToItsListBound() throws Exception {
+        LaggingExperiments few = new LaggingExperiments(1_700_000_000_000L);
+        few.add("hero banner");
+        few.add("checkout");
+        lagging.set(few);
+        HttpResponse<String> response = get("/lagging");
+        assertEquals(200, response.statusCode());
+        assertEquals("application/json", response.headers().firstValue("Content-Type").orElseThrow());
+        assertEquals("{\"lagging\":2,\"truncated\":false,\"scannedAt\":1700000000000,"
+                + "\"experimentIds\":[\"hero banner\",\"checkout\"]}\n", response.body());
+
+        LaggingExperiments many = new LaggingExperiments(1L);
+        for (int i = 0; i < LaggingExperiments.MAX_LISTED + 5; i++) {
+            many.add("e" + i);
+        }
+        lagging.set(many);
+        String body = get("/lagging").body();
+        assertTrue(body.startsWith("{\"lagging\":1005,\"truncated\":true,"), body);
+        assertTrue(body.contains("\"e999\"]"), body);
+        assertFalse(body.contains("\"e1000\""), body);
     }
 
     @Test

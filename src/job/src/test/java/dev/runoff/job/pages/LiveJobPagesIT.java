@@ -31,6 +31,7 @@ import dev.runoff.testkit.RepositoryFiles;
 import dev.runoff.testkit.TestDefinitions;
 import java.awt.image.BufferedImage;
 import java.io.IOException;
+import java.net.http.HttpResponse;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
@@ -212,6 +213,18 @@ class LiveJobPagesIT {
             }
         }
         assertEquals(Set.of(), missing, "metrics named in deploy/monitoring that the job does not export");
+    }
+
+    @Test
+    void laggingAnswersFromTheRunningJobsCensus() throws Exception {
+        // The job keeps up with its one experiment (100 ms allocation interval), so none lags; a scan time
+        // above 0 shows the answer came from a census of the store, not the empty list held before the first.
+        HttpResponse<String> response = Http.get(job.httpPort(), "/lagging");
+        assertEquals(200, response.statusCode());
+        JsonNode body = new ObjectMapper().readTree(response.body());
+        assertEquals(0, body.get("lagging").asLong(), response.body());
+        assertEquals(0, body.get("experimentIds").size(), response.body());
+        assertTrue(body.get("scannedAt").asLong() > 0, response.body());
     }
 
     /** Metric names in a Prometheus text exposition. */
