@@ -97,6 +97,23 @@ final class RunBreakdown {
         return text.toString();
     }
 
+    /** The CPU seconds of all stream threads between {@code start} and {@code this}. */
+    double streamCpuSeconds(RunBreakdown start) {
+        return difference(threadCpuNanos, start.threadCpuNanos).getOrDefault("stream", 0L) / 1e9;
+    }
+
+    /**
+     * The largest share of the stream threads' CPU between {@code start} and {@code this} that one stream thread
+     * used: 1 / threads when the work spread evenly, 1 when one thread did it all; NaN without stream CPU.
+     */
+    double busiestStreamThreadShare(RunBreakdown start) {
+        Map<String, Long> cpu = difference(threadCpuNanos, start.threadCpuNanos);
+        long total = cpu.getOrDefault("stream", 0L);
+        long busiest = cpu.entrySet().stream().filter(e -> e.getKey().startsWith("StreamThread-"))
+                .mapToLong(Map.Entry::getValue).max().orElse(0);
+        return total > 0 ? (double) busiest / total : Double.NaN;
+    }
+
     /** The process's cores and how the stream threads' wall time divides, from their summed metrics. */
     private String streamThreads(RunBreakdown start, double wall, double streamCpuSeconds) {
         Map<String, Double> m = new TreeMap<>();

@@ -28,6 +28,7 @@ import java.util.Properties;
 import java.util.SplittableRandom;
 import java.util.concurrent.CountDownLatch;
 import java.util.concurrent.TimeUnit;
+import java.util.function.ToDoubleFunction;
 import java.util.stream.Collectors;
 import java.util.stream.Stream;
 import java.util.zip.CRC32;
@@ -89,7 +90,11 @@ import org.apache.kafka.streams.state.ReadOnlyKeyValueStore;
  * {@code variants=default|producer.linger.ms=20}) and {@code broker.<property>=value} (a property of the
  * embedded broker). Every combination of thread count, commit interval and variant runs once per round, in an order
  * rotated by one each round so that none always runs first. After each timed run a breakdown says where the
- * stream threads' wall time went and how many cores each group of threads used ({@link RunBreakdown}).
+ * stream threads' wall time went and how many cores each group of threads used ({@link RunBreakdown}). The
+ * summary gives, for every application, input and setup, the events per second of each round, the stream
+ * threads' CPU time per event and the busiest stream thread's share of that CPU, with medians and per-round
+ * ratios to the bare run (for CPU per event, the bare run's figure over the application's, so that it reads like
+ * a ratio of rates); CPU time moves far less than wall time when other work shares the machine.
  */
 public final class TopologyThroughput {
 
@@ -124,6 +129,13 @@ public final class TopologyThroughput {
      * groups apart in the output.
      */
     private record Setup(int threads, String commitIntervalMs, Map<String, String> streamsConfig, String label) {
+    }
+
+    /**
+     * One timed run: events per second, the stream threads' CPU time per event in microseconds, and the busiest
+     * stream thread's share of that CPU (1 / threads when the work spread evenly); NaN when no application ran.
+     */
+    private record Run(double rate, double cpuMicrosPerEvent, double busiestShare) {
     }
 
     /** Every combination of the thread counts, commit intervals and variants asked for. */
@@ -191,7 +203,7 @@ public final class TopologyThroughput {
                 variants(options.getOrDefault("variants", "default")));
         List<Setup> setups = bench.setups();
         delete(DIR);
-        Map<String, List<Double>> rates = new LinkedHashMap<>();
+        Map<String, List<Run>> runs = new LinkedHashMap<>();
         EmbeddedKafkaBroker.Builder brokerBuilder = EmbeddedKafkaBroker.builder(DIR.resolve("broker"));
         options.forEach((key, value) -> {
             if (key.startsWith("broker.")) {
@@ -205,7 +217,7 @@ public final class TopologyThroughput {
                     for (String input : inputs) {
                         for (String app : apps) {
                             String variant = input + setup.label();
-                            rates.computeIfAbsent(app + "/" + variant, k -> new ArrayList<>()).add(bench.run(broker,
+                            runs.computeIfAbsent(app + "/" + variant, k -> new ArrayList<>()).add(bench.run(broker,
                                     app + "-" + variant.replace('/', '-') + "-" + round, app, input, setup));
                         }
                     }
@@ -218,21 +230,39 @@ public final class TopologyThroughput {
                         + "broker=%s%n", events, bench.partitions, bench.threads, bench.experiments,
                 Runtime.getRuntime().availableProcessors(), bench.commitIntervals, bench.preload, bench.variants,
                 options.entrySet().stream().filter(e -> e.getKey().startsWith("broker.")).toList());
-        for (Map.Entry<String, List<Double>> e : rates.entrySet()) {
+        for (Map.Entry<String, List<Run>> e : runs.entrySet()) {
             String variant = e.getKey().substring(e.getKey().indexOf('/') + 1);
-            List<Double> bare = rates.get("bare/" + variant);
-            StringBuilder line = new StringBuilder(String.format(Locale.ROOT, "%-18s events/s %s, median %.0f",
-                    e.getKey(), format(e.getValue(), "%.0f"), median(e.getValue())));
-            if (bare != null && !e.getKey().startsWith("bare/")) {
-                List<Double> ratios = new ArrayList<>();
-                for (int i = 0; i < e.getValue().size(); i++) {
-                    ratios.add(e.getValue().get(i) / bare.get(i));
-                }
-                line.append(String.format(Locale.ROOT, "; per-round ratio to bare %s, median %.2f",
-                        format(ratios, "%.2f"), median(ratios)));
+            List<Run> bare = e.getKey().startsWith("bare/") ? null : runs.get("bare/" + variant);
+            System.out.println(summary(e.getKey(), e.getValue(), bare, Run::rate, "events/s", "%.0f", false));
+            if (!e.getKey().startsWith("producer/")) {
+                System.out.println(summary(e.getKey(), e.getValue(), bare, Run::cpuMicrosPerEvent,
+                        "stream-thread CPU us/event", "%.1f", true));
+                System.out.println(summary(e.getKey(), e.getValue(), null, Run::busiestShare,
+                        "busiest stream thread's share of that CPU", "%.2f", false));
             }
-            System.out.println(line);
         }
+    }
+
+    /**
+     * One summary line: the figure of every round, its median and, when {@code bare} is given, the per-round
+     * ratio to the bare run's figure of the same round (the bare figure over this one when {@code inverse}, so
+     * that a ratio of CPU per event reads like one of rates) and its median.
+     */
+    private static String summary(String key, List<Run> runs, List<Run> bare, ToDoubleFunction<Run> figure,
+                                  String what, String pattern, boolean inverse) {
+        List<Double> values = runs.stream().map(figure::applyAsDouble).toList();
+        StringBuilder line = new StringBuilder(String.format(Locale.ROOT, "%-18s %s %s, median " + pattern, key,
+                what, format(values, pattern), median(values)));
+        if (bare != null) {
+            List<Double> ratios = new ArrayList<>();
+            for (int i = 0; i < values.size(); i++) {
+                double b = figure.applyAsDouble(bare.get(i));
+                ratios.add(inverse ? b / values.get(i) : values.get(i) / b);
+            }
+            line.append(String.format(Locale.ROOT, "; per-round ratio to bare %s, median %.2f",
+                    format(ratios, "%.2f"), median(ratios)));
+        }
+        return line.toString();
     }
 
     private static String preload(String text) {
@@ -376,9 +406,9 @@ public final class TopologyThroughput {
      * definitions are accepted, the events are written, and the run is timed from the moment the restarted
      * application is RUNNING, so the producer's rate does not bound it; with {@code preload=pause} the
      * application is paused instead of stopped and timed from its resumption. {@code producer} times the
-     * writing alone. Returns events per second.
+     * writing alone. Returns the run's events per second and its stream threads' CPU.
      */
-    private double run(EmbeddedKafkaBroker broker, String name, String app, String input, Setup setup)
+    private Run run(EmbeddedKafkaBroker broker, String name, String app, String input, Setup setup)
             throws Exception {
         boolean job = app.equals("job") || app.equals("unit");
         Map<String, String> config = settingsMap(name);
@@ -390,7 +420,7 @@ public final class TopologyThroughput {
         if (app.equals("producer")) {
             long began = System.nanoTime();
             produce(broker, settings, input);
-            return report(name, began, new JobCounters(), "");
+            return new Run(report(name, began, new JobCounters(), ""), Double.NaN, Double.NaN);
         }
         JobCounters counters = new JobCounters();
         String application = "bench-" + name;
@@ -440,7 +470,10 @@ public final class TopologyThroughput {
                     produce(broker, settings, input);
                 }
                 awaitNoLag(admin, application, perEvent);
-                return report(name, began, counters, RunBreakdown.take(streams).since(atStart));
+                RunBreakdown atEnd = RunBreakdown.take(streams);
+                double rate = report(name, began, counters, atEnd.since(atStart));
+                return new Run(rate, 1e6 * atEnd.streamCpuSeconds(atStart) / events,
+                        atEnd.busiestStreamThreadShare(atStart));
             } finally {
                 streams.close();
             }
