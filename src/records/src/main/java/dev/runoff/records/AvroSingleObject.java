@@ -31,7 +31,9 @@ import org.apache.avro.specific.SpecificDatumWriter;
  *
  * <p>Writing: the header, then the body through Avro's buffered binary encoder (the same bytes as Avro's
  * {@code BinaryMessageEncoder}, whose direct encoder writes the body byte by byte into a synchronized
- * stream), with one buffer and encoder per thread.
+ * stream), with one buffer and encoder per thread. Records whose generated class has its own encoder
+ * (Avro's custom coders: every record type without a union of two records) are written by it rather than by
+ * the generic walk of the schema; both write the binary encoding of the Avro specification.
  *
  * @param <T> generated record class
  */
@@ -53,7 +55,7 @@ final class AvroSingleObject<T extends IndexedRecord> {
         this.schemaFingerprint = SchemaNormalization.parsingFingerprint64(schema);
         this.store = new SchemaStore.Cache();
         olderWriterSchemas.forEach(store::addSchema);
-        this.writer = new SpecificDatumWriter<>(schema, model);
+        this.writer = new SpecificDatumWriter<>(schema, writingModel());
         this.header = header(schemaFingerprint);
         this.decoder = new BinaryMessageDecoder<>(model, schema, store);
     }
@@ -70,6 +72,13 @@ final class AvroSingleObject<T extends IndexedRecord> {
         } catch (IOException e) {
             throw new UncheckedIOException(e);
         }
+    }
+
+    /** The data model of writing: Avro's specific model with the generated classes' own encoders switched on. */
+    private static SpecificData writingModel() {
+        SpecificData model = new SpecificData();
+        model.setCustomCoders(true);
+        return model;
     }
 
     /** The single-object header: the two magic bytes, then the schema's fingerprint in little-endian order. */

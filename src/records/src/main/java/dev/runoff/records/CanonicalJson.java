@@ -143,7 +143,7 @@ public final class CanonicalJson {
 
     /** Writes one text; remembers the last double written, since adjacent fields often hold the same one. */
     private static final class Writer {
-        private final StringBuilder out = new StringBuilder(1024);
+        private final StringBuilder out = new StringBuilder(4096);
         private final char[] lastNumber = new char[CanonicalNumber.MAX_LENGTH];
         private long lastBits = Double.doubleToRawLongBits(0.0);
         private int lastLength = 1;
@@ -181,7 +181,7 @@ public final class CanonicalJson {
                 return;
             }
             switch (schema.getType()) {
-                case UNION -> value(value, schema.getTypes().get(DATA.resolveUnion(schema, value)), where);
+                case UNION -> value(value, Unions.branch(schema, value, DATA), where);
                 case RECORD -> record((IndexedRecord) value, keys(schema).all, where);
                 case ARRAY -> array((List<?>) value, schema.getElementType(), where);
                 case ENUM, STRING -> string(value.toString(), where, out);

@@ -45,6 +45,8 @@ final class CanonicalNumber {
     private static final int PLAIN_UPPER_EXPONENT = 21;
     private static final int PLAIN_LOWER_EXPONENT = -6;
     private static final long MASK_63 = Long.MAX_VALUE;
+    /** 10^0 to 10^18. */
+    private static final long[] POWERS_OF_TEN = powersOfTen();
     /** The upper and lower 63 bits of g(k) for k from K_MIN to K_MAX (see {@link #approximations}). */
     private static final long[] G1 = new long[K_MAX - K_MIN + 1];
     private static final long[] G0 = new long[K_MAX - K_MIN + 1];
@@ -185,12 +187,18 @@ final class CanonicalNumber {
         return digits(magnitude, out, end + 2, length(magnitude));
     }
 
-    /** Writes the {@code count} decimal digits of {@code x} from {@code start}; returns the end. */
+    /** Writes the {@code count} decimal digits of {@code x} from {@code start}, two at a time; returns the end. */
     private static int digits(long x, char[] out, int start, int count) {
         long rest = x;
-        for (int i = start + count - 1; i >= start; i--) {
-            out[i] = (char) ('0' + rest % 10);
-            rest /= 10;
+        int i = start + count;
+        while (i - start >= 2) {
+            int pair = (int) (rest % 100);
+            rest /= 100;
+            out[--i] = (char) ('0' + pair % 10);
+            out[--i] = (char) ('0' + pair / 10);
+        }
+        if (i > start) {
+            out[--i] = (char) ('0' + rest);
         }
         return start + count;
     }
@@ -205,7 +213,7 @@ final class CanonicalNumber {
     /** Number of decimal digits of {@code x >= 1}. */
     private static int length(long x) {
         int n = 1;
-        for (long d = x; d >= 10; d /= 10) {
+        while (n < POWERS_OF_TEN.length && x >= POWERS_OF_TEN[n]) {
             n++;
         }
         return n;
@@ -240,6 +248,15 @@ final class CanonicalNumber {
             G1[k - K_MIN] = g.shiftRight(63).longValueExact();
             G0[k - K_MIN] = g.longValue() & MASK_63;
         }
+    }
+
+    private static long[] powersOfTen() {
+        long[] powers = new long[19];
+        powers[0] = 1;
+        for (int i = 1; i < powers.length; i++) {
+            powers[i] = 10 * powers[i - 1];
+        }
+        return powers;
     }
 
     /** floor(x 2^shift). */
