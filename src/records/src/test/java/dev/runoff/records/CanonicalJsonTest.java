@@ -87,7 +87,8 @@ class CanonicalJsonTest {
 
     @Test
     void javasDigitsAreUsedOnlyWhereTheExactSearchAgrees() {
-        // The fast path must choose the same text as the exact search (ECMAScript Number::toString step 5)
+        // The reference's fast path (ProvenNumber, which CanonicalNumberTest compares the writer with) and the
+        // writer itself must choose the same text as the exact search (ECMAScript Number::toString step 5)
         // for every double; random bit patterns, rates, small ratios, powers of two and ten with neighbours
         // and subnormals, where Java 17's Double.toString is known to give more digits than needed
         // (JDK-4511638, fixed in Java 19).
