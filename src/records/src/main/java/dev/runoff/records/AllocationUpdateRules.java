@@ -17,13 +17,13 @@ final class AllocationUpdateRules implements RecordRules<AllocationUpdate> {
                     + update.getComputedAt());
         }
         List<ArmWeight> weights = update.getWeights();
-        List<String> arms = weights.stream().map(ArmWeight::getArm).toList();
+        List<String> arms = Names.of(weights, ArmWeight::getArm);
         problems.atLeastItems("weights", weights.size(), limits.minArms());
         problems.uniqueNames("weights", arms, ".arm");
         double sum = 0;
         for (int i = 0; i < weights.size(); i++) {
             double weight = weights.get(i).getWeight();
-            problems.closed("weights[" + i + "].weight", weight, 0, 1);
+            problems.under("weights", i).closed("weight", weight, 0, 1);
             sum += weight;
         }
         problems.sumsToOne("weights", sum);

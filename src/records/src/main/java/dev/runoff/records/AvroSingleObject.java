@@ -1,19 +1,22 @@
 package dev.runoff.records;
 
 import java.io.ByteArrayInputStream;
+import java.io.ByteArrayOutputStream;
 import java.io.IOException;
 import java.io.UncheckedIOException;
-import java.nio.ByteBuffer;
 import java.util.List;
 import org.apache.avro.Schema;
 import org.apache.avro.SchemaNormalization;
 import org.apache.avro.generic.GenericDatumReader;
 import org.apache.avro.generic.IndexedRecord;
+import org.apache.avro.io.BinaryEncoder;
+import org.apache.avro.io.DatumWriter;
 import org.apache.avro.io.DecoderFactory;
+import org.apache.avro.io.EncoderFactory;
 import org.apache.avro.message.BinaryMessageDecoder;
-import org.apache.avro.message.BinaryMessageEncoder;
 import org.apache.avro.message.SchemaStore;
 import org.apache.avro.specific.SpecificData;
+import org.apache.avro.specific.SpecificDatumWriter;
 
 /**
  * Avro single-object encoding ({@code 0xC3 0x01}, 8-byte fingerprint, binary body) for one generated class,
@@ -26,6 +29,12 @@ import org.apache.avro.specific.SpecificData;
  * decoded: every string is then at most the input size, and every list holds at most one item per byte
  * (no item of these schemas encodes to zero bytes).
  *
+ * <p>Writing: the header, then the body through Avro's buffered binary encoder (the same bytes as Avro's
+ * {@code BinaryMessageEncoder}, whose direct encoder writes the body byte by byte into a synchronized
+ * stream), with one buffer and encoder per thread. Records whose generated class has its own encoder
+ * (Avro's custom coders: every record type without a union of two records) are written by it rather than by
+ * the generic walk of the schema; both write the binary encoding of the Avro specification.
+ *
  * @param <T> generated record class
  */
 final class AvroSingleObject<T extends IndexedRecord> {
@@ -33,7 +42,9 @@ final class AvroSingleObject<T extends IndexedRecord> {
     private static final int HEADER_BYTES = 10;
 
     private final Schema schema;
-    private final BinaryMessageEncoder<T> encoder;
+    private final DatumWriter<T> writer;
+    private final byte[] header;
+    private final ThreadLocal<Output> output = ThreadLocal.withInitial(Output::new);
     private final long schemaFingerprint;
     private final SchemaStore.Cache store;
     private final BinaryMessageDecoder<T> decoder;
@@ -44,19 +55,47 @@ final class AvroSingleObject<T extends IndexedRecord> {
         this.schemaFingerprint = SchemaNormalization.parsingFingerprint64(schema);
         this.store = new SchemaStore.Cache();
         olderWriterSchemas.forEach(store::addSchema);
-        this.encoder = new BinaryMessageEncoder<>(model, schema);
+        this.writer = new SpecificDatumWriter<>(schema, writingModel());
+        this.header = header(schemaFingerprint);
         this.decoder = new BinaryMessageDecoder<>(model, schema, store);
     }
 
     byte[] encode(T record) {
+        Output out = output.get();
         try {
-            ByteBuffer buffer = encoder.encode(record);
-            byte[] bytes = new byte[buffer.remaining()];
-            buffer.get(bytes);
-            return bytes;
+            out.encoder = EncoderFactory.get().binaryEncoder(out.bytes, out.encoder);
+            out.bytes.reset();
+            out.encoder.writeFixed(header);
+            writer.write(record, out.encoder);
+            out.encoder.flush();
+            return out.bytes.toByteArray();
         } catch (IOException e) {
             throw new UncheckedIOException(e);
         }
+    }
+
+    /** The data model of writing: Avro's specific model with the generated classes' own encoders switched on. */
+    private static SpecificData writingModel() {
+        SpecificData model = new SpecificData();
+        model.setCustomCoders(true);
+        return model;
+    }
+
+    /** The single-object header: the two magic bytes, then the schema's fingerprint in little-endian order. */
+    private static byte[] header(long fingerprint) {
+        byte[] bytes = new byte[HEADER_BYTES];
+        bytes[0] = (byte) 0xC3;
+        bytes[1] = 0x01;
+        for (int i = 2; i < HEADER_BYTES; i++) {
+            bytes[i] = (byte) (fingerprint >>> (8 * (i - 2)));
+        }
+        return bytes;
+    }
+
+    /** One thread's output stream and the encoder writing into it (configured again on each use). */
+    private static final class Output {
+        private final ByteArrayOutputStream bytes = new ByteArrayOutputStream(1024);
+        private BinaryEncoder encoder;
     }
 
     /** Decodes {@code bytes} (which start with the header); returns null after adding a problem. */

@@ -41,8 +41,8 @@ final class DecisionRecordRules implements RecordRules<DecisionRecord> {
         if (distinct.size() != guards.size()) {
             problems.add("guards", Reason.DUPLICATE, "each guard may appear once, got " + guards);
         }
-        List<String> arms = record.getArms().stream().map(ArmState::getArm).toList();
-        AllocationUpdateRules.checkWinner(record.getDecision() == Decision.STOP, record.getWinner(), arms, problems);
+        AllocationUpdateRules.checkWinner(record.getDecision() == Decision.STOP, record.getWinner(),
+                Names.of(record.getArms(), ArmState::getArm), problems);
         AllocationUpdateRules.checkSignatureFields(record.getKeyId(), record.getSignature(), problems);
         problems.notBlank("reason", record.getReason());
         if ((record.getStatistic() == null) != (record.getThreshold() == null)) {
@@ -84,7 +84,7 @@ final class DecisionRecordRules implements RecordRules<DecisionRecord> {
 
     private static void checkArms(List<ArmState> states, ExperimentDefinition def, Problems problems) {
         List<String> defined = def.getArms();
-        List<String> names = states.stream().map(ArmState::getArm).toList();
+        List<String> names = Names.of(states, ArmState::getArm);
         if (!names.equals(defined)) {
             problems.add("arms", Reason.INCONSISTENT, "arm names " + names + " differ from the definition's "
                     + defined + " (same names, same order required)");
@@ -94,7 +94,7 @@ final class DecisionRecordRules implements RecordRules<DecisionRecord> {
         double after = 0;
         for (int i = 0; i < states.size(); i++) {
             ArmState state = states.get(i);
-            Problems arm = problems.under("arms[" + i + "]");
+            Problems arm = problems.under("arms", i);
             arm.atLeast("trials", state.getTrials(), 0);
             if (bernoulli) {
                 checkBernoulli(state, arm);

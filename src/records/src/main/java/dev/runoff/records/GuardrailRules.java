@@ -41,9 +41,9 @@ final class GuardrailRules {
             problems.add("guardrails", Reason.INCONSISTENT, "need metric.kind BERNOULLI with counting UNIT, or"
                     + " VALUE_PER_UNIT (a guardrail counts units whose conversion window has closed)");
         }
-        problems.uniqueNames("guardrails", guardrails.stream().map(GuardrailSpec::getName).toList(), ".name");
+        problems.uniqueNames("guardrails", names(guardrails), ".name");
         for (int i = 0; i < guardrails.size(); i++) {
-            checkOne(guardrails.get(i), problems.under("guardrails[" + i + "]"));
+            checkOne(guardrails.get(i), problems.under("guardrails", i));
         }
         checkSharedCaps(guardrails, problems);
     }
@@ -58,7 +58,7 @@ final class GuardrailRules {
             }
             Double first = caps.putIfAbsent(g.getSignal(), g.getValueCap());
             if (first != null && !first.equals(g.getValueCap())) {
-                problems.under("guardrails[" + i + "]").add("valueCap", Reason.INCONSISTENT, "must equal " + first
+                problems.under("guardrails", i).add("valueCap", Reason.INCONSISTENT, "must equal " + first
                         + ", the valueCap of an earlier guardrail counting signal " + Problems.quote(g.getSignal())
                         + ", got " + g.getValueCap());
             }
@@ -101,21 +101,21 @@ final class GuardrailRules {
      */
     static void checkStates(ArmState state, ExperimentDefinition def, Problems problems) {
         List<GuardrailSpec> specs = Definitions.guardrails(def);
-        List<String> names = specs.stream().map(GuardrailSpec::getName).toList();
         List<GuardrailState> states = state.getGuardrails();
         if (states == null) {
-            if (!names.isEmpty() || state.getSuspendedBy() != null) {
-                problems.add("guardrails", Reason.INCONSISTENT, "missing although the definition names " + names);
+            if (!specs.isEmpty() || state.getSuspendedBy() != null) {
+                problems.add("guardrails", Reason.INCONSISTENT, "missing although the definition names "
+                        + names(specs));
             }
             return;
         }
-        if (!states.stream().map(GuardrailState::getGuardrail).toList().equals(names)) {
-            problems.add("guardrails", Reason.INCONSISTENT, "must list the definition's guardrails " + names
+        if (!Names.of(states, GuardrailState::getGuardrail).equals(names(specs))) {
+            problems.add("guardrails", Reason.INCONSISTENT, "must list the definition's guardrails " + names(specs)
                     + " in order");
         }
         for (int i = 0; i < states.size(); i++) {
             GuardrailState g = states.get(i);
-            Problems one = problems.under("guardrails[" + i + "]");
+            Problems one = problems.under("guardrails", i);
             one.atLeast("counted", g.getCounted(), 0);
             if (g.getHits() < 0 || g.getHits() > g.getCounted()) {
                 one.add("hits", Reason.OUT_OF_RANGE, "must be in [0, counted=" + g.getCounted() + "], got "
@@ -131,6 +131,11 @@ final class GuardrailRules {
             problems.add("suspendedBy", Reason.INCONSISTENT, Problems.quote(suspendedBy)
                     + " is not a guardrail this arm FAILED");
         }
+    }
+
+    /** The guardrails' names, in order. */
+    private static List<String> names(List<GuardrailSpec> specs) {
+        return Names.of(specs, GuardrailSpec::getName);
     }
 
     /** total: set, in [0, counted], exactly for value guardrails. */

@@ -1,11 +1,14 @@
 package dev.runoff.records;
 
 import java.util.ArrayList;
-import java.util.HashMap;
 import java.util.List;
-import java.util.Map;
+import java.util.Objects;
 
-/** Collects the problems of one record; the checks name the field and the value in each message. */
+/**
+ * Collects the problems of one record; the checks name the field and the value in each message. A view
+ * {@link #under} a parent field makes the text of its path only when it records a problem, so checking a
+ * valid record joins no strings.
+ */
 final class Problems {
 
     private static final int MAX_QUOTED = 64;
@@ -13,25 +16,43 @@ final class Problems {
     private static final double SUM_TOLERANCE = 1e-9;
 
     private final List<Problem> list;
-    private final String prefix;
+    private final Problems outer;
+    private final String parent;
+    private final int item;
+    private String prefix;
 
     Problems() {
-        this(new ArrayList<>(), "");
+        this(new ArrayList<>(), null, null, -1);
+        prefix = "";
     }
 
-    private Problems(List<Problem> list, String prefix) {
+    private Problems(List<Problem> list, Problems outer, String parent, int item) {
         this.list = list;
-        this.prefix = prefix;
+        this.outer = outer;
+        this.parent = parent;
+        this.item = item;
     }
 
     /** A view that adds to the same list with {@code parent.} in front of every field path. */
     Problems under(String parent) {
-        return new Problems(list, prefix + parent + ".");
+        return new Problems(list, this, parent, -1);
+    }
+
+    /** A view that adds to the same list with {@code items[index].} in front of every field path. */
+    Problems under(String items, int index) {
+        return new Problems(list, this, items, index);
     }
 
     /** Records one problem. */
     void add(String field, Reason reason, String message) {
-        list.add(new Problem(prefix + field, reason, message));
+        list.add(new Problem(prefix() + field, reason, message));
+    }
+
+    private String prefix() {
+        if (prefix == null) {
+            prefix = outer.prefix() + parent + (item >= 0 ? "[" + item + "]" : "") + ".";
+        }
+        return prefix;
     }
 
     boolean isEmpty() {
@@ -92,18 +113,32 @@ final class Problems {
         }
     }
 
-    /** Requires names that are not blank and appear once each; {@code items} is the path of the list. */
+    /**
+     * Requires names that are not blank and appear once each; {@code items} is the path of the list. Lists are
+     * short (at most {@link Limits#maxArms()} items), so each name is compared with those before it.
+     */
     void uniqueNames(String items, List<String> names, String suffix) {
-        Map<String, Integer> seen = new HashMap<>();
         for (int i = 0; i < names.size(); i++) {
-            String field = items + "[" + i + "]" + suffix;
             String name = names.get(i);
-            notBlank(field, name);
-            Integer first = seen.putIfAbsent(name, i);
-            if (first != null) {
-                add(field, Reason.DUPLICATE, quote(name) + " appears twice (also at index " + first + ")");
+            if (name != null && name.isBlank()) {
+                add(items + "[" + i + "]" + suffix, Reason.INVALID_TEXT, "must not be blank");
+            }
+            int first = firstIndexOf(names, name, i);
+            if (first < i) {
+                add(items + "[" + i + "]" + suffix, Reason.DUPLICATE, quote(name) + " appears twice (also at index "
+                        + first + ")");
             }
         }
+    }
+
+    /** The first index below {@code end} holding {@code name}, or {@code end}. */
+    private static int firstIndexOf(List<String> names, String name, int end) {
+        for (int j = 0; j < end; j++) {
+            if (Objects.equals(names.get(j), name)) {
+                return j;
+            }
+        }
+        return end;
     }
 
     /** Requires a list of at least {@code min} items. */

@@ -37,8 +37,7 @@ final class SchemaChecks {
             return;
         }
         switch (schema.getType()) {
-            case UNION -> check(value, schema.getTypes().get(GenericData.get().resolveUnion(schema, value)), path,
-                    problems);
+            case UNION -> check(value, Unions.branch(schema, value, GenericData.get()), path, problems);
             case RECORD -> checkRecord((IndexedRecord) value, schema, path, problems);
             case ARRAY -> checkArray((List<?>) value, schema.getElementType(), path, problems);
             case STRING -> checkText(value.toString(), path, problems);
@@ -67,6 +66,9 @@ final class SchemaChecks {
     }
 
     private void checkText(String text, FieldPath path, Problems problems) {
+        if (text.length() <= limits.maxStringLength() && printableAscii(text)) {
+            return;
+        }
         int length = text.codePointCount(0, text.length());
         if (length > limits.maxStringLength()) {
             problems.add(FieldPath.text(path), Reason.TOO_LONG,
@@ -77,6 +79,20 @@ final class SchemaChecks {
         if (bad != null) {
             problems.add(FieldPath.text(path), Reason.INVALID_TEXT, bad + " in " + Problems.quote(text));
         }
+    }
+
+    /**
+     * True when every character is printable ASCII (U+0020 to U+007E): then the text has as many code points as
+     * characters, and neither control characters nor surrogates, so only its length is left to check.
+     */
+    private static boolean printableAscii(String text) {
+        for (int i = 0; i < text.length(); i++) {
+            char c = text.charAt(i);
+            if (c < 0x20 || c > 0x7E) {
+                return false;
+            }
+        }
+        return true;
     }
 
     /** Describes the first control character or unpaired surrogate in {@code text}, or returns null. */

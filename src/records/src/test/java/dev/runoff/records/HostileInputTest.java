@@ -83,6 +83,14 @@ class HostileInputTest {
                         "arm", Reason.MISSING, "missing (an EXPOSURE must name its arm)"),
                 event("huge unitId", utf8(EVENT.replace("u-1", "u".repeat(5_000))), "unitId", Reason.TOO_LONG,
                         "5000 characters, at most 256 allowed"),
+                event("unitId one character too long", utf8(EVENT.replace("u-1", "u".repeat(257))), "unitId",
+                        Reason.TOO_LONG, "257 characters, at most 256 allowed"),
+                event("unitId of 257 non-ASCII code points", utf8(EVENT.replace("u-1", "\u00e9".repeat(257))),
+                        "unitId", Reason.TOO_LONG, "257 characters, at most 256 allowed"),
+                event("DEL character in arm", utf8(EVENT.replace("green", "green\u007f")), "arm",
+                        Reason.INVALID_TEXT, "control character U+007F at index 5"),
+                event("C1 control character in arm", utf8(EVENT.replace("green", "gr\u0085een")), "arm",
+                        Reason.INVALID_TEXT, "control character U+0085 at index 2"),
                 event("input beyond 16 KiB", utf8(EVENT.replace("u-1", "u".repeat(20_000))), "record",
                         Reason.TOO_LARGE, "bytes, at most 16384 allowed"),
                 event("blank experimentId", utf8(EVENT.replace("checkout-button", "   ")), "experimentId",
@@ -134,6 +142,15 @@ class HostileInputTest {
     void eventIsRejectedNamingTheField(String name, byte[] bytes, String field, Reason reason, String message) {
         Decoded<OutcomeEvent> decoded = EVENTS.decode(bytes, Samples.NOW);
         Rejections.assertFirstProblem(decoded, field, reason, message);
+    }
+
+    @Test
+    void stringsUpToTheLimitInCodePointsAreAccepted() {
+        // The limit counts code points (Limits): 256 ASCII characters, 256 two-byte characters and 256
+        // characters outside the BMP (512 UTF-16 units) all pass.
+        for (String unit : new String[] {"u".repeat(256), "\u00e9".repeat(256), "\ud83d\ude00".repeat(256)}) {
+            assertTrue(EVENTS.decode(utf8(EVENT.replace("u-1", unit)), Samples.NOW).isValid(), unit);
+        }
     }
 
     static Stream<Arguments> definitionCorpus() {
