@@ -26,13 +26,14 @@ package dev.runoff.engine.special;
  * <p>Which steps are allowed, in standard deviations ({@code z} the start's distance from the mean, {@code h} the
  * step), from the normal approximation {@code D ~ exp(-z h - h^2 / 2)} of the density's ratio: {@code h} at most
  * {@value #STEP_LENGTH}; {@code |z| h} at most {@value #STEP_EXPONENT}, so that the series settles within
- * {@value #MAX_TERMS} terms; and where the density falls ({@code z > 0}) its alternating terms sum to about
- * {@code e^(z h + h^2 / 2)} against a sum of {@code e^-(z h + h^2 / 2)}, so {@code 2 z h + h^2} is at most
- * {@value #CANCELLATION}: a cancellation of at most {@code e^12.5 ulp}, about {@code 3e-11} relative per step,
- * the same as {@link CachedIncompleteBeta}'s longest step (half a deviation, 12 out). Where the density rises
- * only the {@code -h^2 / 2} part alternates, a cancellation of about {@code e^(h^2)}, at most {@code e^9}. Over a chain of {@value #STEPS} steps that is at most about 1.5e-9 relative, and much
- * less as measured ({@code SweptBetaTest}, against Commons Math), against the 2e-8 engine 1.6's integration is
- * held to.
+ * {@value #MAX_TERMS} terms (one that does not falls back to an anchor); and where the density falls
+ * ({@code z > 0}) its alternating terms sum to about {@code e^(z h + h^2 / 2)} against a sum of
+ * {@code e^-(z h + h^2 / 2)}, so {@code 2 z h + h^2} is at most {@value #CANCELLATION}: a cancellation of at most
+ * {@code e^12.5 ulp}, about {@code 3e-11} relative per step, the same as {@link CachedIncompleteBeta}'s longest
+ * step (half a deviation, 12 out). Where the density rises only the {@code -h^2 / 2} part alternates, a
+ * cancellation of about {@code e^(h^2)}, at most {@code e^9}. Over a chain of {@value #STEPS} steps that is at
+ * most about 1.5e-9 relative, and much less as measured ({@code SweptBetaTest}, against Commons Math), against the
+ * 2e-8 engine 1.6's integration is held to.
  */
 public final class SweptBeta {
     /** Smallest shapes for which steps are taken (both shapes; as {@link CachedIncompleteBeta}). */
