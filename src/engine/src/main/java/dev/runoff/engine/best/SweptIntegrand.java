@@ -9,7 +9,7 @@ import java.util.List;
  * along a sweep of {@link PeakQuadrature}: the own density and each other arm's distribution function are
  * {@link SweptBeta} sweeps, held as the log at an anchor and a ratio, so a point costs the arms' Taylor steps,
  * a product of their ratios and one logarithm (engine 1.5's {@link PeakIntegrand#sweep} takes an exponential
- * and about four logarithms per arm and point). An arm whose distribution function exceeds
+ * and several logarithms per arm and point). An arm whose distribution function exceeds
  * {@code 1 - }{@value #SATURATED} is left out from there on: {@code F_j} increases, so the integrand changes by
  * less than that relative share (engine 1.5 left an arm out from {@code 1 - 1e-17}; both are far below the
  * integration's tolerance of 2e-8). Not thread-safe: one instance per sweep.
