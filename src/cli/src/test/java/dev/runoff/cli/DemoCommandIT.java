@@ -102,7 +102,7 @@ class DemoCommandIT {
         assertEquals(periods, exported.size());
         assertTrue(HashChain.firstBreak(exported).isEmpty(), "hash chain of the exported records");
         assertTrue(exported.stream().allMatch(d -> AllocationEngine.VERSION.equals(d.getEngineVersion())
-                && "1.5".equals(d.getEngineVersion())), "the job writes engine 1.5 decisions");
+                && "1.6".equals(d.getEngineVersion())), "the job writes engine 1.6 decisions");
         assertEquals("flexible-bundle", exported.get(exported.size() - 1).getWinner());
         assertTrue(exported.stream().allMatch(d -> "demo".equals(d.getKeyId()) && d.getSignature() != null),
                 "every exported record is signed with the run's key");

@@ -65,10 +65,18 @@ public enum EngineVersion {
      * with negligible probability ({@link DrawnArms#LEAVE_OUT_CERTAIN_LOSERS}).
      */
     V1_5("1.5", DecisionPrecision::new, TableDrawSource.always(), ExactAlphas.TOLERANCE_QUADRATURE,
+            new FastExactProbabilityBest(), DrawnArms.LEAVE_OUT_CERTAIN_LOSERS),
+
+    /**
+     * 1.5 with the arms that win no draw integrated on 1.5's panels to 1.5's tolerance, the integrand carried
+     * from node to node by Taylor steps that take no exponential or logarithm
+     * ({@link ExactAlphas#SWEPT_QUADRATURE}).
+     */
+    V1_6("1.6", DecisionPrecision::new, TableDrawSource.always(), ExactAlphas.SWEPT_QUADRATURE,
             new FastExactProbabilityBest(), DrawnArms.LEAVE_OUT_CERTAIN_LOSERS);
 
     /** The version new evaluations use. */
-    public static final EngineVersion CURRENT = V1_5;
+    public static final EngineVersion CURRENT = V1_6;
 
     private final String label;
     private final Function<AlphaReaders, DrawPolicy> policy;

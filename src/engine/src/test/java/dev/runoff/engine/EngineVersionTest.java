@@ -36,13 +36,14 @@ class EngineVersionTest {
 
     @Test
     void versionsAreFoundByTheirLabelsAndTheCurrentOneIsWhatNewEvaluationsRecord() {
-        assertEquals("1.2, 1.3, 1.4, 1.5", EngineVersion.supported());
+        assertEquals("1.2, 1.3, 1.4, 1.5, 1.6", EngineVersion.supported());
         assertSame(EngineVersion.V1_2, EngineVersion.of("1.2"));
         assertSame(EngineVersion.V1_3, EngineVersion.of("1.3"));
         assertSame(EngineVersion.V1_4, EngineVersion.of("1.4"));
         assertSame(EngineVersion.V1_5, EngineVersion.of("1.5"));
+        assertSame(EngineVersion.V1_6, EngineVersion.of("1.6"));
         assertEquals(Optional.empty(), EngineVersion.find("1.1"));
-        assertSame(EngineVersion.V1_5, EngineVersion.CURRENT);
+        assertSame(EngineVersion.V1_6, EngineVersion.CURRENT);
         assertEquals(EngineVersion.CURRENT.label(), AllocationEngine.VERSION);
         assertSame(EngineVersion.CURRENT, new AllocationEngine().version());
         assertEquals(AllocationEngine.VERSION, new AllocationEngine().evaluate(CLEAR, BERNOULLI, 3L).engineVersion());
@@ -51,7 +52,7 @@ class EngineVersionTest {
     @Test
     void anUnknownVersionIsRejectedNamingTheSupportedOnes() {
         IllegalArgumentException e = assertThrows(IllegalArgumentException.class, () -> EngineVersion.of("1.1"));
-        assertEquals("engine version '1.1' is not supported; supported: 1.2, 1.3, 1.4, 1.5", e.getMessage());
+        assertEquals("engine version '1.1' is not supported; supported: 1.2, 1.3, 1.4, 1.5, 1.6", e.getMessage());
         assertThrows(NullPointerException.class, () -> new AllocationEngine(null));
     }
 
@@ -111,6 +112,20 @@ class EngineVersionTest {
             double allowed = a.conditional()[i] && b.conditional()[i] ? 2e-8 * a.alpha()[i] + 1e-15
                     : 5 * Math.hypot(a.standardError()[i], b.standardError()[i]);
             assertEquals(a.alpha()[i], b.alpha()[i], allowed, "arm " + i);
+        }
+    }
+
+    @Test
+    void version16DrawsAs15AndIntegratesTheArmsThatWinNoneToItsTolerance() {
+        ProbabilityBest a = new AllocationEngine(EngineVersion.V1_5).evaluate(CLEAR, BERNOULLI, 5L).probabilityBest();
+        ProbabilityBest b = new AllocationEngine(EngineVersion.V1_6).evaluate(CLEAR, BERNOULLI, 5L).probabilityBest();
+        assertTrue(b.conditional()[0], "arm a wins no draw");
+        assertEquals(a.draws(), b.draws());
+        for (int i = 0; i < a.alpha().length; i++) {
+            // Same draws, so the same counted alphas; integrated ones within SweptPeakQuadratureTest's tolerance
+            // of 1.2's integration, as 1.5's are.
+            assertEquals(a.conditional()[i], b.conditional()[i], "arm " + i);
+            assertEquals(a.alpha()[i], b.alpha()[i], 2e-8 * a.alpha()[i] + 1e-15, "arm " + i);
         }
     }
 

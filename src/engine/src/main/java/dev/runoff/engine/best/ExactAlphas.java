@@ -29,6 +29,12 @@ public interface ExactAlphas {
     ExactAlphas TOLERANCE_QUADRATURE = TolerancePeakQuadrature::selected;
 
     /**
+     * Engine 1.5's integration with the integrand carried from node to node by Taylor steps that take no
+     * exponential or logarithm ({@link SweptPeakQuadrature}): the integration of engine version 1.6.
+     */
+    ExactAlphas SWEPT_QUADRATURE = SweptPeakQuadrature::selected;
+
+    /**
      * The alphas of the arms selected by {@code which}, 0 for the others.
      *
      * @throws IllegalArgumentException if fewer than two posteriors are given or one is null

@@ -18,7 +18,7 @@ import java.util.List;
  * there on ({@code F_j} increases, and so little no longer moves a log integrand of size 1 or more by one ulp).
  * Not thread-safe: one instance per integral.
  */
-final class PeakIntegrand {
+final class PeakIntegrand implements LogIntegrand {
     /** {@code log F_j} above this is taken as 0 for every later point of a sweep. */
     static final double SATURATED = -1e-17;
 
@@ -50,13 +50,24 @@ final class PeakIntegrand {
         return new PeakIntegrand(arms, own);
     }
 
+    /** The arms of this integrand. */
+    List<BetaPosterior> arms() {
+        return arms;
+    }
+
+    /** The arm whose probability of being best this integrand gives. */
+    int own() {
+        return own;
+    }
+
     /** The number of arms. */
     int count() {
         return a.length;
     }
 
     /** {@code phi(x)} for {@code 0 < x < 1}, at points visited in increasing order (saturated arms skipped). */
-    double sweep(double x) {
+    @Override
+    public double sweep(double x) {
         double y = 1 - x;
         double phi = cdfs[own].logDensity(x, y);
         for (int j = 0; j < a.length; j++) {

@@ -5,6 +5,7 @@ import dev.runoff.engine.posterior.Posterior;
 import dev.runoff.engine.special.GaussLegendre;
 import java.util.ArrayList;
 import java.util.List;
+import java.util.function.Function;
 
 /**
  * The integration of arms that win no draw as engine version 1.4 does it: each selected arm's integral
@@ -62,16 +63,27 @@ final class PeakQuadrature {
     private final double factor;
     private final GaussLegendre rule;
     private final double[] logWeights;
+    private final Function<PeakIntegrand, LogIntegrand> sweeps;
 
     /**
      * An integration whose cut tails hold at most {@code e^-stop} of each integral, with {@code points}-point
-     * Gauss-Legendre panels {@code factor} local standard deviations wide.
+     * Gauss-Legendre panels {@code factor} local standard deviations wide, evaluating the integrand at the
+     * nodes by {@link PeakIntegrand#sweep} (engine versions 1.4 and 1.5).
      */
     PeakQuadrature(double stop, double factor, int points) {
+        this(stop, factor, points, PeakIntegrand::fresh);
+    }
+
+    /**
+     * As {@link #PeakQuadrature(double, double, int)}, each sweep of panels evaluating the integrand by what
+     * {@code sweeps} makes from the integrand the peak search used (a fresh evaluator per sweep).
+     */
+    PeakQuadrature(double stop, double factor, int points, Function<PeakIntegrand, LogIntegrand> sweeps) {
         this.stop = stop;
         this.factor = factor;
         this.rule = GaussLegendre.of(points);
         this.logWeights = logWeights(rule);
+        this.sweeps = sweeps;
     }
 
     /**
@@ -122,7 +134,7 @@ final class PeakQuadrature {
         if (!(start > 0) || !(peak[0] + sd < 1)) {
             return Double.NaN;
         }
-        Sweep sweep = new Sweep(search.fresh());
+        Sweep sweep = new Sweep(sweeps.apply(search));
         double left = start;
         int panels = 0;
         do {
@@ -222,7 +234,7 @@ final class PeakQuadrature {
      * right tail's bound.
      */
     private final class Sweep {
-        private final PeakIntegrand phi;
+        private final LogIntegrand phi;
         private final ExactIntegrator.Accumulator sum = new ExactIntegrator.Accumulator(1);
         private int nodes;
         private double firstX;
@@ -234,7 +246,7 @@ final class PeakQuadrature {
         private double previousX;
         private double previousPhi;
 
-        Sweep(PeakIntegrand phi) {
+        Sweep(LogIntegrand phi) {
             this.phi = phi;
         }
 
@@ -292,7 +304,7 @@ final class PeakQuadrature {
                     return Double.NaN;
                 }
                 double left = previousEdge(search, edge);
-                Sweep part = new Sweep(search.fresh());
+                Sweep part = new Sweep(sweeps.apply(search));
                 part.panel(left, edge);
                 sum.add(0, part.sum.logValue(0));
                 x1 = part.firstX;
