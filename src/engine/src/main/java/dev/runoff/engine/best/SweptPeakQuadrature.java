@@ -24,9 +24,8 @@ import java.util.List;
 final class SweptPeakQuadrature {
     /** Largest relative error of an alpha this integration is built and tested for (as engine 1.5). */
     static final double TOLERANCE = TolerancePeakQuadrature.TOLERANCE;
-    private static final int POINTS = 20;
     private static final PeakQuadrature RULE = new PeakQuadrature(TolerancePeakQuadrature.STOP,
-            TolerancePeakQuadrature.FACTOR, POINTS, SweptIntegrand::of);
+            TolerancePeakQuadrature.FACTOR, TolerancePeakQuadrature.POINTS, SweptIntegrand::of);
 
     private SweptPeakQuadrature() {
     }

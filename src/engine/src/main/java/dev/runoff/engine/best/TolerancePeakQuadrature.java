@@ -51,7 +51,8 @@ final class TolerancePeakQuadrature {
     static final double STOP = 20;
     /** Panel width in local standard deviations. */
     static final double FACTOR = 12;
-    private static final int POINTS = 20;
+    /** Points of the Gauss-Legendre rule on each panel (1.4's). */
+    static final int POINTS = 20;
     private static final PeakQuadrature RULE = new PeakQuadrature(STOP, FACTOR, POINTS);
 
     private TolerancePeakQuadrature() {
